@@ -1,0 +1,288 @@
+"""Rebuild the bundled solvent library ``parameters/liquids.csv`` from the ``chemicals``/``thermo`` libraries.
+
+Run with ``python -m selector.build`` (add ``--check`` to compare against the committed file
+instead of writing it).
+
+Sources
+-------
+* Hansen solubility parameters: ``chemicals.solubility`` tables, only the three published
+  source keys below (values stored there in Pa^0.5, divided by 1000 here to MPa^0.5):
+
+  - ``ALSHERI_HANSEN``: Alshehri, Tula, You, Gani, AIChE J. 68 (2022) e17469.
+  - ``MANUEL_RUBEN_2022``: Diaz de los Rios, Murcia Belmonte, SN Applied Sciences 4 (2022) 185.
+  - ``WDR_SCHRIER``: J. Schrier, "Hansen Solubility Parameters", Wolfram Data Repository (2020).
+
+* Everything else (names, SMILES, melting/boiling point, molar volume, density, vapour
+  pressure, enthalpy of vaporisation, expansion coefficient, viscosity, flash point,
+  auto-ignition temperature, exposure limit): ``thermo.Chemical`` at 25 C and 1 atm, which in
+  turn draws on the ``chemicals`` data tables; the method each correlation used is recorded.
+
+Rule for the kept HSP value
+---------------------------
+When more than one source carries a compound, the three components are taken *together* from
+the first source in ``SOURCE_PRIORITY`` (``ALSHERI_HANSEN`` first: the most recent peer-reviewed
+compilation; then ``MANUEL_RUBEN_2022``; then ``WDR_SCHRIER``). Components are never mixed across
+sources. ``hsp_spread`` is the largest difference, over the three components, between any two
+sources; ``sources_disagree`` is true when it exceeds 1 MPa^0.5.
+
+Liquid at 25 C means a known melting point below 298.15 K and a known boiling point above it.
+Missing data stay missing (empty in the CSV), never invented.
+"""
+from __future__ import annotations
+
+import argparse
+import math
+import os
+import sys
+import warnings
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+SOURCE_PRIORITY = ("ALSHERI_HANSEN", "MANUEL_RUBEN_2022", "WDR_SCHRIER")
+SOURCE_CITATIONS = {
+    "ALSHERI_HANSEN": "Alshehri, Tula, You, Gani, AIChE J. 68 (2022) e17469",
+    "MANUEL_RUBEN_2022": "Diaz de los Rios, Murcia Belmonte, SN Applied Sciences 4 (2022) 185",
+    "WDR_SCHRIER": "Schrier, Hansen Solubility Parameters, Wolfram Data Repository (2020)",
+}
+DISAGREE_LIMIT = 1.0  # MPa^0.5
+T25 = 298.15
+
+PARAMETERS_DIR = Path(__file__).resolve().parent.parent / "parameters"
+LIBRARY_CSV = PARAMETERS_DIR / "liquids.csv"
+
+COLUMNS = [
+    "name", "cas", "smiles", "inchikey", "formula", "molar_mass",
+    "delta_d", "delta_p", "delta_h", "hsp_source", "hsp_sources_available", "hsp_spread",
+    "sources_disagree",
+    "molar_volume", "density", "melting_point_c", "boiling_point_c", "flash_point_c",
+    "autoignition_c", "vapour_pressure_kpa", "antoine_a", "antoine_b", "antoine_c",
+    "antoine_tmin_c", "antoine_tmax_c", "hvap_kj_mol", "expansion_coeff", "viscosity_mpa_s",
+    "critical_temperature_c", "exposure_limit", "exposure_limit_unit", "synonyms",
+    "melting_point_source", "boiling_point_source", "volume_method", "vapour_pressure_method",
+    "flash_point_source", "exposure_limit_source",
+]
+
+
+def hsp_tables() -> dict[str, pd.DataFrame]:
+    """Return the three allowed HSP tables in MPa^0.5, keyed by source key."""
+    from chemicals import solubility
+
+    solubility._load_solubility_data()
+    tables = {
+        "ALSHERI_HANSEN": solubility.alsheri_hansen_data,
+        "MANUEL_RUBEN_2022": solubility.manuel_ruben_2022_data,
+        "WDR_SCHRIER": solubility.wdr_schrier_data,
+    }
+    out = {}
+    for key, df in tables.items():
+        t = df[["HANSEN_DELTA_D", "HANSEN_DELTA_P", "HANSEN_DELTA_H"]].astype(float) / 1000.0
+        t.columns = ["delta_d", "delta_p", "delta_h"]
+        t = t.dropna()
+        out[key] = t[~t.index.duplicated(keep="first")]
+    return out
+
+
+def merged_hsp() -> pd.DataFrame:
+    """All compounds with HSP, one row per CAS, with the kept value and the disagreement."""
+    tables = hsp_tables()
+    cas_all = sorted(set().union(*[set(t.index) for t in tables.values()]))
+    rows = []
+    for cas in cas_all:
+        present = [k for k in SOURCE_PRIORITY if cas in tables[k].index]
+        vals = np.array([tables[k].loc[cas].to_numpy(dtype=float) for k in present])
+        spread = float((vals.max(axis=0) - vals.min(axis=0)).max()) if len(vals) > 1 else 0.0
+        kept = vals[0]
+        rows.append({
+            "cas": cas, "delta_d": kept[0], "delta_p": kept[1], "delta_h": kept[2],
+            "hsp_source": present[0], "hsp_sources_available": "|".join(present),
+            "hsp_spread": round(spread, 3), "sources_disagree": spread > DISAGREE_LIMIT,
+        })
+    return pd.DataFrame(rows).set_index("cas")
+
+
+def _clean_synonyms(name: str, syns: list[str] | None, cas: str) -> str:
+    seen, out = {name.lower()}, []
+    for s in syns or []:
+        s2 = s.strip().lower()
+        if not s2 or s2 in seen or s2 == cas or "[" in s2 or len(s2) > 40:
+            continue
+        if sum(ch.isdigit() for ch in s2) > 0.5 * len(s2):
+            continue
+        seen.add(s2)
+        out.append(s2)
+        if len(out) >= 12:
+            break
+    return "|".join(out)
+
+
+def _fit_antoine(psat_fn, tmin: float, tmax: float):
+    """Fit log10(P/kPa) = A - B / (T/K + C) to a vapour-pressure curve on [tmin, tmax] K."""
+    from scipy.optimize import curve_fit
+
+    T = np.linspace(tmin, tmax, 25)
+    P = []
+    for t in T:
+        try:
+            p = psat_fn(t)
+        except Exception:  # noqa: BLE001 - correlation out of range
+            p = None
+        P.append(np.nan if p is None else p / 1000.0)
+    P = np.array(P, dtype=float)
+    ok = np.isfinite(P) & (P > 0)
+    if ok.sum() < 6:
+        return None
+    T, y = T[ok], np.log10(P[ok])
+
+    def f(t, a, b, c):
+        return a - b / (t + c)
+
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            popt, _ = curve_fit(f, T, y, p0=(7.0, 1500.0, -50.0), maxfev=20000)
+    except Exception:  # noqa: BLE001
+        return None
+    resid = np.abs(f(T, *popt) - y).max()
+    if not np.isfinite(resid) or resid > 0.02 or (T + popt[2]).min() <= 0:
+        return None
+    return float(popt[0]), float(popt[1]), float(popt[2]), float(T.min()), float(T.max())
+
+
+def _num(x, scale=1.0, offset=0.0, digits=6):
+    if x is None:
+        return np.nan
+    try:
+        v = float(x)
+    except (TypeError, ValueError):
+        return np.nan
+    if not math.isfinite(v):
+        return np.nan
+    return round(v * scale + offset, digits)
+
+
+def liquid_record(cas: str) -> dict | None:
+    """Property record of one compound at 25 C from ``thermo``, or None when not a liquid at 25 C."""
+    import chemicals
+    from thermo import Chemical
+
+    tm, tb = chemicals.Tm(cas), chemicals.Tb(cas)
+    if tm is None or tb is None or not (tm < T25 < tb):
+        return None
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        try:
+            c = Chemical(cas, T=T25, P=101325.0)
+        except Exception:  # noqa: BLE001 - not in thermo's identifier database: cannot build a record
+            return None
+        rec = {
+            "cas": cas,
+            "name": c.name,
+            "smiles": c.smiles or "",
+            "inchikey": c.InChI_Key or "",
+            "formula": c.formula or "",
+            "molar_mass": _num(c.MW, digits=4),
+            "molar_volume": _num(c.Vml, 1e6, digits=3),
+            "density": _num(c.rhol, 1e-3, digits=4),
+            "melting_point_c": _num(tm, offset=-273.15, digits=2),
+            "boiling_point_c": _num(tb, offset=-273.15, digits=2),
+            "flash_point_c": _num(c.Tflash, offset=-273.15, digits=2),
+            "autoignition_c": _num(c.Tautoignition, offset=-273.15, digits=2),
+            "vapour_pressure_kpa": _num(c.Psat, 1e-3, digits=5),
+            "hvap_kj_mol": _num(c.Hvapm, 1e-3, digits=4),
+            # constant-density correlations report ~0: that is no measurement, keep it missing
+            "expansion_coeff": (_num(c.isobaric_expansion_l, digits=7)
+                                if (c.isobaric_expansion_l or 0) > 1e-6 else np.nan),
+            "viscosity_mpa_s": _num(c.mul, 1e3, digits=5),
+            "critical_temperature_c": _num(c.Tc, offset=-273.15, digits=2),
+            "synonyms": _clean_synonyms(c.name, c.synonyms, cas),
+            "melting_point_source": (chemicals.Tm_methods(cas) or [""])[0],
+            "boiling_point_source": (chemicals.Tb_methods(cas) or [""])[0],
+            "volume_method": c.VolumeLiquid.method or "",
+            "vapour_pressure_method": c.VaporPressure.method or "",
+            "flash_point_source": (chemicals.safety.T_flash_methods(cas) or [""])[0]
+            if c.Tflash is not None else "",
+        }
+        twa = chemicals.safety.TWA(cas)
+        if twa:
+            rec["exposure_limit"] = _num(twa[0])
+            rec["exposure_limit_unit"] = twa[1]
+            rec["exposure_limit_source"] = (chemicals.safety.TWA_methods(cas) or [""])[0]
+        else:
+            rec["exposure_limit"] = np.nan
+            rec["exposure_limit_unit"] = ""
+            rec["exposure_limit_source"] = ""
+        ant = None
+        if c.VaporPressure is not None and c.Psat is not None:
+            tmin = max(tm + 1.0, tb - 100.0, 200.0)
+            tmax = tb + 10.0
+            if c.Tc:
+                tmax = min(tmax, 0.95 * c.Tc)
+            if tmax > tmin + 20:
+                ant = _fit_antoine(c.VaporPressure, tmin, tmax)
+        if ant is None:
+            rec.update(antoine_a=np.nan, antoine_b=np.nan, antoine_c=np.nan,
+                       antoine_tmin_c=np.nan, antoine_tmax_c=np.nan)
+        else:
+            a, b, cc, t0, t1 = ant
+            rec.update(antoine_a=round(a, 6), antoine_b=round(b, 4), antoine_c=round(cc, 4),
+                       antoine_tmin_c=round(t0 - 273.15, 2), antoine_tmax_c=round(t1 - 273.15, 2))
+    if not rec["name"]:
+        return None
+    return rec
+
+
+def build(cas_subset: list[str] | None = None, processes: int = 2) -> pd.DataFrame:
+    """Build the library table (all liquids at 25 C with HSP, or only ``cas_subset``)."""
+    hsp = merged_hsp()
+    cas_list = list(hsp.index) if cas_subset is None else [c for c in cas_subset if c in hsp.index]
+    if processes > 1 and len(cas_list) > 50:
+        from multiprocessing import Pool
+
+        with Pool(processes) as pool:
+            recs = pool.map(liquid_record, cas_list, chunksize=20)
+    else:
+        recs = [liquid_record(c) for c in cas_list]
+    rows = []
+    for rec in recs:
+        if rec is None:
+            continue
+        h = hsp.loc[rec["cas"]]
+        rec.update({k: h[k] for k in ("delta_d", "delta_p", "delta_h", "hsp_source",
+                                      "hsp_sources_available", "hsp_spread", "sources_disagree")})
+        rows.append(rec)
+    df = pd.DataFrame(rows)
+    # Names must be unique for look-up: disambiguate rare clashes with the CAS number.
+    dup = df["name"].str.lower().duplicated(keep=False)
+    df.loc[dup, "name"] = df.loc[dup, "name"] + " (" + df.loc[dup, "cas"] + ")"
+    df = df[COLUMNS].sort_values("name", key=lambda s: s.str.lower()).reset_index(drop=True)
+    return df
+
+
+def write_atomic(df: pd.DataFrame, path: Path) -> None:
+    """Write a CSV atomically: temp file in the same folder, then rename."""
+    path = Path(path)
+    tmp = path.with_suffix(path.suffix + ".tmp")
+    df.to_csv(tmp, index=False, lineterminator="\n")
+    os.replace(tmp, path)
+
+
+def main(argv=None) -> int:
+    p = argparse.ArgumentParser(description="Rebuild parameters/liquids.csv from chemicals/thermo.")
+    p.add_argument("--check", action="store_true", help="compare with the committed file, do not write")
+    p.add_argument("--out", type=Path, default=LIBRARY_CSV)
+    a = p.parse_args(argv)
+    df = build()
+    if a.check:
+        old = pd.read_csv(LIBRARY_CSV, keep_default_na=False, na_values=[""])
+        same = old.shape == df.shape
+        print(f"built {len(df)} liquids; committed {len(old)}; identical shape: {same}")
+        return 0 if same else 1
+    write_atomic(df, a.out)
+    print(f"wrote {len(df)} liquids to {a.out}")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())

@@ -1,0 +1,37 @@
+"""Small RDKit helpers (RDKit is imported lazily so the command line starts fast)."""
+from __future__ import annotations
+
+import functools
+
+
+@functools.lru_cache(maxsize=1)
+def _rdkit():
+    from rdkit import Chem, RDLogger
+
+    RDLogger.DisableLog("rdApp.*")
+    return Chem
+
+
+@functools.lru_cache(maxsize=4096)
+def canonical_smiles(smiles: str) -> str | None:
+    """RDKit canonical SMILES, or None when the string does not parse."""
+    if not isinstance(smiles, str) or not smiles.strip():
+        return None
+    Chem = _rdkit()
+    mol = Chem.MolFromSmiles(smiles.strip())
+    if mol is None:
+        return None
+    return Chem.MolToSmiles(mol)
+
+
+@functools.lru_cache(maxsize=4096)
+def inchikey(smiles: str) -> str | None:
+    """Standard InChIKey of a SMILES, or None when it does not parse."""
+    Chem = _rdkit()
+    mol = Chem.MolFromSmiles(smiles.strip()) if isinstance(smiles, str) else None
+    if mol is None:
+        return None
+    try:
+        return Chem.MolToInchiKey(mol) or None
+    except Exception:  # noqa: BLE001 - InChI generation failures are answered with None
+        return None

@@ -1,0 +1,34 @@
+"""Exceptions raised at the boundary of the library.
+
+Every error a user can cause is a :class:`SelectorError`, a subclass of ``ValueError`` whose
+message names the problem; the command line prints it as one line and exits non-zero.
+"""
+from __future__ import annotations
+
+
+class SelectorError(ValueError):
+    """Bad input: the message says what is wrong and, where possible, what would be right."""
+
+
+class UnknownLiquidError(SelectorError, KeyError):
+    """A name, synonym, CAS number or SMILES that matches no liquid; carries suggestions."""
+
+    def __init__(self, query: str, suggestions: list[str] | None = None):
+        self.query = query
+        self.suggestions = list(suggestions or [])
+        msg = f"unknown liquid {query!r}"
+        if self.suggestions:
+            msg += "; did you mean " + ", ".join(repr(s) for s in self.suggestions) + "?"
+        super().__init__(msg)
+
+    def __str__(self) -> str:  # KeyError would add quotes around the message
+        return self.args[0]
+
+
+class InputTableError(SelectorError):
+    """A user table (CSV or DataFrame) with one or more problems, all reported at once."""
+
+    def __init__(self, what: str, problems: list[str]):
+        self.problems = list(problems)
+        lines = "\n".join(f"  - {p}" for p in self.problems)
+        super().__init__(f"{what}: {len(self.problems)} problem(s)\n{lines}")

@@ -1,0 +1,133 @@
+"""The liquid-selection filters shared by every function that picks liquids.
+
+Keyword arguments (all optional):
+
+* ``include``: list of names/CAS - only these liquids are candidates;
+* ``exclude``: list of names/CAS - these are never candidates;
+* ``boiling_point_c=(low, high)``: boiling-point window in C (either end may be None);
+* ``min_flash_point_c``: minimum flash point in C. A liquid without flash-point data does not
+  pass: missing data is not evidence that a liquid will not burn;
+* ``max_molar_volume``: cm^3/mol;
+* ``consistent_sources_only``: drop liquids whose published HSP sources disagree by more than
+  1 MPa^0.5.
+
+At a temperature other than 25 C, liquids that are not liquid there (melting point above it or
+boiling point below it) are dropped too.
+"""
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pandas as pd
+
+from .errors import SelectorError
+from .library import locate_many
+
+FILTER_KEYS = ("include", "exclude", "boiling_point_c", "min_flash_point_c", "max_molar_volume",
+               "consistent_sources_only")
+
+
+def _as_list(v, what):
+    if v is None:
+        return None
+    if isinstance(v, str):
+        return [v]
+    try:
+        out = list(v)
+    except TypeError:
+        raise SelectorError(f"{what} must be a list of liquid names or CAS numbers") from None
+    return out
+
+
+def _window(v, what):
+    if v is None:
+        return (None, None)
+    if not isinstance(v, (tuple, list)) or len(v) != 2:
+        raise SelectorError(f"{what} must be a (low, high) pair in C, e.g. (80, 180)")
+    lo, hi = v
+    out = []
+    for x in (lo, hi):
+        if x is None:
+            out.append(None)
+            continue
+        try:
+            f = float(x)
+        except (TypeError, ValueError):
+            raise SelectorError(f"{what} bounds must be numbers in C, got {x!r}") from None
+        if math.isnan(f):
+            raise SelectorError(f"{what} bounds must not be NaN")
+        out.append(f)
+    if out[0] is not None and out[1] is not None and out[0] > out[1]:
+        raise SelectorError(f"{what}: low ({out[0]:g}) is above high ({out[1]:g})")
+    return tuple(out)
+
+
+def check_filter_keys(filters: dict, extra: tuple[str, ...] = ()) -> None:
+    """Raise a clear error for an unknown filter keyword."""
+    bad = [k for k in filters if k not in FILTER_KEYS and k not in extra]
+    if bad:
+        raise SelectorError(f"unknown filter(s): {', '.join(bad)}; known: "
+                            f"{', '.join(FILTER_KEYS + tuple(extra))}")
+
+
+def filter_mask(library: pd.DataFrame, *, temperature: float = 25.0, include=None, exclude=None,
+                boiling_point_c=None, min_flash_point_c=None, max_molar_volume=None,
+                consistent_sources_only=False) -> np.ndarray:
+    """Boolean mask over ``library`` rows that pass every filter (see module doc)."""
+    n = len(library)
+    mask = np.ones(n, dtype=bool)
+    inc = _as_list(include, "include")
+    if inc is not None:
+        if len(inc) == 0:
+            raise SelectorError("include is an empty list: no liquid could be a candidate")
+        m = np.zeros(n, dtype=bool)
+        m[locate_many(inc, library, "include list")] = True
+        mask &= m
+    exc = _as_list(exclude, "exclude")
+    if exc:
+        mask[locate_many(exc, library, "exclude list")] = False
+    lo, hi = _window(boiling_point_c, "boiling_point_c")
+    bp = library["boiling_point_c"].to_numpy(float)
+    if lo is not None:
+        mask &= bp >= lo
+    if hi is not None:
+        mask &= bp <= hi
+    if min_flash_point_c is not None:
+        try:
+            f = float(min_flash_point_c)
+        except (TypeError, ValueError):
+            raise SelectorError(f"min_flash_point_c must be a number in C, got {min_flash_point_c!r}") from None
+        if math.isnan(f):
+            raise SelectorError("min_flash_point_c must not be NaN")
+        fp = library["flash_point_c"].to_numpy(float)
+        with np.errstate(invalid="ignore"):
+            mask &= fp >= f
+    if max_molar_volume is not None:
+        try:
+            v = float(max_molar_volume)
+        except (TypeError, ValueError):
+            raise SelectorError(f"max_molar_volume must be a number in cm3/mol, got {max_molar_volume!r}") from None
+        if not v > 0:
+            raise SelectorError("max_molar_volume must be a positive number of cm3/mol")
+        with np.errstate(invalid="ignore"):
+            mask &= library["molar_volume"].to_numpy(float) <= v
+    if consistent_sources_only:
+        mask &= ~library["sources_disagree"].to_numpy(bool)
+    t = float(temperature)
+    if abs(t - 25.0) > 1e-9:
+        mp = library["melting_point_c"].to_numpy(float) if "melting_point_c" in library else np.full(n, np.nan)
+        with np.errstate(invalid="ignore"):
+            mask &= ~(mp > t) & ~(bp < t)
+    return mask
+
+
+def check_temperature(temperature) -> float:
+    """Validate a temperature in C (finite, above absolute zero)."""
+    try:
+        t = float(temperature)
+    except (TypeError, ValueError):
+        raise SelectorError(f"temperature must be a number in C, got {temperature!r}") from None
+    if not math.isfinite(t) or t <= -273.15:
+        raise SelectorError(f"temperature must be a finite number above -273.15 C, got {temperature!r}")
+    return t

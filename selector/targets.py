@@ -1,0 +1,111 @@
+"""Targets: the solute (or liquid) whose Hansen point or sphere the candidates are ranked against.
+
+A target may be given as
+
+* a tuple ``(delta_d, delta_p, delta_h)`` or ``(delta_d, delta_p, delta_h, R0)`` in MPa^0.5;
+* a :class:`Target`;
+* a library entry by name, synonym, CAS or SMILES (a point, no R0);
+* a mapping or pandas Series with ``delta_d, delta_p, delta_h`` and optionally ``radius``/``R0``;
+* any object with ``delta_d, delta_p, delta_h`` attributes and optionally ``radius`` (for
+  example the result of :func:`selector.fit_sphere`).
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+
+from .errors import SelectorError
+from .library import locate, load_library
+
+
+@dataclass(frozen=True)
+class Target:
+    """A Hansen point (MPa^0.5) with an optional interaction radius R0 (MPa^0.5)."""
+
+    delta_d: float
+    delta_p: float
+    delta_h: float
+    radius: float | None = None
+    name: str = "target"
+    source: str = "given"
+    notes: tuple[str, ...] = field(default_factory=tuple)
+
+    def __post_init__(self):
+        for k in ("delta_d", "delta_p", "delta_h"):
+            v = getattr(self, k)
+            if not isinstance(v, (int, float, np.floating, np.integer)) or isinstance(v, bool):
+                raise SelectorError(f"{k} must be a number of MPa^0.5, got {v!r}")
+            if not math.isfinite(float(v)):
+                raise SelectorError(f"{k} must be a finite number, got {v!r}")
+            if float(v) < 0:
+                raise SelectorError(f"{k} must not be negative (got {float(v):g} MPa^0.5)")
+        if float(self.delta_d) <= 0:
+            raise SelectorError("delta_d must be positive: every liquid has dispersion forces")
+        if self.radius is not None:
+            r = self.radius
+            if isinstance(r, bool) or not isinstance(r, (int, float, np.floating, np.integer)):
+                raise SelectorError(f"R0 must be a number of MPa^0.5, got {r!r}")
+            if not math.isfinite(float(r)) or float(r) <= 0:
+                raise SelectorError(f"R0 must be a positive finite number (got {r!r} MPa^0.5)")
+
+    @property
+    def hsp(self) -> np.ndarray:
+        """(3,) array (delta_d, delta_p, delta_h)."""
+        return np.array([self.delta_d, self.delta_p, self.delta_h], dtype=float)
+
+    @property
+    def has_sphere(self) -> bool:
+        return self.radius is not None
+
+    def describe(self) -> str:
+        s = f"{self.name}: dD {self.delta_d:.1f}, dP {self.delta_p:.1f}, dH {self.delta_h:.1f} MPa^0.5"
+        if self.radius is not None:
+            s += f", R0 {self.radius:.1f}"
+        return s
+
+
+def _num(v, what):
+    if isinstance(v, bool) or v is None:
+        raise SelectorError(f"{what} must be a number, got {v!r}")
+    try:
+        return float(v)
+    except (TypeError, ValueError):
+        raise SelectorError(f"{what} must be a number, got {v!r}") from None
+
+
+def as_target(target, library: pd.DataFrame | None = None, name: str | None = None) -> Target:
+    """Turn any accepted target form (see module doc) into a validated :class:`Target`."""
+    if isinstance(target, Target):
+        return target
+    if target is None:
+        raise SelectorError("no target given: pass (delta_d, delta_p, delta_h[, R0]) or a liquid name")
+    if isinstance(target, str):
+        lib = load_library() if library is None else library
+        row = lib.iloc[locate(target, lib)]
+        return Target(float(row.delta_d), float(row.delta_p), float(row.delta_h), None,
+                      name=str(row["name"]), source=f"library ({row.get('hsp_source', '')})")
+    if isinstance(target, (tuple, list, np.ndarray)):
+        vals = list(target)
+        if len(vals) not in (3, 4):
+            raise SelectorError("a target tuple is (delta_d, delta_p, delta_h) or "
+                                f"(delta_d, delta_p, delta_h, R0); got {len(vals)} values")
+        nums = [_num(v, k) for v, k in zip(vals, ["delta_d", "delta_p", "delta_h", "R0"])]
+        return Target(*nums[:3], nums[3] if len(nums) == 4 else None, name=name or "target")
+    if isinstance(target, (dict, pd.Series)):
+        get = target.get
+        r = get("radius", get("R0", get("r0")))
+        r = None if r is None or (isinstance(r, float) and math.isnan(r)) else _num(r, "R0")
+        return Target(_num(get("delta_d"), "delta_d"), _num(get("delta_p"), "delta_p"),
+                      _num(get("delta_h"), "delta_h"), r,
+                      name=str(get("name", name or "target")), source=str(get("source", "given")))
+    if all(hasattr(target, k) for k in ("delta_d", "delta_p", "delta_h")):
+        r = getattr(target, "radius", None)
+        return Target(_num(target.delta_d, "delta_d"), _num(target.delta_p, "delta_p"),
+                      _num(target.delta_h, "delta_h"), None if r is None else _num(r, "R0"),
+                      name=str(getattr(target, "name", name or "fitted sphere")),
+                      source=str(getattr(target, "source", "fitted")))
+    raise SelectorError(f"cannot use {type(target).__name__} as a target: pass "
+                        "(delta_d, delta_p, delta_h[, R0]) or a liquid name")
