@@ -1,0 +1,63 @@
+"""Command line: ``likewise <command> ...`` (also ``python -m selector``).
+
+Each subcommand lives in a ``selector/cli_*.py`` module listed in :data:`COMMAND_MODULES`;
+modules that are not installed are skipped. Errors caused by input print one line and exit 2.
+"""
+from __future__ import annotations
+
+import argparse
+import importlib
+import sys
+
+COMMAND_MODULES = ["cli_core", "cli_sphere", "cli_mix", "cli_blend", "cli_estimate", "cli_app"]
+
+DESCRIPTION = """\
+Choose solvents and solvent blends with Hansen solubility parameters (HSP, MPa^0.5).
+Rank ~800 real liquids against a resin's sphere, fit a sphere from your lab tests,
+check that liquids mix, design blends and safer substitutes, estimate HSP from SMILES.
+
+Every suggestion is a starting point for laboratory tests. Solvents can be flammable,
+toxic or reactive: the supplier's safety data sheet and local regulation come first."""
+
+
+def build_parser() -> argparse.ArgumentParser:
+    p = argparse.ArgumentParser(prog="likewise", description=DESCRIPTION,
+                                formatter_class=argparse.RawDescriptionHelpFormatter)
+    from . import __version__
+
+    p.add_argument("--version", action="version", version=f"likewise {__version__}")
+    sub = p.add_subparsers(dest="command", metavar="COMMAND")
+    for m in COMMAND_MODULES:
+        try:
+            mod = importlib.import_module(f".{m}", __package__)
+        except ModuleNotFoundError as e:
+            if e.name and e.name.endswith(m):
+                continue
+            raise
+        mod.register(sub)
+    return p
+
+
+def main(argv=None) -> int:
+    parser = build_parser()
+    a = parser.parse_args(argv)
+    if not getattr(a, "func", None):
+        parser.print_help()
+        return 0
+    from .errors import SelectorError
+
+    try:
+        return int(a.func(a) or 0)
+    except (SelectorError, ValueError, FileNotFoundError, PermissionError, IsADirectoryError) as e:
+        msg = str(e).strip() or type(e).__name__
+        print(f"likewise {a.command}: error: {msg}", file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:
+        print("interrupted", file=sys.stderr)
+        return 130
+    except BrokenPipeError:
+        return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())

@@ -1,0 +1,159 @@
+"""Subcommands ``rank``, ``show``, ``list`` and ``demo``."""
+from __future__ import annotations
+
+import argparse
+import json
+
+from .cli_common import add_filter_args, add_output_args, emit, filters_from_args, library_from_args
+
+RANK_COLUMNS = ["rank", "name", "cas", "delta_d", "delta_p", "delta_h", "ra", "red", "polarity_match",
+                "score", "molar_volume", "boiling_point_c", "flash_point_c", "hsp_source", "sources_disagree"]
+SHOW_FIELDS = ["name", "cas", "smiles", "formula", "molar_mass", "delta_d", "delta_p", "delta_h",
+               "hsp_source", "hsp_sources_available", "hsp_spread", "sources_disagree", "molar_volume",
+               "density", "melting_point_c", "boiling_point_c", "flash_point_c", "autoignition_c",
+               "vapour_pressure_kpa", "hvap_kj_mol", "expansion_coeff", "viscosity_mpa_s",
+               "exposure_limit", "exposure_limit_unit", "exposure_limit_source", "synonyms",
+               "melting_point_source", "boiling_point_source", "volume_method",
+               "vapour_pressure_method", "flash_point_source", "origin"]
+
+
+def parse_target(text: str, radius: float | None = None):
+    """'dD,dP,dH[,R0]' -> tuple; anything else is a liquid name (with the optional radius)."""
+    parts = [p.strip() for p in text.split(",")]
+    if len(parts) in (3, 4):
+        try:
+            nums = tuple(float(p) for p in parts)
+        except ValueError:
+            nums = None
+        if nums is not None:
+            if radius is not None:
+                if len(nums) == 4:
+                    raise ValueError("R0 given twice: in the target and with --radius")
+                nums = nums + (radius,)
+            return nums
+    return text if radius is None else ("__named__", text, radius)
+
+
+def _target_from_args(a, lib):
+    from .library import find_liquid
+    from .targets import Target
+
+    t = parse_target(a.target, a.radius)
+    if isinstance(t, tuple) and t and t[0] == "__named__":
+        row = find_liquid(t[1], lib)
+        return Target(float(row.delta_d), float(row.delta_p), float(row.delta_h), t[2],
+                      name=str(row["name"]), source="library point with given R0")
+    return t
+
+
+def cmd_rank(a) -> int:
+    from .ranking import rank
+
+    lib = library_from_args(a)
+    res = rank(_target_from_args(a, lib), temperature=a.at, library=lib,
+               polarity_weight=a.polarity_weight, **filters_from_args(a))
+    tgt = res.attrs["target"]
+    cols = RANK_COLUMNS if res["red"].notna().any() else [c for c in RANK_COLUMNS if c != "red"]
+    header = (f"Target {tgt.describe()} at {a.at:g} C; {len(res)} candidates; "
+              "score = distance + polarity weight x (1 - polarity match), lower is better")
+    emit(res.head(a.top), a, cols, caution=True, header=header)
+    return 0
+
+
+def cmd_show(a) -> int:
+    import pandas as pd
+
+    from .library import find_liquid
+
+    lib = library_from_args(a)
+    rows = [find_liquid(q, lib) for q in a.liquids]
+    if a.format == "table":
+        for r in rows:
+            for f in SHOW_FIELDS:
+                if f in r.index:
+                    v = r[f]
+                    print(f"{f:24s} {'' if (isinstance(v, float) and v != v) else v}")
+            print()
+        print("HSP from chemicals.solubility (source key above); properties from thermo/chemicals "
+              "(method names above). Missing values are blank: no data, not zero.")
+        return 0
+    emit(pd.DataFrame(rows)[[f for f in SHOW_FIELDS if f in rows[0].index]], a)
+    return 0
+
+
+def cmd_list(a) -> int:
+    import numpy as np
+
+    from .filters import filter_mask
+    from .library import _key
+
+    lib = library_from_args(a)
+    m = filter_mask(lib, **filters_from_args(a))
+    if a.search:
+        k = _key(a.search)
+        hay = (lib["name"] + "|" + lib["synonyms"].astype(str) + "|" + lib["cas"]).map(_key)
+        m &= hay.str.contains(k, regex=False).to_numpy()
+    out = lib.loc[m].sort_values("name")
+    cols = ["name", "cas", "delta_d", "delta_p", "delta_h", "molar_volume", "boiling_point_c",
+            "flash_point_c", "hsp_source", "sources_disagree"]
+    emit(out.head(a.top) if a.top else out, a, cols, header=f"{int(np.sum(m))} liquids match")
+    return 0
+
+
+def demo_scenario() -> dict:
+    """The bundled invented demo scenario (``parameters/demo/scenario.json``)."""
+    from .library import PARAMETERS_DIR
+
+    with open(PARAMETERS_DIR / "demo" / "scenario.json", encoding="utf-8") as fh:
+        return json.load(fh)
+
+
+def cmd_demo(a) -> int:
+    from .ranking import rank
+
+    sc = demo_scenario()
+    r = sc["resin"]
+    f = dict(sc["filters"])
+    f["boiling_point_c"] = tuple(f["boiling_point_c"])
+    res = rank((r["delta_d"], r["delta_p"], r["delta_h"], r["radius"]), temperature=sc["temperature_c"], **f)
+    print(sc["label"])
+    print(sc["story"])
+    print()
+    header = (f"Thinners for {r['name']} (dD {r['delta_d']}, dP {r['delta_p']}, dH {r['delta_h']}, "
+              f"R0 {r['radius']} MPa^0.5), boiling point {f['boiling_point_c'][0]:g}-{f['boiling_point_c'][1]:g} C, "
+              f"flash point >= {f['min_flash_point_c']:g} C:")
+    emit(res.head(a.top), a, RANK_COLUMNS, caution=True, header=header)
+    return 0
+
+
+def register(sub) -> None:
+    p = sub.add_parser("rank", help="rank liquids against a target point or sphere",
+                       description="Rank every liquid in the library against a target. TARGET is "
+                       "'dD,dP,dH' or 'dD,dP,dH,R0' in MPa^0.5, or a liquid name/CAS/SMILES.",
+                       formatter_class=argparse.RawDescriptionHelpFormatter,
+                       epilog="examples:\n  likewise rank 21.3,5.8,4.3,12.7 --bp 80:180\n"
+                       "  likewise rank toluene --radius 6 --min-flash 40 --format csv -o out.csv")
+    p.add_argument("target", help="'dD,dP,dH[,R0]' in MPa^0.5, or a liquid name, CAS or SMILES")
+    p.add_argument("--radius", type=float, metavar="R0", help="interaction radius R0 (MPa^0.5) for a named target")
+    p.add_argument("--at", type=float, default=25.0, metavar="C", help="temperature in C (default 25)")
+    p.add_argument("--polarity-weight", type=float, default=0.3, metavar="W",
+                   help="weight of the polarity mismatch in the score (default 0.3; 0 = Ra/RED only)")
+    add_filter_args(p)
+    add_output_args(p)
+    p.set_defaults(func=cmd_rank)
+
+    p = sub.add_parser("show", help="show one or more liquids with every value and its source")
+    p.add_argument("liquids", nargs="+", help="names, synonyms, CAS numbers or SMILES")
+    p.add_argument("--mine", metavar="CSV", help="CSV of your own liquids merged over the library")
+    add_output_args(p, default_top=None)
+    p.set_defaults(func=cmd_show)
+
+    p = sub.add_parser("list", help="list or filter the library")
+    p.add_argument("--search", metavar="TEXT", help="part of a name, synonym or CAS number")
+    add_filter_args(p)
+    add_output_args(p, default_top=0)
+    p.set_defaults(func=cmd_list)
+
+    p = sub.add_parser("demo", help="rank thinners for the bundled (invented) varnish scenario")
+    add_output_args(p, default_top=15)
+    p.set_defaults(func=cmd_demo)
