@@ -56,7 +56,7 @@ COLUMNS = [
     "name", "cas", "smiles", "inchikey", "formula", "molar_mass",
     "delta_d", "delta_p", "delta_h", "hsp_source", "hsp_sources_available", "hsp_spread",
     "sources_disagree",
-    "molar_volume", "density", "melting_point_c", "boiling_point_c", "flash_point_c",
+    "molar_volume", "molar_volume_estimated", "density", "melting_point_c", "boiling_point_c", "flash_point_c",
     "autoignition_c", "vapour_pressure_kpa", "antoine_a", "antoine_b", "antoine_c",
     "antoine_tmin_c", "antoine_tmax_c", "hvap_kj_mol", "expansion_coeff", "viscosity_mpa_s",
     "critical_temperature_c", "exposure_limit", "exposure_limit_unit", "synonyms",
@@ -162,6 +162,33 @@ def _num(x, scale=1.0, offset=0.0, digits=6):
     return round(v * scale + offset, digits)
 
 
+#: thermo liquid-volume methods that rest on measured data for the compound itself.
+DATA_VOLUME_METHODS = {"HEOS_FIT", "DIPPR_PERRY_8E", "VDI_PPDS", "VDI_TABULAR", "COOLPROP",
+                       "CRC_INORG_L", "CRC_INORG_L_CONST", "Fit 2023", "HTCOSTALDFIT", "MMSNM0FIT",
+                       "RACKETTFIT"}
+
+
+def _volume(c):
+    """Molar volume (m3/mol) at 25 C, expansion coefficient (1/K), method, estimated flag.
+
+    Rule: thermo's default method when it rests on data for the compound; otherwise the
+    COSTALD corresponding-states estimate (Hankinson and Thomson, AIChE J. 25 (1979) 653), the
+    most accurate of thermo's predictive methods for organic liquids, marked as estimated.
+    """
+    vl = c.VolumeLiquid
+    method = vl.method
+    estimated = method not in DATA_VOLUME_METHODS
+    if estimated and "HTCOSTALD" in vl.all_methods:
+        method = "HTCOSTALD"
+    try:
+        v = vl.calculate(T25, method)
+        vp, vm = vl.calculate(T25 + 1.0, method), vl.calculate(T25 - 1.0, method)
+        alpha = (vp - vm) / (2.0 * v)
+    except Exception:  # noqa: BLE001
+        return None, None, method or "", estimated
+    return v, alpha, method, estimated
+
+
 def liquid_record(cas: str) -> dict | None:
     """Property record of one compound at 25 C from ``thermo``, or None when not a liquid at 25 C."""
     import chemicals
@@ -176,6 +203,7 @@ def liquid_record(cas: str) -> dict | None:
             c = Chemical(cas, T=T25, P=101325.0)
         except Exception:  # noqa: BLE001 - not in thermo's identifier database: cannot build a record
             return None
+        vm, alpha, vmethod, vest = _volume(c)
         rec = {
             "cas": cas,
             "name": c.name,
@@ -183,8 +211,9 @@ def liquid_record(cas: str) -> dict | None:
             "inchikey": c.InChI_Key or "",
             "formula": c.formula or "",
             "molar_mass": _num(c.MW, digits=4),
-            "molar_volume": _num(c.Vml, 1e6, digits=3),
-            "density": _num(c.rhol, 1e-3, digits=4),
+            "molar_volume": _num(vm, 1e6, digits=3),
+            "density": _num(c.MW / (vm * 1e6), digits=4) if vm else np.nan,
+            "molar_volume_estimated": bool(vest),
             "melting_point_c": _num(tm, offset=-273.15, digits=2),
             "boiling_point_c": _num(tb, offset=-273.15, digits=2),
             "flash_point_c": _num(c.Tflash, offset=-273.15, digits=2),
@@ -192,14 +221,13 @@ def liquid_record(cas: str) -> dict | None:
             "vapour_pressure_kpa": _num(c.Psat, 1e-3, digits=5),
             "hvap_kj_mol": _num(c.Hvapm, 1e-3, digits=4),
             # constant-density correlations report ~0: that is no measurement, keep it missing
-            "expansion_coeff": (_num(c.isobaric_expansion_l, digits=7)
-                                if (c.isobaric_expansion_l or 0) > 1e-6 else np.nan),
+            "expansion_coeff": _num(alpha, digits=7) if (alpha or 0) > 1e-6 else np.nan,
             "viscosity_mpa_s": _num(c.mul, 1e3, digits=5),
             "critical_temperature_c": _num(c.Tc, offset=-273.15, digits=2),
             "synonyms": _clean_synonyms(c.name, c.synonyms, cas),
             "melting_point_source": (chemicals.Tm_methods(cas) or [""])[0],
             "boiling_point_source": (chemicals.Tb_methods(cas) or [""])[0],
-            "volume_method": c.VolumeLiquid.method or "",
+            "volume_method": vmethod or "",
             "vapour_pressure_method": c.VaporPressure.method or "",
             "flash_point_source": (chemicals.safety.T_flash_methods(cas) or [""])[0]
             if c.Tflash is not None else "",

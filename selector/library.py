@@ -74,7 +74,9 @@ def _bundled() -> pd.DataFrame:
     for c in _TEXT_COLUMNS:
         if c in df.columns:
             df[c] = df[c].fillna("").astype(str)
-    df["sources_disagree"] = df["sources_disagree"].astype(str).str.lower() == "true"
+    for c in ("sources_disagree", "molar_volume_estimated"):
+        if c in df.columns:
+            df[c] = df[c].astype(str).str.lower() == "true"
     df["origin"] = "library"
     return df
 
@@ -325,6 +327,8 @@ def merge_user_liquids(library: pd.DataFrame, table) -> pd.DataFrame:
         if c not in user.columns:
             user[c] = "" if c in _TEXT_COLUMNS else np.nan
     user["sources_disagree"] = False
+    if "molar_volume_estimated" in user.columns:
+        user["molar_volume_estimated"] = user["molar_volume_estimated"].fillna(False).astype(bool)
     user["hsp_source"] = np.where(user.get("hsp_source", "").astype(str) != "",
                                   user.get("hsp_source", ""), "user")
     lk = library["name"].str.lower()
