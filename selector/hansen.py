@@ -52,7 +52,7 @@ def red(hsp, centre, radius):
     RED < 1: inside the solute's sphere (expected to dissolve); > 1 outside.
 
     >>> round(float(red([18.0, 1.4, 2.0], [21.3, 5.8, 4.3], 12.7)), 3)
-    0.635
+    0.65
     """
     r0 = _arr(radius)
     if np.any(~(r0 > 0)):
@@ -115,7 +115,7 @@ def hildebrand_parameter(hvap_kj_mol, molar_volume, temperature=25.0):
     Nonelectrolytes*, 3rd ed. (1950). J/cm^3 equals MPa.
 
     >>> round(float(hildebrand_parameter(38.0, 106.8)), 2)
-    18.19
+    18.24
     """
     T = _arr(temperature) + 273.15
     e = _arr(hvap_kj_mol) * 1000.0 - R_GAS * T  # J/mol

@@ -328,7 +328,7 @@ def merge_user_liquids(library: pd.DataFrame, table) -> pd.DataFrame:
             user[c] = "" if c in _TEXT_COLUMNS else np.nan
     user["sources_disagree"] = False
     if "molar_volume_estimated" in user.columns:
-        user["molar_volume_estimated"] = user["molar_volume_estimated"].fillna(False).astype(bool)
+        user["molar_volume_estimated"] = user["molar_volume_estimated"].astype(str).str.lower() == "true"
     user["hsp_source"] = np.where(user.get("hsp_source", "").astype(str) != "",
                                   user.get("hsp_source", ""), "user")
     lk = library["name"].str.lower()

@@ -1,0 +1,230 @@
+"""The bundled solvent library against its outside sources, look-up, and the user's own liquids."""
+from __future__ import annotations
+
+import hashlib
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import selector
+from selector import build
+from selector.errors import InputTableError, SelectorError, UnknownLiquidError
+from selector.hansen import hildebrand_parameter, total_parameter
+from selector.library import LIBRARY_CSV, find_liquid, load_library, locate
+
+
+@pytest.fixture(scope="module")
+def lib():
+    return load_library()
+
+
+def test_size_and_core_columns(lib):
+    # Issue figure: "expect about 800" liquids with HSP that are liquid at 25 C (chemicals tables).
+    assert 750 <= len(lib) <= 900
+    for c in selector.library.CORE_COLUMNS:
+        assert c in lib.columns
+    assert lib["name"].str.lower().is_unique
+    assert lib["cas"].is_unique
+
+
+def test_every_hsp_value_equals_its_published_source(lib):
+    # Source: the chemicals library's published tables (ALSHERI_HANSEN, MANUEL_RUBEN_2022,
+    # WDR_SCHRIER), read directly here from chemicals.solubility, not through selector.build.
+    from chemicals import solubility
+
+    solubility._load_solubility_data()
+    tables = {"ALSHERI_HANSEN": solubility.alsheri_hansen_data,
+              "MANUEL_RUBEN_2022": solubility.manuel_ruben_2022_data,
+              "WDR_SCHRIER": solubility.wdr_schrier_data}
+    assert set(lib["hsp_source"]) <= set(tables)
+    for key, table in tables.items():
+        sub = lib[lib["hsp_source"] == key]
+        ref = table.loc[sub["cas"], ["HANSEN_DELTA_D", "HANSEN_DELTA_P", "HANSEN_DELTA_H"]]
+        ref = ref[~ref.index.duplicated()].to_numpy(float) / 1000.0
+        np.testing.assert_allclose(sub[["delta_d", "delta_p", "delta_h"]].to_numpy(float), ref,
+                                   atol=1e-9)
+
+
+def test_disagreement_flag_matches_sources(lib):
+    # Source: chemicals.solubility tables; GUIDE rule "disagree by more than 1 MPa^0.5".
+    from chemicals import solubility
+
+    solubility._load_solubility_data()
+    tables = [solubility.alsheri_hansen_data, solubility.manuel_ruben_2022_data,
+              solubility.wdr_schrier_data]
+    for _, r in lib.sample(60, random_state=1).iterrows():
+        vals = [t.loc[[r.cas]].iloc[0].to_numpy(float) / 1000 for t in tables if r.cas in t.index]
+        spread = (np.max(vals, axis=0) - np.min(vals, axis=0)).max()
+        assert bool(r.sources_disagree) == (spread > 1.0)
+
+
+def test_liquid_at_25c(lib):
+    # Definition from the issue: melting point below 25 C, boiling point above it.
+    assert (lib["melting_point_c"] < 25).all()
+    assert (lib["boiling_point_c"] > 25).all()
+
+
+def test_total_parameter_against_thermo_hildebrand(lib, capsys):
+    # Source: Hildebrand parameter from thermo's enthalpy of vaporisation and molar volume,
+    # computed by chemicals.solubility.solubility_parameter (independent of the HSP tables).
+    from chemicals.solubility import solubility_parameter
+    from thermo import Chemical
+
+    sub = lib[lib["delta_h"] < 5.0]
+    dev = []
+    for cas in sub["cas"].iloc[::3]:  # every third such liquid keeps the test fast
+        c = Chemical(cas, T=298.15)
+        if c.Hvapm is None or c.Vml is None:
+            continue
+        hild = solubility_parameter(298.15, c.Hvapm, c.Vml) / 1000.0
+        dt = float(total_parameter(sub.loc[sub.cas == cas, ["delta_d", "delta_p", "delta_h"]].to_numpy()[0]))
+        dev.append(abs(dt - hild) / hild)
+    dev = np.array(dev)
+    with capsys.disabled():
+        q = np.percentile(dev, [10, 25, 50, 75, 90]) * 100
+        print(f"\n|dT - Hildebrand|/Hildebrand over {len(dev)} liquids with dH < 5: "
+              f"p10 {q[0]:.1f}%, p25 {q[1]:.1f}%, median {q[2]:.1f}%, p75 {q[3]:.1f}%, p90 {q[4]:.1f}%")
+    assert len(dev) >= 50
+    assert np.mean(dev < 0.10) >= 0.80
+    assert np.median(dev) < 0.05
+
+
+def test_hildebrand_function_matches_chemicals():
+    # Source: chemicals.solubility.solubility_parameter (same formula, SI units).
+    from chemicals.solubility import solubility_parameter
+
+    ref = solubility_parameter(298.15, 38000.0, 106.8e-6) / 1000.0
+    assert float(hildebrand_parameter(38.0, 106.8, 25.0)) == pytest.approx(ref, rel=1e-9)
+
+
+# Molar volumes (cm3/mol, 25 C) as listed in Hansen's handbook, 2nd ed., appendix table
+# (from memory).
+HANDBOOK_VOLUMES = {
+    "toluene": 106.8, "acetone": 74.0, "ethanol": 58.5, "water": 18.0, "methanol": 40.7,
+    "hexane": 131.6, "benzene": 89.4, "chloroform": 80.7, "cyclohexane": 108.7,
+    "ethyl acetate": 98.5, "tetrahydrofuran": 81.7, "dimethyl sulfoxide": 71.3,
+    "diethyl ether": 104.8, "carbon tetrachloride": 97.1,
+}
+
+
+@pytest.mark.parametrize("name,v", sorted(HANDBOOK_VOLUMES.items()))
+def test_molar_volume_against_handbook(lib, name, v):
+    assert find_liquid(name, lib)["molar_volume"] == pytest.approx(v, rel=0.02)
+
+
+def test_rebuild_sample_matches_committed(lib):
+    # Drift check: rebuild a sample of 20 liquids from chemicals/thermo and compare.
+    sample = lib.sample(20, random_state=7)["cas"].tolist() + ["108-88-3", "7732-18-5"]
+    fresh = build.build(sample, processes=1).set_index("cas")
+    old = lib.set_index("cas").loc[fresh.index]
+    for c in ["delta_d", "delta_p", "delta_h", "molar_volume", "boiling_point_c", "melting_point_c",
+              "vapour_pressure_kpa", "molar_mass", "flash_point_c"]:
+        np.testing.assert_allclose(fresh[c].to_numpy(float), old[c].to_numpy(float), rtol=1e-4,
+                                   equal_nan=True, err_msg=c)
+    assert (fresh["name"] == old["name"]).all()
+    assert (fresh["hsp_source"] == old["hsp_source"]).all()
+
+
+def test_vapour_pressure_against_thermo(lib):
+    # Source: thermo's vapour-pressure correlation (the Antoine fit must reproduce it at 50 C).
+    from thermo import Chemical
+
+    for name in ["toluene", "acetone", "ethanol", "water", "butyl acetate"]:
+        r = find_liquid(name, lib)
+        ref = Chemical(r.cas, T=323.15).Psat / 1000.0
+        got = selector.library.vapour_pressure_kpa(lib.loc[lib.cas == r.cas], 50.0)[0]
+        assert got == pytest.approx(ref, rel=0.03), name
+
+
+# ---------------------------------------------------------------- look-up
+
+@pytest.mark.parametrize("query,expected", [
+    ("Toluene", "toluene"), ("  TOLUENE ", "toluene"), ("108-88-3", "toluene"),
+    ("Cc1ccccc1", "toluene"), ("C1=CC=CC=C1C", "toluene"),        # SMILES (RDKit canonical)
+    ("methyl ethyl ketone", "2-butanone"), ("Methyl-Ethyl-Ketone", "2-butanone"),
+    ("NMP", "1-methyl-2-pyrrolidinone"), ("n-methyl-2-pyrrolidone", "1-methyl-2-pyrrolidinone"),
+    ("isopropyl alcohol", "isopropanol"), ("DCM", "dichloromethane"),
+    ("N,N-Dimethylformamide", "n,n-dimethylformamide"),
+])
+def test_lookup(lib, query, expected):
+    assert find_liquid(query, lib)["name"] == expected
+
+
+def test_near_miss_suggests(lib):
+    with pytest.raises(UnknownLiquidError) as e:
+        find_liquid("tolune", lib)
+    assert "toluene" in e.value.suggestions
+    assert "did you mean" in str(e.value)
+    assert isinstance(e.value, ValueError)
+
+
+@pytest.mark.parametrize("bad", ["", "   ", None, 42, "999-99-9", "C1CC(", "unobtainium"])
+def test_lookup_bad_input(lib, bad):
+    with pytest.raises(SelectorError):
+        locate(bad, lib)
+
+
+# ---------------------------------------------------------------- user liquids
+
+def _sha(path):
+    return hashlib.sha256(path.read_bytes()).hexdigest()
+
+
+def test_user_liquids_merge_without_touching_bundled(tmp_path, lib):
+    before = _sha(LIBRARY_CSV)
+    p = tmp_path / "mine.csv"
+    p.write_text("name,delta_d,delta_p,delta_h,molar_volume,boiling_point_c,flash_point_c\n"
+                 "Shop thinner A (invented),17.0,4.0,5.0,120,150,45\n"
+                 "toluene,18.1,1.5,2.1,107,111,4\n")
+    merged = load_library(p)
+    assert len(merged) == len(lib) + 1
+    a = find_liquid("shop thinner a (invented)", merged)
+    assert a["origin"] == "user" and a["delta_d"] == 17.0
+    assert find_liquid("toluene", merged)["delta_d"] == 18.1       # user entry replaces bundled
+    assert find_liquid("toluene", load_library())["delta_d"] == 18.0  # bundled table unchanged
+    assert _sha(LIBRARY_CSV) == before
+    r = selector.rank((17.0, 4.0, 5.0, 5.0), library=merged)
+    assert r["name"].iloc[0] == "Shop thinner A (invented)"
+
+
+def test_user_table_reports_every_problem(tmp_path):
+    p = tmp_path / "bad.csv"
+    p.write_text("name,delta_d,delta_p,delta_h,molar_volume\n"
+                 "a,17,-3,5,100\n"
+                 "b,abc,4,5,100\n"
+                 "a,17,3,5,100\n"
+                 "c,17,3,,100\n"
+                 "d,17,3,5,-4\n")
+    with pytest.raises(InputTableError) as e:
+        load_library(p)
+    msg = str(e.value)
+    assert "delta_p = -3" in msg and "'abc' is not a number" in msg
+    assert "appears more than once" in msg and "delta_h is missing" in msg
+    assert "molar_volume = -4" in msg
+    assert len(e.value.problems) == 5
+
+
+def test_user_table_missing_columns_and_malformed(tmp_path):
+    p = tmp_path / "cols.csv"
+    p.write_text("name,dd,dp\nx,1,2\n")
+    with pytest.raises(InputTableError, match="missing column"):
+        load_library(p)
+    q = tmp_path / "garbage.csv"
+    q.write_bytes(b"\x00\xff\xfe binary junk \x00\n\x01,\x02\n\"unterminated")
+    with pytest.raises(SelectorError):
+        load_library(q)
+    with pytest.raises(SelectorError, match="file not found"):
+        load_library(tmp_path / "nope.csv")
+
+
+def test_save_user_liquids_is_atomic_and_keeps_old_file_on_bad_input(tmp_path):
+    p = tmp_path / "store" / "mine.csv"
+    good = pd.DataFrame({"name": ["x (invented)"], "delta_d": [17.0], "delta_p": [3.0], "delta_h": [4.0]})
+    selector.save_user_liquids(good, p)
+    first = p.read_text()
+    bad = good.assign(delta_d=[float("nan")])
+    with pytest.raises(SelectorError):
+        selector.save_user_liquids(bad, p)
+    assert p.read_text() == first
+    assert [f.name for f in p.parent.iterdir()] == ["mine.csv"]  # no temp file left behind
