@@ -1,0 +1,93 @@
+"""The command line: rank, show, list, demo; output formats; errors as one line."""
+from __future__ import annotations
+
+import io
+import json
+import subprocess
+import sys
+
+import pandas as pd
+import pytest
+
+import selector
+from selector.cli import main
+
+
+def run(args, capsys):
+    rc = main(args)
+    out = capsys.readouterr()
+    return rc, out.out, out.err
+
+
+def test_rank_csv_matches_library(capsys):
+    rc, out, err = run(["rank", "21.3,5.8,4.3,12.7", "--format", "csv", "--top", "10"], capsys)
+    assert rc == 0
+    df = pd.read_csv(io.StringIO(out))
+    ref = selector.rank((21.3, 5.8, 4.3, 12.7)).head(10)
+    assert df["name"].tolist() == ref["name"].tolist()
+    assert df["red"].round(6).tolist() == ref["red"].round(6).tolist()
+
+
+def test_rank_named_with_radius_and_filters_json(capsys):
+    rc, out, _ = run(["rank", "toluene", "--radius", "6", "--bp", "100:", "--min-flash", "30",
+                      "--format", "json", "--top", "5"], capsys)
+    assert rc == 0
+    recs = json.loads(out)
+    assert len(recs) == 5
+    assert all(r["boiling_point_c"] >= 100 and r["flash_point_c"] >= 30 for r in recs)
+    assert all(r["red"] == pytest.approx(r["ra"] / 6) for r in recs)
+
+
+def test_rank_table_has_caution(capsys):
+    rc, out, _ = run(["rank", "18,3,4,7", "--top", "3"], capsys)
+    assert rc == 0 and "safety data sheet" in out
+
+
+def test_output_file_written_atomically(tmp_path, capsys):
+    p = tmp_path / "out.csv"
+    rc, _, err = run(["rank", "18,3,4", "--format", "csv", "-o", str(p)], capsys)
+    assert rc == 0 and "wrote" in err
+    assert len(pd.read_csv(p)) == 20
+    assert [f.name for f in tmp_path.iterdir()] == ["out.csv"]
+
+
+@pytest.mark.parametrize("args,msg", [
+    (["rank", "tolune"], "did you mean 'toluene'"),
+    (["rank", "18,nan,3"], "finite"),
+    (["rank", "18,-1,3"], "negative"),
+    (["rank", "18,1,3,0"], "R0"),
+    (["rank", "18,1,3", "--bp", "abc"], "--bp"),
+    (["rank", "18,1,3", "--only", "water,unobtainium"], "unknown liquid"),
+    (["show", "unobtainium"], "unknown liquid"),
+    (["rank", "18,1,3", "--mine", "/nonexistent/file.csv"], "file not found"),
+])
+def test_errors_are_one_line(args, msg, capsys):
+    rc, out, err = run(args, capsys)
+    assert rc == 2
+    assert msg in err
+    assert "Traceback" not in err
+    assert len(err.strip().splitlines()) == 1
+
+
+def test_show_and_list(capsys):
+    rc, out, _ = run(["show", "NMP"], capsys)
+    assert rc == 0 and "872-50-4" in out and "ALSHERI_HANSEN" in out
+    rc, out, _ = run(["list", "--search", "xylene", "--format", "csv"], capsys)
+    df = pd.read_csv(io.StringIO(out))
+    assert {"o-xylene", "p-xylene"} <= set(df["name"])
+
+
+def test_demo_runs(capsys):
+    rc, out, _ = run(["demo", "--top", "5"], capsys)
+    assert rc == 0 and "INVENTED" in out and "safety data sheet" in out
+
+
+def test_console_script_cold_start():
+    # the installed entry point runs as a fresh process and exits cleanly
+    r = subprocess.run([sys.executable, "-m", "selector", "rank", "18,3,4", "--top", "2", "--format", "csv"],
+                       capture_output=True, text=True, timeout=60)
+    assert r.returncode == 0, r.stderr
+    assert len(pd.read_csv(io.StringIO(r.stdout))) == 2
+    r = subprocess.run([sys.executable, "-m", "selector", "rank", "nope-liquid"],
+                       capture_output=True, text=True, timeout=60)
+    assert r.returncode == 2 and "Traceback" not in r.stderr

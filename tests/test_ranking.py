@@ -1,0 +1,123 @@
+"""Ranking against targets: published spheres, filters, temperature, bad input."""
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+import selector
+from selector.errors import SelectorError
+from selector.hansen import ra
+
+# Polystyrene sphere: dD 21.3, dP 5.8, dH 4.3, R0 12.7 MPa^0.5 (from memory of Hansen's
+# handbook, 2nd ed., polymer table).
+PS = (21.3, 5.8, 4.3, 12.7)
+
+
+@pytest.fixture(scope="module")
+def ranked():
+    return selector.rank(PS)
+
+
+def _red_of(ranked, name):
+    return float(ranked.loc[ranked["name"] == name, "red"].iloc[0])
+
+
+def test_polystyrene_common_practice(ranked):
+    # Common practice: polystyrene dissolves in toluene, not in ethanol, water or hexane.
+    assert _red_of(ranked, "toluene") < 1
+    for non in ["ethanol", "water", "hexane"]:
+        assert _red_of(ranked, non) > 1, non
+
+
+def test_columns_order_and_values(ranked):
+    lib = selector.load_library()
+    assert len(ranked) == len(lib)
+    for c in ["ra", "red", "polarity_match", "score", "name", "cas", "smiles", "molar_volume"]:
+        assert c in ranked.columns
+    # Ra recomputed independently from the definition (handbook eq. 1.9)
+    d = ranked[["delta_d", "delta_p", "delta_h"]].to_numpy() - np.array(PS[:3])
+    np.testing.assert_allclose(ranked["ra"], np.sqrt(4 * d[:, 0] ** 2 + d[:, 1] ** 2 + d[:, 2] ** 2))
+    np.testing.assert_allclose(ranked["red"], ranked["ra"] / 12.7)
+    assert (np.diff(np.round(ranked["score"].to_numpy() / 0.005)) >= 0).all()
+    assert ranked["polarity_match"].between(0, 1).all()
+    assert ranked["rank"].tolist() == list(range(1, len(ranked) + 1))
+
+
+def test_naive_loop_agrees(ranked):
+    # The vectorised score equals a plain per-row computation of the documented formula.
+    t = np.array(PS[:3])
+    e0 = t ** 2 / (t ** 2).sum()
+    for _, r in ranked.head(40).iterrows():
+        h = np.array([r.delta_d, r.delta_p, r.delta_h])
+        e = h ** 2 / (h ** 2).sum()
+        pm = 1 - 0.5 * np.abs(e - e0).sum()
+        assert r.score == pytest.approx(float(ra(h, t)) / 12.7 + 0.3 * (1 - pm))
+
+
+def test_polarity_weight_changes_order():
+    a = selector.rank((16.0, 9.0, 9.0, 8.0), polarity_weight=0.0)
+    b = selector.rank((16.0, 9.0, 9.0, 8.0), polarity_weight=3.0)
+    np.testing.assert_allclose(a["score"], a["red"])
+    assert a["name"].head(20).tolist() != b["name"].head(20).tolist()
+    assert b["polarity_match"].head(10).mean() > a["polarity_match"].head(10).mean()
+
+
+def test_point_target_uses_reference_radius():
+    r = selector.rank((18.0, 1.4, 2.0), polarity_weight=0)
+    assert r["red"].isna().all()
+    np.testing.assert_allclose(r["score"], r["ra"] / 8.0)
+
+
+def test_named_target_excludes_itself():
+    r = selector.rank("toluene")
+    assert "toluene" not in r["name"].tolist()
+    # common practice: xylenes and ethylbenzene are the closest relatives of toluene
+    assert set(r["name"].head(15)) & {"o-xylene", "p-xylene", "ethylbenzene"}
+
+
+def test_filters_are_obeyed():
+    r = selector.rank(PS, boiling_point_c=(100, 180), min_flash_point_c=30, max_molar_volume=150,
+                      consistent_sources_only=True, exclude=["o-xylene", "NMP"])
+    assert r["boiling_point_c"].between(100, 180).all()
+    assert (r["flash_point_c"] >= 30).all()
+    assert (r["molar_volume"] <= 150).all()
+    assert not r["sources_disagree"].any()
+    assert "o-xylene" not in set(r["name"]) and "1-methyl-2-pyrrolidinone" not in set(r["name"])
+    only = selector.rank(PS, include=["toluene", "ethanol", "water"])
+    assert only["name"].tolist() == ["toluene", "ethanol", "water"]
+
+
+def test_temperature_correction_applied():
+    cold = selector.rank(PS, include=["toluene", "ethanol"])
+    hot = selector.rank(PS, include=["toluene", "ethanol"], temperature=60)
+    lib = selector.load_library()
+    tol = lib.loc[lib.name == "toluene"].iloc[0]
+    a = tol.expansion_coeff
+    # Hansen-Beerbower, dD(60) = dD(25) * exp(-1.25 a * 35) (see test_hansen for the relation)
+    got = hot.loc[hot.name == "toluene", "delta_d"].iloc[0]
+    assert got == pytest.approx(18.0 * np.exp(-1.25 * a * 35), rel=1e-9)
+    assert not np.allclose(cold["ra"].sort_values(), hot["ra"].sort_values())
+    # a liquid that boils below the temperature is no candidate there
+    assert "acetone" not in set(selector.rank(PS, temperature=70)["name"])
+
+
+@pytest.mark.parametrize("bad,msg", [
+    ((18.0, float("nan"), 3.0), "finite"), ((18.0, -1.0, 3.0), "negative"),
+    ((18.0, 1.0, 3.0, 0.0), "R0"), ((18.0, 1.0, 3.0, -2.0), "R0"), ((18.0, 1.0), "tuple"),
+    ("unobtainium", "unknown liquid"), (None, "no target"), (("a", 1, 2), "number"),
+])
+def test_bad_targets(bad, msg):
+    with pytest.raises(ValueError, match=msg):
+        selector.rank(bad)
+
+
+@pytest.mark.parametrize("kw,msg", [
+    ({"boiling_point_c": (200, 100)}, "above"), ({"boiling_point_c": 100}, "pair"),
+    ({"min_flash_point_c": "hot"}, "number"), ({"max_molar_volume": -5}, "positive"),
+    ({"include": []}, "empty"), ({"include": ["tolune"]}, "did you mean"),
+    ({"exclude": ["tolune", "etanol"]}, "2 problem"), ({"colour": "blue"}, "unknown filter"),
+    ({"temperature": float("nan")}, "temperature"), ({"boiling_point_c": (590, 600)}, "no liquid"),
+])
+def test_bad_filters(kw, msg):
+    with pytest.raises(SelectorError, match=msg):
+        selector.rank(PS, **kw)
