@@ -9,7 +9,12 @@ Keyword arguments (all optional):
   pass: missing data is not evidence that a liquid will not burn;
 * ``max_molar_volume``: cm^3/mol;
 * ``consistent_sources_only``: drop liquids whose published HSP sources disagree by more than
-  1 MPa^0.5.
+  1 MPa^0.5;
+* ``flash_point_c=(low, high)``: flash-point window in C (liquids without flash-point data do
+  not pass);
+* ``max_hazard_class``: worst CHEM21 class allowed (``"recommended"``, ``"problematic"``,
+  ``"hazardous"``, ``"highly hazardous"``; see :mod:`selector.hazards`). Unclassified liquids
+  (no hazard data) do not pass.
 
 At a temperature other than 25 C, liquids that are not liquid there (melting point above it or
 boiling point below it) are dropped too.
@@ -25,7 +30,7 @@ from .errors import SelectorError
 from .library import locate_many
 
 FILTER_KEYS = ("include", "exclude", "boiling_point_c", "min_flash_point_c", "max_molar_volume",
-               "consistent_sources_only")
+               "consistent_sources_only", "flash_point_c", "max_hazard_class")
 
 
 def _as_list(v, what):
@@ -73,7 +78,7 @@ def check_filter_keys(filters: dict, extra: tuple[str, ...] = ()) -> None:
 
 def filter_mask(library: pd.DataFrame, *, temperature: float = 25.0, include=None, exclude=None,
                 boiling_point_c=None, min_flash_point_c=None, max_molar_volume=None,
-                consistent_sources_only=False) -> np.ndarray:
+                consistent_sources_only=False, flash_point_c=None, max_hazard_class=None) -> np.ndarray:
     """Boolean mask over ``library`` rows that pass every filter (see module doc)."""
     n = len(library)
     mask = np.ones(n, dtype=bool)
@@ -114,6 +119,18 @@ def filter_mask(library: pd.DataFrame, *, temperature: float = 25.0, include=Non
             mask &= library["molar_volume"].to_numpy(float) <= v
     if consistent_sources_only:
         mask &= ~library["sources_disagree"].to_numpy(bool)
+    if flash_point_c is not None:
+        flo, fhi = _window(flash_point_c, "flash_point_c")
+        fp = library["flash_point_c"].to_numpy(float)
+        with np.errstate(invalid="ignore"):
+            mask &= np.isfinite(fp) & (fp >= (-np.inf if flo is None else flo)) & (fp <= (np.inf if fhi is None else fhi))
+    if max_hazard_class is not None:
+        from .hazards import class_rank, hazard_columns
+
+        with np.errstate(invalid="ignore"):
+            mask &= hazard_columns(library)["hazard_rank"].to_numpy(float) <= class_rank(max_hazard_class)
+    if "kind" in library.columns:  # the user's solutes are targets, never candidate liquids
+        mask &= library["kind"].astype(str).str.lower().to_numpy() != "solute"
     t = float(temperature)
     if abs(t - 25.0) > 1e-9:
         mp = library["melting_point_c"].to_numpy(float) if "melting_point_c" in library else np.full(n, np.nan)

@@ -1,0 +1,394 @@
+"""Hazard classes of solvents by the CHEM21 method: safety, health, environment scores and class.
+
+Method: D. Prat, A. Wells, J. Hayler, H. Sneddon, C. R. McElroy, S. Abou-Shehada and
+P. J. Dunn, "CHEM21 selection guide of classical- and less classical-solvents", Green Chem. 18
+(2016) 288-296. Each solvent gets three scores from 1 (best) to 10 (worst), computed from data a
+user can look up (the tables below are reproduced **from memory** of the paper; check them
+against the paper before relying on an individual score):
+
+Safety (flash point FP in C, from the library's ``chemicals`` value, else ``hazards.csv``):
+FP > 60: 1; 23..60: 3; 0..22: 4; -20..-1: 5; < -20: 7; no flash point (not flammable): 1.
+Add 1 for each of: auto-ignition temperature < 200 C; electrical resistivity > 1e8 ohm m
+(static build-up, mostly hydrocarbons and ethers); peroxide former (EUH019); energy of
+decomposition > 500 J/g (nitro compounds). At most 10.
+
+Health (most severe GHS H3xx statement):
+
+=====  =====================================================================
+score  statements
+=====  =====================================================================
+9      H300 H310 H330 (acute toxicity 1-2); H340 H350 H360 (CMR category 1)
+6      H301 H311 H331 (acute toxicity 3); H341 H351 H361 (CMR category 2);
+       H370 H372 (organ toxicity category 1)
+4      H314 H318 (corrosive, serious eye damage); H334 (respiratory sensitiser)
+2      H302 H312 H332 H304 H371 H373 H315 H317 H319 H320 H335 H336 EUH066 EUH070
+1      no H3xx statement
+=====  =====================================================================
+
+plus 1 when the boiling point is below 85 C (more of it in the air). At most 10.
+
+Environment: boiling point 70..139 C: 3; 50..69 or 140..200 C: 5; < 50 or > 200 C: 7 (hard to
+contain, or energy-hungry to recycle); aquatic H412/H413: at least 5; H400/H410/H411: 7;
+ozone layer (EUH420/H420): 10. Water scores 1 (the guide's own value).
+
+Combination (the guide's "ranking by default"; colours green 1-3, yellow 4-6, red 7-10): one
+score >= 8 or two red scores -> *hazardous*; one score of 7 or two yellow scores ->
+*problematic*; otherwise *recommended*. The guide also lists a few solvents as *highly
+hazardous* after discussion; the solvents so listed here (``HIGHLY_HAZARDOUS_CAS``) are quoted
+from memory. The guide revised some default rankings after discussion (for example methanol and
+acetone); this module reports the default ranking only.
+
+A liquid without hazard statements in ``parameters/hazards.csv`` is **unclassified**, never
+silently safe. Statements in that file are quoted from memory of the EU CLP harmonised
+classification: confirm them with the supplier's safety data sheet.
+"""
+from __future__ import annotations
+
+import functools
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+
+from .errors import SelectorError
+from .library import PARAMETERS_DIR, _key, load_library, locate
+
+HAZARDS_CSV = PARAMETERS_DIR / "hazards.csv"
+
+#: Classes from best to worst; ``class_rank`` is the position (unclassified: -1 / NaN).
+HAZARD_CLASSES = ("recommended", "problematic", "hazardous", "highly hazardous")
+UNCLASSIFIED = "unclassified"
+
+METHOD = ("CHEM21 (Prat et al., Green Chem. 18 (2016) 288-296), scoring tables from memory; "
+          "default ranking")
+
+#: Health score of each GHS statement (first four characters: H360FD counts as H360).
+HEALTH_SCORES = {
+    **dict.fromkeys(["H300", "H310", "H330", "H340", "H350", "H360"], 9),
+    **dict.fromkeys(["H301", "H311", "H331", "H341", "H351", "H361", "H370", "H372"], 6),
+    **dict.fromkeys(["H314", "H318", "H334"], 4),
+    **dict.fromkeys(["H302", "H312", "H332", "H304", "H371", "H373", "H315", "H317", "H319",
+                     "H320", "H335", "H336", "EUH066", "EUH070"], 2),
+}
+#: Environment score of aquatic / ozone statements.
+ENVIRONMENT_SCORES = {"H412": 5, "H413": 5, "H400": 7, "H410": 7, "H411": 7, "H420": 10, "EUH420": 10}
+
+#: Listed as "highly hazardous" in the guide after discussion (from memory): benzene, carbon
+#: tetrachloride, chloroform, 1,2-dichloroethane, diethyl ether, carbon disulfide, nitromethane,
+#: hexamethylphosphoramide.
+HIGHLY_HAZARDOUS_CAS = frozenset({"71-43-2", "56-23-5", "67-66-3", "107-06-2", "60-29-7",
+                                  "75-15-0", "75-52-5", "680-31-9"})
+
+WATER_CAS = "7732-18-5"
+
+
+def _code(s: str) -> str:
+    s = s.strip().upper()
+    return s if s.startswith("EUH") else s[:4]
+
+
+def parse_statements(text) -> tuple[str, ...]:
+    """Split a space/comma/semicolon separated list of GHS statements into normalised codes.
+
+    >>> parse_statements("H225 H360FD, EUH019")
+    ('H225', 'H360FD', 'EUH019')
+    """
+    if text is None or (isinstance(text, float) and math.isnan(text)):
+        return ()
+    parts = str(text).replace(",", " ").replace(";", " ").split()
+    out = []
+    for p in parts:
+        p = p.strip().upper()
+        if not (p.startswith("H") or p.startswith("EUH")):
+            raise SelectorError(f"not a GHS hazard statement: {p!r} (expected e.g. H225 or EUH019)")
+        out.append(p)
+    return tuple(out)
+
+
+def safety_score(flash_point_c, autoignition_c=np.nan, peroxide_former=False, high_resistivity=False,
+                 high_decomposition_energy=False):
+    """CHEM21 safety score (1-10) from the flash point (C) and the aggravating properties.
+
+    ``flash_point_c``: NaN means *not flammable* (no flash point); unknown flash points must be
+    resolved by the caller. Vectorised. Prat et al., Green Chem. 18 (2016) 288 (table from
+    memory).
+
+    >>> safety_score([4.0, -45.0, 90.0], [530.0, 175.0, np.nan], [False, True, False],
+    ...              [True, True, False]).tolist()
+    [5, 10, 1]
+    """
+    fp = np.asarray(flash_point_c, dtype=float)
+    ait = np.asarray(autoignition_c, dtype=float)
+    with np.errstate(invalid="ignore"):
+        base = np.select([np.isnan(fp), fp > 60, fp >= 23, fp >= 0, fp >= -20], [1, 1, 3, 4, 5], 7)
+        extra = ((ait < 200).astype(int) + np.asarray(peroxide_former, dtype=bool).astype(int)
+                 + np.asarray(high_resistivity, dtype=bool).astype(int)
+                 + np.asarray(high_decomposition_energy, dtype=bool).astype(int))
+    return np.minimum(base + extra, 10).astype(int)
+
+
+def health_score(statements, boiling_point_c) -> int:
+    """CHEM21 health score (1-10): most severe H3xx statement, +1 if the boiling point < 85 C.
+
+    >>> health_score(("H225", "H319"), 78.0)   # ethanol
+    3
+    >>> health_score(("H360D", "H319"), 202.0)  # NMP
+    9
+    """
+    s = max([HEALTH_SCORES.get(_code(c), 1) for c in statements] + [1])
+    bp = float(boiling_point_c)
+    if math.isfinite(bp) and bp < 85.0:
+        s += 1
+    return int(min(s, 10))
+
+
+def environment_score(statements, boiling_point_c) -> int:
+    """CHEM21 environment score (1-10) from the boiling point (C) and aquatic/ozone statements.
+
+    >>> environment_score(("H225", "H410"), 98.0)   # heptane
+    7
+    >>> environment_score((), 77.1)                  # ethyl acetate
+    3
+    """
+    bp = float(boiling_point_c)
+    if not math.isfinite(bp):
+        s = 5
+    elif 70.0 <= bp <= 139.0:
+        s = 3
+    elif 50.0 <= bp <= 200.0:
+        s = 5
+    else:
+        s = 7
+    for c in statements:
+        s = max(s, ENVIRONMENT_SCORES.get(_code(c), 0))
+    return int(min(s, 10))
+
+
+def combine(safety, health, environment) -> np.ndarray:
+    """CHEM21 ranking by default from the three scores (vectorised); returns class names.
+
+    >>> combine([5, 1, 6], [6, 7, 3], [3, 7, 3]).tolist()
+    ['problematic', 'hazardous', 'recommended']
+    """
+    sc = np.stack([np.asarray(safety, float), np.asarray(health, float),
+                   np.asarray(environment, float)], axis=-1)
+    mx = sc.max(axis=-1)
+    red = (sc >= 7).sum(axis=-1)
+    yellow = ((sc >= 4) & (sc <= 6)).sum(axis=-1)
+    out = np.select([(mx >= 8) | (red >= 2), (mx >= 7) | (yellow >= 2)],
+                    ["hazardous", "problematic"], "recommended")
+    return out.astype(object)
+
+
+@functools.lru_cache(maxsize=1)
+def _statement_table() -> pd.DataFrame:
+    df = pd.read_csv(HAZARDS_CSV, dtype=str, keep_default_na=False)
+    need = {"cas", "name", "h_statements", "peroxide_former", "high_resistivity",
+            "high_decomposition_energy", "flash_point_c", "regulatory_note", "source"}
+    missing = need - set(df.columns)
+    if missing:
+        raise SelectorError(f"{HAZARDS_CSV.name}: missing column(s) {', '.join(sorted(missing))}")
+    df["statements"] = [parse_statements(x) for x in df["h_statements"]]
+    for c in ("peroxide_former", "high_resistivity", "high_decomposition_energy"):
+        df[c] = df[c].str.strip().str.lower() == "true"
+    fp = df["flash_point_c"].str.strip().str.lower()
+    df["not_flammable"] = fp == "none"
+    df["csv_flash_point_c"] = pd.to_numeric(fp.where(~df["not_flammable"] & (fp != "")), errors="coerce")
+    # EUH019 ("may form explosive peroxides") always counts as a peroxide former
+    df["peroxide_former"] |= df["statements"].map(lambda t: "EUH019" in t)
+    return df
+
+
+def hazard_statements() -> pd.DataFrame:
+    """Copy of the bundled statement table ``parameters/hazards.csv`` (parsed)."""
+    return _statement_table().copy()
+
+
+def _flash_from_statements(stmts) -> float:
+    # worst flash point consistent with the flammability statement (conservative)
+    if "H224" in stmts or "H225" in stmts:
+        return -21.0
+    if "H226" in stmts:
+        return 23.0
+    return np.nan
+
+
+def hazard_table(library: pd.DataFrame | None = None) -> pd.DataFrame:
+    """CHEM21 scores and class of every liquid in ``library`` (same row order).
+
+    Columns: ``safety_score, health_score, environment_score`` (1-10, NaN if unclassified),
+    ``hazard_class`` (a :data:`HAZARD_CLASSES` name or ``"unclassified"``), ``hazard_rank``
+    (0 = recommended .. 3 = highly hazardous, NaN if unclassified), ``hazard_class_default``,
+    ``h_statements``, ``peroxide_former``, ``regulatory_note``, ``hazard_source``,
+    ``flash_point_basis`` (where the flash point for the safety score came from).
+    Liquids are matched to ``hazards.csv`` by CAS number.
+    """
+    lib = load_library() if library is None else library
+    st = _statement_table().drop_duplicates("cas").set_index("cas")
+    n = len(lib)
+    cas = lib["cas"].astype(str).to_numpy()
+    idx = st.index.get_indexer(cas)
+    known = idx >= 0
+    bp = lib["boiling_point_c"].to_numpy(float)
+    lib_fp = lib["flash_point_c"].to_numpy(float) if "flash_point_c" in lib else np.full(n, np.nan)
+    ait = lib["autoignition_c"].to_numpy(float) if "autoignition_c" in lib else np.full(n, np.nan)
+
+    out = pd.DataFrame(index=lib.index)
+    out["safety_score"] = np.nan
+    out["health_score"] = np.nan
+    out["environment_score"] = np.nan
+    out["hazard_class"] = UNCLASSIFIED
+    out["hazard_class_default"] = UNCLASSIFIED
+    out["hazard_rank"] = np.nan
+    out["h_statements"] = ""
+    out["peroxide_former"] = False
+    out["regulatory_note"] = ""
+    out["hazard_source"] = "no hazard data: unclassified (check the supplier's safety data sheet)"
+    out["flash_point_basis"] = ""
+    if not known.any():
+        return out
+    rows = st.iloc[idx[known]]
+    stm = rows["statements"].tolist()
+    fp = lib_fp[known].copy()
+    basis = np.where(np.isfinite(fp), "library (chemicals)", "")
+    csv_fp = rows["csv_flash_point_c"].to_numpy(float)
+    nf = rows["not_flammable"].to_numpy(bool)
+    use_csv = ~np.isfinite(fp) & np.isfinite(csv_fp)
+    fp[use_csv] = csv_fp[use_csv]
+    basis[use_csv] = "hazards.csv (from memory)"
+    nonflam = ~np.isfinite(fp) & nf
+    basis[nonflam] = "not flammable (hazards.csv, from memory)"
+    guess = np.array([_flash_from_statements(s) for s in stm], dtype=float)
+    use_h = ~np.isfinite(fp) & ~nf & np.isfinite(guess)
+    fp[use_h] = guess[use_h]
+    basis[use_h] = "worst case of the H22x statement"
+    # no flash point, not marked non-flammable and no H22x statement: no flammability hazard known
+    s = safety_score(fp, ait[known], rows["peroxide_former"].to_numpy(bool),
+                     rows["high_resistivity"].to_numpy(bool),
+                     rows["high_decomposition_energy"].to_numpy(bool))
+    h = np.array([health_score(t, b) for t, b in zip(stm, bp[known])])
+    e = np.array([environment_score(t, b) for t, b in zip(stm, bp[known])])
+    kcas = cas[known]
+    water = kcas == WATER_CAS
+    e[water] = 1
+    cls = combine(s, h, e)
+    final = cls.copy()
+    final[np.isin(kcas, list(HIGHLY_HAZARDOUS_CAS))] = "highly hazardous"
+    pos = np.flatnonzero(known)
+    col = out.columns.get_loc
+    out.iloc[pos, col("safety_score")] = s
+    out.iloc[pos, col("health_score")] = h
+    out.iloc[pos, col("environment_score")] = e
+    out.iloc[pos, col("hazard_class")] = final
+    out.iloc[pos, col("hazard_class_default")] = cls
+    out.iloc[pos, col("hazard_rank")] = [HAZARD_CLASSES.index(c) for c in final]
+    out.iloc[pos, col("h_statements")] = [" ".join(t) for t in stm]
+    out.iloc[pos, col("peroxide_former")] = rows["peroxide_former"].to_numpy(bool)
+    out.iloc[pos, col("regulatory_note")] = rows["regulatory_note"].to_numpy(str)
+    out.iloc[pos, col("hazard_source")] = (rows["source"].to_numpy(str).astype(object)
+                                           + "; scores: " + METHOD)
+    out.iloc[pos, col("flash_point_basis")] = basis
+    out["peroxide_former"] = out["peroxide_former"].astype(bool)
+    return out
+
+
+@functools.lru_cache(maxsize=4)
+def _bundled_table() -> pd.DataFrame:
+    return hazard_table(load_library())
+
+
+def hazard_columns(library: pd.DataFrame | None = None) -> pd.DataFrame:
+    """:func:`hazard_table` for ``library``, cached when it is the bundled library."""
+    if library is None:
+        return _bundled_table().copy()
+    if "origin" in library and (library["origin"] == "library").all() and len(library) == len(_bundled_table()):
+        t = _bundled_table()
+        if (t.index == library.index).all():
+            return t.copy()
+    return hazard_table(library)
+
+
+def class_rank(name: str) -> int:
+    """Position of a class name in :data:`HAZARD_CLASSES` (0 = recommended).
+
+    >>> class_rank("problematic")
+    1
+    """
+    k = str(name).strip().lower().replace("_", " ").replace("-", " ")
+    if k not in HAZARD_CLASSES:
+        raise SelectorError(f"unknown hazard class {name!r}; use one of {', '.join(HAZARD_CLASSES)}")
+    return HAZARD_CLASSES.index(k)
+
+
+@dataclass(frozen=True)
+class HazardRecord:
+    """CHEM21 scores (1-10), class, GHS statements and sources for one liquid."""
+
+    name: str
+    cas: str
+    safety_score: float
+    health_score: float
+    environment_score: float
+    hazard_class: str
+    hazard_class_default: str
+    statements: tuple[str, ...]
+    peroxide_former: bool
+    regulatory_note: str
+    sources: dict = field(default_factory=dict)
+    caution: str = ("Confirm every hazard statement with the supplier's safety data sheet; local "
+                    "regulation and your site's rules come first.")
+
+    @property
+    def classified(self) -> bool:
+        return self.hazard_class != UNCLASSIFIED
+
+    def as_dict(self) -> dict:
+        return {k: getattr(self, k) for k in self.__dataclass_fields__}
+
+
+def hazard(liquid, library: pd.DataFrame | None = None) -> HazardRecord:
+    """CHEM21 hazard record of one liquid (name, synonym, CAS or SMILES).
+
+    Scores and class by the CHEM21 method (Prat et al., Green Chem. 18 (2016) 288-296; tables from
+    memory, see the module doc). A liquid without statements in ``parameters/hazards.csv`` comes
+    back ``"unclassified"`` with NaN scores.
+
+    >>> r = hazard("ethyl acetate")
+    >>> (r.safety_score, r.health_score, r.environment_score, r.hazard_class)
+    (5, 3, 3, 'recommended')
+    """
+    lib = load_library() if library is None else library
+    if isinstance(liquid, str) and liquid.strip() and _key(liquid) in set(_statement_table()["name"].map(_key)) \
+            and not _in_library(liquid, lib):
+        # a hazard-table entry that is not in the liquid library (e.g. solid at 25 C)
+        st = _statement_table()
+        row = st.loc[st["name"].map(_key) == _key(liquid)].iloc[0]
+        raise SelectorError(f"{row['name']} ({row['cas']}) has hazard statements but is not in the "
+                            "liquid library (no boiling point to score it); statements: "
+                            f"{row['h_statements'] or 'none'}")
+    i = locate(liquid, lib)
+    t = hazard_columns(lib).iloc[i]
+    r = lib.iloc[i]
+
+    def num(v):
+        return int(v) if pd.notna(v) else float("nan")
+
+    return HazardRecord(
+        name=str(r["name"]), cas=str(r["cas"]),
+        safety_score=num(t.safety_score), health_score=num(t.health_score),
+        environment_score=num(t.environment_score), hazard_class=str(t.hazard_class),
+        hazard_class_default=str(t.hazard_class_default),
+        statements=tuple(str(t.h_statements).split()), peroxide_former=bool(t.peroxide_former),
+        regulatory_note=str(t.regulatory_note),
+        sources={"statements": str(t.hazard_source), "flash_point": str(t.flash_point_basis),
+                 "boiling_point": str(r.get("boiling_point_source", "library")),
+                 "method": METHOD})
+
+
+def _in_library(q, lib) -> bool:
+    try:
+        locate(q, lib)
+        return True
+    except SelectorError:
+        return False
