@@ -1,0 +1,752 @@
+"""Will two liquids mix? Flory-Huggins with Hansen parameters, plus a donor/acceptor term.
+
+The free energy of mixing per reference volume V_r (Flory, 1942; Huggins, 1942), with phi the
+volume fraction of liquid 1 and N_i = V_i / V_r::
+
+    g(phi) / RT = (phi / N1) ln phi + ((1 - phi) / N2) ln(1 - phi) + chi phi (1 - phi)
+
+Interaction energy density A12 (J/cm^3 = MPa) and chi = V_r A12 / (R T):
+
+* plain Hansen form (Hansen's handbook, 2nd ed., 2007, ch. 1 and 2)::
+
+      A12 = (dD1 - dD2)^2 + 0.25 (dP1 - dP2)^2 + 0.25 (dH1 - dH2)^2
+
+* this project's donor/acceptor-aware form (:data:`HBOND`)::
+
+      A12 = (dD1 - dD2)^2 + w_p (dP1 - dP2)^2 + w_h (dH1 - dH2)^2
+            - K (eD1 eA2 + eD2 eA1)
+
+  where eD and eA (mol/cm^3) are the *excess* hydrogen-bond donor and acceptor sites per volume
+  of each liquid, counted from its structure with RDKit (:func:`site_densities`): a liquid
+  whose donors outnumber its acceptors (water, primary amines) has spare donors, a liquid with
+  acceptors but no donors (ketones, ethers, esters, amides, nitriles, sulfoxides, tertiary
+  amines) has spare acceptors. The geometric-mean rule hidden in (dH1 - dH2)^2 cannot see that
+  the spare sites of one liquid can bond to those of the other; the K term is the energy of
+  those cross bonds (a regular-solution, 1/T term like the rest of chi). The weights w_p, w_h
+  and K are the only fitted numbers (on ``parameters/miscibility_pairs.csv``; see
+  :mod:`selector.mixing_report` for the leave-one-liquid-out accuracy).
+
+The pair splits when chi > chi_c = 0.5 (N1^-0.5 + N2^-0.5)^2; because V_r cancels out of the
+phase behaviour in volume fractions, V_r is simply taken as the smaller molar volume (so chi
+is per molecule of the smaller liquid). With A12 independent of T, chi falls as 1/T and the
+model has an upper critical solution temperature UCST = V_r A12 / (R chi_c). The two coexisting
+compositions (the binodal) come from equal chemical potentials of both liquids in both phases,
+solved by Newton's method; the spinodal from d2g/dphi2 = 0.
+
+States at a temperature:
+
+* ``"miscible"``: one phase in all proportions (chi <= chi_c);
+* ``"immiscible"``: a gap in which both mutual solubilities are below
+  :data:`IMMISCIBLE_BELOW_WT_PCT` (2 wt %; the usual reading of "does not mix" in miscibility
+  tables, e.g. water with dichloromethane, toluene or hexane);
+* ``"partially miscible"``: a gap with at least one mutual solubility at or above 2 wt %
+  (water with 1-butanol, ethyl acetate, diethyl ether; methanol with hexane).
+
+Lower critical solution behaviour (water with triethylamine, some glycol ethers) is outside
+this model; such pairs get a note and low confidence.
+"""
+from __future__ import annotations
+
+import functools
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+
+from .errors import SelectorError
+from .hansen import R_GAS
+from .library import load_library, locate
+
+#: A gap is "immiscible" when both mutual solubilities are below this (wt %); else "partially".
+IMMISCIBLE_BELOW_WT_PCT = 2.0
+
+STATES = ("miscible", "partially miscible", "immiscible")
+
+
+@dataclass(frozen=True)
+class MixingModel:
+    """Weights of the interaction energy density A12 (J/cm^3); see the module docstring.
+
+    ``w_d, w_p, w_h``: weights of the squared differences in dD, dP, dH (dimensionless);
+    ``k_cross``: energy of donor-acceptor cross bonds, J cm^3 / mol^2 (0 = plain model).
+    """
+
+    name: str
+    w_d: float = 1.0
+    w_p: float = 0.25
+    w_h: float = 0.25
+    k_cross: float = 0.0
+    source: str = ""
+
+    def interaction(self, hsp1, hsp2, sites1=None, sites2=None):
+        """A12 in J/cm^3 for broadcastable (..., 3) HSP arrays and (..., 2) site arrays."""
+        d = np.asarray(hsp1, float) - np.asarray(hsp2, float)
+        a = self.w_d * d[..., 0] ** 2 + self.w_p * d[..., 1] ** 2 + self.w_h * d[..., 2] ** 2
+        if self.k_cross and sites1 is not None and sites2 is not None:
+            s1 = np.asarray(sites1, float)
+            s2 = np.asarray(sites2, float)
+            a = a - self.k_cross * (s1[..., 0] * s2[..., 1] + s2[..., 0] * s1[..., 1])
+        return a
+
+
+#: The plain Hansen Flory-Huggins form (Hansen's handbook, ch. 2).
+PLAIN = MixingModel("plain Hansen Flory-Huggins", 1.0, 0.25, 0.25, 0.0,
+                    "C. M. Hansen, Hansen Solubility Parameters, 2nd ed., 2007")
+
+#: Donor/acceptor-aware form; weights fitted on parameters/miscibility_pairs.csv.
+HBOND = MixingModel("donor/acceptor Flory-Huggins", 1.0, 0.25, 0.25, 3.0e5,
+                    "this project, fitted on parameters/miscibility_pairs.csv")
+
+DEFAULT_MODEL = HBOND
+
+
+def _model(model) -> MixingModel:
+    if model is None:
+        return DEFAULT_MODEL
+    if isinstance(model, MixingModel):
+        return model
+    if isinstance(model, str):
+        m = {"plain": PLAIN, "hbond": HBOND, "default": DEFAULT_MODEL}.get(model.strip().lower())
+        if m is not None:
+            return m
+    raise SelectorError(f"unknown mixing model {model!r}; use 'hbond' (default) or 'plain'")
+
+
+# ---------------------------------------------------------------- structure: H-bond sites
+
+_SMARTS = {
+    # acceptor sites (each match = one site)
+    "carbonyl_o": "[OX1]=[#6,#16,#15]",          # ketone, aldehyde, ester, amide, carbonate C=O; S=O; P=O
+    "ether_o": "[OX2;!$(O[#6,#16]=[O,S,N]);!$(O~[#7,#15])]([#6])[#6]",  # ethers, not ester/nitro
+    "hydroxyl_o": "[OX2;H1,H2]",                  # alcohols, water, acids (O-H oxygen)
+    "nitrile_n": "[NX1]#[#6]",
+    "amine_n": "[NX3;!$(N[#6,#16]=[O,S,N]);!$(Na);!$(N~[O,N])]",
+    "pyridine_n": "[nX2]",
+}
+
+
+@functools.lru_cache(maxsize=1)
+def _patterns():
+    from rdkit import Chem
+
+    return {k: Chem.MolFromSmarts(v) for k, v in _SMARTS.items()}
+
+
+@functools.lru_cache(maxsize=4096)
+def site_counts(smiles: str) -> tuple[float, float]:
+    """(donor sites, acceptor sites) per molecule from a SMILES string.
+
+    Donor sites: hydrogen atoms on O and N. Acceptor sites: one per carbonyl/sulfinyl/phosphoryl
+    O, ether O (not the single-bonded O of esters, acids or carbonates), O-H oxygen, nitrile N,
+    amine N (not amide, aniline or nitro N) and pyridine-type aromatic N. Counting rule of this
+    project, after the donor/acceptor classes of Kamlet-Taft and Abraham (common practice).
+    Unknown or empty SMILES -> (nan, nan).
+
+    >>> site_counts("O"), site_counts("CC(C)=O"), site_counts("CCO")
+    ((2.0, 1.0), (0.0, 1.0), (1.0, 1.0))
+    """
+    if not smiles:
+        return (math.nan, math.nan)
+    from rdkit import Chem, RDLogger
+
+    RDLogger.DisableLog("rdApp.*")
+    mol = Chem.MolFromSmiles(smiles)
+    if mol is None:
+        return (math.nan, math.nan)
+    donors = sum(a.GetTotalNumHs() for a in mol.GetAtoms() if a.GetSymbol() in ("O", "N"))
+    acc = 0
+    for p in _patterns().values():
+        acc += len(mol.GetSubstructMatches(p))
+    return (float(donors), float(acc))
+
+
+def site_densities(smiles, molar_volume) -> np.ndarray:
+    """(n, 2) excess donor and acceptor site densities eD, eA in mol/cm^3.
+
+    eD = max(nD - nA, 0) / V, eA = max(nA - nD, 0) / V with nD, nA from :func:`site_counts` and V
+    the molar volume (cm^3/mol). Liquids without a usable SMILES get (0, 0): the plain form.
+
+    >>> site_densities(["O", "CC(C)=O"], [18.07, 73.8]).round(4).tolist()
+    [[0.0553, 0.0], [0.0, 0.0136]]
+    """
+    smi = [("" if s is None or (isinstance(s, float) and math.isnan(s)) else str(s)) for s in smiles]
+    counts = np.array([site_counts(s) for s in smi], dtype=float).reshape(-1, 2)
+    counts = np.nan_to_num(counts, nan=0.0)
+    v = np.asarray(molar_volume, float).reshape(-1)
+    excess = np.stack([np.maximum(counts[:, 0] - counts[:, 1], 0.0),
+                       np.maximum(counts[:, 1] - counts[:, 0], 0.0)], axis=1)
+    return excess / v[:, None]
+
+
+# ---------------------------------------------------------------- Flory-Huggins core
+
+def critical_chi(n1, n2):
+    """Critical chi of a binary Flory-Huggins mixture: 0.5 (N1^-0.5 + N2^-0.5)^2.
+
+    N_i = V_i / V_r (Flory, Principles of Polymer Chemistry, 1953, ch. 13).
+
+    >>> float(critical_chi(1.0, 1.0))
+    2.0
+    """
+    n1 = np.asarray(n1, float)
+    n2 = np.asarray(n2, float)
+    return 0.5 * (n1 ** -0.5 + n2 ** -0.5) ** 2
+
+
+def critical_fraction(n1, n2):
+    """Volume fraction of liquid 1 at the critical point: sqrt(N2) / (sqrt(N1) + sqrt(N2)).
+
+    >>> float(critical_fraction(1.0, 4.0))
+    0.6666666666666666
+    """
+    r1 = np.sqrt(np.asarray(n1, float))
+    r2 = np.sqrt(np.asarray(n2, float))
+    return r2 / (r1 + r2)
+
+
+def chemical_potentials(phi, chi, n1, n2):
+    """Exchange chemical potentials (mu_i - mu_i^0) / RT of liquids 1 and 2 at volume fraction phi.
+
+    mu1/RT = ln phi + (1 - N1/N2)(1 - phi) + N1 chi (1 - phi)^2 and
+    mu2/RT = ln(1 - phi) + (1 - N2/N1) phi + N2 chi phi^2 (Flory, 1953, ch. 12).
+
+    >>> [round(float(x), 6) for x in chemical_potentials(0.5, 0.0, 1.0, 1.0)]
+    [-0.693147, -0.693147]
+    """
+    phi = np.asarray(phi, float)
+    return _mu(np.log(phi), np.log1p(-phi), phi, 1.0 - phi, chi, n1, n2)
+
+
+def _mu(lnp, lnq, p, q, chi, n1, n2):
+    mu1 = lnp + (1.0 - n1 / n2) * q + n1 * chi * q * q
+    mu2 = lnq + (1.0 - n2 / n1) * p + n2 * chi * p * p
+    return mu1, mu2
+
+
+def spinodal(chi, n1, n2):
+    """Spinodal volume fractions (low, high) of liquid 1, where d2g/dphi2 = 0; NaN if chi <= chi_c.
+
+    Roots of 2 chi N1 N2 phi^2 + (N1 - N2 - 2 chi N1 N2) phi + N2 = 0.
+
+    >>> [round(float(x), 4) for x in spinodal(2.5, 1.0, 1.0)]
+    [0.2764, 0.7236]
+    """
+    chi = np.asarray(chi, float)
+    n1 = np.asarray(n1, float)
+    n2 = np.asarray(n2, float)
+    a = 2.0 * chi * n1 * n2
+    b = n1 - n2 - a
+    disc = b * b - 4.0 * a * n2
+    with np.errstate(invalid="ignore", divide="ignore"):
+        s = np.sqrt(np.where(disc > 0, disc, np.nan))
+        lo = (-b - s) / (2 * a)
+        hi = (-b + s) / (2 * a)
+    ok = chi > critical_chi(n1, n2)
+    return np.where(ok, lo, np.nan), np.where(ok, hi, np.nan)
+
+
+def _logit(p):
+    return np.log(p) - np.log1p(-p)
+
+
+def binodal(chi, n1, n2, tol: float = 1e-12, max_iter: int = 100):
+    """Coexisting volume fractions (phi_a, phi_b) of liquid 1 (phi_a < phi_b); NaN if no gap.
+
+    Solves mu1(phi_a) = mu1(phi_b) and mu2(phi_a) = mu2(phi_b) (equal chemical potentials,
+    :func:`chemical_potentials`) by Newton's method in logit coordinates, vectorised over
+    arrays of chi, N1, N2. Start: the dilute-limit solution ln phi_a = -(1 - N1/N2) - N1 chi,
+    ln(1 - phi_b) = -(1 - N2/N1) - N2 chi, kept outside the spinodal.
+
+    >>> [round(float(x), 4) for x in binodal(2.5, 1.0, 1.0)]
+    [0.1448, 0.8552]
+    """
+    chi, n1, n2 = np.broadcast_arrays(np.asarray(chi, float), np.asarray(n1, float),
+                                      np.asarray(n2, float))
+    shape = chi.shape
+    chi, n1, n2 = chi.ravel(), n1.ravel(), n2.ravel()
+    pa = np.full(chi.shape, np.nan)
+    pb = np.full(chi.shape, np.nan)
+    cc = critical_chi(n1, n2)
+    gap = chi > cc * (1 + 1e-9)
+    if np.any(gap):
+        c, m1, m2 = chi[gap], n1[gap], n2[gap]
+        slo, shi = spinodal(c, m1, m2)
+        ulo_max = _logit(slo) - 1e-7
+        uhi_min = _logit(shi) + 1e-7
+        ua = np.minimum(-(1 - m1 / m2) - m1 * c, ulo_max)
+        ub = np.maximum((1 - m2 / m1) + m2 * c, uhi_min)
+        # near the critical point the dilute guess is poor: use the spinodal, pushed outwards
+        near = (c / critical_chi(m1, m2)) < 1.5
+        pc = critical_fraction(m1, m2)
+        ua = np.where(near, _logit(np.clip(slo - (pc - slo), 1e-12, None)), ua)
+        ub = np.where(near, _logit(np.clip(shi + (shi - pc), None, 1 - 1e-12)), ub)
+        ua = np.minimum(ua, ulo_max)
+        ub = np.maximum(ub, uhi_min)
+        for _ in range(max_iter):
+            # phi = expit(u): ln phi = -log(1 + e^-u), ln(1 - phi) = -log(1 + e^u)
+            lpa, lqa = -np.logaddexp(0, -ua), -np.logaddexp(0, ua)
+            lpb, lqb = -np.logaddexp(0, -ub), -np.logaddexp(0, ub)
+            a_, qa = np.exp(lpa), np.exp(lqa)
+            b_, qb = np.exp(lpb), np.exp(lqb)
+            m1a, m2a = _mu(lpa, lqa, a_, qa, c, m1, m2)
+            m1b, m2b = _mu(lpb, lqb, b_, qb, c, m1, m2)
+            f1 = m1a - m1b
+            f2 = m2a - m2b
+            if np.all((np.abs(f1) < tol) & (np.abs(f2) < tol)):
+                break
+            # d mu / du = d mu / dphi * phi (1 - phi)
+            d1a = (1.0 - (1 - m1 / m2) * a_ - 2 * m1 * c * qa * a_) * qa
+            d2a = (-a_ + (1 - m2 / m1) * a_ * qa + 2 * m2 * c * a_ * a_ * qa)
+            d1b = (1.0 - (1 - m1 / m2) * b_ - 2 * m1 * c * qb * b_) * qb
+            d2b = (-b_ + (1 - m2 / m1) * b_ * qb + 2 * m2 * c * b_ * b_ * qb)
+            # J = [[d1a, -d1b], [d2a, -d2b]]
+            det = -d1a * d2b + d1b * d2a
+            det = np.where(np.abs(det) < 1e-300, 1e-300, det)
+            dua = (-f1 * -d2b - (-d1b) * -f2) / det
+            dub = (d1a * -f2 - d2a * -f1) / det
+            step = np.maximum(np.abs(dua), np.abs(dub))
+            scale = np.where(step > 2.0, 2.0 / np.where(step > 0, step, 1), 1.0)
+            ua = np.minimum(ua + scale * dua, ulo_max)
+            ub = np.maximum(ub + scale * dub, uhi_min)
+        pa[gap] = 1.0 / (1.0 + np.exp(-ua))
+        pb[gap] = 1.0 / (1.0 + np.exp(-ub))
+    return pa.reshape(shape), pb.reshape(shape)
+
+
+def volume_to_mole(phi, v1, v2):
+    """Mole fraction of liquid 1 from its volume fraction phi and molar volumes V1, V2 (cm^3/mol)."""
+    a = np.asarray(phi, float) / np.asarray(v1, float)
+    b = (1.0 - np.asarray(phi, float)) / np.asarray(v2, float)
+    return a / (a + b)
+
+
+def mole_to_mass(x, m1, m2):
+    """Mass fraction of liquid 1 from its mole fraction x and molar masses M1, M2 (g/mol)."""
+    a = np.asarray(x, float) * np.asarray(m1, float)
+    b = (1.0 - np.asarray(x, float)) * np.asarray(m2, float)
+    return a / (a + b)
+
+
+# ---------------------------------------------------------------- liquids
+
+_NUM_FIELDS = ("delta_d", "delta_p", "delta_h", "molar_volume")
+
+
+def _liquid(obj, lib) -> dict:
+    """A liquid as a plain record; library name/CAS/SMILES or a user dict/Series."""
+    if isinstance(obj, str):
+        if lib is None:
+            lib = load_library()
+        row = lib.iloc[locate(obj, lib)]
+        return _record(row, str(row["name"]))
+    if isinstance(obj, (dict, pd.Series)):
+        return _record(obj, str(obj.get("name", "user liquid")))
+    raise SelectorError(f"a liquid must be a name/CAS/SMILES or a dict/Series with delta_d, delta_p, "
+                        f"delta_h and molar_volume; got {type(obj).__name__}")
+
+
+def _num(v, what, name, lo=None):
+    if v is None or isinstance(v, bool) or isinstance(v, str) and not v.strip():
+        raise SelectorError(f"{name}: {what} is missing")
+    try:
+        f = float(v)
+    except (TypeError, ValueError):
+        raise SelectorError(f"{name}: {what} must be a number, got {v!r}") from None
+    if not math.isfinite(f):
+        raise SelectorError(f"{name}: {what} must be a finite number, got {v!r}")
+    if lo is not None and f < lo:
+        raise SelectorError(f"{name}: {what} must not be below {lo:g}, got {f:g}")
+    return f
+
+
+def _opt(v):
+    try:
+        f = float(v)
+    except (TypeError, ValueError):
+        return math.nan
+    return f
+
+
+def _record(row, name) -> dict:
+    get = row.get
+    rec = {"name": name}
+    for k in ("delta_d", "delta_p", "delta_h"):
+        rec[k] = _num(get(k), k + " (MPa^0.5)", name, 0.0)
+    if rec["delta_d"] <= 0:
+        raise SelectorError(f"{name}: delta_d must be positive")
+    rec["molar_volume"] = _num(get("molar_volume"), "molar_volume (cm3/mol)", name, 0.0)
+    if rec["molar_volume"] <= 0:
+        raise SelectorError(f"{name}: molar_volume must be positive (cm3/mol)")
+    rec["molar_mass"] = _opt(get("molar_mass"))
+    rec["melting_point_c"] = _opt(get("melting_point_c"))
+    rec["boiling_point_c"] = _opt(get("boiling_point_c"))
+    smi = get("smiles", "")
+    rec["smiles"] = "" if smi is None or (isinstance(smi, float) and math.isnan(smi)) else str(smi)
+    rec["sources_disagree"] = str(get("sources_disagree", False)).lower() == "true"
+    return rec
+
+
+def _frame(records) -> pd.DataFrame:
+    return pd.DataFrame(records)
+
+
+def _check_temperature(t, recs):
+    t = _num(t, "temperature (C)", "temperature")
+    if t <= -273.15:
+        raise SelectorError(f"temperature {t:g} C is below absolute zero")
+    for r in recs:
+        mp, bp = r["melting_point_c"], r["boiling_point_c"]
+        if math.isfinite(mp) and t < mp:
+            raise SelectorError(f"{r['name']} is solid at {t:g} C (melting point {mp:g} C): "
+                                "miscibility is defined for liquids only")
+        if math.isfinite(bp) and t > bp:
+            raise SelectorError(f"{r['name']} boils at {bp:g} C, below {t:g} C: outside its liquid "
+                                "range at atmospheric pressure")
+    return t
+
+
+def _check_temperature_frame(t, df):
+    t = _num(t, "temperature (C)", "temperature")
+    if t <= -273.15:
+        raise SelectorError(f"temperature {t:g} C is below absolute zero")
+    mp = pd.to_numeric(df.get("melting_point_c", pd.Series(np.nan, index=df.index)), errors="coerce").to_numpy(float)
+    bp = pd.to_numeric(df.get("boiling_point_c", pd.Series(np.nan, index=df.index)), errors="coerce").to_numpy(float)
+    bad = (np.isfinite(mp) & (t < mp)) | (np.isfinite(bp) & (t > bp))
+    if np.any(bad):
+        names = df["name"].astype(str).to_numpy()[bad] if "name" in df.columns else np.arange(len(df))[bad]
+        shown = ", ".join(map(str, names[:8])) + (" ..." if bad.sum() > 8 else "")
+        raise SelectorError(f"{int(bad.sum())} liquid(s) are not liquid at {t:g} C (below melting or "
+                            f"above boiling point): {shown}")
+    return t
+
+
+# ---------------------------------------------------------------- LCST note
+
+def _lcst_prone(rec) -> bool:
+    """Water + amine/glycol-ether type partners show lower critical behaviour (common practice)."""
+    smi = rec["smiles"]
+    if not smi:
+        return False
+    from rdkit import Chem
+
+    mol = Chem.MolFromSmiles(smi)
+    if mol is None:
+        return False
+    amine = Chem.MolFromSmarts("[NX3;!$(N[#6,#16]=[O,S,N]);!$(Na);!$(N~[O,N])]")
+    pyr = Chem.MolFromSmarts("[nX2]")
+    glycol_ether = Chem.MolFromSmarts("[OX2H][CH2][CH2,CH1][OX2][#6]")
+    return (mol.HasSubstructMatch(amine) or mol.HasSubstructMatch(pyr)
+            or mol.HasSubstructMatch(glycol_ether))
+
+
+def _is_water(rec) -> bool:
+    return rec["smiles"] in ("O", "[OH2]") or rec["name"].lower() == "water"
+
+
+# ---------------------------------------------------------------- results
+
+@dataclass
+class Miscibility:
+    """Result of :func:`miscibility` for one pair at one temperature.
+
+    ``chi``: Flory-Huggins parameter per reference volume ``v_ref`` (cm^3/mol, the smaller
+    molar volume); ``chi_critical``: its critical value; ``ucst_c``: upper critical solution
+    temperature in C (None when the model has none); ``binodal``: coexisting compositions (a
+    dict of phases with vol %, wt % and mole % of liquid ``a``, and the mutual solubilities), or
+    None when miscible; ``spinodal``: (low, high) volume fractions of ``a`` or None;
+    ``confidence``: "high", "medium" or "low"; ``notes``: list of plain-language remarks.
+    """
+
+    a: str
+    b: str
+    temperature_c: float
+    state: str
+    chi: float
+    chi_critical: float
+    ucst_c: float | None
+    binodal: dict | None
+    spinodal: tuple | None
+    confidence: str
+    notes: list = field(default_factory=list)
+    v_ref: float = math.nan
+    interaction_mpa: float = math.nan
+    model: str = ""
+
+    @property
+    def miscible(self) -> bool:
+        return self.state == "miscible"
+
+    def as_dict(self) -> dict:
+        d = {k: getattr(self, k) for k in ("a", "b", "temperature_c", "state", "chi", "chi_critical",
+                                           "ucst_c", "confidence", "v_ref", "interaction_mpa", "model")}
+        d["spinodal"] = None if self.spinodal is None else list(self.spinodal)
+        d["binodal"] = self.binodal
+        d["notes"] = list(self.notes)
+        return d
+
+
+def _compute(h1, h2, s1, s2, v1, v2, t_c, model):
+    """Vectorised core: interaction, chi, chi_c, UCST (K) and the binodal for arrays of pairs."""
+    a12 = model.interaction(h1, h2, s1, s2)
+    vr = np.minimum(v1, v2)
+    n1, n2 = v1 / vr, v2 / vr
+    T = t_c + 273.15
+    chi = vr * a12 / (R_GAS * T)
+    cc = critical_chi(n1, n2)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ucst_k = np.where(a12 > 0, vr * a12 / (R_GAS * cc), np.nan)
+    pa, pb = binodal(chi, n1, n2)
+    return a12, vr, n1, n2, chi, cc, ucst_k, pa, pb
+
+
+def _classify(pa, pb, v1, v2, m1, m2):
+    """States from binodal fractions; mutual solubilities in wt % (NaN molar mass: vol %)."""
+    gap = np.isfinite(pa)
+    x_a = volume_to_mole(np.where(gap, pa, 0.5), v1, v2)
+    x_b = volume_to_mole(np.where(gap, pb, 0.5), v1, v2)
+    mm_ok = np.isfinite(m1) & np.isfinite(m2)
+    w_a = np.where(mm_ok, mole_to_mass(x_a, np.where(mm_ok, m1, 1), np.where(mm_ok, m2, 1)), pa)
+    w_b = np.where(mm_ok, mole_to_mass(x_b, np.where(mm_ok, m1, 1), np.where(mm_ok, m2, 1)), pb)
+    sol_1_in_2 = 100 * w_a          # wt % of liquid 1 in the phase rich in 2
+    sol_2_in_1 = 100 * (1 - w_b)    # wt % of liquid 2 in the phase rich in 1
+    immisc = gap & (sol_1_in_2 < IMMISCIBLE_BELOW_WT_PCT) & (sol_2_in_1 < IMMISCIBLE_BELOW_WT_PCT)
+    state = np.where(~gap, "miscible", np.where(immisc, "immiscible", "partially miscible"))
+    return state
+
+
+def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None = None,
+                model=None) -> Miscibility:
+    """Whether liquids ``a`` and ``b`` mix at ``temperature`` (C), with chi, UCST and binodal.
+
+    ``a``, ``b``: library names/CAS/SMILES, or dicts/Series with ``delta_d, delta_p, delta_h``
+    (MPa^0.5), ``molar_volume`` (cm^3/mol) and optionally ``smiles``, ``molar_mass``,
+    ``melting_point_c``, ``boiling_point_c``. ``model``: "hbond" (default) or "plain". Method: see
+    the module docstring (Flory-Huggins with Hansen parameters and a donor/acceptor term).
+
+    >>> r = miscibility("water", "hexane")
+    >>> r.state, r.chi > r.chi_critical
+    ('immiscible', True)
+    >>> miscibility("water", "ethanol").state
+    'miscible'
+    """
+    mdl = _model(model)
+    lib = library
+    if (isinstance(a, str) or isinstance(b, str)) and lib is None:
+        lib = load_library()
+    ra_, rb_ = _liquid(a, lib), _liquid(b, lib)
+    t = _check_temperature(temperature, [ra_, rb_])
+    h1 = np.array([ra_["delta_d"], ra_["delta_p"], ra_["delta_h"]])
+    h2 = np.array([rb_["delta_d"], rb_["delta_p"], rb_["delta_h"]])
+    v1, v2 = ra_["molar_volume"], rb_["molar_volume"]
+    s = site_densities([ra_["smiles"], rb_["smiles"]], [v1, v2])
+    a12, vr, n1, n2, chi, cc, ucst_k, pa, pb = _compute(h1, h2, s[0], s[1], np.float64(v1),
+                                                        np.float64(v2), t, mdl)
+    pa, pb = float(pa), float(pb)
+    m1, m2 = ra_["molar_mass"], rb_["molar_mass"]
+    state = str(_classify(np.array(pa), np.array(pb), v1, v2, m1, m2))
+    notes = []
+    ucst = None if not np.isfinite(ucst_k) else float(ucst_k) - 273.15
+    spin = None
+    bino = None
+    if np.isfinite(pa):
+        lo, hi = spinodal(chi, n1, n2)
+        spin = (float(lo), float(hi))
+        bino = _binodal_dict(pa, pb, v1, v2, m1, m2, ra_["name"], rb_["name"])
+    if ucst is not None:
+        if ucst < t:
+            notes.append(f"model UCST {ucst:.0f} C is below {t:g} C: one phase at this temperature, "
+                         "a gap may open on cooling")
+        else:
+            notes.append(f"model UCST {ucst:.0f} C: the gap narrows on heating and closes there")
+    else:
+        notes.append("no UCST in this model: the interaction is favourable (chi <= 0)")
+    water = _is_water(ra_) or _is_water(rb_)
+    other = rb_ if _is_water(ra_) else ra_
+    lcst = water and not (_is_water(ra_) and _is_water(rb_)) and _lcst_prone(other)
+    if lcst:
+        notes.append("water with an amine, pyridine or glycol ether: such pairs can show lower "
+                     "critical solution behaviour (a gap that opens on heating, e.g. water-"
+                     "triethylamine), which this model does not describe")
+    # confidence: distance from the phase boundary on a log scale, HSP source agreement, LCST
+    margin = abs(math.log(max(chi, 1e-9) / cc)) if chi > 0 else 3.0
+    conf = "high" if margin > 0.5 else ("medium" if margin > 0.2 else "low")
+    if ra_["sources_disagree"] or rb_["sources_disagree"]:
+        notes.append("published HSP sources disagree by > 1 MPa^0.5 for at least one liquid")
+        conf = {"high": "medium", "medium": "low", "low": "low"}[conf]
+    if lcst:
+        conf = "low"
+    if a12 > 0 and chi > 0 and water and mdl.k_cross:
+        pass
+    notes.append("a model estimate: confirm with a small test mix; check the safety data sheets "
+                 "of both liquids")
+    return Miscibility(ra_["name"], rb_["name"], t, state, float(chi), float(cc), ucst, bino, spin,
+                       conf, notes, float(vr), float(a12), mdl.name)
+
+
+def _binodal_dict(pa, pb, v1, v2, m1, m2, na, nb):
+    xa, xb = float(volume_to_mole(pa, v1, v2)), float(volume_to_mole(pb, v1, v2))
+    have_m = math.isfinite(m1) and math.isfinite(m2)
+    wa = float(mole_to_mass(xa, m1, m2)) if have_m else math.nan
+    wb = float(mole_to_mass(xb, m1, m2)) if have_m else math.nan
+    return {
+        "liquid": na,
+        f"{nb}-rich phase": {"vol_pct": 100 * pa, "wt_pct": 100 * wa, "mol_pct": 100 * xa},
+        f"{na}-rich phase": {"vol_pct": 100 * pb, "wt_pct": 100 * wb, "mol_pct": 100 * xb},
+        "phi_a": pa,
+        "phi_b": pb,
+        f"solubility of {na} in {nb}": {"vol_pct": 100 * pa, "wt_pct": 100 * wa, "mol_pct": 100 * xa},
+        f"solubility of {nb} in {na}": {"vol_pct": 100 * (1 - pb), "wt_pct": 100 * (1 - wb),
+                                        "mol_pct": 100 * (1 - xb)},
+    }
+
+
+# ---------------------------------------------------------------- matrices
+
+def _arrays(df: pd.DataFrame):
+    need = ["delta_d", "delta_p", "delta_h", "molar_volume"]
+    miss = [c for c in need if c not in df.columns]
+    if miss:
+        raise SelectorError(f"liquids table lacks column(s) {', '.join(miss)}")
+    h = df[["delta_d", "delta_p", "delta_h"]].apply(pd.to_numeric, errors="coerce").to_numpy(float)
+    v = pd.to_numeric(df["molar_volume"], errors="coerce").to_numpy(float)
+    bad = ~np.isfinite(h).all(axis=1) | ~np.isfinite(v) | (v <= 0) | (h < 0).any(axis=1)
+    if np.any(bad):
+        names = df["name"].astype(str).to_numpy()[bad] if "name" in df.columns else np.flatnonzero(bad)
+        raise SelectorError("missing, negative or non-numeric HSP or molar volume for: "
+                            + ", ".join(map(str, names[:8])))
+    smi = df["smiles"].tolist() if "smiles" in df.columns else [""] * len(df)
+    s = site_densities(smi, v)
+    m = (pd.to_numeric(df["molar_mass"], errors="coerce").to_numpy(float) if "molar_mass" in df.columns
+         else np.full(len(df), np.nan))
+    return h, v, s, m
+
+
+def state_matrix(liquids: pd.DataFrame, temperature: float = 25.0, model=None) -> np.ndarray:
+    """(n, n) array of state strings for library-format rows (vectorised over all pairs)."""
+    mdl = _model(model)
+    if len(liquids) == 0:
+        raise SelectorError("no liquids selected")
+    t = _check_temperature_frame(temperature, liquids)
+    h, v, s, m = _arrays(liquids)
+    a12, vr, n1, n2, chi, cc, ucst_k, pa, pb = _compute(
+        h[:, None, :], h[None, :, :], s[:, None, :], s[None, :, :], v[:, None], v[None, :], t, mdl)
+    st = _classify(pa, pb, v[:, None], v[None, :], m[:, None], m[None, :])
+    np.fill_diagonal(st, "miscible")
+    return st
+
+
+def miscible_pairs(liquids: pd.DataFrame, temperature: float = 25.0, model=None) -> np.ndarray:
+    """(n, n) bool array: True where the pair is miscible in all proportions.
+
+    ``liquids``: library-format rows (``delta_d, delta_p, delta_h, molar_volume``, optionally
+    ``smiles``); vectorised over all pairs; no phase-split solve is needed (chi <= chi_c).
+
+    >>> lib = load_library()
+    >>> sel = lib[lib.name.isin(["water", "hexane", "acetone"])].sort_values("name")
+    >>> miscible_pairs(sel).astype(int).tolist()   # acetone, hexane, water
+    [[1, 1, 1], [1, 1, 0], [1, 0, 1]]
+    """
+    mdl = _model(model)
+    if len(liquids) == 0:
+        raise SelectorError("no liquids selected")
+    t = _check_temperature_frame(temperature, liquids)
+    h, v, s, _ = _arrays(liquids)
+    a12 = mdl.interaction(h[:, None, :], h[None, :, :], s[:, None, :], s[None, :, :])
+    vr = np.minimum(v[:, None], v[None, :])
+    chi = vr * a12 / (R_GAS * (t + 273.15))
+    cc = critical_chi(v[:, None] / vr, v[None, :] / vr)
+    out = chi <= cc
+    np.fill_diagonal(out, True)
+    return out
+
+
+def _rows(liquids, library):
+    if isinstance(liquids, pd.DataFrame):
+        return liquids.reset_index(drop=True)
+    if isinstance(liquids, (str, dict, pd.Series)):
+        raise SelectorError("give a list of liquids (at least two)")
+    items = list(liquids)
+    if not items:
+        raise SelectorError("no liquids selected")
+    lib = library
+    if lib is None and any(isinstance(x, str) for x in items):
+        lib = load_library()
+    recs = []
+    for x in items:
+        if isinstance(x, str):
+            from .library import locate_many  # noqa: F401
+
+            recs.append(lib.iloc[locate(x, lib)])
+        else:
+            recs.append(pd.Series(_record(x, str(x.get("name", "user liquid")))))
+    return pd.DataFrame(recs).reset_index(drop=True)
+
+
+def miscibility_matrix(liquids, *, temperature: float = 25.0, library: pd.DataFrame | None = None,
+                       model=None) -> pd.DataFrame:
+    """DataFrame of states ("miscible", "partially miscible", "immiscible") for every pair.
+
+    ``liquids``: a list of names/CAS/user dicts, or a library-format DataFrame (up to the whole
+    library). Index and columns are the liquid names.
+
+    >>> m = miscibility_matrix(["water", "hexane", "acetone"])
+    >>> m.loc["water", "hexane"], m.loc["water", "acetone"]
+    ('immiscible', 'miscible')
+    """
+    if isinstance(liquids, (list, tuple)) and any(isinstance(x, str) for x in liquids) and library is None:
+        library = load_library()
+    if isinstance(liquids, (list, tuple)) and library is not None and all(isinstance(x, str) for x in liquids):
+        from .library import locate_many
+
+        df = library.iloc[locate_many(liquids, library)].reset_index(drop=True)
+    else:
+        df = _rows(liquids, library)
+    st = state_matrix(df, temperature, model)
+    names = df["name"].astype(str).tolist() if "name" in df.columns else list(range(len(df)))
+    return pd.DataFrame(st, index=names, columns=names)
+
+
+# ---------------------------------------------------------------- blend check
+
+@dataclass
+class BlendCheck:
+    """Result of :func:`check_blend_miscible`: ``ok`` and the ``failing`` (a, b, state) pairs."""
+
+    ok: bool
+    failing: list
+    temperature_c: float = 25.0
+
+    def __getitem__(self, key):
+        return getattr(self, key)
+
+    def get(self, key, default=None):
+        return getattr(self, key, default)
+
+
+def check_blend_miscible(names_or_rows, *, temperature: float = 25.0,
+                         library: pd.DataFrame | None = None, model=None) -> BlendCheck:
+    """Check that every pair of a blend's liquids is miscible in all proportions.
+
+    ``names_or_rows``: list of names/CAS/user dicts or a library-format DataFrame. Returns a
+    :class:`BlendCheck` (``ok``; ``failing`` = list of (a, b, state)). A blend of one liquid is ok.
+
+    >>> check_blend_miscible(["toluene", "heptane"]).ok
+    True
+    >>> check_blend_miscible(["water", "toluene", "acetone"]).failing
+    [('water', 'toluene', 'immiscible')]
+    """
+    if isinstance(names_or_rows, (list, tuple)) and names_or_rows and all(isinstance(x, str) for x in names_or_rows):
+        lib = load_library() if library is None else library
+        from .library import locate_many
+
+        df = lib.iloc[locate_many(list(names_or_rows), lib)].reset_index(drop=True)
+    else:
+        df = _rows(names_or_rows, library)
+    if len(df) == 0:
+        raise SelectorError("no liquids in the blend")
+    st = state_matrix(df, temperature, model)
+    names = df["name"].astype(str).tolist() if "name" in df.columns else [str(i) for i in range(len(df))]
+    iu, ju = np.triu_indices(len(df), 1)
+    failing = [(names[i], names[j], str(st[i, j])) for i, j in zip(iu, ju) if st[i, j] != "miscible"]
+    return BlendCheck(not failing, failing, float(temperature))
