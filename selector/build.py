@@ -296,6 +296,27 @@ def write_atomic(df: pd.DataFrame, path: Path) -> None:
     os.replace(tmp, path)
 
 
+def compare(old: pd.DataFrame, new: pd.DataFrame, rtol: float = 1e-4) -> list[str]:
+    """Differences between two library tables (rows keyed by CAS), as readable lines."""
+    out = []
+    o, n = old.set_index("cas"), new.set_index("cas")
+    for cas in sorted(set(o.index) - set(n.index)):
+        out.append(f"{cas}: only in the committed table")
+    for cas in sorted(set(n.index) - set(o.index)):
+        out.append(f"{cas}: only in the fresh build")
+    common = sorted(set(o.index) & set(n.index))
+    for col in [c for c in COLUMNS if c != "cas" and c in o.columns and c in n.columns]:
+        a, b = o.loc[common, col], n.loc[common, col]
+        if pd.api.types.is_numeric_dtype(a) and pd.api.types.is_numeric_dtype(b):
+            av, bv = a.to_numpy(float), b.to_numpy(float)
+            bad = ~(np.isclose(av, bv, rtol=rtol, atol=1e-9) | (np.isnan(av) & np.isnan(bv)))
+        else:
+            bad = (a.fillna("").astype(str).str.lower() != b.fillna("").astype(str).str.lower()).to_numpy()
+        for cas in np.asarray(common)[bad]:
+            out.append(f"{cas} {col}: committed {o.at[cas, col]!r}, fresh {n.at[cas, col]!r}")
+    return out
+
+
 def main(argv=None) -> int:
     p = argparse.ArgumentParser(description="Rebuild parameters/liquids.csv from chemicals/thermo.")
     p.add_argument("--check", action="store_true", help="compare with the committed file, do not write")
@@ -303,10 +324,12 @@ def main(argv=None) -> int:
     a = p.parse_args(argv)
     df = build()
     if a.check:
-        old = pd.read_csv(LIBRARY_CSV, keep_default_na=False, na_values=[""])
-        same = old.shape == df.shape
-        print(f"built {len(df)} liquids; committed {len(old)}; identical shape: {same}")
-        return 0 if same else 1
+        old = pd.read_csv(LIBRARY_CSV, keep_default_na=False, na_values=[""], dtype={"cas": str})
+        diffs = compare(old, df)
+        print(f"built {len(df)} liquids; committed {len(old)}; {len(diffs)} difference(s)")
+        for d in diffs[:50]:
+            print("  " + d)
+        return 0 if not diffs else 1
     write_atomic(df, a.out)
     print(f"wrote {len(df)} liquids to {a.out}")
     return 0

@@ -308,6 +308,11 @@ def validate_user_table(table, library: pd.DataFrame | None = None) -> pd.DataFr
                 problems.append(f"row {i + 2} ({df['name'].iloc[i]}): {col} = {v:g} is outside "
                                 f"{lo:g}..{hi:g} {unit}")
         df[col] = vals
+    if "kind" in df.columns:
+        df["kind"] = df["kind"].fillna("liquid").astype(str).str.strip().str.lower().replace("", "liquid")
+        for i, k in enumerate(df["kind"]):
+            if k not in ("liquid", "solute"):
+                problems.append(f"row {i + 2} ({df['name'].iloc[i]}): kind {k!r} must be 'liquid' or 'solute'")
     if "cas" in df.columns:
         df["cas"] = df["cas"].fillna("").astype(str).str.strip()
         for i, c in enumerate(df["cas"]):

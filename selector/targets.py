@@ -85,7 +85,9 @@ def as_target(target, library: pd.DataFrame | None = None, name: str | None = No
     if isinstance(target, str):
         lib = load_library() if library is None else library
         row = lib.iloc[locate(target, lib)]
-        return Target(float(row.delta_d), float(row.delta_p), float(row.delta_h), None,
+        r0 = row.get("radius", None)  # a user solute may carry its own R0
+        r0 = float(r0) if r0 is not None and isinstance(r0, (int, float)) and math.isfinite(r0) else None
+        return Target(float(row.delta_d), float(row.delta_p), float(row.delta_h), r0,
                       name=str(row["name"]), source=f"library ({row.get('hsp_source', '')})")
     if isinstance(target, (tuple, list, np.ndarray)):
         vals = list(target)

@@ -228,3 +228,30 @@ def test_save_user_liquids_is_atomic_and_keeps_old_file_on_bad_input(tmp_path):
         selector.save_user_liquids(bad, p)
     assert p.read_text() == first
     assert [f.name for f in p.parent.iterdir()] == ["mine.csv"]  # no temp file left behind
+
+
+def test_user_solute_is_a_target_not_a_candidate(tmp_path):
+    p = tmp_path / "mine.csv"
+    p.write_text("name,kind,delta_d,delta_p,delta_h,radius\n"
+                 "shop resin (invented),solute,17.9,6.1,6.4,8.6\n")
+    merged = load_library(p)
+    r = selector.rank("shop resin (invented)", library=merged)
+    assert "shop resin (invented)" not in set(r["name"])
+    # R0 taken from the user's row: RED = Ra / 8.6
+    np.testing.assert_allclose(r["red"], r["ra"] / 8.6)
+    bad = tmp_path / "bad.csv"
+    bad.write_text("name,kind,delta_d,delta_p,delta_h\nx,polymer,17,3,4\n")
+    with pytest.raises(InputTableError, match="kind"):
+        load_library(bad)
+
+
+def test_build_compare_reports_changes(lib):
+    # the drift detector itself: a changed value and a missing row are both reported
+    sub = lib[build.COLUMNS].head(5).copy()
+    changed = sub.copy()
+    changed.loc[changed.index[0], "delta_d"] += 0.5
+    changed = changed.iloc[:-1]
+    diffs = build.compare(sub, changed)
+    assert any("delta_d" in d for d in diffs)
+    assert any("only in the committed table" in d for d in diffs)
+    assert build.compare(sub, sub.copy()) == []
