@@ -1,0 +1,1 @@
+"""Shared pieces of the likewise web front end: state, cached library, widgets and plots."""

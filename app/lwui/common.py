@@ -1,0 +1,312 @@
+"""State, caching, error display and the shared widgets of the web pages.
+
+Pages call the library functions of :mod:`selector` only; no number shown here is computed in
+the front end.
+"""
+from __future__ import annotations
+
+import importlib
+import math
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import streamlit as st
+
+import selector
+from selector.errors import SelectorError
+from selector.library import user_liquids_file
+from selector.report import GENERAL_CAUTION, caution_table
+from selector.targets import Target
+
+TARGET_KEY = "lw_target"
+ERRORS = (SelectorError, ValueError, KeyError, TypeError, FileNotFoundError)
+
+RANK_COLUMNS = ["rank", "name", "cas", "delta_d", "delta_p", "delta_h", "ra", "red",
+                "polarity_match", "score", "molar_volume", "boiling_point_c", "flash_point_c",
+                "hazard_class", "exposure_limit", "exposure_limit_unit", "hsp_source", "sources_disagree",
+                "origin"]
+
+COLUMN_CONFIG = {
+    "rank": st.column_config.NumberColumn("Rank", format="%d", width="small"),
+    "name": st.column_config.TextColumn("Liquid"),
+    "cas": st.column_config.TextColumn("CAS"),
+    "delta_d": st.column_config.NumberColumn("dD", help="dispersion, MPa^0.5", format="%.1f"),
+    "delta_p": st.column_config.NumberColumn("dP", help="polar, MPa^0.5", format="%.1f"),
+    "delta_h": st.column_config.NumberColumn("dH", help="hydrogen bonding, MPa^0.5", format="%.1f"),
+    "ra": st.column_config.NumberColumn("Ra", help="Hansen distance to the target, MPa^0.5", format="%.2f"),
+    "red": st.column_config.NumberColumn("RED", help="Ra / R0; below 1: expected to dissolve", format="%.2f"),
+    "polarity_match": st.column_config.NumberColumn("Polarity match", help="0..1, 1 = same share of "
+                                                    "dispersion/polar/H-bond energy", format="%.2f"),
+    "score": st.column_config.NumberColumn("Score", help="lower is better", format="%.3f"),
+    "molar_volume": st.column_config.NumberColumn("V (cm³/mol)", format="%.1f"),
+    "boiling_point_c": st.column_config.NumberColumn("Boiling point (°C)", format="%.0f"),
+    "flash_point_c": st.column_config.NumberColumn("Flash point (°C)", format="%.0f"),
+    "exposure_limit": st.column_config.NumberColumn("Exposure limit", format="%.4g"),
+    "exposure_limit_unit": st.column_config.TextColumn("unit"),
+    "hsp_source": st.column_config.TextColumn("HSP source"),
+    "sources_disagree": st.column_config.CheckboxColumn("Sources disagree",
+                                                        help="published HSP differ by > 1 MPa^0.5"),
+    "ra_to_target": st.column_config.NumberColumn("Ra", format="%.2f"),
+    "hazard_class": st.column_config.TextColumn("Hazard class"),
+}
+
+
+# ---------------------------------------------------------------- data
+
+def _user_file() -> Path:
+    return user_liquids_file()
+
+
+@st.cache_resource(show_spinner=False)
+def _library_cached(path: str | None, mtime: float):
+    return selector.load_library(path) if path else selector.load_library()
+
+
+def library() -> pd.DataFrame:
+    """The library merged with the user's saved liquids (cached; do not modify the result)."""
+    p = _user_file()
+    if p.exists():
+        try:
+            return _library_cached(str(p), p.stat().st_mtime)
+        except ERRORS as e:
+            st.warning(f"Your saved liquids ({p}) could not be read and are left out: {e}")
+    return _library_cached(None, 0.0)
+
+
+@st.cache_data(show_spinner=False)
+def demo() -> dict:
+    from selector.cli_core import demo_scenario
+
+    return demo_scenario()
+
+
+def demo_target_spec() -> dict:
+    r = demo()["resin"]
+    return {"kind": "demo", "name": r["name"], "delta_d": r["delta_d"], "delta_p": r["delta_p"],
+            "delta_h": r["delta_h"], "radius": r["radius"],
+            "source": "invented demo scenario (not measured data)"}
+
+
+def demo_filters() -> dict:
+    f = demo()["filters"]
+    return {"boiling_point_c": tuple(f["boiling_point_c"]), "min_flash_point_c": f["min_flash_point_c"]}
+
+
+def init_state() -> None:
+    if TARGET_KEY not in st.session_state:
+        st.session_state[TARGET_KEY] = demo_target_spec()
+
+
+def set_target(spec: dict) -> None:
+    st.session_state[TARGET_KEY] = dict(spec)
+
+
+def target_spec() -> dict:
+    init_state()
+    return st.session_state[TARGET_KEY]
+
+
+def target() -> Target:
+    s = target_spec()
+    return Target(float(s["delta_d"]), float(s["delta_p"]), float(s["delta_h"]),
+                  None if s.get("radius") in (None, 0) else float(s["radius"]),
+                  name=str(s["name"]), source=str(s.get("source", "given")))
+
+
+def rank_target():
+    """What to pass to :func:`selector.rank`: a library name for a plain library point (so that
+    it is temperature-corrected and not ranked against itself), otherwise the Target."""
+    s = target_spec()
+    if s.get("kind") == "library" and not s.get("radius"):
+        return s["name"]
+    return target()
+
+
+def is_demo() -> bool:
+    return target_spec().get("kind") == "demo"
+
+
+def capability(module: str):
+    """The selector module for a capability, or None (with a note) when it is not installed yet."""
+    try:
+        return importlib.import_module(f"selector.{module}")
+    except ModuleNotFoundError as e:
+        if e.name and e.name.endswith(module):
+            st.info(f"This page needs `selector.{module}`, which is not installed in this copy yet.")
+            return None
+        raise
+
+
+def show_error(e: Exception) -> None:
+    msg = str(e).strip() or type(e).__name__
+    st.error(msg)
+
+
+def call(fn, *args, **kwargs):
+    """Run a library call; on bad input show the message in the page and return None."""
+    try:
+        return fn(*args, **kwargs)
+    except ERRORS as e:
+        show_error(e)
+        return None
+
+
+# ---------------------------------------------------------------- widgets
+
+def demo_banner() -> None:
+    if is_demo():
+        st.info("**Invented demo.** " + demo()["label"] + " Define your own target on the *Target* page.",
+                icon="🧪")
+
+
+def target_line() -> None:
+    t = target()
+    st.markdown(f"**Target:** {t.describe()}  \n<small>source: {t.source}</small>", unsafe_allow_html=True)
+
+
+def liquid_names() -> list[str]:
+    return sorted(library()["name"].astype(str).tolist(), key=str.lower)
+
+
+def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool = True,
+                 expanded: bool = True) -> tuple[dict, float]:
+    """Candidate filters (see :mod:`selector.filters`) and the temperature in C."""
+    d = defaults if defaults is not None else (demo_filters() if is_demo() else {})
+    bp = d.get("boiling_point_c", (None, None))
+    with st.expander("Candidate filters", expanded=expanded):
+        c1, c2, c3, c4 = st.columns(4)
+        t = 25.0
+        if temperature:
+            t = c1.number_input("Temperature (°C)", value=25.0, min_value=-100.0, max_value=300.0,
+                                step=5.0, key=f"{prefix}_t",
+                                help="HSP of the library liquids are corrected by Hansen-Beerbower")
+        lo = c2.number_input("Boiling point from (°C)", value=float(bp[0]) if bp[0] is not None else -150.0,
+                             step=10.0, key=f"{prefix}_bplo", help="-150 = no lower limit")
+        hi = c3.number_input("Boiling point to (°C)", value=float(bp[1]) if bp[1] is not None else 600.0,
+                             step=10.0, key=f"{prefix}_bphi", help="600 = no upper limit")
+        fp = c4.number_input("Minimum flash point (°C)", value=None if d.get("min_flash_point_c") is None else float(d["min_flash_point_c"]),
+                             step=5.0,
+                             key=f"{prefix}_fp", placeholder="no limit",
+                             help="liquids without flash-point data are dropped when set")
+        c5, c6, c7 = st.columns([1, 2, 1])
+        mv = c5.number_input("Max molar volume (cm³/mol)", value=None, min_value=1.0, step=10.0,
+                             key=f"{prefix}_mv", placeholder="no limit")
+        exc = c6.multiselect("Never propose", liquid_names(), default=d.get("exclude", []),
+                             key=f"{prefix}_exc")
+        agreed = c7.checkbox("Agreed sources only", value=False, key=f"{prefix}_agreed",
+                             help="drop liquids whose published HSP differ by more than 1 MPa^0.5")
+    f: dict = {}
+    if lo > -150.0 or hi < 600.0:
+        f["boiling_point_c"] = (lo if lo > -150.0 else None, hi if hi < 600.0 else None)
+    if fp is not None:
+        f["min_flash_point_c"] = fp
+    if mv is not None:
+        f["max_molar_volume"] = mv
+    if exc:
+        f["exclude"] = exc
+    if agreed:
+        f["consistent_sources_only"] = True
+    return f, float(t)
+
+
+def _lib_key():
+    p = _user_file()
+    return (str(p), p.stat().st_mtime) if p.exists() else (None, 0.0)
+
+
+@st.cache_resource(show_spinner=False)
+def _hazards_cached(path: str | None, mtime: float):
+    hz = importlib.import_module("selector.hazards")
+    try:
+        lib = _library_cached(path, mtime)
+    except ERRORS:
+        lib = _library_cached(None, 0.0)
+    t = hz.hazard_columns(lib)
+    t.index = lib["name"].astype(str).to_numpy()
+    return t[~t.index.duplicated()]
+
+
+def hazard_frame() -> pd.DataFrame | None:
+    """CHEM21 hazard columns (from :func:`selector.hazards.hazard_columns`) indexed by liquid name."""
+    try:
+        importlib.import_module("selector.hazards")
+    except ModuleNotFoundError:
+        return None
+    return _hazards_cached(*_lib_key())
+
+
+def with_hazards(df: pd.DataFrame) -> pd.DataFrame:
+    """``df`` with ``hazard_class`` and ``h_statements`` joined by liquid name ("unclassified" if unknown)."""
+    out = df.copy()
+    hz = hazard_frame()
+    names = out["name"].astype(str)
+    if hz is None:
+        if "hazard_class" not in out:
+            out["hazard_class"] = "unclassified"
+        return out
+    for c in ("hazard_class", "h_statements"):
+        if c in hz and c not in out:
+            out[c] = hz[c].reindex(names).to_numpy()
+    out["hazard_class"] = out["hazard_class"].fillna("unclassified")
+    return out
+
+
+def cautions(liquids: pd.DataFrame, *, title: str = "Safety notes for the liquids shown") -> pd.DataFrame:
+    """General caution plus a per-liquid table (flammability class, exposure limit, hazard class)."""
+    st.warning("**Before you use any of these:** " + GENERAL_CAUTION, icon="⚠️")
+    ct = caution_table(with_hazards(liquids))
+    with st.expander(title, expanded=False):
+        st.dataframe(ct, hide_index=True, width="stretch", column_config={
+            "name": "Liquid", "flash_point_c": st.column_config.NumberColumn("Flash point (°C)", format="%.0f"),
+            "boiling_point_c": st.column_config.NumberColumn("Boiling point (°C)", format="%.0f"),
+            "flammability": "Flammability (GHS 2.6 criteria)", "exposure": "Exposure limit (source)",
+            "hazard_class": "Hazard class (CHEM21)", "h_statements": "GHS statements (from memory)"})
+        st.caption("Flammability is classed from the library flash point and boiling point by the "
+                   "GHS criteria; hazard classes by the CHEM21 guide (Prat et al., Green Chem. 2016) "
+                   "from statements quoted from memory. *Unclassified* means no data, not safe. "
+                   "Confirm every value against the supplier's safety data sheet.")
+    return ct
+
+
+def readable_top(df: pd.DataFrame, columns: list[str], n: int = 5, key: str = "top") -> None:
+    """The first rows as a plain HTML table (readable by people, printers and browser tests)."""
+    cols = [c for c in columns if c in df.columns]
+    top = df.head(n)[cols].copy()
+    labels = {c: (COLUMN_CONFIG[c]["label"] if c in COLUMN_CONFIG and isinstance(COLUMN_CONFIG[c], dict)
+                  and COLUMN_CONFIG[c].get("label") else c) for c in cols}
+    for c in cols:
+        if pd.api.types.is_float_dtype(top[c]):
+            fmt = "{:.0f}" if c.endswith("_c") else "{:.2f}"
+            top[c] = top[c].map(lambda v, f=fmt: "" if not np.isfinite(v) else f.format(v))
+    top = top.rename(columns=labels)
+    st.table(top.set_index(top.columns[0]))
+
+
+def downloads(df: pd.DataFrame, *, stem: str, report_md: str | None = None,
+              report_html: str | None = None, key: str = "dl") -> None:
+    from selector.io import to_csv_text
+
+    c1, c2, c3 = st.columns(3)
+    c1.download_button("Download table (CSV)", to_csv_text(df), file_name=f"{stem}.csv",
+                       mime="text/csv", key=f"{key}_csv", on_click="ignore")
+    if report_md is not None:
+        c2.download_button("Report (Markdown)", report_md, file_name=f"{stem}_report.md",
+                           mime="text/markdown", key=f"{key}_md", on_click="ignore")
+    if report_html is not None:
+        c3.download_button("Printable report (HTML)", report_html, file_name=f"{stem}_report.html",
+                           mime="text/html", key=f"{key}_html", on_click="ignore")
+
+
+def filters_as_inputs(filters: dict, temperature: float) -> dict:
+    out = {"temperature (C)": temperature}
+    names = {"boiling_point_c": "boiling-point window (C)", "min_flash_point_c": "minimum flash point (C)",
+             "max_molar_volume": "maximum molar volume (cm3/mol)", "exclude": "never propose",
+             "include": "only these", "consistent_sources_only": "agreed HSP sources only"}
+    for k, v in filters.items():
+        if k == "boiling_point_c":
+            v = f"{'-' if v[0] is None else f'{v[0]:g}'} to {'-' if v[1] is None else f'{v[1]:g}'}"
+        elif isinstance(v, (list, tuple)):
+            v = ", ".join(map(str, v))
+        out[names.get(k, k)] = v
+    return out

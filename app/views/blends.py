@@ -1,0 +1,91 @@
+"""Blend design: two- and three-liquid mixtures whose volume-weighted HSP land on the target."""
+import pandas as pd
+import streamlit as st
+
+import selector
+from lwui import common, plots
+from selector.report import LIBRARY_SOURCES, build_report
+
+st.title("Blend design")
+common.demo_banner()
+common.target_line()
+st.caption("A blend's HSP are the volume-fraction-weighted mean of its components, so two liquids that "
+           "each miss the target can together land inside it. Blends are ranked by RED (Ra/R0) or Ra.")
+
+mod = common.capability("blends")
+if mod is None:
+    st.stop()
+
+
+@st.cache_data(show_spinner="Designing blends…", max_entries=64)
+def design(target_key, max_components, min_fraction, temperature, top, filters_key):
+    from selector.targets import Target
+
+    tg = Target(*target_key[:3], target_key[3], name=target_key[4])
+    return selector.find_blends(tg, max_components=max_components, min_fraction=min_fraction,
+                                temperature=temperature, top=top, **dict(filters_key))
+
+
+def freeze(f: dict):
+    return tuple(sorted((k, tuple(v) if isinstance(v, list) else v) for k, v in f.items()))
+
+
+filters, temp = common.filter_panel("bl")
+with st.form("bl_form"):
+    c1, c2, c3 = st.columns(3)
+    ncomp = c1.radio("Liquids per blend", [2, 3], index=1, horizontal=True, key="bl_n")
+    minf = c2.number_input("Smallest share (volume fraction)", 0.01, 0.45, 0.05, 0.01, key="bl_min",
+                           help="no component below this share")
+    top = c3.number_input("Blends to show", 5, 100, 20, 5, key="bl_top")
+    st.form_submit_button("Design blends", type="primary")
+
+t = common.target()
+res = common.call(design, (t.delta_d, t.delta_p, t.delta_h, t.radius, t.name), int(ncomp), float(minf),
+                  temp, int(top), freeze(filters))
+if res is None:
+    st.stop()
+if len(res) == 0:
+    st.warning("No blend meets these conditions; widen the filters or lower the smallest share.")
+    st.stop()
+
+res = res.copy()
+res.insert(0, "blend", [" + ".join(f"{f:.0%} {c}" for c, f in zip(cs, fs))
+                        for cs, fs in zip(res["components"], res["fractions"])])
+has_r = "red" in res and res["red"].notna().any()
+st.subheader("Best five")
+common.readable_top(res, ["blend", "red" if has_r else "ra", "ra", "hazard_class"], 5)
+show_cols = [c for c in res.columns if c not in ("components", "fractions")]
+st.dataframe(res[show_cols], hide_index=True, width="stretch", column_config=common.COLUMN_CONFIG)
+
+names = sorted({c for cs in res["components"] for c in cs})
+lib = common.library()
+comp_rows = lib.loc[lib["name"].isin(names)]
+common.cautions(comp_rows, title="Safety notes for every liquid in these blends")
+
+inputs = common.filters_as_inputs(filters, temp)
+inputs.update({"liquids per blend": int(ncomp), "smallest share": float(minf)})
+rep_cols = [c for c in ["blend", "delta_d", "delta_p", "delta_h", "ra", "red", "hazard_class"] if c in res]
+kw = dict(target=t, inputs=inputs, table=res.head(10), columns=rep_cols, liquids=common.with_hazards(comp_rows),
+          sources=LIBRARY_SOURCES + ["Blend HSP: volume-fraction-weighted mean (Hansen's handbook, ch. 1)."],
+          notes=(["The target is the INVENTED demo resin, not measured data."] if common.is_demo() else []))
+common.downloads(res.drop(columns=["blend"]), stem="blends", report_md=build_report("Blend design", **kw),
+                 report_html=build_report("Blend design", fmt="html", **kw), key="bl")
+
+st.subheader("One blend in detail")
+pick = st.selectbox("Blend", list(res["blend"]), key="bl_pick")
+row = res.loc[res["blend"] == pick].iloc[0]
+comps, fracs = list(row["components"]), list(row["fractions"])
+tab1, tab2 = st.tabs(["Drying path", "Teas triangle"])
+with tab1:
+    dmod = common.capability("drying")
+    if dmod is not None:
+        path = common.call(selector.drying_path, comps, fracs, temperature=temp, target=t)
+        if path is not None:
+            from lwui.drying_view import show_drying
+
+            show_drying(path, comps)
+with tab2:
+    crow = lib.loc[lib["name"].isin(comps)]
+    pts = [(t.name, t.hsp), ("blend", (row["delta_d"], row["delta_p"], row["delta_h"]))]
+    st.plotly_chart(plots.teas_triangle([("components", crow, plots.GOOD, 6)], pts), width="stretch",
+                    key="bl_teas")

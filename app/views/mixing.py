@@ -1,0 +1,115 @@
+"""Will they mix? A pair of liquids with its phase diagram, or a heat map of a chosen set."""
+import numpy as np
+import pandas as pd
+import streamlit as st
+
+import selector
+from lwui import common, plots
+
+st.title("Will they mix?")
+st.caption("Flory-Huggins with Hansen parameters: chi = V_r Ra² / (4RT); a pair splits into two "
+           "liquid phases when chi exceeds chi_c. Known to be rough for water and strongly "
+           "hydrogen-bonded pairs: read the confidence and test before you rely on it.")
+mod = common.capability("mixing")
+if mod is None:
+    st.stop()
+names = common.liquid_names()
+tab1, tab2 = st.tabs(["A pair", "A set (heat map)"])
+
+
+def _idx(n):
+    return names.index(n) if n in names else 0
+
+
+@st.cache_data(show_spinner=False, max_entries=256)
+def pair(a, b, t):
+    return selector.miscibility(a, b, temperature=t)
+
+
+@st.cache_data(show_spinner="Checking every pair…", max_entries=64)
+def matrix(liqs, t):
+    return selector.miscibility_matrix(list(liqs), temperature=t)
+
+
+@st.cache_data(show_spinner=False, max_entries=128)
+def phase_sweep(a, b, n=41):
+    """selector.miscibility over the common liquid range of the pair (for the phase diagram)."""
+    lib = common.library()
+    ra_, rb_ = selector.find_liquid(a, lib), selector.find_liquid(b, lib)
+    lo = np.nanmax([-60.0, ra_["melting_point_c"], rb_["melting_point_c"]]) + 0.5
+    hi = np.nanmin([250.0, ra_["boiling_point_c"], rb_["boiling_point_c"]]) - 0.5
+    rows = []
+    for T in np.linspace(lo, hi, n):  # a few temperatures, not the library
+        m = selector.miscibility(a, b, temperature=float(T), library=lib)
+        bi, sp = m.binodal or {}, m.spinodal or (np.nan, np.nan)
+        rows.append({"temperature_c": float(T), "binodal_low": bi.get("phi_a", np.nan),
+                     "binodal_high": bi.get("phi_b", np.nan), "spinodal_low": sp[0], "spinodal_high": sp[1],
+                     "state": m.state})
+    return pd.DataFrame(rows)
+
+
+def _num(v, fmt="{:.3g}"):
+    try:
+        f = float(v)
+    except (TypeError, ValueError):
+        return "—"
+    return fmt.format(f) if np.isfinite(f) else "—"
+
+
+with tab1:
+    c1, c2, c3 = st.columns([2, 2, 1])
+    a = c1.selectbox("First liquid", names, index=_idx("hexane"), key="mx_a")
+    b = c2.selectbox("Second liquid", names, index=_idx("methanol"), key="mx_b")
+    t = c3.number_input("Temperature (°C)", value=25.0, min_value=-100.0, max_value=300.0, step=5.0, key="mx_t")
+    r = common.call(pair, a, b, float(t))
+    if r is not None:
+        state = str(getattr(r, "state", "?"))
+        m = st.columns(5)
+        m[0].metric("At this temperature", state)
+        m[1].metric("chi", _num(getattr(r, "chi", None)))
+        m[2].metric("chi_c (critical)", _num(getattr(r, "chi_critical", None)))
+        m[3].metric("UCST (°C)", _num(getattr(r, "ucst_c", None), "{:.0f}"))
+        m[4].metric("Confidence", str(getattr(r, "confidence", "—")))
+        st.markdown(f"<div id='lw-mix-state'>{a} + {b} at {t:g} °C: <b>{state}</b></div>",
+                    unsafe_allow_html=True)
+        for w in getattr(r, "warnings", []) or []:
+            st.warning(str(w))
+        for note in getattr(r, "notes", []) or []:
+            st.caption("• " + str(note))
+        bi = getattr(r, "binodal", None)
+        if isinstance(bi, dict):
+            sol = [(k, v) for k, v in bi.items() if k.startswith("solubility of") and isinstance(v, dict)]
+            if sol:
+                st.table(pd.DataFrame([{"": k, "wt %": f"{v['wt_pct']:.2g}", "vol %": f"{v['vol_pct']:.2g}",
+                                        "mol %": f"{v['mol_pct']:.2g}"} for k, v in sol]).set_index(""))
+        sweep = common.call(phase_sweep, a, b)
+        if sweep is not None and sweep["binodal_low"].notna().any():
+            st.plotly_chart(plots.phase_diagram(sweep, getattr(r, "ucst_c", None), float(t),
+                                                x_label=f"volume fraction of {r.a}"),
+                            width="stretch", key="mx_phase")
+            st.caption("Each point is selector.miscibility at that temperature, over the range where "
+                       "both are liquid at 1 atm. Inside the binodal the mixture splits into two phases; "
+                       "inside the spinodal it does so spontaneously.")
+        elif sweep is not None:
+            st.caption("No miscibility gap anywhere in the liquid range of the pair (model estimate).")
+        st.warning("A phase split can also hide a reaction, a hazard or an azeotrope; the safety data "
+                   "sheet and a small-scale test come first.", icon="⚠️")
+
+with tab2:
+    default = [n for n in ["water", "methanol", "ethanol", "acetone", "toluene", "hexane", "ethyl acetate",
+                           "1-butanol"] if n in names]
+    liqs = st.multiselect("Liquids (2 to 25)", names, default=default, key="mx_set")
+    t2 = st.number_input("Temperature (°C)", value=25.0, min_value=-100.0, max_value=300.0, step=5.0, key="mx_t2")
+    if len(liqs) < 2:
+        st.info("Choose at least two liquids.")
+    elif len(liqs) > 25:
+        st.error("Choose at most 25 liquids for a readable heat map.")
+    else:
+        mat = common.call(matrix, tuple(liqs), float(t2))
+        if mat is not None:
+            st.plotly_chart(plots.heat_map(mat, f"Miscibility at {t2:g} °C"), width="stretch", key="mx_heat")
+            st.caption("○ miscible · ◐ partially miscible · ● immiscible (colour and symbol both carry the state).")
+            from selector.io import to_csv_text
+
+            st.download_button("Download the matrix (CSV)", to_csv_text(mat.reset_index()),
+                               file_name="miscibility.csv", mime="text/csv", key="mx_dl", on_click="ignore")

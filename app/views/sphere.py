@@ -1,0 +1,118 @@
+"""Sphere from lab tests: fit a solute's Hansen sphere from good/bad (or graded) solvent tests."""
+import io
+
+import pandas as pd
+import streamlit as st
+
+import selector
+from lwui import common, plots
+from selector.library import PARAMETERS_DIR
+
+st.title("Sphere from lab tests")
+st.caption("Enter each solvent you tested and whether it dissolved (or swelled) the solute. The fit "
+           "finds the centre and R0 that classify most results right (Hansen's handbook, ch. 1), "
+           "with bootstrap intervals. Scores 1-6 may be given instead of yes/no (higher = better).")
+mod = common.capability("spheres")
+if mod is None:
+    st.stop()
+
+DEMO = PARAMETERS_DIR / "demo" / "lab_tests.csv"
+
+
+@st.cache_data(show_spinner=False)
+def demo_tests():
+    return pd.read_csv(DEMO)
+
+
+@st.cache_data(show_spinner="Fitting the sphere…", max_entries=32)
+def fit(csv_text, bootstrap, seed):
+    return selector.fit_sphere(pd.read_csv(io.StringIO(csv_text)), seed=seed, bootstrap=bootstrap)
+
+
+src = st.radio("Lab results", ["Invented demo results", "Upload a CSV", "Type them in"], horizontal=True,
+               key="sp_src")
+if src == "Invented demo results":
+    st.info("**Invented demo data** for the invented FV-3 resin - not measured results.", icon="🧪")
+    base = demo_tests()
+elif src == "Upload a CSV":
+    up = st.file_uploader("CSV with columns solvent and dissolved (true/false) or score", type=["csv", "txt"],
+                          key="sp_up")
+    base = None
+    if up is not None:
+        try:
+            base = pd.read_csv(up)
+            if len(base) == 0 or "solvent" not in [c.strip().lower() for c in base.columns]:
+                raise ValueError("the file needs a 'solvent' column and at least one row")
+        except (ValueError, pd.errors.ParserError, UnicodeDecodeError) as e:
+            common.show_error(f"Could not read {up.name}: {str(e).splitlines()[0]}")
+            base = None
+    if base is None:
+        st.stop()
+else:
+    base = pd.DataFrame({"solvent": ["toluene", "acetone", "ethanol", "hexane"],
+                         "dissolved": [True, True, False, False]})
+
+tests = st.data_editor(base, num_rows="dynamic", width="stretch", key=f"sp_ed_{src}",
+                       column_config={"solvent": st.column_config.TextColumn("solvent", help="name, CAS or SMILES"),
+                                      "dissolved": st.column_config.CheckboxColumn("dissolved"),
+                                      "score": st.column_config.NumberColumn("score", help="graded result, optional")})
+c1, c2 = st.columns(2)
+boot = c1.select_slider("Bootstrap resamples (for the intervals)", [0, 25, 50, 100, 200], value=50, key="sp_boot")
+seed = c2.number_input("Random seed", 0, 10_000, 0, key="sp_seed")
+res = common.call(fit, tests.dropna(how="all").to_csv(index=False), int(boot), int(seed))
+if res is None:
+    st.stop()
+
+m = st.columns(5)
+m[0].metric("dD (MPa½)", f"{res.delta_d:.1f}")
+m[1].metric("dP (MPa½)", f"{res.delta_p:.1f}")
+m[2].metric("dH (MPa½)", f"{res.delta_h:.1f}")
+m[3].metric("R0 (MPa½)", f"{res.radius:.1f}")
+m[4].metric("Fit score (1 = all right)", f"{res.score:.3f}")
+st.markdown(f"<div id='lw-fit'>Fitted sphere: dD {res.delta_d:.2f}, dP {res.delta_p:.2f}, "
+            f"dH {res.delta_h:.2f}, R0 {res.radius:.2f} MPa½</div>", unsafe_allow_html=True)
+for w in getattr(res, "warnings", []) or []:
+    st.warning(str(w))
+iv = getattr(res, "intervals", None) or {}
+if iv:
+    st.markdown("**Bootstrap intervals**")
+    st.table(pd.DataFrame([{"parameter": k, "low": f"{v[0]:.2f}", "high": f"{v[1]:.2f}"} for k, v in iv.items()])
+             .set_index("parameter"))
+if st.button("Use this sphere as the target", key="sp_use", type="primary"):
+    label = "demo results (invented)" if src.startswith("Invented") else "your lab results"
+    common.set_target({"kind": "fitted", "name": "fitted sphere", "delta_d": float(res.delta_d),
+                       "delta_p": float(res.delta_p), "delta_h": float(res.delta_h),
+                       "radius": float(res.radius), "source": f"fitted to {label}"})
+    st.session_state["lw_fit"] = {k: v for k, v in common.target_spec().items() if k != "kind"}
+    st.success("The fitted sphere is now the target for the ranking and blend pages.")
+
+mis = getattr(res, "misfits", None)
+if isinstance(mis, pd.DataFrame):
+    st.markdown(f"**Results the sphere gets wrong:** {len(mis)}")
+    if len(mis):
+        st.dataframe(mis, hide_index=True, width="stretch")
+
+st.subheader("Suggested next tests")
+st.caption("Liquids whose result would tell the most about the sphere's edge.")
+nxt = common.call(res.suggest_tests, 5)
+if nxt is not None:
+    st.dataframe(nxt, hide_index=True, width="stretch", column_config=common.COLUMN_CONFIG)
+    lib = common.library()
+    if "name" in getattr(nxt, "columns", []):
+        common.cautions(lib.loc[lib["name"].isin(nxt["name"])], title="Safety notes for the suggested tests")
+
+lib = common.library()
+tested = getattr(res, "tests", None)
+if not isinstance(tested, pd.DataFrame) or not {"delta_d", "good"} <= set(tested.columns):
+    tested = None
+spheres = [(f"sphere {i + 1}", (s.delta_d, s.delta_p, s.delta_h), s.radius)
+           for i, s in enumerate(getattr(res, "spheres", []) or [])] or \
+          [("fitted sphere", (res.delta_d, res.delta_p, res.delta_h), res.radius)]
+if tested is not None:
+    groups = [("good", tested.loc[tested["good"].astype(bool)], plots.GOOD, 6),
+              ("bad", tested.loc[~tested["good"].astype(bool)], plots.BAD, 6)]
+    t1, t2 = st.tabs(["3-D Hansen space", "2-D projections"])
+    with t1:
+        st.plotly_chart(plots.hsp_space_3d(groups, spheres), width="stretch", key="sp_3d")
+    with t2:
+        st.plotly_chart(plots.projections_2d(groups, spheres), width="stretch", key="sp_2d")

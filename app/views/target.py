@@ -1,0 +1,100 @@
+"""Target: the solute (resin, polymer, active) the liquids are ranked against."""
+import numpy as np
+import streamlit as st
+
+import selector
+from lwui import common
+from selector.targets import Target
+
+st.title("Target")
+st.caption("The point (dD, dP, dH) and, if known, the interaction radius R0 of what you want to "
+           "dissolve. All values in MPa½. The target stays set while you move between pages.")
+
+t = common.target()
+c = st.columns(5)
+c[0].metric("dD (MPa½)", f"{t.delta_d:.1f}")
+c[1].metric("dP (MPa½)", f"{t.delta_p:.1f}")
+c[2].metric("dH (MPa½)", f"{t.delta_h:.1f}")
+c[3].metric("R0 (MPa½)", f"{t.radius:.1f}" if t.radius else "—")
+c[4].metric("Source", common.target_spec().get("kind", "given"))
+st.markdown(f"**{t.name}** — {t.source}")
+common.demo_banner()
+if not common.is_demo() and st.button("Back to the invented demo resin", key="tg_demo"):
+    common.set_target(common.demo_target_spec())
+    st.rerun()
+
+tabs = st.tabs(["Type the numbers", "A library liquid", "Estimate from a structure (SMILES)",
+                "Fitted sphere"])
+
+with tabs[0]:
+    with st.form("tg_typed"):
+        name = st.text_input("Name", value="my solute", key="tg_name")
+        a, b, cc, d = st.columns(4)
+        dd = a.number_input("dD (MPa½)", value=float(t.delta_d), min_value=0.0, max_value=30.0, step=0.1)
+        dp = b.number_input("dP (MPa½)", value=float(t.delta_p), min_value=0.0, max_value=40.0, step=0.1)
+        dh = cc.number_input("dH (MPa½)", value=float(t.delta_h), min_value=0.0, max_value=50.0, step=0.1)
+        r0 = d.number_input("R0 (MPa½)", value=float(t.radius) if t.radius else None, min_value=0.0,
+                            max_value=40.0, step=0.1, placeholder="none (a point)",
+                            help="leave empty for a point target; then liquids are ranked by Ra")
+        if st.form_submit_button("Use these numbers", type="primary"):
+            try:
+                Target(dd, dp, dh, r0 or None, name=name or "my solute")
+            except (selector.SelectorError, ValueError) as e:
+                common.show_error(e)
+            else:
+                common.set_target({"kind": "typed", "name": name or "my solute", "delta_d": dd,
+                                   "delta_p": dp, "delta_h": dh, "radius": r0 or None,
+                                   "source": "typed by the user"})
+                st.rerun()
+
+with tabs[1]:
+    names = common.liquid_names()
+    q = st.selectbox("Liquid", names, index=names.index("toluene") if "toluene" in names else 0, key="tg_liq",
+                     help="type to search; synonyms and CAS numbers work in the text box below")
+    q2 = st.text_input("…or a name, synonym, CAS number or SMILES", key="tg_q", placeholder="e.g. NMP, 67-64-1")
+    r0l = st.number_input("R0 (MPa½), optional", value=None, min_value=0.0, max_value=40.0, step=0.5,
+                          key="tg_r0l", placeholder="none (a point)")
+    if st.button("Use this liquid", key="tg_use_liq", type="primary"):
+        row = common.call(selector.find_liquid, q2.strip() or q, common.library())
+        if row is not None:
+            common.set_target({"kind": "library", "name": str(row["name"]), "delta_d": float(row.delta_d),
+                               "delta_p": float(row.delta_p), "delta_h": float(row.delta_h),
+                               "radius": r0l or None, "source": f"library ({row['hsp_source']})"})
+            st.rerun()
+
+with tabs[2]:
+    st.caption("Hansen parameters estimated from the structure by the bundled estimator. An estimate "
+               "carries an uncertainty band; outside the estimator's domain it is flagged.")
+    est_mod = common.capability("estimation")
+    smi = st.text_input("SMILES", key="tg_smiles", placeholder="e.g. CC(=O)OCCCC")
+    r0s = st.number_input("R0 (MPa½), optional", value=None, min_value=0.0, max_value=40.0, step=0.5,
+                          key="tg_r0s", placeholder="none (a point)")
+    if est_mod is not None and smi.strip():
+        est = common.call(selector.estimate, smi.strip())
+        if est is not None and len(est):
+            e = est.iloc[0]
+            show = [c for c in ["smiles", "delta_d", "delta_d_low", "delta_d_high", "delta_p", "delta_p_low",
+                                "delta_p_high", "delta_h", "delta_h_low", "delta_h_high", "molar_volume",
+                                "in_domain", "source", "message"] if c in est.columns]
+            st.dataframe(est[show], hide_index=True, width="stretch")
+            ok = all(np.isfinite(float(e[k])) for k in ("delta_d", "delta_p", "delta_h"))
+            if "in_domain" in est.columns and not bool(e["in_domain"]):
+                st.warning("This structure is outside the estimator's domain: treat the numbers as rough.")
+            if not ok:
+                st.error(str(e.get("message", "no estimate for this structure")))
+            elif st.button("Use this estimate", key="tg_use_est", type="primary"):
+                common.set_target({"kind": "estimate", "name": smi.strip(), "delta_d": float(e["delta_d"]),
+                                   "delta_p": float(e["delta_p"]), "delta_h": float(e["delta_h"]),
+                                   "radius": r0s or None, "source": f"estimated ({e.get('source', 'estimator')})"})
+                st.rerun()
+
+with tabs[3]:
+    fit = st.session_state.get("lw_fit")
+    if fit is None:
+        st.info("No sphere fitted yet in this session. Fit one on the *Sphere from lab tests* page.")
+    else:
+        st.markdown(f"Fitted sphere: dD {fit['delta_d']:.1f}, dP {fit['delta_p']:.1f}, dH {fit['delta_h']:.1f}, "
+                    f"R0 {fit['radius']:.1f} MPa½ ({fit['source']})")
+        if st.button("Use the fitted sphere", key="tg_use_fit", type="primary"):
+            common.set_target(dict(fit, kind="fitted"))
+            st.rerun()

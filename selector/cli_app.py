@@ -1,0 +1,55 @@
+"""Subcommand ``app``: start the local web front end (Streamlit) on 127.0.0.1."""
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+
+APP_DIR = Path(__file__).resolve().parent.parent / "app"
+ENTRY = APP_DIR / "likewise_app.py"
+
+
+def app_command(port: int = 8501, entry: Path | None = None) -> list[str]:
+    """The ``streamlit run`` command line that serves the app on localhost only.
+
+    >>> cmd = app_command(8600)
+    >>> cmd[1:4], cmd[cmd.index("--server.address") + 1], cmd[cmd.index("--server.port") + 1]
+    (['-m', 'streamlit', 'run'], '127.0.0.1', '8600')
+    """
+    from .errors import SelectorError
+
+    if isinstance(port, bool) or not isinstance(port, int) or not (1 <= port <= 65535):
+        raise SelectorError(f"--port must be a whole number between 1 and 65535, got {port!r}")
+    entry = Path(entry) if entry is not None else ENTRY
+    return [sys.executable, "-m", "streamlit", "run", str(entry),
+            "--server.address", "127.0.0.1", "--server.port", str(port),
+            "--server.headless", "true", "--browser.gatherUsageStats", "false"]
+
+
+def cmd_app(a) -> int:
+    import subprocess
+
+    from .errors import SelectorError
+
+    if not ENTRY.exists():
+        raise SelectorError(f"the web app is not installed: {ENTRY} is missing (install from the "
+                            "source tree with pip install -e .)")
+    cmd = app_command(a.port)
+    if a.print_command:
+        print(" ".join(cmd))
+        return 0
+    print(f"likewise app: serving on http://127.0.0.1:{a.port} (local only; Ctrl+C stops it)",
+          file=sys.stderr)
+    try:
+        return subprocess.call(cmd)
+    except KeyboardInterrupt:
+        return 0
+
+
+def register(sub) -> None:
+    p = sub.add_parser("app", help="start the local web app (opens on the invented demo scenario)",
+                       description="Serve the likewise web app on http://127.0.0.1:PORT (this "
+                       "computer only). Open the address in a browser; Ctrl+C stops the server.")
+    p.add_argument("--port", type=int, default=8501, help="local port (default 8501)")
+    p.add_argument("--print-command", action="store_true",
+                   help="print the server command instead of running it")
+    p.set_defaults(func=cmd_app)
