@@ -1,0 +1,719 @@
+"""Blend design and safer substitutes with Hansen solubility parameters.
+
+Blend HSP
+---------
+The HSP of a liquid blend is the volume-fraction-weighted mean of its components' HSP (Hansen's
+handbook, ch. 1: C. M. Hansen, *Hansen Solubility Parameters: A User's Handbook*, 2nd ed., CRC
+Press, 2007). In the scaled space x = (2 dD, dP, dH), Ra is a Euclidean distance, so the best
+volume fractions of a combination solve a small constrained least-squares problem
+
+    minimise |sum_i f_i x_i - t|^2  subject to  sum_i f_i = 1,  f_i >= min_fraction,
+
+which is solved **exactly** here, in closed form and vectorised over all combinations at once:
+
+* binary: projection of the target onto the line through the two points, the fraction clipped
+  to [m, 1 - m];
+* ternary: projection onto the plane of the three points (2 x 2 normal equations written with
+  the Gram matrix of all candidates, so every triple is a few array operations); if that point
+  lies inside the shrunken triangle (all f_i >= m) it is the optimum, otherwise the optimum lies
+  on one of the three edges (one component at m, a clipped 1-D projection), and the best edge is
+  taken. Degenerate (collinear) triples fall through to the edges.
+
+Exact pruning: the squared distance of the target to the plane of a triple is a lower bound on
+what the triple can reach, so a triple is solved on its edges only when that bound beats the
+current pool threshold and the best of its three pairs.
+
+Which blends are shown
+----------------------
+Ra values closer than ``resolution`` (default 0.5 MPa^0.5, about the uncertainty of published
+HSP) are treated as equal: within such a step, fewer components come first, then the better
+hazard class, then the smaller Ra.
+A blend of two is proposed only if it comes at least ``min_gain`` (default 0.1 MPa^0.5) closer to
+the target than each of its liquids alone, and a blend of three only if it beats each of its three
+pairs by the same margin: a third liquid must earn its place. Every pair inside a proposed blend
+must be miscible at the use temperature (:func:`selector.mixing.miscible_pairs`). Results are
+sorted by Ra and thinned for diversity: a liquid appears in at most ``max_uses`` (default 3) of
+the rows shown. The hazard class of a blend is that of its worst component (a conservative rule
+of this project; CHEM21 classes, :mod:`selector.hazards`).
+"""
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pandas as pd
+
+from .errors import SelectorError
+from .filters import check_filter_keys, check_temperature, filter_mask
+from .hansen import ra as _ra
+from .library import HSP, load_library, locate, locate_many, vapour_pressure_kpa
+from .targets import Target
+
+REFERENCE_RADIUS = 8.0  # MPa^0.5, as in selector.ranking
+DEFAULT_MIN_GAIN = 0.1  # MPa^0.5
+DEFAULT_RESOLUTION = 0.5  # MPa^0.5: Ra differences below this are within the data's uncertainty
+SCALE = np.array([2.0, 1.0, 1.0])
+
+CAUTION = ("Caution: blends are proposals for laboratory tests. Solvents can be flammable, toxic or "
+           "reactive; the blend's flash point can be as low as its lowest-flash component. Read each "
+           "supplier's safety data sheet, ventilate, keep ignition sources away and follow local "
+           "regulation.")
+
+#: n-butyl acetate, the reference of relative evaporation rates (= 1).
+BUTYL_ACETATE_CAS = "123-86-4"
+
+
+# ---------------------------------------------------------------- exact fractions
+
+def _check_min_fraction(m, k):
+    try:
+        m = float(m)
+    except (TypeError, ValueError):
+        raise SelectorError(f"min_fraction must be a number between 0 and 1/{k}, got {m!r}") from None
+    if not math.isfinite(m) or m < 0 or m * k > 1 + 1e-12:
+        raise SelectorError(f"min_fraction must be between 0 and 1/{k} = {1 / k:.3f} for blends of "
+                            f"{k} liquids, got {m:g}")
+    return m
+
+
+def binary_fractions(xa, xb, t, min_fraction=0.05):
+    """Exact best volume fraction of the first liquid in blends of two, in the scaled space.
+
+    ``xa``, ``xb``: (..., 3) scaled points (2 dD, dP, dH); ``t``: (3,) scaled target. Returns
+    (``f_a``, ``ra``): the fraction of ``a`` (clipped to [m, 1 - m]) and the blend's Ra (MPa^0.5).
+    Identical points give f_a = 0.5.
+
+    >>> f, d = binary_fractions([[36.0, 0.0, 0.0]], [[36.0, 10.0, 0.0]], [36.0, 3.0, 0.0], 0.05)
+    >>> round(float(f[0]), 6), round(float(d[0]), 6)
+    (0.7, 0.0)
+    """
+    m = _check_min_fraction(min_fraction, 2)
+    xa = np.asarray(xa, float)
+    xb = np.asarray(xb, float)
+    t = np.asarray(t, float)
+    d = xa - xb
+    dd = (d * d).sum(-1)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        f = np.where(dd > 0, ((t - xb) * d).sum(-1) / np.where(dd > 0, dd, 1.0), 0.5)
+    f = np.clip(f, m, 1.0 - m)
+    p = xb + f[..., None] * d
+    return f, np.sqrt(((p - t) ** 2).sum(-1))
+
+
+def _segment(base, d, lo, hi):
+    """min over u in [lo, hi] of |base + u d| (vectorised); returns (u, squared distance)."""
+    dd = (d * d).sum(-1)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        u = np.where(dd > 0, -(base * d).sum(-1) / np.where(dd > 0, dd, 1.0), lo)
+    u = np.clip(u, lo, hi)
+    p = base + u[..., None] * d
+    return u, (p * p).sum(-1)
+
+
+def ternary_fractions(xa, xb, xc, t, min_fraction=0.05):
+    """Exact best volume fractions of blends of three, in the scaled space (vectorised).
+
+    ``xa, xb, xc``: (..., 3) scaled points; ``t``: (3,) scaled target. Returns (``f``, ``ra``):
+    ``f`` of shape (..., 3) (each >= m, summing to 1) and the blend's Ra (MPa^0.5). Method: plane
+    projection, else the best of the three edges (module doc).
+
+    >>> f, d = ternary_fractions([[0.0, 0, 0]], [[10.0, 0, 0]], [[0.0, 10, 0]], [2.0, 3.0, 0.0])
+    >>> f.round(6).tolist(), round(float(d[0]), 6)
+    ([[0.5, 0.2, 0.3]], 0.0)
+    """
+    m = _check_min_fraction(min_fraction, 3)
+    t = np.asarray(t, float)
+    za = np.asarray(xa, float) - t
+    zb = np.asarray(xb, float) - t
+    zc = np.asarray(xc, float) - t
+    za, zb, zc = np.broadcast_arrays(za, zb, zc)
+    f, d2 = _ternary_core(za, zb, zc, m)
+    return f, np.sqrt(d2)
+
+
+def _ternary_core(za, zb, zc, m):
+    """Exact ternary optimum with the target at the origin; returns (f (..., 3), squared Ra)."""
+    yb = zb - za
+    yc = zc - za
+    gbb = (yb * yb).sum(-1)
+    gcc = (yc * yc).sum(-1)
+    gbc = (yb * yc).sum(-1)
+    rb = -(yb * za).sum(-1)
+    rc = -(yc * za).sum(-1)
+    det = gbb * gcc - gbc * gbc
+    scale = np.maximum(gbb * gcc, 1e-300)
+    ok = det > 1e-10 * scale
+    with np.errstate(invalid="ignore", divide="ignore"):
+        sd = np.where(ok, det, 1.0)
+        fb = (gcc * rb - gbc * rc) / sd
+        fc = (gbb * rc - gbc * rb) / sd
+    fa = 1.0 - fb - fc
+    inside = ok & (fa >= m) & (fb >= m) & (fc >= m)
+    p = za + fb[..., None] * yb + fc[..., None] * yc
+    best = np.where(inside, (p * p).sum(-1), np.inf)
+    f = np.stack([fa, fb, fc], -1)
+    hi = 1.0 - 2.0 * m
+    # edge with c at m: a = u, b = 1 - m - u
+    for fixed, (p1, p2) in ((2, (0, 1)), (0, (1, 2)), (1, (0, 2))):
+        z = (za, zb, zc)
+        base = m * z[fixed] + (1.0 - m) * z[p2]
+        u, d2 = _segment(base, z[p1] - z[p2], m, hi)
+        better = ~inside & (d2 < best)
+        if np.any(better):
+            fe = np.empty(f.shape)
+            fe[..., fixed] = m
+            fe[..., p1] = u
+            fe[..., p2] = 1.0 - m - u
+            f = np.where(better[..., None], fe, f)
+            best = np.where(better, d2, best)
+    return f, np.maximum(best, 0.0)
+
+
+def blend_fractions(hsp, target, min_fraction=0.05):
+    """Exact best volume fractions for ONE combination of 1-3 liquids.
+
+    ``hsp``: (k, 3) HSP of the liquids (MPa^0.5); ``target``: (dD, dP, dH). Returns (fractions
+    (k,), Ra MPa^0.5).
+
+    >>> f, d = blend_fractions([[15.8, 8.8, 19.4], [18.0, 1.4, 2.0]], [16.9, 5.1, 10.7])
+    >>> f.round(4).tolist(), round(d, 6)
+    ([0.5, 0.5], 0.0)
+    """
+    h = np.atleast_2d(np.asarray(hsp, float)) * SCALE
+    t = np.asarray(target, float) * SCALE
+    k = len(h)
+    if k == 1:
+        return np.array([1.0]), float(np.sqrt(((h[0] - t) ** 2).sum()))
+    if k == 2:
+        f, d = binary_fractions(h[0], h[1], t, min_fraction)
+        return np.array([float(f), 1.0 - float(f)]), float(d)
+    if k == 3:
+        f, d = ternary_fractions(h[0], h[1], h[2], t, min_fraction)
+        return np.asarray(f, float), float(d)
+    raise SelectorError("blends of 1, 2 or 3 liquids only")
+
+
+# ---------------------------------------------------------------- the search
+
+def _miscibility(cand, temperature):
+    from .mixing import miscible_pairs
+
+    return np.asarray(miscible_pairs(cand, temperature=temperature), dtype=bool)
+
+
+def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, pool=2000,
+                  min_gain=DEFAULT_MIN_GAIN, hazard_rank=None, resolution=0.5):
+    """Core search on scaled candidate points ``X`` (n, 3) and scaled target ``t`` (3,).
+
+    Returns a dict of arrays: ``idx`` (p, 3) candidate indices (-1 for unused slots), ``f`` (p, 3)
+    fractions, ``ra`` (p,), ``key`` (p,) - every single liquid and, for two and three components,
+    the ``pool`` best admissible blends (module doc), each set ordered by ``key``: Ra in steps of
+    ``resolution`` (MPa^0.5), then the worst ``hazard_rank`` of the components (0-3, 4 for
+    unclassified; optional (n,) array), then Ra. ``miscible``: optional (n, n) bool; pairs marked
+    False are never blended. Exact: a triple is skipped only when the distance of the target to its
+    plane already rules it out.
+    """
+    X = np.asarray(X, float)
+    n = len(X)
+    res = float(resolution)
+    hz = np.zeros(n) if hazard_rank is None else np.where(np.isfinite(hazard_rank), hazard_rank, 4.0)
+    Z = X - np.asarray(t, float)
+    G = Z @ Z.T
+    gd = np.diag(G).copy()
+    single = np.sqrt(np.maximum(gd, 0))
+
+    def key(rr, worst):
+        b = np.floor(rr / res)
+        return b * 10.0 + worst + np.minimum(rr / res - b, 0.999)
+
+    parts = [(np.column_stack([np.arange(n), np.full(n, -1), np.full(n, -1)]),
+              np.column_stack([np.ones(n), np.zeros(n), np.zeros(n)]), single, key(single, hz))]
+    if max_components >= 2 and n >= 2:
+        m = _check_min_fraction(min_fraction, 2)
+        D = gd[:, None] + gd[None, :] - 2 * G
+        with np.errstate(invalid="ignore", divide="ignore"):
+            a = np.where(D > 0, (gd[None, :] - G) / np.where(D > 0, D, 1.0), 0.5)
+        a = np.clip(a, m, 1 - m)
+        b2 = a * a * gd[:, None] + 2 * a * (1 - a) * G + (1 - a) ** 2 * gd[None, :]
+        B = np.sqrt(np.maximum(b2, 0))
+        if miscible is not None:
+            B = np.where(miscible, B, np.inf)
+        np.fill_diagonal(B, np.inf)
+        iu, ju = np.triu_indices(n, 1)
+        bij = B[iu, ju]
+        keep = bij < np.minimum(single[iu], single[ju]) - min_gain
+        i2, j2 = iu[keep], ju[keep]
+        a2 = a[i2, j2]
+        parts.append(_best(np.column_stack([i2, j2, np.full(len(i2), -1)]),
+                           np.column_stack([a2, 1 - a2, np.zeros(len(i2))]), bij[keep],
+                           key(bij[keep], np.maximum(hz[i2], hz[j2])), pool))
+    if max_components >= 3 and n >= 3:
+        parts.append(_ternary_search(Z, G, gd, B, hz, single, _check_min_fraction(min_fraction, 3),
+                                     min_gain, pool, res, key))
+    idx, f, rr, kk = (np.concatenate(x) for x in zip(*parts))
+    return {"idx": idx, "f": f, "ra": rr, "key": kk}
+
+
+def _tau_table(tau_key, res):
+    """Ra threshold per hazard level 0..4 so that key(Ra, level) < tau_key (see ``key``)."""
+    if not np.isfinite(tau_key):
+        return np.full(5, np.inf)
+    bucket = np.floor(tau_key / 10.0)
+    rest = tau_key - bucket * 10.0
+    level = np.floor(rest)
+    frac = rest - level
+    lv = np.arange(5)
+    return np.where(lv < level, (bucket + 1.0) * res,
+                    np.where(lv == level, (bucket + frac / 0.999) * res, bucket * res))
+
+
+def _ternary_search(Z, G, gd, B, hz, single, m, min_gain, pool, res, key):
+    n = len(Z)
+    # visit the most promising liquids first (better class, closer to the target) so that the
+    # pool threshold tightens early; the result does not depend on the order
+    perm = np.lexsort((single, hz))
+    Z = Z[perm]
+    G = G[np.ix_(perm, perm)]
+    gd = gd[perm]
+    hzp = hz[perm].astype(int)
+    # pair thresholds: a triple must beat each of its pairs by min_gain; immiscible -> never;
+    # lower triangle and diagonal -> never (each triple is visited once, i < j < k)
+    Bthr = np.where(np.isfinite(B), B, -np.inf)[np.ix_(perm, perm)] - min_gain
+    Bthr[np.tril_indices(n)] = -np.inf
+    Hp = np.maximum.outer(hzp, hzp)
+    tau_t = np.full(5, np.inf)
+    best = None
+    for i in range(n - 2):
+        s0 = i + 1
+        gii = gd[i]
+        gi = G[i]
+        ybb = gd - 2 * gi + gii             # |z_j - z_i|^2
+        w = np.cross(Z[i], Z)               # z_i x z_j: triple product z_i.(z_j x z_k) = w_j.z_k
+        msz = n - s0
+        nstrip = 1 if msz < 64 else 4
+        edges = s0 + (msz * (1 - np.sqrt(1 - np.arange(nstrip + 1) / nstrip))).astype(int)
+        edges[-1] = n
+        for r0, r1 in zip(edges[:-1], edges[1:]):
+            if r1 <= r0:
+                continue
+            R = slice(r0, r1)
+            C = slice(r0, n)
+            # squared distance of the target to the plane of (i, j, k) = num^2 / det (a lower
+            # bound on the triple's Ra^2); det = |(z_j - z_i) x (z_k - z_i)|^2
+            num = w[R] @ Z[C].T
+            num *= num
+            ybc = G[R, C] - gi[R, None]
+            ybc -= (gi[C] - gii)[None, :]
+            det = np.multiply.outer(ybb[R], ybb[C])
+            ybc *= ybc
+            det -= ybc
+            bi = Bthr[i]
+            thr = np.minimum.outer(bi[R], bi[C])
+            np.minimum(thr, Bthr[R, C], out=thr)
+            hzo = np.maximum(Hp[R, C], hzp[i])
+            np.minimum(thr, tau_t[hzo], out=thr)
+            np.maximum(thr, 0.0, out=thr)
+            thr *= thr
+            thr *= det
+            cand = num < thr * (1 + 1e-9)
+            jj, kk = np.nonzero(cand)
+            if len(jj) == 0:
+                continue
+            j = jj + r0
+            k = kk + r0
+            ff, d2 = _ternary_core(np.broadcast_to(Z[i], (len(j), 3)), Z[j], Z[k], m)
+            rt = np.sqrt(d2)
+            lim = np.minimum(np.minimum(Bthr[i, j], Bthr[i, k]), Bthr[j, k])
+            lim = np.minimum(lim, tau_t[np.maximum(Hp[j, k], hzp[i])])
+            good = rt < lim
+            if not good.any():
+                continue
+            j, k, ff, rt = j[good], k[good], ff[good], rt[good]
+            new = (np.column_stack([np.full(len(j), i), j, k]), ff, rt,
+                   key(rt, np.maximum(np.maximum(hzp[i], hzp[j]), hzp[k])))
+            best = new if best is None else tuple(np.concatenate(x) for x in zip(best, new))
+            if len(best[2]) >= pool:
+                best = _best(*best, pool)
+                tau_t = _tau_table(best[3][-1], res)
+    if best is None:
+        e = np.zeros((0, 3))
+        return e.astype(int), e, np.zeros(0), np.zeros(0)
+    idx, f, rr, kk = _best(*best, pool)
+    return perm[idx], f, rr, kk
+
+
+def _best(idx, f, rr, kk, pool):
+    if len(kk) > pool:
+        sel = np.argpartition(kk, pool - 1)[:pool]
+        idx, f, rr, kk = idx[sel], f[sel], rr[sel], kk[sel]
+    o = np.argsort(kk, kind="stable")
+    return idx[o], f[o], rr[o], kk[o]
+
+
+def _display_order(res):
+    """Order of display: Ra step (``resolution``), fewer components, better hazard class, Ra."""
+    k = (res["idx"] >= 0).sum(1)
+    return np.lexsort((res["key"], k, np.floor(res["key"] / 10.0)))
+
+
+def _diverse(order_keys, idx, max_uses, top):
+    """Greedy pick in the given order, each liquid used at most ``max_uses`` times."""
+    uses: dict[int, int] = {}
+    picked = []
+    for p in order_keys:
+        comps = [c for c in idx[p] if c >= 0]
+        if any(uses.get(c, 0) >= max_uses for c in comps):
+            continue
+        for c in comps:
+            uses[c] = uses.get(c, 0) + 1
+        picked.append(p)
+        if top is not None and len(picked) >= top:
+            break
+    return np.array(picked, dtype=int)
+
+
+def _target_and_candidates(target, library, temperature, filters, costs=None):
+    from .ranking import corrected_hsp, resolve_target
+
+    check_filter_keys(filters)
+    t_c = check_temperature(temperature)
+    lib = load_library() if library is None else library
+    tgt = resolve_target(target, lib, t_c)
+    mask = filter_mask(lib, temperature=t_c, **filters)
+    if isinstance(target, str):
+        mask &= lib["name"].to_numpy() != tgt.name
+    cost = None
+    if costs is not None:
+        cost_full = _costs(costs, lib)
+        mask &= np.isfinite(cost_full)
+        cost = cost_full[mask]
+    cand = lib.loc[mask].reset_index(drop=True)
+    if len(cand) == 0:
+        raise SelectorError("no liquid passes the filters; widen the boiling-point or flash-point "
+                            "window, allow a worse hazard class or shorten the exclude list")
+    h = corrected_hsp(cand, t_c)
+    return tgt, cand, h, t_c, cost
+
+
+def _costs(costs, lib):
+    if isinstance(costs, pd.Series):
+        costs = costs.to_dict()
+    if isinstance(costs, pd.DataFrame):
+        if not {"name", "cost_per_litre"} <= set(costs.columns):
+            raise SelectorError("a cost table needs columns name, cost_per_litre")
+        costs = dict(zip(costs["name"], costs["cost_per_litre"]))
+    if not isinstance(costs, dict) or not costs:
+        raise SelectorError("cost_per_litre must be a non-empty mapping of liquid name -> cost per litre")
+    names = list(costs)
+    pos = locate_many(names, lib, "cost list")
+    out = np.full(len(lib), np.nan)
+    for p, nm in zip(pos, names):
+        v = costs[nm]
+        try:
+            v = float(v)
+        except (TypeError, ValueError):
+            raise SelectorError(f"cost of {nm!r} must be a number, got {v!r}") from None
+        if not math.isfinite(v) or v < 0:
+            raise SelectorError(f"cost of {nm!r} must be a finite number >= 0, got {v!r}")
+        out[p] = v
+    return out
+
+
+def _flash_for_blends(cand):
+    """Per candidate: flash point (C), +inf when known non-flammable, NaN when unknown."""
+    from .hazards import hazard_statements
+
+    fp = cand["flash_point_c"].to_numpy(float).copy()
+    st = hazard_statements()
+    nonflam = set(st.loc[st["not_flammable"], "cas"])
+    csv_fp = dict(zip(st["cas"], st["csv_flash_point_c"]))
+    cas = cand["cas"].astype(str).to_numpy()
+    for p in np.flatnonzero(~np.isfinite(fp)):  # only liquids without a library flash point
+        c = cas[p]
+        if c in nonflam:
+            fp[p] = np.inf
+        elif c in csv_fp and np.isfinite(csv_fp[c]):
+            fp[p] = csv_fp[c]
+    return fp
+
+
+def _table(tgt, cand, h, idx, f, rr, t_c, cost=None):
+    from .hazards import HAZARD_CLASSES, UNCLASSIFIED, hazard_columns
+
+    names = cand["name"].astype(str).to_numpy()
+    used = idx >= 0
+    k = used.sum(1)
+    safe = np.where(used, idx, 0)
+    fr = np.where(used, f, 0.0)
+    bh = np.einsum("pk,pkj->pj", fr, h[safe])
+    hz = hazard_columns(cand)
+    hrank = hz["hazard_rank"].to_numpy(float)
+    hr = np.where(used, hrank[safe], -np.inf)
+    unc = (used & np.isnan(hrank[safe])).any(1)
+    worst = np.nanmax(np.where(np.isnan(hr), -np.inf, hr), axis=1)
+    cls = np.where(unc, UNCLASSIFIED,
+                   np.array(HAZARD_CLASSES, dtype=object)[np.clip(worst, 0, 3).astype(int)])
+    bp = cand["boiling_point_c"].to_numpy(float)
+    bpl = np.where(used, bp[safe], np.inf).min(1)
+    bph = np.where(used, bp[safe], -np.inf).max(1)
+    fp = _flash_for_blends(cand)
+    fps = np.where(used, fp[safe], np.inf)
+    low_fp = fps.min(1)
+    low_fp = np.where(np.isnan(fps).any(1), np.nan, np.where(np.isinf(low_fp), np.nan, low_fp))
+    with np.errstate(invalid="ignore"):
+        lf_comp = np.where(np.isnan(fps).any(1) | np.all(np.isinf(fps), 1), "",
+                           names[safe[np.arange(len(safe)), np.argmin(np.nan_to_num(fps, nan=np.inf), 1)]])
+    comp_ra = _ra(h[safe], tgt.hsp)
+    out = pd.DataFrame({
+        "components": [tuple(names[r[u]]) for r, u in zip(idx, used)],
+        "fractions": [tuple(np.round(x[u], 4)) for x, u in zip(fr, used)],
+        "n_components": k,
+        "delta_d": bh[:, 0], "delta_p": bh[:, 1], "delta_h": bh[:, 2],
+        "ra": rr,
+    })
+    if tgt.radius is not None:
+        out["red"] = rr / tgt.radius
+        cred = comp_ra / tgt.radius
+        out["component_red"] = [tuple(np.round(c[u], 3)) for c, u in zip(cred, used)]
+        out["non_solvent_pair"] = (k >= 2) & (out["red"].to_numpy() < 1) & np.all(np.where(used, cred > 1, True), 1)
+    else:
+        out["red"] = np.nan
+        out["component_ra"] = [tuple(np.round(c[u], 3)) for c, u in zip(comp_ra, used)]
+        out["non_solvent_pair"] = False
+    out["hazard_class"] = cls
+    out["bp_low_c"] = bpl
+    out["bp_high_c"] = bph
+    out["lowest_flash_point_c"] = low_fp
+    out["lowest_flash_component"] = lf_comp
+    if cost is not None:
+        out["cost_per_litre"] = (fr * np.where(used, cost[safe], 0.0)).sum(1)
+    return out
+
+
+def _pareto(ra, cost):
+    """Non-dominated rows (lower Ra and lower cost); ``ra`` must be sorted ascending."""
+    best = np.minimum.accumulate(np.concatenate([[np.inf], cost[:-1]]))
+    return cost < best - 1e-12
+
+
+def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
+                temperature: float = 25.0, top: int | None = 20, library: pd.DataFrame | None = None,
+                max_uses: int = 3, min_gain: float = DEFAULT_MIN_GAIN, cost_per_litre=None,
+                require_miscible: bool = True, resolution: float = DEFAULT_RESOLUTION,
+                **filters) -> pd.DataFrame:
+    """Best single liquids and blends of two or three for a target point or sphere.
+
+    ``target``: anything :func:`selector.targets.as_target` accepts (MPa^0.5; a sphere gives RED).
+    ``max_components``: 1, 2 or 3. ``min_fraction``: smallest volume fraction of any component
+    (default 0.05). ``temperature`` (C): HSP corrected by Hansen-Beerbower and miscibility checked
+    there. Filters (:mod:`selector.filters`) apply to every component, e.g.
+    ``boiling_point_c=(80, 180)``, ``flash_point_c=(23, None)``, ``max_hazard_class="problematic"``.
+    ``cost_per_litre``: optional mapping name -> price per litre; then only priced liquids are
+    candidates, a ``cost_per_litre`` column is added (volume-weighted) and ``pareto`` marks the
+    cost-versus-Ra trade-off front (also in ``attrs["pareto"]``).
+
+    Returns one row per proposal, best Ra first: ``components`` (tuple of names), ``fractions``
+    (tuple, volume), ``n_components``, blend ``delta_d, delta_p, delta_h``, ``ra`` (MPa^0.5),
+    ``red`` (NaN without R0), ``component_red`` (or ``component_ra``), ``non_solvent_pair`` (every
+    component outside the sphere, the blend inside), ``hazard_class`` (worst component),
+    ``bp_low_c``/``bp_high_c`` (boiling range), ``lowest_flash_point_c`` and its component (NaN if
+    a component's flash point is unknown). The method is exact (module doc).
+
+    >>> r = find_blends((17.0, 8.0, 8.0, 5.0), max_components=2, top=3)
+    >>> bool((r["red"] < 1).all()), r["fractions"].map(lambda f: min(f) >= 0.05).all()
+    (True, True)
+    """
+    try:
+        kmax = int(max_components)
+    except (TypeError, ValueError):
+        raise SelectorError(f"max_components must be 1, 2 or 3, got {max_components!r}") from None
+    if kmax not in (1, 2, 3) or kmax != max_components:
+        raise SelectorError(f"max_components must be 1, 2 or 3, got {max_components!r}")
+    m = _check_min_fraction(min_fraction, kmax if kmax > 1 else 2)
+    if top is not None and (not isinstance(top, (int, np.integer)) or top < 1):
+        raise SelectorError(f"top must be a positive whole number, got {top!r}")
+    if not isinstance(max_uses, (int, np.integer)) or max_uses < 1:
+        raise SelectorError(f"max_uses must be a positive whole number, got {max_uses!r}")
+    try:
+        gain = float(min_gain)
+    except (TypeError, ValueError):
+        raise SelectorError(f"min_gain must be a number of MPa^0.5, got {min_gain!r}") from None
+    if not math.isfinite(gain) or gain < 0:
+        raise SelectorError("min_gain must be a finite number >= 0 (MPa^0.5)")
+    tgt, cand, h, t_c, cost = _target_and_candidates(target, library, temperature, filters, cost_per_litre)
+    mis = _miscibility(cand, t_c) if (require_miscible and kmax > 1 and len(cand) > 1) else None
+    pool = max(2000, 50 * (top or 20))
+    from .hazards import hazard_columns
+
+    hz = hazard_columns(cand)["hazard_rank"].to_numpy(float)
+    res = search_arrays(h * SCALE, tgt.hsp * SCALE, max_components=kmax, min_fraction=m, miscible=mis,
+                        pool=pool, min_gain=gain, hazard_rank=hz, resolution=resolution)
+    order = _display_order(res)
+    pick = _diverse(order, res["idx"], max_uses, top)
+    full = _table(tgt, cand, h, res["idx"], res["f"], res["ra"], t_c, cost)
+    out = full.iloc[pick].reset_index(drop=True)
+    if cost is not None:
+        par = _pareto(full["ra"].to_numpy(), full["cost_per_litre"].to_numpy())
+        out["pareto"] = par[pick]
+        out.attrs["pareto"] = full.loc[par].reset_index(drop=True)
+    out.attrs.update(target=tgt, temperature=t_c, caution=CAUTION, min_fraction=m,
+                     miscibility="selector.mixing.miscible_pairs" if mis is not None else "not checked",
+                     candidates=len(cand))
+    return out
+
+
+# ---------------------------------------------------------------- substitutes
+
+def relative_evaporation_rate(library: pd.DataFrame, temperature: float = 25.0) -> np.ndarray:
+    """Relative evaporation rate (n-butyl acetate = 1) estimated from vapour pressure and molar mass.
+
+    RER = (P M) / (P M)_nBuAc at the same temperature: the mass flux of a liquid evaporating into
+    still air is proportional to its vapour pressure times its molar mass when the mass-transfer
+    coefficients are alike (a common estimate, quoted from memory; it reproduces tabulated ASTM
+    D3539 values such as toluene ~2 and water ~0.3 within a factor of about 1.5, but ignores
+    the diffusivity differences and humidity). NaN where data are missing.
+
+    >>> lib = load_library()
+    >>> rer = relative_evaporation_rate(lib)
+    >>> round(float(rer[lib.cas == "123-86-4"][0]), 3)
+    1.0
+    """
+    full = load_library()
+    ref = full.loc[full["cas"] == BUTYL_ACETATE_CAS]
+    p_ref = float(vapour_pressure_kpa(ref, temperature)[0]) * float(ref["molar_mass"].iloc[0])
+    p = vapour_pressure_kpa(library, temperature) * library["molar_mass"].to_numpy(float)
+    return p / p_ref
+
+
+def _blend_properties(cand, idx, f, temperature):
+    """Blend viscosity (mPa s) and initial RER estimates for proposals (volume fractions)."""
+    used = idx >= 0
+    safe = np.where(used, idx, 0)
+    fr = np.where(used, f, 0.0)
+    eta = cand["viscosity_mpa_s"].to_numpy(float)
+    rer = relative_evaporation_rate(cand, temperature)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        # ln(eta) mixed by volume fraction (Arrhenius rule without interaction term)
+        le = np.where(used, np.log(eta[safe]), 0.0)
+        visc = np.exp((fr * le).sum(1))
+        r = (fr * np.where(used, rer[safe], 0.0)).sum(1)
+    bad_v = (used & ~np.isfinite(eta[safe])).any(1)
+    bad_r = (used & ~np.isfinite(rer[safe])).any(1)
+    return np.where(bad_v, np.nan, visc), np.where(bad_r, np.nan, r)
+
+
+def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: float = 0.05,
+                temperature: float = 25.0, top: int | None = 20, library: pd.DataFrame | None = None,
+                property_weight: float = 0.5, max_uses: int = 3, require_miscible: bool = True,
+                **filters) -> pd.DataFrame:
+    """Safer single liquids and blends that could replace ``liquid``; ``liquid`` is the first row.
+
+    Candidates are liquids with a STRICTLY better CHEM21 class than ``liquid`` (unclassified
+    liquids never qualify). They are searched exactly like :func:`find_blends` against the HSP of
+    ``liquid`` (or against ``solute``, a sphere or point, when given) and ranked by
+
+        score = distance + property_weight * mismatch
+
+    with distance = RED to ``solute``'s sphere, else Ra to the target / 8 MPa^0.5, and mismatch
+    the mean, over the properties known for both, of |Delta bp| / 50 C, |ln(RER ratio)| / ln 3 and
+    |ln(viscosity ratio)| / ln 3 (each 1 at a 50 C or three-fold difference; this project's own
+    weighting). RER: :func:`relative_evaporation_rate`; blend RER = volume-weighted mean, blend
+    viscosity by the volume-weighted log rule, blend boiling point taken as the mean of the
+    boiling range (rough estimates). Columns as in :func:`find_blends` plus ``boiling_point_c``,
+    ``evaporation_rate``, ``viscosity_mpa_s``, ``mismatch``, ``score``, ``role``.
+
+    >>> s = substitutes("dichloromethane", top=3)
+    >>> s["role"].iloc[0], bool((s["hazard_rank"].iloc[1:] < s["hazard_rank"].iloc[0]).all())
+    ('replaced', True)
+    """
+    from .hazards import hazard_columns
+    from .targets import as_target
+
+    lib = load_library() if library is None else library
+    pos = locate(liquid, lib)
+    x = lib.iloc[[pos]].reset_index(drop=True)
+    xname = str(x["name"].iloc[0])
+    hz_all = hazard_columns(lib)
+    xr = hz_all["hazard_rank"].iloc[pos]
+    if not np.isfinite(xr):
+        raise SelectorError(f"{xname} has no hazard data (unclassified): a 'safer' substitute cannot "
+                            "be judged; check its safety data sheet")
+    if int(xr) == 0:
+        raise SelectorError(f"{xname} is already 'recommended' (CHEM21); no class is strictly better")
+    try:
+        pw = float(property_weight)
+    except (TypeError, ValueError):
+        raise SelectorError(f"property_weight must be a number, got {property_weight!r}") from None
+    if not math.isfinite(pw) or pw < 0:
+        raise SelectorError("property_weight must be a finite number >= 0")
+    from .hazards import HAZARD_CLASSES
+
+    filt = dict(filters)
+    worst_allowed = HAZARD_CLASSES[int(xr) - 1]
+    if "max_hazard_class" in filt and filt["max_hazard_class"] is not None:
+        from .hazards import class_rank
+
+        worst_allowed = HAZARD_CLASSES[min(class_rank(filt["max_hazard_class"]), int(xr) - 1)]
+    filt["max_hazard_class"] = worst_allowed
+    exc = list(filt.get("exclude") or [])
+    filt["exclude"] = ([exc] if isinstance(exc, str) else exc) + [xname]
+    tgt = as_target(solute, lib) if solute is not None else as_target(xname, lib)
+    if solute is not None and isinstance(solute, str):
+        tgt = as_target(solute, lib)
+    k = int(max_components) if max_components in (1, 2, 3) else None
+    if k is None:
+        raise SelectorError(f"max_components must be 1, 2 or 3, got {max_components!r}")
+    pool_top = max(200, 10 * (top or 20))
+    tg, cand, h, t_c, _ = _target_and_candidates(
+        Target(*tgt.hsp.tolist(), tgt.radius, name=tgt.name, source=tgt.source), lib, temperature, filt)
+    mis = _miscibility(cand, t_c) if (require_miscible and k > 1 and len(cand) > 1) else None
+    res = search_arrays(h * SCALE, tg.hsp * SCALE, max_components=k,
+                        min_fraction=_check_min_fraction(min_fraction, max(k, 2)), miscible=mis,
+                        pool=max(2000, pool_top))
+    tab = _table(tg, cand, h, res["idx"], res["f"], res["ra"], t_c)
+    visc, rer = _blend_properties(cand, res["idx"], res["f"], t_c)
+    tab["boiling_point_c"] = 0.5 * (tab["bp_low_c"] + tab["bp_high_c"])
+    tab["evaporation_rate"] = rer
+    tab["viscosity_mpa_s"] = visc
+    hr = hazard_columns(cand)["hazard_rank"].to_numpy(float)
+    used = res["idx"] >= 0
+    tab["hazard_rank"] = np.where(used, hr[np.where(used, res["idx"], 0)], -np.inf).max(1)
+    # the liquid being replaced, evaluated the same way
+    xh = x[HSP].to_numpy(float)
+    from .ranking import corrected_hsp
+
+    xh = corrected_hsp(x, t_c)
+    xtab = _table(tg, x, xh, np.array([[0, -1, -1]]), np.array([[1.0, 0, 0]]),
+                  np.array([float(_ra(xh[0], tg.hsp))]), t_c)
+    xv, xe = _blend_properties(x, np.array([[0, -1, -1]]), np.array([[1.0, 0, 0]]), t_c)
+    xtab["boiling_point_c"] = float(x["boiling_point_c"].iloc[0])
+    xtab["evaporation_rate"] = xe
+    xtab["viscosity_mpa_s"] = xv
+    xtab["hazard_rank"] = float(xr)
+    parts = []
+    for col, scale, logp in (("boiling_point_c", 50.0, False), ("evaporation_rate", math.log(3), True),
+                             ("viscosity_mpa_s", math.log(3), True)):
+        a = tab[col].to_numpy(float)
+        b = float(xtab[col].iloc[0])
+        with np.errstate(invalid="ignore", divide="ignore"):
+            d = np.abs(np.log(a / b)) if logp else np.abs(a - b)
+        parts.append(d / scale)
+    P = np.vstack(parts)
+    with np.errstate(invalid="ignore"):
+        cnt = np.isfinite(P).sum(0)
+        mism = np.where(cnt > 0, np.nansum(np.where(np.isfinite(P), P, 0), 0) / np.maximum(cnt, 1), np.nan)
+    dist = tab["red"].to_numpy(float) if tg.radius is not None else tab["ra"].to_numpy(float) / REFERENCE_RADIUS
+    tab["mismatch"] = mism
+    tab["score"] = dist + pw * np.nan_to_num(mism, nan=1.0)
+    order = np.argsort(tab["score"].to_numpy(), kind="stable")
+    pick = _diverse(order, res["idx"], max_uses, top)
+    out = tab.iloc[pick].copy()
+    out["role"] = "substitute"
+    xtab["mismatch"] = 0.0
+    xd = float(xtab["red"].iloc[0]) if tg.radius is not None else float(xtab["ra"].iloc[0]) / REFERENCE_RADIUS
+    xtab["score"] = xd
+    xtab["role"] = "replaced"
+    out = pd.concat([xtab, out], ignore_index=True)
+    out.attrs.update(target=tg, temperature=t_c, caution=CAUTION, replaced=xname,
+                     regulatory_note=str(hz_all["regulatory_note"].iloc[pos]))
+    return out
