@@ -36,11 +36,11 @@ solved by Newton's method; the spinodal from d2g/dphi2 = 0.
 States at a temperature:
 
 * ``"miscible"``: one phase in all proportions (chi <= chi_c);
-* ``"immiscible"``: a gap in which both mutual solubilities are below
-  :data:`IMMISCIBLE_BELOW_WT_PCT` (2 wt %; the usual reading of "does not mix" in miscibility
-  tables, e.g. water with dichloromethane, toluene or hexane);
-* ``"partially miscible"``: a gap with at least one mutual solubility at or above 2 wt %
-  (water with 1-butanol, ethyl acetate, diethyl ether; methanol with hexane).
+* ``"immiscible"``: a gap in which the smaller of the two mutual solubilities is below
+  :data:`IMMISCIBLE_BELOW_WT_PCT` (1 wt %): one liquid hardly enters the other, and a separate
+  layer forms at any useful ratio (water with hexane, toluene, dichloromethane, 1-octanol);
+* ``"partially miscible"``: a gap in which both mutual solubilities are 1 wt % or more (water
+  with 1-butanol, ethyl acetate, diethyl ether, 2-butanone; methanol with hexane).
 
 Lower critical solution behaviour (water with triethylamine, some glycol ethers) is outside
 this model; such pairs get a note and low confidence.
@@ -58,18 +58,20 @@ from .errors import SelectorError
 from .hansen import R_GAS
 from .library import load_library, locate
 
-#: A gap is "immiscible" when both mutual solubilities are below this (wt %); else "partially".
-IMMISCIBLE_BELOW_WT_PCT = 2.0
+#: A gap is "immiscible" when the smaller mutual solubility is below this (wt %); else "partially".
+IMMISCIBLE_BELOW_WT_PCT = 1.0
 
 STATES = ("miscible", "partially miscible", "immiscible")
 
 
 @dataclass(frozen=True)
 class MixingModel:
-    """Weights of the interaction energy density A12 (J/cm^3); see the module docstring.
+    """Weights of the interaction energy density A12 (J/cm^3) and the entropy volume floor.
 
     ``w_d, w_p, w_h``: weights of the squared differences in dD, dP, dH (dimensionless);
-    ``k_cross``: energy of donor-acceptor cross bonds, J cm^3 / mol^2 (0 = plain model).
+    ``k_cross``: energy of donor-acceptor cross bonds, J cm^3 / mol^2 (0 = plain model);
+    ``v_min``: smallest molar volume (cm^3/mol) used in the combinatorial entropy (0 = the
+    liquid's own molar volume; see the module docstring).
     """
 
     name: str
@@ -77,6 +79,7 @@ class MixingModel:
     w_p: float = 0.25
     w_h: float = 0.25
     k_cross: float = 0.0
+    v_min: float = 0.0
     source: str = ""
 
     def interaction(self, hsp1, hsp2, sites1=None, sites2=None):
@@ -89,16 +92,24 @@ class MixingModel:
             a = a - self.k_cross * (s1[..., 0] * s2[..., 1] + s2[..., 0] * s1[..., 1])
         return a
 
+    def entropy_volume(self, v):
+        """Molar volume used for the combinatorial entropy, max(V, v_min), cm^3/mol."""
+        return np.maximum(np.asarray(v, float), self.v_min)
+
 
 #: The plain Hansen Flory-Huggins form (Hansen's handbook, ch. 2).
-PLAIN = MixingModel("plain Hansen Flory-Huggins", 1.0, 0.25, 0.25, 0.0,
+PLAIN = MixingModel("plain Hansen Flory-Huggins", 1.0, 0.25, 0.25, 0.0, 0.0,
                     "C. M. Hansen, Hansen Solubility Parameters, 2nd ed., 2007")
 
-#: Donor/acceptor-aware form; weights fitted on parameters/miscibility_pairs.csv.
-HBOND = MixingModel("donor/acceptor Flory-Huggins", 1.0, 0.25, 0.25, 3.0e5,
+#: Donor/acceptor-aware form; w_p, w_h, k_cross and v_min fitted on
+#: parameters/miscibility_pairs.csv by :func:`selector.mixing_fit.fit` (all pairs).
+HBOND = MixingModel("donor/acceptor Flory-Huggins", 1.0, 0.2, 0.1, 2.0e5, 40.0,
                     "this project, fitted on parameters/miscibility_pairs.csv")
 
 DEFAULT_MODEL = HBOND
+
+#: Expansion coefficient (1/K) assumed where the library has none (typical organic liquid).
+DEFAULT_EXPANSION = 1.0e-3
 
 
 def _model(model) -> MixingModel:
@@ -115,36 +126,62 @@ def _model(model) -> MixingModel:
 
 # ---------------------------------------------------------------- structure: H-bond sites
 
-_SMARTS = {
-    # acceptor sites (each match = one site)
-    "carbonyl_o": "[OX1]=[#6,#16,#15]",          # ketone, aldehyde, ester, amide, carbonate C=O; S=O; P=O
-    "ether_o": "[OX2;!$(O[#6,#16]=[O,S,N]);!$(O~[#7,#15])]([#6])[#6]",  # ethers, not ester/nitro
-    "hydroxyl_o": "[OX2;H1,H2]",                  # alcohols, water, acids (O-H oxygen)
-    "nitrile_n": "[NX1]#[#6]",
-    "amine_n": "[NX3;!$(N[#6,#16]=[O,S,N]);!$(Na);!$(N~[O,N])]",
-    "pyridine_n": "[nX2]",
-}
+#: Acceptor classes: (label, SMARTS whose first atom is the acceptor, strength per site).
+#: Strengths are the Kamlet-Taft basicity beta of the prototype liquid of each class (Kamlet,
+#: Abboud, Abraham & Taft, J. Org. Chem. 48 (1983) 2877; Marcus, Chem. Soc. Rev. 22 (1993) 409;
+#: quoted from memory, rounded). The first class that matches an atom wins.
+ACCEPTOR_CLASSES = [
+    ("water O", "[OX2H2]", 0.47),                                    # water 0.47
+    ("sulfoxide O", "[OX1]=[SX3]", 0.76),                            # DMSO 0.76
+    ("sulfone O", "[OX1]=[SX4]", 0.20),                              # sulfolane 0.39 / 2
+    ("phosphoryl O", "[OX1]=[PX4]", 0.80),                           # triethyl phosphate 0.77
+    ("carbonate C=O", "[OX1]=[CX3]([OX2])[OX2]", 0.40),              # propylene carbonate 0.40
+    ("amide C=O", "[OX1]=[#6][#7]", 0.72),                           # DMF 0.69, DMAc 0.76, NMP 0.77
+    ("ester/acid C=O", "[OX1]=[#6][OX2]", 0.45),                     # ethyl acetate 0.45
+    ("ketone/aldehyde C=O", "[OX1]=[#6]", 0.48),                     # acetone 0.48, 2-butanone 0.48
+    ("amine N", "[NX3;!$(N[#6,#16,#15]=[O,S,N]);!$(Na);!$(N~[O,N]);!$(N[#6]#N)]", 0.70),  # Et3N 0.71
+    ("aniline N", "[NX3;!$(N[#6]=[O,S,N]);!$(N~[O,N])]a", 0.50),      # aniline 0.50
+    ("pyridine N", "[nX2]", 0.64),                                   # pyridine 0.64
+    ("nitrile N", "[NX1]#[#6]", 0.35),                               # acetonitrile 0.31-0.40
+    ("alcohol O", "[OX2H1][CX4]", 0.70),                             # methanol 0.66, ethanol 0.75
+    ("phenol O", "[OX2H1]c", 0.30),                                  # phenol ~0.3
+    ("aliphatic ether O", "[OX2H0;!$(O[#6]=[O,S,N]);!$(Oa)]([#6])[#6]", 0.45),  # Et2O 0.47, THF 0.55
+    ("aryl ether O", "[OX2H0;!$(O[#6]=[O,S,N])](a)[#6]", 0.30),       # anisole 0.32
+]
+
+#: Donor classes: (label, SMARTS whose first atom carries the H, strength per H atom), the
+#: Kamlet-Taft acidity alpha of the prototype divided by its number of such H (same sources).
+DONOR_CLASSES = [
+    ("water H", "[OX2H2]", 0.58),                                    # water 1.17 / 2
+    ("acid O-H", "[OX2H1][#6]=O", 1.10),                             # acetic acid 1.12
+    ("phenol O-H", "[OX2H1]c", 0.90),
+    ("alcohol O-H", "[OX2H1]", 0.80),                                # ethanol 0.86, 2-propanol 0.76
+    ("amide N-H", "[NX3;!H0][#6]=[O,S]", 0.35),                       # formamide 0.71 / 2
+    ("aniline N-H", "[NX3;!H0]a", 0.13),                              # aniline 0.26 / 2
+    ("amine N-H", "[NX3;!H0]", 0.05),                                # diethylamine 0.03
+    ("chloroform C-H", "[CX4H1](Cl)(Cl)Cl", 0.44),                   # chloroform 0.44
+]
 
 
 @functools.lru_cache(maxsize=1)
 def _patterns():
     from rdkit import Chem
 
-    return {k: Chem.MolFromSmarts(v) for k, v in _SMARTS.items()}
+    acc = [(lab, Chem.MolFromSmarts(sm), w) for lab, sm, w in ACCEPTOR_CLASSES]
+    don = [(lab, Chem.MolFromSmarts(sm), w) for lab, sm, w in DONOR_CLASSES]
+    return acc, don
 
 
 @functools.lru_cache(maxsize=4096)
 def site_counts(smiles: str) -> tuple[float, float]:
-    """(donor sites, acceptor sites) per molecule from a SMILES string.
+    """(alpha, beta): summed hydrogen-bond donor and acceptor strengths of one molecule.
 
-    Donor sites: hydrogen atoms on O and N. Acceptor sites: one per carbonyl/sulfinyl/phosphoryl
-    O, ether O (not the single-bonded O of esters, acids or carbonates), O-H oxygen, nitrile N,
-    amine N (not amide, aniline or nitro N) and pyridine-type aromatic N. Counting rule of this
-    project, after the donor/acceptor classes of Kamlet-Taft and Abraham (common practice).
-    Unknown or empty SMILES -> (nan, nan).
+    Each acceptor atom (O, N) and each donor H is assigned to the first matching class of
+    :data:`ACCEPTOR_CLASSES` / :data:`DONOR_CLASSES` and weighted by the Kamlet-Taft strength of
+    that class (see the tables for sources). Unknown or empty SMILES -> (nan, nan).
 
     >>> site_counts("O"), site_counts("CC(C)=O"), site_counts("CCO")
-    ((2.0, 1.0), (0.0, 1.0), (1.0, 1.0))
+    ((1.16, 0.47), (0.0, 0.48), (0.8, 0.7))
     """
     if not smiles:
         return (math.nan, math.nan)
@@ -154,21 +191,34 @@ def site_counts(smiles: str) -> tuple[float, float]:
     mol = Chem.MolFromSmiles(smiles)
     if mol is None:
         return (math.nan, math.nan)
-    donors = sum(a.GetTotalNumHs() for a in mol.GetAtoms() if a.GetSymbol() in ("O", "N"))
-    acc = 0
-    for p in _patterns().values():
-        acc += len(mol.GetSubstructMatches(p))
-    return (float(donors), float(acc))
+    acc, don = _patterns()
+    beta = 0.0
+    seen: set[int] = set()
+    for _, patt, w in acc:
+        for match in mol.GetSubstructMatches(patt):
+            if match[0] not in seen:
+                seen.add(match[0])
+                beta += w
+    alpha = 0.0
+    seen = set()
+    for _, patt, w in don:
+        for match in mol.GetSubstructMatches(patt):
+            i = match[0]
+            if i not in seen:
+                seen.add(i)
+                alpha += w * mol.GetAtomWithIdx(i).GetTotalNumHs()
+    return (round(alpha, 6), round(beta, 6))
 
 
 def site_densities(smiles, molar_volume) -> np.ndarray:
-    """(n, 2) excess donor and acceptor site densities eD, eA in mol/cm^3.
+    """(n, 2) excess donor and acceptor strengths per volume eD, eA (mol/cm^3).
 
-    eD = max(nD - nA, 0) / V, eA = max(nA - nD, 0) / V with nD, nA from :func:`site_counts` and V
-    the molar volume (cm^3/mol). Liquids without a usable SMILES get (0, 0): the plain form.
+    eD = max(alpha - beta, 0) / V, eA = max(beta - alpha, 0) / V with alpha, beta from
+    :func:`site_counts` and V the molar volume (cm^3/mol). Liquids without a usable SMILES get
+    (0, 0), i.e. the plain form.
 
     >>> site_densities(["O", "CC(C)=O"], [18.07, 73.8]).round(4).tolist()
-    [[0.0553, 0.0], [0.0, 0.0136]]
+    [[0.0382, 0.0], [0.0, 0.0065]]
     """
     smi = [("" if s is None or (isinstance(s, float) and math.isnan(s)) else str(s)) for s in smiles]
     counts = np.array([site_counts(s) for s in smi], dtype=float).reshape(-1, 2)
@@ -381,6 +431,7 @@ def _record(row, name) -> dict:
     rec["molar_mass"] = _opt(get("molar_mass"))
     rec["melting_point_c"] = _opt(get("melting_point_c"))
     rec["boiling_point_c"] = _opt(get("boiling_point_c"))
+    rec["expansion_coeff"] = _opt(get("expansion_coeff"))
     smi = get("smiles", "")
     rec["smiles"] = "" if smi is None or (isinstance(smi, float) and math.isnan(smi)) else str(smi)
     rec["sources_disagree"] = str(get("sources_disagree", False)).lower() == "true"
@@ -486,18 +537,60 @@ class Miscibility:
         return d
 
 
-def _compute(h1, h2, s1, s2, v1, v2, t_c, model):
-    """Vectorised core: interaction, chi, chi_c, UCST (K) and the binodal for arrays of pairs."""
+def hsp_at(hsp, expansion, t_c):
+    """HSP at ``t_c`` (C) by the Hansen-Beerbower relations (:func:`selector.hansen.hsp_at_temperature`);
+    a missing expansion coefficient is taken as :data:`DEFAULT_EXPANSION`."""
+    from .hansen import hsp_at_temperature
+
+    al = np.asarray(expansion, float)
+    al = np.where(np.isfinite(al), al, DEFAULT_EXPANSION)
+    return hsp_at_temperature(hsp, al, t_c)
+
+
+def _compute(h1, h2, s1, s2, v1, v2, t_c, model, al1=np.nan, al2=np.nan):
+    """Vectorised core: interaction, chi, chi_c and the binodal for arrays of pairs at t_c (C)."""
+    if t_c != 25.0:
+        h1, h2 = hsp_at(h1, al1, t_c), hsp_at(h2, al2, t_c)
     a12 = model.interaction(h1, h2, s1, s2)
-    vr = np.minimum(v1, v2)
-    n1, n2 = v1 / vr, v2 / vr
+    e1, e2 = model.entropy_volume(v1), model.entropy_volume(v2)
+    vr = np.minimum(e1, e2)
+    n1, n2 = e1 / vr, e2 / vr
     T = t_c + 273.15
     chi = vr * a12 / (R_GAS * T)
     cc = critical_chi(n1, n2)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        ucst_k = np.where(a12 > 0, vr * a12 / (R_GAS * cc), np.nan)
     pa, pb = binodal(chi, n1, n2)
-    return a12, vr, n1, n2, chi, cc, ucst_k, pa, pb
+    return a12, vr, n1, n2, chi, cc, pa, pb
+
+
+def ucst(h1, h2, s1, s2, v1, v2, model, al1=np.nan, al2=np.nan, lo=-150.0, hi=400.0):
+    """Upper critical solution temperature (C) of pairs: the T where chi(T) = chi_c.
+
+    chi(T) = V_r A12(T) / (R T) with the HSP at T from the Hansen-Beerbower relations; solved by
+    vectorised bisection on [lo, hi] C. NaN where chi < chi_c over the whole range (no UCST
+    there); ``hi`` returned as +inf where the gap stays open up to ``hi``.
+    """
+    args = np.broadcast_arrays(np.asarray(v1, float), np.asarray(v2, float))
+    shape = args[0].shape
+    e1, e2 = model.entropy_volume(v1), model.entropy_volume(v2)
+    vr = np.minimum(e1, e2)
+    cc = critical_chi(e1 / vr, e2 / vr)
+
+    def f(t):
+        a = model.interaction(hsp_at(h1, al1, t), hsp_at(h2, al2, t), s1, s2)
+        return vr * a / (R_GAS * (t + 273.15)) - cc
+
+    a = np.full(shape, lo)
+    b = np.full(shape, hi)
+    fa, fb = f(a), f(b)
+    for _ in range(45):
+        m = 0.5 * (a + b)
+        fm = f(m)
+        left = fm < 0          # chi falls with T: the root is below m when f(m) < 0
+        b = np.where(left, m, b)
+        a = np.where(left, a, m)
+    root = 0.5 * (a + b)
+    out = np.where(fa < 0, np.nan, np.where(fb > 0, np.inf, root))
+    return out
 
 
 def _classify(pa, pb, v1, v2, m1, m2):
@@ -510,7 +603,7 @@ def _classify(pa, pb, v1, v2, m1, m2):
     w_b = np.where(mm_ok, mole_to_mass(x_b, np.where(mm_ok, m1, 1), np.where(mm_ok, m2, 1)), pb)
     sol_1_in_2 = 100 * w_a          # wt % of liquid 1 in the phase rich in 2
     sol_2_in_1 = 100 * (1 - w_b)    # wt % of liquid 2 in the phase rich in 1
-    immisc = gap & (sol_1_in_2 < IMMISCIBLE_BELOW_WT_PCT) & (sol_2_in_1 < IMMISCIBLE_BELOW_WT_PCT)
+    immisc = gap & (np.minimum(sol_1_in_2, sol_2_in_1) < IMMISCIBLE_BELOW_WT_PCT)
     state = np.where(~gap, "miscible", np.where(immisc, "immiscible", "partially miscible"))
     return state
 
@@ -520,9 +613,11 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     """Whether liquids ``a`` and ``b`` mix at ``temperature`` (C), with chi, UCST and binodal.
 
     ``a``, ``b``: library names/CAS/SMILES, or dicts/Series with ``delta_d, delta_p, delta_h``
-    (MPa^0.5), ``molar_volume`` (cm^3/mol) and optionally ``smiles``, ``molar_mass``,
-    ``melting_point_c``, ``boiling_point_c``. ``model``: "hbond" (default) or "plain". Method: see
-    the module docstring (Flory-Huggins with Hansen parameters and a donor/acceptor term).
+    (MPa^0.5), ``molar_volume`` (cm^3/mol) and optionally ``smiles``, ``molar_mass`` (g/mol),
+    ``melting_point_c``, ``boiling_point_c`` (C) and ``expansion_coeff`` (1/K). ``model``:
+    "hbond" (default) or "plain". Method: see the module docstring (Flory-Huggins with Hansen
+    parameters and a donor/acceptor term; HSP moved to the temperature by Hansen-Beerbower).
+    The result is symmetric in ``a`` and ``b`` (the binodal is given for ``a``).
 
     >>> r = miscibility("water", "hexane")
     >>> r.state, r.chi > r.chi_critical
@@ -539,65 +634,83 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     h1 = np.array([ra_["delta_d"], ra_["delta_p"], ra_["delta_h"]])
     h2 = np.array([rb_["delta_d"], rb_["delta_p"], rb_["delta_h"]])
     v1, v2 = ra_["molar_volume"], rb_["molar_volume"]
+    al1, al2 = ra_["expansion_coeff"], rb_["expansion_coeff"]
     s = site_densities([ra_["smiles"], rb_["smiles"]], [v1, v2])
-    a12, vr, n1, n2, chi, cc, ucst_k, pa, pb = _compute(h1, h2, s[0], s[1], np.float64(v1),
-                                                        np.float64(v2), t, mdl)
-    pa, pb = float(pa), float(pb)
+    a12, vr, n1, n2, chi, cc, pa, pb = _compute(h1, h2, s[0], s[1], np.float64(v1),
+                                                np.float64(v2), t, mdl, al1, al2)
+    pa, pb, chi, cc, a12 = float(pa), float(pb), float(chi), float(cc), float(a12)
     m1, m2 = ra_["molar_mass"], rb_["molar_mass"]
     state = str(_classify(np.array(pa), np.array(pb), v1, v2, m1, m2))
     notes = []
-    ucst = None if not np.isfinite(ucst_k) else float(ucst_k) - 273.15
-    spin = None
-    bino = None
-    if np.isfinite(pa):
+    u = float(ucst(h1, h2, s[0], s[1], np.float64(v1), np.float64(v2), mdl, al1, al2))
+    ucst_c = u if math.isfinite(u) else None
+    spin = bino = None
+    if math.isfinite(pa):
         lo, hi = spinodal(chi, n1, n2)
         spin = (float(lo), float(hi))
-        bino = _binodal_dict(pa, pb, v1, v2, m1, m2, ra_["name"], rb_["name"])
-    if ucst is not None:
-        if ucst < t:
-            notes.append(f"model UCST {ucst:.0f} C is below {t:g} C: one phase at this temperature, "
-                         "a gap may open on cooling")
+        bino = _binodal_dict(pa, pb, v1, v2, m1, m2)
+    if ucst_c is not None:
+        if ucst_c < t:
+            notes.append(f"model UCST {ucst_c:.0f} C, below {t:g} C: one phase here; a gap may open "
+                         "on cooling")
         else:
-            notes.append(f"model UCST {ucst:.0f} C: the gap narrows on heating and closes there")
+            notes.append(f"model UCST {ucst_c:.0f} C: the gap narrows on heating and closes there")
+        bp = min(x for x in (ra_["boiling_point_c"], rb_["boiling_point_c"], math.inf) if math.isfinite(x))
+        if math.isfinite(bp) and ucst_c > bp:
+            notes.append("the UCST lies above a boiling point: at atmospheric pressure the gap "
+                         "does not close before the mixture boils")
+    elif math.isinf(u):
+        notes.append("the gap stays open up to 400 C in this model")
     else:
-        notes.append("no UCST in this model: the interaction is favourable (chi <= 0)")
-    water = _is_water(ra_) or _is_water(rb_)
-    other = rb_ if _is_water(ra_) else ra_
-    lcst = water and not (_is_water(ra_) and _is_water(rb_)) and _lcst_prone(other)
+        notes.append("no UCST in this model: one phase at all temperatures from -150 C up")
+    wa, wb = _is_water(ra_), _is_water(rb_)
+    lcst = (wa != wb) and _lcst_prone(rb_ if wa else ra_)
     if lcst:
         notes.append("water with an amine, pyridine or glycol ether: such pairs can show lower "
                      "critical solution behaviour (a gap that opens on heating, e.g. water-"
-                     "triethylamine), which this model does not describe")
-    # confidence: distance from the phase boundary on a log scale, HSP source agreement, LCST
-    margin = abs(math.log(max(chi, 1e-9) / cc)) if chi > 0 else 3.0
-    conf = "high" if margin > 0.5 else ("medium" if margin > 0.2 else "low")
+                     "triethylamine above about 19 C), which this model does not describe")
+    conf = _confidence(chi, cc, ra_, rb_, lcst, notes)
+    notes.append("a model estimate: confirm with a small test mix, and read the safety data sheets "
+                 "of both liquids first")
+    return Miscibility(ra_["name"], rb_["name"], t, state, chi, cc, ucst_c, bino, spin,
+                       conf, notes, float(vr), a12, mdl.name)
+
+
+#: Confidence bands on |ln(chi / chi_c)|: above the first "high", above the second "medium".
+CONFIDENCE_BANDS = (0.4, 0.15)
+
+
+def _confidence(chi, cc, ra_, rb_, lcst, notes) -> str:
+    """"high" / "medium" / "low" from the distance to the phase boundary, lowered one step for
+    disagreeing HSP sources or a missing structure, and "low" for LCST-prone pairs."""
+    margin = abs(math.log(chi / cc)) if chi > 0 else math.inf
+    level = 0 if margin > CONFIDENCE_BANDS[0] else (1 if margin > CONFIDENCE_BANDS[1] else 2)
     if ra_["sources_disagree"] or rb_["sources_disagree"]:
         notes.append("published HSP sources disagree by > 1 MPa^0.5 for at least one liquid")
-        conf = {"high": "medium", "medium": "low", "low": "low"}[conf]
+        level += 1
+    if not ra_["smiles"] or not rb_["smiles"]:
+        notes.append("no structure (SMILES) for at least one liquid: donor/acceptor term left out")
+        level += 1
     if lcst:
-        conf = "low"
-    if a12 > 0 and chi > 0 and water and mdl.k_cross:
-        pass
-    notes.append("a model estimate: confirm with a small test mix; check the safety data sheets "
-                 "of both liquids")
-    return Miscibility(ra_["name"], rb_["name"], t, state, float(chi), float(cc), ucst, bino, spin,
-                       conf, notes, float(vr), float(a12), mdl.name)
+        level = 2
+    return ("high", "medium", "low")[min(level, 2)]
 
 
-def _binodal_dict(pa, pb, v1, v2, m1, m2, na, nb):
+def _binodal_dict(pa, pb, v1, v2, m1, m2) -> dict:
+    """Binodal of a pair as fixed keys (a = first liquid, b = second).
+
+    ``phi_a``: (lean, rich) volume fractions of a in the two phases; ``a_in_b`` and ``b_in_a``:
+    the mutual solubilities (a in the b-rich phase, b in the a-rich phase) in vol %, wt % and
+    mole %; wt % is NaN when a molar mass is missing.
+    """
     xa, xb = float(volume_to_mole(pa, v1, v2)), float(volume_to_mole(pb, v1, v2))
     have_m = math.isfinite(m1) and math.isfinite(m2)
     wa = float(mole_to_mass(xa, m1, m2)) if have_m else math.nan
     wb = float(mole_to_mass(xb, m1, m2)) if have_m else math.nan
     return {
-        "liquid": na,
-        f"{nb}-rich phase": {"vol_pct": 100 * pa, "wt_pct": 100 * wa, "mol_pct": 100 * xa},
-        f"{na}-rich phase": {"vol_pct": 100 * pb, "wt_pct": 100 * wb, "mol_pct": 100 * xb},
-        "phi_a": pa,
-        "phi_b": pb,
-        f"solubility of {na} in {nb}": {"vol_pct": 100 * pa, "wt_pct": 100 * wa, "mol_pct": 100 * xa},
-        f"solubility of {nb} in {na}": {"vol_pct": 100 * (1 - pb), "wt_pct": 100 * (1 - wb),
-                                        "mol_pct": 100 * (1 - xb)},
+        "phi_a": (pa, pb),
+        "a_in_b": {"vol_pct": 100 * pa, "wt_pct": 100 * wa, "mol_pct": 100 * xa},
+        "b_in_a": {"vol_pct": 100 * (1 - pb), "wt_pct": 100 * (1 - wb), "mol_pct": 100 * (1 - xb)},
     }
 
 
@@ -619,7 +732,9 @@ def _arrays(df: pd.DataFrame):
     s = site_densities(smi, v)
     m = (pd.to_numeric(df["molar_mass"], errors="coerce").to_numpy(float) if "molar_mass" in df.columns
          else np.full(len(df), np.nan))
-    return h, v, s, m
+    al = (pd.to_numeric(df["expansion_coeff"], errors="coerce").to_numpy(float)
+          if "expansion_coeff" in df.columns else np.full(len(df), np.nan))
+    return h, v, s, m, al
 
 
 def state_matrix(liquids: pd.DataFrame, temperature: float = 25.0, model=None) -> np.ndarray:
@@ -628,9 +743,14 @@ def state_matrix(liquids: pd.DataFrame, temperature: float = 25.0, model=None) -
     if len(liquids) == 0:
         raise SelectorError("no liquids selected")
     t = _check_temperature_frame(temperature, liquids)
-    h, v, s, m = _arrays(liquids)
-    a12, vr, n1, n2, chi, cc, ucst_k, pa, pb = _compute(
-        h[:, None, :], h[None, :, :], s[:, None, :], s[None, :, :], v[:, None], v[None, :], t, mdl)
+    h, v, s, m, al = _arrays(liquids)
+    if t != 25.0:
+        h = hsp_at(h, al, t)
+    a12, vr, n1, n2, chi, cc, pa, pb = _compute(
+        h[:, None, :], h[None, :, :], s[:, None, :], s[None, :, :], v[:, None], v[None, :], 25.0, mdl)
+    if t != 25.0:
+        chi = chi * 298.15 / (t + 273.15)
+        pa, pb = binodal(chi, n1, n2)
     st = _classify(pa, pb, v[:, None], v[None, :], m[:, None], m[None, :])
     np.fill_diagonal(st, "miscible")
     return st
@@ -651,11 +771,14 @@ def miscible_pairs(liquids: pd.DataFrame, temperature: float = 25.0, model=None)
     if len(liquids) == 0:
         raise SelectorError("no liquids selected")
     t = _check_temperature_frame(temperature, liquids)
-    h, v, s, _ = _arrays(liquids)
+    h, v, s, _, al = _arrays(liquids)
+    if t != 25.0:
+        h = hsp_at(h, al, t)
     a12 = mdl.interaction(h[:, None, :], h[None, :, :], s[:, None, :], s[None, :, :])
-    vr = np.minimum(v[:, None], v[None, :])
+    e = mdl.entropy_volume(v)
+    vr = np.minimum(e[:, None], e[None, :])
     chi = vr * a12 / (R_GAS * (t + 273.15))
-    cc = critical_chi(v[:, None] / vr, v[None, :] / vr)
+    cc = critical_chi(e[:, None] / vr, e[None, :] / vr)
     out = chi <= cc
     np.fill_diagonal(out, True)
     return out
