@@ -520,7 +520,7 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     a component's flash point is unknown). The method is exact (module doc).
 
     >>> r = find_blends((17.0, 8.0, 8.0, 5.0), max_components=2, top=3)
-    >>> bool((r["red"] < 1).all()), r["fractions"].map(lambda f: min(f) >= 0.05).all()
+    >>> bool((r["red"] < 1).all()), bool(r["fractions"].map(lambda f: min(f) >= 0.05).all())
     (True, True)
     """
     try:
