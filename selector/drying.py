@@ -1,0 +1,219 @@
+"""Drying check: how a solvent blend's composition and RED change while it evaporates.
+
+Model
+-----
+Each component evaporates with a molar flux proportional to its driving force
+``gamma_i x_i P_i - p_i,air`` (kPa), with one mass-transfer coefficient for all components
+(gas-side controlled evaporation into moving air; the baseline is Raoult's law, gamma = 1).
+``P_i`` is the vapour pressure at the drying temperature (:func:`selector.library.vapour_pressure_kpa`)
+and ``p_i,air`` the partial pressure already in the air: ``relative_humidity`` (%) times the
+vapour pressure of water for water, zero for every other liquid. A component whose driving force
+falls to zero stops evaporating (water in humid air); it does not condense in this model.
+
+The liquid's volume is the sum of the components' molar volumes at 25 C times their amounts
+(ideal volume of mixing). The equations are integrated with the evaporated volume fraction
+phi (0..1) as the independent variable, in the logarithm of the amounts (classical 4th-order
+Runge-Kutta), so steep depletion of a volatile component stays stable:
+
+    d ln n_i / d phi = - V0 F_i / (n_i sum_j v_j F_j),   F_i = max(gamma_i x_i P_i - p_i,air, 0).
+
+For an ideal binary this reproduces the Rayleigh-type relation n1/n1_0 = (n2/n2_0)^(P1/P2)
+(Lord Rayleigh, Phil. Mag. 4 (1902) 521, for differential distillation; the same equation holds
+for open evaporation with Raoult's law).
+
+Activity coefficients (``activity="hsp"``): multicomponent Flory-Huggins with the Hansen
+interaction, ln gamma_i = ln(phi_i/x_i) + 1 - phi_i/x_i + (v_i/RT) sum_j sum_k phi_j phi_k
+(A_ij - A_jk/2), A_ij = (dD_i - dD_j)^2 + (dP_i - dP_j)^2/4 + (dH_i - dH_j)^2/4 (MPa); the
+Flory combinatorial term (P. J. Flory, Principles of Polymer Chemistry, 1953) and the
+regular-solution residual term of Hildebrand and Scott (The Solubility of Nonelectrolytes,
+1950) with Hansen's interaction (Hansen's handbook, ch. 1). It is known to be poor for water and
+strongly hydrogen-bonded pairs.
+
+The remaining liquid's HSP is the volume-weighted mean of what is left; with a sphere target
+its RED is followed and the path is flagged when RED reaches 1 before ``must_stay_until`` of the
+liquid has evaporated (the solute may come out of solution before the film has set).
+"""
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pandas as pd
+
+from .errors import SelectorError
+from .filters import check_temperature
+from .hansen import R_GAS, ra as _ra
+from .library import HSP, load_library, locate_many, vapour_pressure_kpa
+
+WATER_CAS = "7732-18-5"
+MODELS = ("raoult", "hsp")
+
+
+def _gamma_hsp(x, v, h, T):
+    """ln gamma (k,) by multicomponent Flory-Huggins with the Hansen interaction (module doc)."""
+    phi = x * v / np.dot(x, v)
+    d = h[:, None, :] - h[None, :, :]
+    A = d[..., 0] ** 2 + 0.25 * d[..., 1] ** 2 + 0.25 * d[..., 2] ** 2  # MPa = J/cm3
+    pa = A @ phi                          # sum_j A_ij phi_j
+    res = v / (R_GAS * T) * (pa - 0.5 * phi @ A @ phi)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ratio = np.where(x > 0, phi / x, v / np.dot(x, v))
+    comb = np.log(ratio) + 1.0 - ratio
+    return comb + res
+
+
+def drying_path(components, fractions, *, temperature: float = 25.0, target=None,
+                library: pd.DataFrame | None = None, relative_humidity: float = 0.0,
+                activity: str = "raoult", must_stay_until: float = 0.9, points: int = 100,
+                max_evaporated: float = 0.99) -> pd.DataFrame:
+    """Composition and RED of an evaporating blend versus the evaporated volume fraction.
+
+    ``components``: liquid names/CAS; ``fractions``: their initial volume fractions (normalised;
+    must sum to 1 within 1 %). ``temperature`` in C; ``relative_humidity`` in % (acts on water
+    only); ``activity``: ``"raoult"`` (ideal) or ``"hsp"`` (Flory-Huggins with Hansen
+    parameters). ``target``: optional point or sphere (:func:`selector.targets.as_target`).
+
+    Returns a DataFrame, one row per step of the evaporated volume fraction (0 ..
+    ``max_evaporated``): ``evaporated_fraction``, ``phi_<name>`` (volume fraction of each
+    component in the remaining liquid), ``delta_d, delta_p, delta_h`` of the remaining liquid,
+    ``ra`` to the target and ``red`` and ``inside`` when the target has R0. ``attrs``:
+    ``tail_solvent`` (largest share at the end), ``leaves_sphere_at`` (first evaporated fraction
+    with RED >= 1, NaN if never), ``flag`` (True when that happens before ``must_stay_until``),
+    ``warnings`` and ``message``.
+
+    >>> p = drying_path(["acetone", "water"], [0.5, 0.5])
+    >>> p.attrs["tail_solvent"]
+    'water'
+    """
+    t_c = check_temperature(temperature)
+    lib = load_library() if library is None else library
+    if isinstance(components, str):
+        components = [components]
+    comps = list(components)
+    if not comps:
+        raise SelectorError("no components given")
+    try:
+        f0 = np.asarray(list(fractions), dtype=float)
+    except (TypeError, ValueError):
+        raise SelectorError("fractions must be numbers (volume fractions)") from None
+    if len(f0) != len(comps):
+        raise SelectorError(f"{len(comps)} components but {len(f0)} fractions")
+    if not np.all(np.isfinite(f0)) or np.any(f0 <= 0):
+        raise SelectorError("every volume fraction must be a positive finite number")
+    if abs(f0.sum() - 1.0) > 0.01:
+        raise SelectorError(f"volume fractions must sum to 1 (got {f0.sum():.4g})")
+    f0 = f0 / f0.sum()
+    pos = locate_many(comps, lib, "components")
+    if len(set(pos.tolist())) != len(pos):
+        raise SelectorError("a liquid is listed twice in the blend")
+    rows = lib.iloc[pos].reset_index(drop=True)
+    names = rows["name"].astype(str).tolist()
+    if activity not in MODELS:
+        raise SelectorError(f"activity must be one of {', '.join(MODELS)}, got {activity!r}")
+    try:
+        rh = float(relative_humidity)
+    except (TypeError, ValueError):
+        raise SelectorError(f"relative_humidity must be a number in %, got {relative_humidity!r}") from None
+    if not (0.0 <= rh <= 100.0):
+        raise SelectorError("relative_humidity must be between 0 and 100 %")
+    for nm, v in (("must_stay_until", must_stay_until), ("max_evaporated", max_evaporated)):
+        if not isinstance(v, (int, float)) or isinstance(v, bool) or not (0.0 < float(v) < 1.0):
+            raise SelectorError(f"{nm} must be a fraction between 0 and 1, got {v!r}")
+    if not isinstance(points, (int, np.integer)) or points < 2 or points > 100000:
+        raise SelectorError("points must be a whole number between 2 and 100000")
+    P = vapour_pressure_kpa(rows, t_c)
+    v = rows["molar_volume"].to_numpy(float)
+    bad = [n for n, p, vv in zip(names, P, v) if not (np.isfinite(p) and p > 0 and np.isfinite(vv) and vv > 0)]
+    if bad:
+        raise SelectorError("no vapour pressure or molar volume at this temperature for: " + ", ".join(bad))
+    from .ranking import corrected_hsp
+
+    h = corrected_hsp(rows, t_c)
+    T = t_c + 273.15
+    p_air = np.where(rows["cas"].astype(str).to_numpy() == WATER_CAS, rh / 100.0 * P, 0.0)
+
+    n0 = f0 / v  # mol per cm3 of initial liquid
+    V0 = float(np.dot(n0, v))  # = 1
+
+    def rhs(ln_n):
+        n = np.exp(ln_n)
+        N = n.sum()
+        x = n / N
+        g = np.exp(_gamma_hsp(x, v, h, T)) if activity == "hsp" else 1.0
+        F = np.maximum(g * x * P - p_air, 0.0)
+        tot = float(np.dot(v, F))
+        if tot <= 0:
+            return None
+        return -V0 * F / (n * tot)
+
+    phi_max = float(max_evaporated)
+    grid = np.linspace(0.0, phi_max, int(points))
+    sub = max(1, int(math.ceil(400.0 / (points - 1) * phi_max)))  # >= ~400 RK4 steps in total
+    out = np.full((len(grid), len(names)), np.nan)
+    y = np.log(n0)
+    out[0] = n0
+    warnings = []
+    stopped = None
+    for gi in range(1, len(grid)):
+        hstep = (grid[gi] - grid[gi - 1]) / sub
+        for _ in range(sub):
+            k1 = rhs(y)
+            if k1 is None:
+                stopped = grid[gi - 1]
+                break
+            k2 = rhs(y + 0.5 * hstep * k1)
+            k3 = rhs(y + 0.5 * hstep * k2) if k2 is not None else None
+            k4 = rhs(y + hstep * k3) if k3 is not None else None
+            if k4 is None:
+                stopped = grid[gi - 1]
+                break
+            y = y + hstep / 6.0 * (k1 + 2 * k2 + 2 * k3 + k4)
+        if stopped is not None:
+            break
+        out[gi] = np.exp(y)
+    if stopped is not None:
+        warnings.append(f"evaporation stops after {stopped:.0%} of the liquid: what is left is in "
+                        "equilibrium with the air (e.g. water at this humidity)")
+    ok = np.all(np.isfinite(out), axis=1)
+    grid, out = grid[ok], out[ok]
+    vol = out * v
+    phi = vol / vol.sum(1, keepdims=True)
+    hb = phi @ h
+    df = pd.DataFrame({"evaporated_fraction": grid, "remaining_fraction": 1.0 - grid})
+    for j, nm in enumerate(names):
+        df[f"phi_{nm}"] = phi[:, j]
+    df["delta_d"], df["delta_p"], df["delta_h"] = hb[:, 0], hb[:, 1], hb[:, 2]
+    tail = names[int(np.argmax(phi[-1]))]
+    leaves = float("nan")
+    flag = False
+    msg = f"tail solvent (the last to leave): {tail}"
+    if target is not None:
+        from .ranking import resolve_target
+
+        tg = resolve_target(target, lib, t_c)
+        d = _ra(hb, tg.hsp)
+        df["ra"] = d
+        if tg.radius is not None:
+            red = d / tg.radius
+            df["red"] = red
+            df["inside"] = red < 1.0
+            out_idx = np.flatnonzero(red >= 1.0)
+            if len(out_idx):
+                leaves = float(grid[out_idx[0]])
+                flag = leaves < float(must_stay_until)
+                if out_idx[0] == 0:
+                    msg += "; the blend starts OUTSIDE the sphere"
+                    warnings.append("the blend is outside the target sphere before any evaporation")
+                elif flag:
+                    warnings.append(f"the remaining liquid leaves the sphere after {leaves:.0%} has "
+                                    f"evaporated, before {float(must_stay_until):.0%}: the solute may "
+                                    "come out of solution before the film has set")
+                msg += f"; leaves the sphere at {leaves:.0%} evaporated"
+            else:
+                msg += "; stays inside the sphere to the end"
+    df.attrs.update(tail_solvent=tail, leaves_sphere_at=leaves, flag=bool(flag), warnings=warnings,
+                    message=msg, activity=activity, temperature=t_c, relative_humidity=rh,
+                    components=tuple(names),
+                    caution="Evaporating solvents form flammable and harmful vapours: ventilate, "
+                            "keep ignition sources away and check each safety data sheet.")
+    return df
