@@ -547,10 +547,24 @@ def hsp_at(hsp, expansion, t_c):
     return hsp_at_temperature(hsp, al, t_c)
 
 
+def volume_at(v, expansion, t_c):
+    """Molar volume (cm^3/mol) at ``t_c`` (C) from the 25 C value: V exp(alpha (t - 25)).
+
+    A missing expansion coefficient alpha (1/K) is taken as :data:`DEFAULT_EXPANSION`.
+    """
+    al = np.asarray(expansion, float)
+    al = np.where(np.isfinite(al), al, DEFAULT_EXPANSION)
+    return np.asarray(v, float) * np.exp(al * (np.asarray(t_c, float) - 25.0))
+
+
 def _compute(h1, h2, s1, s2, v1, v2, t_c, model, al1=np.nan, al2=np.nan):
-    """Vectorised core: interaction, chi, chi_c and the binodal for arrays of pairs at t_c (C)."""
+    """Vectorised core: interaction, chi, chi_c and the binodal for arrays of pairs at t_c (C).
+
+    HSP and molar volumes are moved to t_c (:func:`hsp_at`, :func:`volume_at`); the site
+    densities are kept at their 25 C values."""
     if t_c != 25.0:
         h1, h2 = hsp_at(h1, al1, t_c), hsp_at(h2, al2, t_c)
+        v1, v2 = volume_at(v1, al1, t_c), volume_at(v2, al2, t_c)
     a12 = model.interaction(h1, h2, s1, s2)
     e1, e2 = model.entropy_volume(v1), model.entropy_volume(v2)
     vr = np.minimum(e1, e2)
@@ -565,24 +579,25 @@ def _compute(h1, h2, s1, s2, v1, v2, t_c, model, al1=np.nan, al2=np.nan):
 def ucst(h1, h2, s1, s2, v1, v2, model, al1=np.nan, al2=np.nan, lo=-150.0, hi=400.0):
     """Upper critical solution temperature (C) of pairs: the T where chi(T) = chi_c.
 
-    chi(T) = V_r A12(T) / (R T) with the HSP at T from the Hansen-Beerbower relations; solved by
-    vectorised bisection on [lo, hi] C. NaN where chi < chi_c over the whole range (no UCST
-    there); ``hi`` returned as +inf where the gap stays open up to ``hi``.
+    chi(T) = V_r(T) A12(T) / (R T) with the HSP at T from the Hansen-Beerbower relations and the
+    molar volumes at T (:func:`volume_at`); solved by vectorised bisection on [lo, hi] C. NaN
+    where chi < chi_c over the whole range (no UCST there); +inf where the gap stays open up to
+    ``hi``.
     """
     args = np.broadcast_arrays(np.asarray(v1, float), np.asarray(v2, float))
     shape = args[0].shape
-    e1, e2 = model.entropy_volume(v1), model.entropy_volume(v2)
-    vr = np.minimum(e1, e2)
-    cc = critical_chi(e1 / vr, e2 / vr)
 
     def f(t):
         a = model.interaction(hsp_at(h1, al1, t), hsp_at(h2, al2, t), s1, s2)
-        return vr * a / (R_GAS * (t + 273.15)) - cc
+        e1 = model.entropy_volume(volume_at(v1, al1, t))
+        e2 = model.entropy_volume(volume_at(v2, al2, t))
+        vr = np.minimum(e1, e2)
+        return vr * a / (R_GAS * (t + 273.15)) - critical_chi(e1 / vr, e2 / vr)
 
     a = np.full(shape, lo)
     b = np.full(shape, hi)
     fa, fb = f(a), f(b)
-    for _ in range(45):
+    for _ in range(40):
         m = 0.5 * (a + b)
         fm = f(m)
         left = fm < 0          # chi falls with T: the root is below m when f(m) < 0
@@ -745,7 +760,7 @@ def state_matrix(liquids: pd.DataFrame, temperature: float = 25.0, model=None) -
     t = _check_temperature_frame(temperature, liquids)
     h, v, s, m, al = _arrays(liquids)
     if t != 25.0:
-        h = hsp_at(h, al, t)
+        h, v = hsp_at(h, al, t), volume_at(v, al, t)
     a12, vr, n1, n2, chi, cc, pa, pb = _compute(
         h[:, None, :], h[None, :, :], s[:, None, :], s[None, :, :], v[:, None], v[None, :], 25.0, mdl)
     if t != 25.0:
@@ -773,7 +788,7 @@ def miscible_pairs(liquids: pd.DataFrame, temperature: float = 25.0, model=None)
     t = _check_temperature_frame(temperature, liquids)
     h, v, s, _, al = _arrays(liquids)
     if t != 25.0:
-        h = hsp_at(h, al, t)
+        h, v = hsp_at(h, al, t), volume_at(v, al, t)
     a12 = mdl.interaction(h[:, None, :], h[None, :, :], s[:, None, :], s[None, :, :])
     e = mdl.entropy_volume(v)
     vr = np.minimum(e[:, None], e[None, :])

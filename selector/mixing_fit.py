@@ -1,0 +1,176 @@
+"""Fitting the donor/acceptor Flory-Huggins model of :mod:`selector.mixing` to reference pairs.
+
+The reference data are ``parameters/miscibility_pairs.csv`` (see ``miscibility_pairs.md``):
+liquid pairs with their behaviour at 25 C (miscible in all proportions or not) and, for a few,
+a published upper critical solution temperature. Four numbers are fitted by an exhaustive grid
+search (the score surface is a step function, so a gradient method is of no use):
+
+* ``w_p``, ``w_h``: weights of (dP1 - dP2)^2 and (dH1 - dH2)^2 (dD keeps weight 1);
+* ``k_cross``: donor-acceptor cross-bond energy, J cm^3 / mol^2;
+* ``v_min``: floor of the molar volume in the combinatorial entropy, cm^3/mol.
+
+Score of a grid point on the training pairs: fraction classified right (miscible or not at
+25 C), minus 0.001 x the mean distance |ln(chi/chi_c)| of the wrong ones from the boundary
+(a tie-breaker), minus 0.02 x the mean UCST error / 50 K (capped at 1) over the training pairs
+that have a published UCST. The methanol-hexane UCST is never used in a fit: it is kept as an
+independent check for the test suite.
+"""
+from __future__ import annotations
+
+import itertools
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+
+from .hansen import R_GAS
+from .library import PARAMETERS_DIR, load_library, locate
+
+PAIRS_CSV = PARAMETERS_DIR / "miscibility_pairs.csv"
+
+#: Pairs whose published UCST is kept out of every fit (independent test check).
+UCST_HELD_OUT = {frozenset(("67-56-1", "110-54-3"))}   # methanol-hexane
+
+GRID = {
+    "w_p": np.round(np.arange(0.10, 0.3001, 0.0125), 4),
+    "w_h": np.round(np.arange(0.06, 0.1601, 0.005), 4),
+    "k_cross": np.arange(0.0, 1.0001e6, 1.0e5),
+    "v_min": np.array([0.0, 20.0, 30.0, 35.0, 40.0, 45.0, 50.0, 60.0]),
+}
+
+
+def load_pairs(path=None) -> pd.DataFrame:
+    """The reference pairs table (all columns as text except ``ucst_c``/``lcst_c``, float)."""
+    df = pd.read_csv(path or PAIRS_CSV, keep_default_na=False, dtype=str)
+    for c in ("ucst_c", "lcst_c"):
+        df[c] = pd.to_numeric(df[c].replace("", np.nan), errors="coerce")
+    return df
+
+
+@dataclass
+class PairFeatures:
+    """Arrays over reference pairs: squared HSP differences, cross-site products, volumes."""
+
+    pairs: pd.DataFrame
+    ia: np.ndarray
+    ib: np.ndarray
+    h1: np.ndarray
+    h2: np.ndarray
+    cross: np.ndarray
+    v1: np.ndarray
+    v2: np.ndarray
+    al1: np.ndarray
+    al2: np.ndarray
+    miscible: np.ndarray
+    ucst: np.ndarray
+
+    @property
+    def d2(self):
+        return (self.h1 - self.h2) ** 2
+
+
+def features(pairs: pd.DataFrame | None = None, library: pd.DataFrame | None = None) -> PairFeatures:
+    from .mixing import _arrays
+
+    pairs = load_pairs() if pairs is None else pairs
+    lib = load_library() if library is None else library
+    ia = np.array([locate(c, lib) for c in pairs["cas_a"]])
+    ib = np.array([locate(c, lib) for c in pairs["cas_b"]])
+    h, v, s, _, al = _arrays(lib)
+    cross = s[ia, 0] * s[ib, 1] + s[ib, 0] * s[ia, 1]
+    ucst = pairs["ucst_c"].to_numpy(float).copy()
+    for k, (a, b) in enumerate(zip(pairs["cas_a"], pairs["cas_b"])):
+        if frozenset((a, b)) in UCST_HELD_OUT:
+            ucst[k] = np.nan
+    return PairFeatures(pairs, ia, ib, h[ia], h[ib], cross, v[ia], v[ib], al[ia], al[ib],
+                        (pairs["miscible_25c"] == "yes").to_numpy(), ucst)
+
+
+def _grid_array(grid=None) -> np.ndarray:
+    g = GRID if grid is None else grid
+    return np.array(list(itertools.product(g["w_p"], g["w_h"], g["k_cross"], g["v_min"])), float)
+
+
+def _log_ratio(G, f: PairFeatures, t_c: float = 25.0):
+    """ln(chi / chi_c) for every grid point (rows) and pair (columns) at t_c."""
+    from .mixing import hsp_at
+
+    h1, h2 = (f.h1, f.h2) if t_c == 25.0 else (hsp_at(f.h1, f.al1, t_c), hsp_at(f.h2, f.al2, t_c))
+    d2 = (h1 - h2) ** 2
+    a = (d2[None, :, 0] + G[:, 0, None] * d2[None, :, 1] + G[:, 1, None] * d2[None, :, 2]
+         - G[:, 2, None] * f.cross[None, :])
+    e1 = np.maximum(f.v1[None, :], G[:, 3, None])
+    e2 = np.maximum(f.v2[None, :], G[:, 3, None])
+    vr = np.minimum(e1, e2)
+    cc = 0.5 * ((e1 / vr) ** -0.5 + (e2 / vr) ** -0.5) ** 2
+    chi = vr * a / (R_GAS * (t_c + 273.15))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.log(np.maximum(chi, 1e-12) / cc)
+
+
+def _ucst_grid(G, f: PairFeatures, cols) -> np.ndarray:
+    """Model UCST (C) per grid point for the pairs ``cols`` (vectorised bisection, -150..400 C)."""
+    from .mixing import hsp_at, volume_at
+
+    if len(cols) == 0:
+        return np.zeros((len(G), 0))
+    lo = np.full((len(G), len(cols)), -150.0)
+    hi = np.full((len(G), len(cols)), 400.0)
+
+    def fval(t):
+        h1 = hsp_at(f.h1[cols][None, :, :], f.al1[cols][None, :], t)
+        h2 = hsp_at(f.h2[cols][None, :, :], f.al2[cols][None, :], t)
+        d2 = (h1 - h2) ** 2
+        a = (d2[..., 0] + G[:, 0, None] * d2[..., 1] + G[:, 1, None] * d2[..., 2]
+             - G[:, 2, None] * f.cross[cols][None, :])
+        e1 = np.maximum(volume_at(f.v1[cols][None, :], f.al1[cols][None, :], t), G[:, 3, None])
+        e2 = np.maximum(volume_at(f.v2[cols][None, :], f.al2[cols][None, :], t), G[:, 3, None])
+        vr = np.minimum(e1, e2)
+        cc = 0.5 * ((e1 / vr) ** -0.5 + (e2 / vr) ** -0.5) ** 2
+        return vr * a / (R_GAS * (t + 273.15)) - cc
+
+    f_lo = fval(lo)
+    for _ in range(30):
+        m = 0.5 * (lo + hi)
+        neg = fval(m) < 0
+        hi = np.where(neg, m, hi)
+        lo = np.where(neg, lo, m)
+    return np.where(f_lo < 0, -150.0, 0.5 * (lo + hi))
+
+
+class GridScores:
+    """Per-grid-point, per-pair pieces of the score, computed once and reused by every fold."""
+
+    def __init__(self, f: PairFeatures, grid=None):
+        self.f = f
+        self.G = _grid_array(grid)
+        lr = _log_ratio(self.G, f)
+        self.right = (lr <= 0) == f.miscible[None, :]
+        self.penalty = np.where(self.right, 0.0, np.abs(lr))
+        self.ucst_cols = np.flatnonzero(np.isfinite(f.ucst))
+        u = _ucst_grid(self.G, f, self.ucst_cols)
+        self.ucst_err = np.minimum(np.abs(u - f.ucst[self.ucst_cols][None, :]) / 50.0, 1.0)
+
+    def best(self, train: np.ndarray) -> np.ndarray:
+        """Grid point (w_p, w_h, k_cross, v_min) with the best score on the ``train`` pairs."""
+        train = np.asarray(train, bool)
+        sc = self.right[:, train].mean(1) - 1e-3 * self.penalty[:, train].mean(1)
+        ut = train[self.ucst_cols]
+        if ut.any():
+            sc = sc - 0.02 * self.ucst_err[:, ut].mean(1)
+        return self.G[int(np.argmax(sc))]
+
+
+def fit(pairs: pd.DataFrame | None = None, library: pd.DataFrame | None = None, train=None):
+    """Fit (w_p, w_h, k_cross, v_min) on the reference pairs (all, or the ``train`` mask).
+
+    Returns a :class:`selector.mixing.MixingModel`.
+    """
+    from .mixing import MixingModel
+
+    f = features(pairs, library)
+    gs = GridScores(f)
+    train = np.ones(len(f.pairs), bool) if train is None else np.asarray(train, bool)
+    wp, wh, k, vmin = gs.best(train)
+    return MixingModel("donor/acceptor Flory-Huggins", 1.0, float(wp), float(wh), float(k),
+                       float(vmin), "fitted on parameters/miscibility_pairs.csv")
