@@ -91,15 +91,16 @@ def _code(s: str) -> str:
 def parse_statements(text) -> tuple[str, ...]:
     """Split a space/comma/semicolon separated list of GHS statements into normalised codes.
 
-    >>> parse_statements("H225 H360FD, EUH019")
-    ('H225', 'H360FD', 'EUH019')
+    >>> parse_statements("H225 H360FD, euh019 h361d")
+    ('H225', 'H360FD', 'EUH019', 'H361d')
     """
     if text is None or (isinstance(text, float) and math.isnan(text)):
         return ()
     parts = str(text).replace(",", " ").replace(";", " ").split()
     out = []
     for p in parts:
-        p = p.strip().upper()
+        p = p.strip()
+        p = p[:4].upper() + p[4:] if not p.upper().startswith("EUH") else p.upper()
         if not (p.startswith("H") or p.startswith("EUH")):
             raise SelectorError(f"not a GHS hazard statement: {p!r} (expected e.g. H225 or EUH019)")
         out.append(p)

@@ -1,0 +1,232 @@
+"""Subcommands ``blend``, ``replace``, ``hazard`` and ``dry``."""
+from __future__ import annotations
+
+import argparse
+
+from .cli_common import add_filter_args, add_output_args, emit, filters_from_args, library_from_args
+
+BLEND_COLUMNS = ["blend", "n_components", "delta_d", "delta_p", "delta_h", "ra", "red", "non_solvent_pair",
+                 "hazard_class", "bp_low_c", "bp_high_c", "lowest_flash_point_c", "lowest_flash_component",
+                 "cost_per_litre", "pareto"]
+REPLACE_COLUMNS = ["role", "blend", "ra", "red", "hazard_class", "boiling_point_c", "evaporation_rate",
+                   "viscosity_mpa_s", "lowest_flash_point_c", "mismatch", "score"]
+CLASS_CHOICES = ["recommended", "problematic", "hazardous", "highly-hazardous"]
+
+
+def _window(text, opt):
+    if not text:
+        return None
+    if ":" not in text:
+        raise ValueError(f"{opt} expects LOW:HIGH in C (either side may be empty), got {text!r}")
+    lo, hi = text.split(":", 1)
+    try:
+        return (float(lo) if lo.strip() else None, float(hi) if hi.strip() else None)
+    except ValueError:
+        raise ValueError(f"{opt} expects numbers in C, got {text!r}") from None
+
+
+def _filters(a) -> dict:
+    f = filters_from_args(a)
+    if getattr(a, "flash", None):
+        f["flash_point_c"] = _window(a.flash, "--flash")
+    if getattr(a, "max_class", None):
+        f["max_hazard_class"] = a.max_class.replace("-", " ")
+    return f
+
+
+def _label(df):
+    df = df.copy()
+    df.insert(0, "blend", [" + ".join(f"{x:.1%} {c}" for c, x in zip(cs, fs)) if len(cs) > 1 else cs[0]
+                           for cs, fs in zip(df["components"], df["fractions"])])
+    return df
+
+
+def _prices(path):
+    import pandas as pd
+
+    from .errors import SelectorError
+
+    try:
+        t = pd.read_csv(path)
+    except FileNotFoundError:
+        raise
+    except Exception as e:  # malformed CSV
+        raise SelectorError(f"cannot read the price list {path}: {e}") from None
+    cols = {c.strip().lower(): c for c in t.columns}
+    if "name" not in cols or "cost_per_litre" not in cols:
+        raise SelectorError(f"the price list {path} needs columns name, cost_per_litre")
+    return dict(zip(t[cols["name"]].astype(str), t[cols["cost_per_litre"]]))
+
+
+def _target(a, lib):
+    from .cli_core import _target_from_args
+
+    return _target_from_args(a, lib)
+
+
+def cmd_blend(a) -> int:
+    from .blends import find_blends
+
+    lib = library_from_args(a)
+    res = find_blends(_target(a, lib), max_components=a.parts, min_fraction=a.min_share, temperature=a.at,
+                      top=a.top, library=lib, max_uses=a.max_uses,
+                      cost_per_litre=_prices(a.prices) if a.prices else None,
+                      require_miscible=not a.skip_mixing_check, **_filters(a))
+    tgt = res.attrs["target"]
+    header = (f"Blends for {tgt.describe()} at {a.at:g} C; {res.attrs['candidates']} candidate liquids; "
+              f"smallest share {a.min_share:g}; every pair miscible "
+              f"({res.attrs['miscibility']}). Hazard class = worst component (CHEM21).")
+    cols = [c for c in BLEND_COLUMNS if c != "red" or res["red"].notna().any()]
+    emit(_label(res), a, cols + (["components", "fractions"] if a.format != "table" else []),
+         caution=True, header=header)
+    return 0
+
+
+def cmd_replace(a) -> int:
+    from .blends import substitutes
+
+    lib = library_from_args(a)
+    solute = None
+    if a.solute:
+        from .cli_core import parse_target
+
+        solute = parse_target(a.solute, a.solute_radius)
+        if isinstance(solute, tuple) and solute and solute[0] == "__named__":
+            from .library import find_liquid
+            from .targets import Target
+
+            row = find_liquid(solute[1], lib)
+            solute = Target(float(row.delta_d), float(row.delta_p), float(row.delta_h), solute[2],
+                            name=str(row["name"]))
+    res = substitutes(a.liquid, solute=solute, max_components=a.parts, min_fraction=a.min_share,
+                      temperature=a.at, top=a.top, library=lib, **_filters(a))
+    note = res.attrs.get("regulatory_note") or ""
+    header = (f"Safer candidates for {res.attrs['replaced']} (first row; class "
+              f"{res['hazard_class'].iloc[0]}{'; ' + note if note else ''}). Only liquids with a strictly "
+              "better CHEM21 class; score = distance + 0.5 x property mismatch, lower is better.")
+    cols = [c for c in REPLACE_COLUMNS if c != "red" or res["red"].notna().any()]
+    emit(_label(res), a, cols + (["components", "fractions"] if a.format != "table" else []),
+         caution=True, header=header)
+    return 0
+
+
+def cmd_hazard(a) -> int:
+    import pandas as pd
+
+    from .hazards import hazard
+
+    lib = library_from_args(a)
+    recs = [hazard(q, lib) for q in a.liquids]
+    rows = []
+    for r in recs:
+        d = r.as_dict()
+        d["statements"] = " ".join(r.statements)
+        src = d.pop("sources")
+        d["statements_source"] = src["statements"]
+        d["flash_point_basis"] = src["flash_point"]
+        d.pop("caution")
+        rows.append(d)
+    df = pd.DataFrame(rows)
+    emit(df, a, None, caution=True,
+         header="CHEM21 scores 1 (best) to 10 (Prat et al., Green Chem. 18 (2016) 288; tables from memory). "
+                "Statements from memory: confirm with the supplier's safety data sheet.")
+    return 0
+
+
+def cmd_dry(a) -> int:
+    from .drying import drying_path
+
+    lib = library_from_args(a)
+    comps = [c.strip() for c in a.components.split(",") if c.strip()]
+    try:
+        shares = [float(x) for x in a.shares.split(",")]
+    except ValueError:
+        raise ValueError(f"--shares expects comma-separated volume fractions, got {a.shares!r}") from None
+    tgt = _target(a, lib) if a.target else None
+    p = drying_path(comps, shares, temperature=a.at, target=tgt, library=lib,
+                    relative_humidity=a.humidity, activity=a.model, must_stay_until=a.keep_until,
+                    points=a.points)
+    lines = [p.attrs["message"]] + [f"warning: {w}" for w in p.attrs["warnings"]]
+    emit(p, a, None, caution=False, header="\n".join(lines))
+    if a.format == "table":
+        print(p.attrs["caution"])
+    return 1 if (a.strict and p.attrs["flag"]) else 0
+
+
+def _blend_options(p, parts_default=3):
+    p.add_argument("--parts", type=int, choices=[1, 2, 3], default=parts_default,
+                   help=f"most liquids per blend (default {parts_default})")
+    p.add_argument("--min-share", type=float, default=0.05, metavar="F",
+                   help="smallest volume fraction of any liquid in a blend (default 0.05)")
+    p.add_argument("--at", type=float, default=25.0, metavar="C", help="use temperature in C (default 25)")
+    p.add_argument("--flash", metavar="LOW:HIGH", help="flash-point window in C, e.g. 23: (no data: dropped)")
+    p.add_argument("--max-class", choices=CLASS_CHOICES,
+                   help="worst CHEM21 hazard class allowed for every liquid (unclassified: dropped)")
+
+
+def register(sub) -> None:
+    p = sub.add_parser("blend", help="design blends of one to three liquids for a target",
+                       description="Best single liquids and blends of two or three whose volume-weighted "
+                       "HSP land on TARGET ('dD,dP,dH[,R0]' in MPa^0.5 or a liquid name). Fractions are the "
+                       "exact optimum; every pair in a blend is miscible at the use temperature.",
+                       formatter_class=argparse.RawDescriptionHelpFormatter,
+                       epilog="examples:\n  likewise blend 17.9,6.1,6.4,8.6 --bp 100:200 --flash 23:\n"
+                       "  likewise blend 18.5,9,5,4 --parts 2 --max-class problematic --format csv -o b.csv")
+    p.add_argument("target", help="'dD,dP,dH[,R0]' in MPa^0.5, or a liquid name, CAS or SMILES")
+    p.add_argument("--radius", type=float, metavar="R0", help="interaction radius R0 for a named target")
+    _blend_options(p)
+    p.add_argument("--prices", metavar="CSV", help="CSV with name,cost_per_litre: only priced liquids are "
+                   "used and the cost-versus-Ra front is marked")
+    p.add_argument("--max-uses", type=int, default=3, metavar="N",
+                   help="a liquid appears in at most N rows (default 3)")
+    p.add_argument("--skip-mixing-check", action="store_true",
+                   help="do not require every pair to be miscible (not recommended)")
+    add_filter_args(p)
+    add_output_args(p)
+    p.set_defaults(func=cmd_blend)
+
+    p = sub.add_parser("replace", help="safer liquids or blends to replace a liquid",
+                       description="Candidates close to LIQUID in Hansen space (or inside a solute's "
+                       "sphere) with a strictly better CHEM21 hazard class and similar boiling point, "
+                       "evaporation rate and viscosity. LIQUID is the first row.",
+                       formatter_class=argparse.RawDescriptionHelpFormatter,
+                       epilog="examples:\n  likewise replace NMP\n  likewise replace toluene "
+                       "--solute 17.9,6.1,6.4,8.6 --bp 100:200")
+    p.add_argument("liquid", help="the liquid to replace (name, synonym, CAS or SMILES)")
+    p.add_argument("--solute", metavar="TARGET", help="'dD,dP,dH[,R0]' or a name: judge candidates "
+                   "against this solute instead of the liquid's own HSP")
+    p.add_argument("--solute-radius", type=float, metavar="R0", help="R0 for a named solute")
+    _blend_options(p, parts_default=2)
+    add_filter_args(p)
+    add_output_args(p)
+    p.set_defaults(func=cmd_replace)
+
+    p = sub.add_parser("hazard", help="CHEM21 safety/health/environment scores and class of liquids")
+    p.add_argument("liquids", nargs="+", help="names, synonyms, CAS numbers or SMILES")
+    p.add_argument("--mine", metavar="CSV", help="CSV of your own liquids merged over the library")
+    add_output_args(p, default_top=None)
+    p.set_defaults(func=cmd_hazard)
+
+    p = sub.add_parser("dry", help="follow a blend's composition and RED while it evaporates",
+                       description="Evaporation of a blend (Raoult's law, or Flory-Huggins with HSP): "
+                       "composition and RED versus the evaporated volume fraction, the tail solvent, and "
+                       "a warning when the liquid leaves the sphere too early.",
+                       formatter_class=argparse.RawDescriptionHelpFormatter,
+                       epilog="example:\n  likewise dry 'toluene,butyl acetate' --shares 0.4,0.6 "
+                       "--target 17.9,6.1,6.4,8.6 --keep-until 0.9")
+    p.add_argument("components", help="comma-separated liquids")
+    p.add_argument("--shares", required=True, metavar="F1,F2", help="initial volume fractions (sum 1)")
+    p.add_argument("--target", metavar="TARGET", help="'dD,dP,dH[,R0]' or a liquid name")
+    p.add_argument("--radius", type=float, metavar="R0", help="R0 for a named target")
+    p.add_argument("--at", type=float, default=25.0, metavar="C", help="temperature in C (default 25)")
+    p.add_argument("--humidity", type=float, default=0.0, metavar="PCT", help="relative humidity of the air, %% "
+                   "(acts on water only; default 0)")
+    p.add_argument("--model", choices=["raoult", "hsp"], default="raoult",
+                   help="raoult (ideal, default) or hsp (Flory-Huggins activity from Hansen parameters)")
+    p.add_argument("--keep-until", type=float, default=0.9, metavar="F",
+                   help="warn when RED reaches 1 before this fraction has evaporated (default 0.9)")
+    p.add_argument("--points", type=int, default=21, metavar="N", help="rows in the table (default 21)")
+    p.add_argument("--strict", action="store_true", help="exit status 1 when the warning is raised")
+    p.add_argument("--mine", metavar="CSV", help="CSV of your own liquids merged over the library")
+    add_output_args(p, default_top=None)
+    p.set_defaults(func=cmd_dry)
