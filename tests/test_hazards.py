@@ -1,0 +1,191 @@
+"""CHEM21 hazard scores and classes, the bundled GHS statement table and the hazard filter."""
+from __future__ import annotations
+
+import re
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import selector
+from selector.errors import SelectorError
+from selector.filters import filter_mask
+from selector.hazards import (HAZARD_CLASSES, combine, environment_score, hazard_columns,
+                              hazard_statements, health_score, parse_statements, safety_score)
+
+# Ranking by default of the CHEM21 guide (Prat et al., Green Chem. 18 (2016) 288-296, tables of
+# classical solvents; quoted from memory). "highly hazardous" is the guide's ranking after
+# discussion for benzene, diethyl ether and chloroform (from memory).
+PUBLISHED = {
+    "water": "recommended",
+    "ethanol": "recommended",
+    "2-propanol": "recommended",
+    "1-butanol": "recommended",
+    "ethyl acetate": "recommended",
+    "butyl acetate": "recommended",
+    "anisole": "recommended",
+    "toluene": "problematic",
+    "cyclohexane": "problematic",
+    "heptane": "problematic",
+    "2-methyltetrahydrofuran": "problematic",
+    "tetrahydrofuran": "problematic",
+    "dichloromethane": "hazardous",
+    "hexane": "hazardous",
+    "1-methyl-2-pyrrolidinone": "hazardous",
+    "n,n-dimethylformamide": "hazardous",
+    "n,n-dimethylacetamide": "hazardous",
+    "benzene": "highly hazardous",
+    "diethyl ether": "highly hazardous",
+    "chloroform": "highly hazardous",
+}
+
+# Individual scores (safety, health, environment) printed in the CHEM21 guide, from memory.
+PUBLISHED_SCORES = {
+    "ethanol": (4, 3, 3),
+    "ethyl acetate": (5, 3, 3),
+    "toluene": (5, 6, 3),
+    "dichloromethane": (1, 7, 7),
+    "acetone": (5, 3, 5),
+    "methanol": (4, 7, 5),
+    "tetrahydrofuran": (6, 7, 5),
+    "water": (1, 1, 1),
+}
+
+
+@pytest.mark.parametrize("name,cls", sorted(PUBLISHED.items()))
+def test_class_matches_published_guide(name, cls):
+    assert selector.hazard(name).hazard_class == cls
+
+
+def test_published_examples_cover_each_class():
+    counts = pd.Series(list(PUBLISHED.values())).value_counts()
+    assert counts["recommended"] >= 2 and counts["problematic"] >= 2 and counts["hazardous"] >= 2
+
+
+@pytest.mark.parametrize("name,scores", sorted(PUBLISHED_SCORES.items()))
+def test_scores_match_published_guide(name, scores):
+    r = selector.hazard(name)
+    assert (r.safety_score, r.health_score, r.environment_score) == scores
+
+
+def test_safety_table_thresholds():
+    # CHEM21 safety table (from memory): FP > 60 -> 1, 23..60 -> 3, 0..22 -> 4, -20..-1 -> 5, < -20 -> 7
+    fp = [61, 60, 23, 22, 0, -1, -20, -21, np.nan]
+    assert safety_score(fp).tolist() == [1, 3, 3, 4, 4, 5, 5, 7, 1]
+    # +1 each for AIT < 200 C, peroxide former, high resistivity, decomposition energy; capped at 10
+    assert safety_score([-45.0], [150.0], [True], [True], [True]).tolist() == [10]
+    assert safety_score([30.0], [150.0]).tolist() == [4]
+
+
+def test_health_and_environment_tables():
+    # CMR category 1 scores 9, category 2 scores 6 (CHEM21, from memory); +1 below bp 85 C
+    assert health_score(("H360D",), 150.0) == 9
+    assert health_score(("H351",), 150.0) == 6
+    assert health_score(("H351",), 40.0) == 7
+    assert health_score((), 150.0) == 1
+    assert health_score(("H318",), 120.0) == 4
+    # boiling point bands and aquatic statements
+    assert environment_score((), 100.0) == 3
+    assert environment_score((), 60.0) == 5
+    assert environment_score((), 180.0) == 5
+    assert environment_score((), 40.0) == 7
+    assert environment_score((), 250.0) == 7
+    assert environment_score(("H412",), 100.0) == 5
+    assert environment_score(("H410",), 100.0) == 7
+    assert environment_score(("EUH420",), 100.0) == 10
+
+
+def test_combination_rules():
+    # one score >= 8 or two red (>= 7) -> hazardous; one 7 or two yellow (4-6) -> problematic
+    assert combine([8, 1, 1], [1, 7, 3], [1, 7, 3]).tolist() == ["hazardous", "hazardous", "recommended"]
+    assert combine([7, 4, 4], [1, 5, 1], [1, 1, 3]).tolist() == ["problematic", "problematic", "recommended"]
+
+
+def test_liquid_without_data_is_unclassified_not_safe():
+    lib = selector.load_library()
+    hz = hazard_columns(lib)
+    st = hazard_statements()
+    missing = ~lib["cas"].isin(st["cas"])
+    assert missing.any()
+    assert (hz.loc[missing, "hazard_class"] == "unclassified").all()
+    assert hz.loc[missing, "hazard_rank"].isna().all()
+    name = lib.loc[missing, "name"].iloc[0]
+    r = selector.hazard(name)
+    assert r.hazard_class == "unclassified" and np.isnan(r.safety_score)
+    # the hazard filter never lets an unclassified liquid through
+    m = filter_mask(lib, max_hazard_class="highly hazardous")
+    assert not (m & missing.to_numpy()).any()
+    assert m.sum() == (~missing).sum()
+
+
+def test_hazard_filter_orders_classes():
+    lib = selector.load_library()
+    hz = hazard_columns(lib)
+    counts = [int(filter_mask(lib, max_hazard_class=c).sum()) for c in HAZARD_CLASSES]
+    assert counts == sorted(counts) and counts[0] > 0
+    m = filter_mask(lib, max_hazard_class="recommended")
+    assert set(hz.loc[m, "hazard_class"]) == {"recommended"}
+    with pytest.raises(SelectorError, match="hazard class"):
+        filter_mask(lib, max_hazard_class="safe-ish")
+
+
+def _cas_ok(cas: str) -> bool:
+    # CAS check digit: weighted sum of the other digits (right to left, weights 1, 2, ...) mod 10
+    digits = cas.replace("-", "")
+    body, check = digits[:-1], int(digits[-1])
+    return sum((i + 1) * int(d) for i, d in enumerate(reversed(body))) % 10 == check
+
+
+def test_statement_table_shape_and_sources():
+    st = hazard_statements()
+    assert len(st) >= 100
+    assert st["cas"].is_unique
+    for cas in st["cas"]:
+        assert re.fullmatch(r"\d{2,7}-\d{2}-\d", cas) and _cas_ok(cas), cas
+    assert st["source"].str.contains("from memory").all()
+    assert st["source"].str.contains("safety data sheet").all()
+    codes = {c for t in st["statements"] for c in t}
+    assert all(re.fullmatch(r"(H[2-4]\d\d[A-Za-z]{0,2}|EUH\d{3})", c) for c in codes), codes
+
+
+def test_statement_table_names_agree_with_reference_library():
+    # the CAS number of every entry must name the same compound in the chemicals-built library
+    lib = selector.load_library()
+    st = hazard_statements()
+    inlib = st[st["cas"].isin(lib["cas"])]
+    assert len(inlib) >= 100
+    for r in inlib.itertuples():
+        assert selector.find_liquid(r.name, lib)["cas"] == r.cas, r.name
+
+
+def test_regulatory_flags():
+    # EU REACH Annex XVII restrictions on NMP, DMF, DMAc; 2-methoxyethanol on the SVHC Candidate
+    # List (ECHA lists, quoted from memory)
+    for name in ["NMP", "n,n-dimethylformamide", "n,n-dimethylacetamide"]:
+        assert "Annex XVII" in selector.hazard(name).regulatory_note, name
+    assert "SVHC" in selector.hazard("2-methoxyethanol").regulatory_note
+    assert "H360FD" in selector.hazard("2-methoxyethanol").statements
+
+
+def test_peroxide_formers_flagged():
+    # common practice: ethers such as THF, diethyl ether, 1,4-dioxane form peroxides (EUH019)
+    for name in ["tetrahydrofuran", "diethyl ether", "1,4-dioxane"]:
+        assert selector.hazard(name).peroxide_former, name
+    assert not selector.hazard("ethanol").peroxide_former
+
+
+def test_record_carries_sources_and_caution():
+    r = selector.hazard("toluene")
+    assert "Prat" in r.sources["method"]
+    assert "safety data sheet" in r.caution
+    assert r.sources["flash_point"].startswith("library")
+
+
+def test_bad_input():
+    with pytest.raises(SelectorError, match="unknown liquid"):
+        selector.hazard("not a solvent at all")
+    with pytest.raises(SelectorError, match="GHS"):
+        parse_statements("H225 banana")
+    # sulfolane has statements but is a solid at 25 C, so it is not in the liquid library
+    with pytest.raises(SelectorError, match="not in the liquid library"):
+        selector.hazard("sulfolane")
