@@ -16,22 +16,22 @@ import streamlit as st  # noqa: E402
 
 from lwui import common  # noqa: E402
 
-st.set_page_config(page_title="likewise · solvent choice", page_icon="⚗️", layout="wide")
+st.set_page_config(page_title="likewise · solvent choice", page_icon=":material/science:", layout="wide")
 common.init_state()
 
 V = APP_DIR / "views"
 pages = {
     "Solvent choice": [
-        st.Page(str(V / "candidates.py"), title="Ranked liquids", icon="📋", default=True,
+        st.Page(str(V / "candidates.py"), title="Ranked liquids", icon=":material/format_list_numbered:", default=True,
                 url_path="ranked"),
-        st.Page(str(V / "target.py"), title="Target", icon="🎯", url_path="target"),
-        st.Page(str(V / "blends.py"), title="Blend design", icon="⚗️", url_path="blends"),
-        st.Page(str(V / "replace.py"), title="Replace a liquid", icon="♻️", url_path="replace"),
+        st.Page(str(V / "target.py"), title="Target", icon=":material/my_location:", url_path="target"),
+        st.Page(str(V / "blends.py"), title="Blend design", icon=":material/science:", url_path="blends"),
+        st.Page(str(V / "replace.py"), title="Replace a liquid", icon=":material/swap_horiz:", url_path="replace"),
     ],
     "Checks and data": [
-        st.Page(str(V / "mixing.py"), title="Will they mix?", icon="🫗", url_path="mixing"),
-        st.Page(str(V / "sphere.py"), title="Sphere from lab tests", icon="🧫", url_path="sphere"),
-        st.Page(str(V / "mine.py"), title="My liquids", icon="🗂️", url_path="mine"),
+        st.Page(str(V / "mixing.py"), title="Will they mix?", icon=":material/water_drop:", url_path="mixing"),
+        st.Page(str(V / "sphere.py"), title="Sphere from lab tests", icon=":material/bubble_chart:", url_path="sphere"),
+        st.Page(str(V / "mine.py"), title="My liquids", icon=":material/folder_open:", url_path="mine"),
     ],
 }
 nav = st.navigation(pages)

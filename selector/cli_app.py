@@ -22,7 +22,8 @@ def app_command(port: int = 8501, entry: Path | None = None) -> list[str]:
     entry = Path(entry) if entry is not None else ENTRY
     return [sys.executable, "-m", "streamlit", "run", str(entry),
             "--server.address", "127.0.0.1", "--server.port", str(port),
-            "--server.headless", "true", "--browser.gatherUsageStats", "false"]
+            "--server.headless", "true", "--browser.gatherUsageStats", "false",
+            "--client.toolbarMode", "minimal"]
 
 
 def cmd_app(a) -> int:

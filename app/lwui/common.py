@@ -157,7 +157,7 @@ def call(fn, *args, **kwargs):
 def demo_banner() -> None:
     if is_demo():
         st.info("**Invented demo.** " + demo()["label"] + " Define your own target on the *Target* page.",
-                icon="🧪")
+                icon=":material/science:")
 
 
 def target_line() -> None:
@@ -254,7 +254,7 @@ def with_hazards(df: pd.DataFrame) -> pd.DataFrame:
 
 def cautions(liquids: pd.DataFrame, *, title: str = "Safety notes for the liquids shown") -> pd.DataFrame:
     """General caution plus a per-liquid table (flammability class, exposure limit, hazard class)."""
-    st.warning("**Before you use any of these:** " + GENERAL_CAUTION, icon="⚠️")
+    st.warning("**Before you use any of these:** " + GENERAL_CAUTION, icon=":material/warning:")
     ct = caution_table(with_hazards(liquids))
     with st.expander(title, expanded=False):
         st.dataframe(ct, hide_index=True, width="stretch", column_config={

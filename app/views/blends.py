@@ -33,7 +33,8 @@ def freeze(f: dict):
 filters, temp = common.filter_panel("bl")
 with st.form("bl_form"):
     c1, c2, c3 = st.columns(3)
-    ncomp = c1.radio("Liquids per blend", [2, 3], index=1, horizontal=True, key="bl_n")
+    ncomp = c1.radio("Liquids per blend (at most)", [2, 3], index=0, horizontal=True, key="bl_n",
+                     help="three-liquid designs search far more mixtures: narrow the filters first")
     minf = c2.number_input("Smallest share (volume fraction)", 0.01, 0.45, 0.05, 0.01, key="bl_min",
                            help="no component below this share")
     top = c3.number_input("Blends to show", 5, 100, 20, 5, key="bl_top")

@@ -31,6 +31,29 @@ def matrix(liqs, t):
     return selector.miscibility_matrix(list(liqs), temperature=t)
 
 
+def _phases(bi: dict):
+    """(low, high) volume fractions of the first liquid in the two coexisting phases."""
+    pa = bi.get("phi_a", np.nan)
+    if isinstance(pa, (tuple, list)):
+        return float(pa[0]), float(pa[1])
+    return float(pa), float(bi.get("phi_b", np.nan))
+
+
+def _solubilities(bi: dict, a: str, b: str):
+    out = []
+    for k, v in bi.items():
+        if not isinstance(v, dict) or "wt_pct" not in v:
+            continue
+        if k == "a_in_b":
+            k = f"solubility of {a} in {b}"
+        elif k == "b_in_a":
+            k = f"solubility of {b} in {a}"
+        elif not k.startswith("solubility of"):
+            continue
+        out.append((k, v))
+    return out
+
+
 @st.cache_data(show_spinner=False, max_entries=128)
 def phase_sweep(a, b, n=41):
     """selector.miscibility over the common liquid range of the pair (for the phase diagram)."""
@@ -42,9 +65,9 @@ def phase_sweep(a, b, n=41):
     for T in np.linspace(lo, hi, n):  # a few temperatures, not the library
         m = selector.miscibility(a, b, temperature=float(T), library=lib)
         bi, sp = m.binodal or {}, m.spinodal or (np.nan, np.nan)
-        rows.append({"temperature_c": float(T), "binodal_low": bi.get("phi_a", np.nan),
-                     "binodal_high": bi.get("phi_b", np.nan), "spinodal_low": sp[0], "spinodal_high": sp[1],
-                     "state": m.state})
+        lo, hi = _phases(bi)
+        rows.append({"temperature_c": float(T), "binodal_low": lo, "binodal_high": hi,
+                     "spinodal_low": sp[0], "spinodal_high": sp[1], "state": m.state})
     return pd.DataFrame(rows)
 
 
@@ -78,7 +101,7 @@ with tab1:
             st.caption("• " + str(note))
         bi = getattr(r, "binodal", None)
         if isinstance(bi, dict):
-            sol = [(k, v) for k, v in bi.items() if k.startswith("solubility of") and isinstance(v, dict)]
+            sol = _solubilities(bi, r.a, r.b)
             if sol:
                 st.table(pd.DataFrame([{"": k, "wt %": f"{v['wt_pct']:.2g}", "vol %": f"{v['vol_pct']:.2g}",
                                         "mol %": f"{v['mol_pct']:.2g}"} for k, v in sol]).set_index(""))
@@ -93,7 +116,7 @@ with tab1:
         elif sweep is not None:
             st.caption("No miscibility gap anywhere in the liquid range of the pair (model estimate).")
         st.warning("A phase split can also hide a reaction, a hazard or an azeotrope; the safety data "
-                   "sheet and a small-scale test come first.", icon="⚠️")
+                   "sheet and a small-scale test come first.", icon=":material/warning:")
 
 with tab2:
     default = [n for n in ["water", "methanol", "ethanol", "acetone", "toluene", "hexane", "ethyl acetate",

@@ -17,7 +17,7 @@ default = common.demo().get("current_solvent", "toluene") if common.is_demo() el
 old = st.selectbox("Liquid to replace", names, index=names.index(default) if default in names else 0,
                    key="rp_old")
 if common.is_demo():
-    st.info("Invented demo: the co-op thins its (invented) varnish with toluene today.", icon="🧪")
+    st.info("Invented demo: the co-op thins its (invented) varnish with toluene today.", icon=":material/science:")
 filters, temp = common.filter_panel("rp", temperature=False)
 
 

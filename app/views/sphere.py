@@ -24,15 +24,22 @@ def demo_tests():
     return pd.read_csv(DEMO)
 
 
-@st.cache_data(show_spinner="Fitting the sphere…", max_entries=32)
-def fit(csv_text, bootstrap, seed):
-    return selector.fit_sphere(pd.read_csv(io.StringIO(csv_text)), seed=seed, bootstrap=bootstrap)
+@st.cache_resource(show_spinner="Fitting the sphere…", max_entries=32)
+def fit(csv_text, bootstrap, seed, threshold, two):
+    try:
+        df = pd.read_csv(io.StringIO(csv_text))
+    except (pd.errors.ParserError, pd.errors.EmptyDataError) as e:
+        raise selector.SelectorError(f"the lab-test table is not readable: {str(e).splitlines()[0]}") from None
+    if threshold is not None:
+        df = df.drop(columns=[c for c in df.columns if c.lower() in ("dissolved", "outcome", "result", "good")])
+    return selector.fit_sphere(df, seed=seed, bootstrap=bootstrap, threshold=threshold, two_spheres=two,
+                               library=common.library())
 
 
 src = st.radio("Lab results", ["Invented demo results", "Upload a CSV", "Type them in"], horizontal=True,
                key="sp_src")
 if src == "Invented demo results":
-    st.info("**Invented demo data** for the invented FV-3 resin - not measured results.", icon="🧪")
+    st.info("**Invented demo data** for the invented FV-3 resin - not measured results.", icon=":material/science:")
     base = demo_tests()
 elif src == "Upload a CSV":
     up = st.file_uploader("CSV with columns solvent and dissolved (true/false) or score", type=["csv", "txt"],
@@ -56,10 +63,16 @@ tests = st.data_editor(base, num_rows="dynamic", width="stretch", key=f"sp_ed_{s
                        column_config={"solvent": st.column_config.TextColumn("solvent", help="name, CAS or SMILES"),
                                       "dissolved": st.column_config.CheckboxColumn("dissolved"),
                                       "score": st.column_config.NumberColumn("score", help="graded result, optional")})
-c1, c2 = st.columns(2)
+c1, c2, c3, c4 = st.columns(4)
 boot = c1.select_slider("Bootstrap resamples (for the intervals)", [0, 25, 50, 100, 200], value=50, key="sp_boot")
 seed = c2.number_input("Random seed", 0, 10_000, 0, key="sp_seed")
-res = common.call(fit, tests.dropna(how="all").to_csv(index=False), int(boot), int(seed))
+graded = c3.checkbox("Use the score column as grades", value=False, key="sp_graded",
+                     help="grade at or above the pass mark counts as good; higher grades = further inside")
+thr = c3.number_input("Pass mark", value=4.0, step=0.5, key="sp_thr", disabled=not graded)
+two = c4.checkbox("Allow two spheres", value=False, key="sp_two",
+                  help="for block copolymers and surfactants; adopted only when the BIC says so")
+res = common.call(fit, tests.dropna(how="all").to_csv(index=False), int(boot), int(seed),
+                  float(thr) if graded else None, bool(two))
 if res is None:
     st.stop()
 
@@ -105,6 +118,8 @@ lib = common.library()
 tested = getattr(res, "tests", None)
 if not isinstance(tested, pd.DataFrame) or not {"delta_d", "good"} <= set(tested.columns):
     tested = None
+elif "name" not in tested.columns:
+    tested = tested.rename(columns={"label": "name"})
 spheres = [(f"sphere {i + 1}", (s.delta_d, s.delta_p, s.delta_h), s.radius)
            for i, s in enumerate(getattr(res, "spheres", []) or [])] or \
           [("fitted sphere", (res.delta_d, res.delta_p, res.delta_h), res.radius)]

@@ -1,0 +1,343 @@
+"""The web app, page by page, with Streamlit's AppTest; plus the report builder and ``likewise app``.
+
+Outputs of each page are checked against the library function the page calls (the page must
+show what :mod:`selector` computes) and against facts of the trade cited beside each check.
+"""
+from __future__ import annotations
+
+import importlib.util
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import selector
+from selector.report import build_report, caution_table, flammability_category
+
+ROOT = Path(__file__).resolve().parent.parent
+ENTRY = str(ROOT / "app" / "likewise_app.py")
+# Polystyrene sphere (dD 21.3, dP 5.8, dH 4.3, R0 12.7 MPa^0.5), from memory of Hansen's
+# handbook (2nd ed., 2007), as in tests/test_ranking.py.
+PS = (21.3, 5.8, 4.3, 12.7)
+
+AppTest = pytest.importorskip("streamlit.testing.v1").AppTest
+
+
+def has(module: str) -> bool:
+    return importlib.util.find_spec(f"selector.{module}") is not None
+
+
+@pytest.fixture
+def home(tmp_path, monkeypatch):
+    monkeypatch.setenv("LIKEWISE_HOME", str(tmp_path))
+    return tmp_path
+
+
+@pytest.fixture
+def at(home):
+    a = AppTest.from_file(ENTRY, default_timeout=60)
+    a.run()
+    assert not a.exception, [e.value for e in a.exception]
+    return a
+
+
+def go(at, page: str):
+    at.switch_page(f"views/{page}.py").run()
+    assert not at.exception, [e.value for e in at.exception]
+    return at
+
+
+def errors(at):
+    return [e.value for e in at.error]
+
+
+def top_names(at, i=0):
+    """Liquid names of the readable top-five table (st.table) number ``i``."""
+    df = at.table[i].value
+    col = "Liquid" if "Liquid" in df.columns else df.columns[0]
+    return list(df[col]) if col in df.columns else list(df.index)
+
+
+def set_typed_target(at, values, name="polystyrene"):
+    go(at, "target")
+    at.text_input(key="tg_name").set_value(name)
+    nums = [n for n in at.number_input if n.label.startswith(("dD", "dP", "dH", "R0 (MPa"))]
+    for n, v in zip(nums[:4], values):
+        n.set_value(float(v))
+    at.button[[b.label for b in at.button].index("Use these numbers")].click().run()
+    assert not at.exception
+    return at
+
+
+# ---------------------------------------------------------------- landing page (demo)
+
+def test_opens_on_invented_demo_with_rank_result(at):
+    # the landing page shows the invented scenario, labelled so, and the ranking the library computes
+    assert any("INVENTED" in i.value for i in at.info)
+    sc = selector.cli_core.demo_scenario() if hasattr(selector, "cli_core") else None
+    from selector.cli_core import demo_scenario
+
+    sc = demo_scenario()
+    r = sc["resin"]
+    ref = selector.rank((r["delta_d"], r["delta_p"], r["delta_h"], r["radius"]),
+                        boiling_point_c=tuple(sc["filters"]["boiling_point_c"]),
+                        min_flash_point_c=sc["filters"]["min_flash_point_c"])
+    assert top_names(at) == list(ref["name"].head(5))
+    shown = at.dataframe[0].value
+    assert list(shown["name"].head(25)) == list(ref["name"].head(25))
+    np.testing.assert_allclose(shown["red"].to_numpy(float), ref["red"].head(len(shown)).to_numpy(float))
+    # the usual cautions are shown next to a recommendation
+    assert any("safety data sheet" in w.value for w in at.warning)
+
+
+def test_polystyrene_target_ranks_like_the_library_and_common_practice(at):
+    set_typed_target(at, PS)
+    go(at, "candidates")
+    at.number_input(key="rank_bplo").set_value(99.0)
+    at.number_input(key="rank_bphi").set_value(120.0)
+    at.slider(key="rank_n").set_value(100).run()
+    shown = at.dataframe[0].value.set_index("name")
+    ref = selector.rank(PS, boiling_point_c=(99.0, 120.0))
+    assert top_names(at) == list(ref["name"].head(5))
+    assert list(shown.index) == list(ref["name"].head(len(shown)))
+    # Common practice: polystyrene dissolves in toluene (bp 111 C), not in water (bp 100 C).
+    assert shown.loc["toluene", "red"] < 1
+    assert shown.loc["water", "red"] > 1
+    assert list(shown.index).index("toluene") < list(shown.index).index("water")
+
+
+def test_flash_point_filter_applies(at):
+    set_typed_target(at, PS)
+    go(at, "candidates")
+    at.number_input(key="rank_fp").set_value(60.0).run()
+    shown = at.dataframe[0].value
+    assert (shown["flash_point_c"] >= 60).all()
+    ref = selector.rank(PS, min_flash_point_c=60)
+    assert list(shown["name"]) == list(ref["name"].head(len(shown)))
+
+
+def test_temperature_and_polarity_weight_reach_rank(at):
+    set_typed_target(at, PS)
+    go(at, "candidates")
+    at.number_input(key="rank_t").set_value(60.0)
+    at.slider(key="rank_w").set_value(0.0).run()
+    ref = selector.rank(PS, temperature=60.0, polarity_weight=0.0)
+    assert top_names(at) == list(ref["name"].head(5))
+
+
+def test_bad_filter_shows_error_not_traceback(at):
+    go(at, "candidates")
+    at.number_input(key="rank_bplo").set_value(300.0)
+    at.number_input(key="rank_bphi").set_value(100.0).run()
+    assert not at.exception
+    assert any("low" in e and "above high" in e for e in errors(at))
+
+
+# ---------------------------------------------------------------- target page
+
+def test_library_liquid_as_target(at):
+    go(at, "target")
+    at.text_input(key="tg_q").set_value("108-88-3")  # toluene's CAS number
+    at.button(key="tg_use_liq").click().run()
+    t = at.session_state["lw_target"]
+    # toluene: dD 18.0, dP 1.4, dH 2.0 MPa^0.5 (Hansen's handbook, from memory)
+    assert (t["name"], t["delta_d"], t["delta_p"], t["delta_h"]) == ("toluene", 18.0, 1.4, 2.0)
+    go(at, "candidates")
+    ref = selector.rank("toluene")
+    assert top_names(at) == list(ref["name"].head(5))
+
+
+def test_unknown_liquid_is_an_error_message(at):
+    go(at, "target")
+    at.text_input(key="tg_q").set_value("unobtainium oil")
+    at.button(key="tg_use_liq").click().run()
+    assert not at.exception
+    assert any("unknown liquid" in e for e in errors(at))
+
+
+@pytest.mark.skipif(not has("estimation"), reason="selector.estimation not installed")
+def test_smiles_estimate_and_invalid_smiles(at):
+    go(at, "target")
+    at.text_input(key="tg_smiles").set_value("CCCCOC(C)=O").run()  # n-butyl acetate
+    assert not at.exception
+    est = selector.estimate("CCCCOC(C)=O")
+    shown = at.dataframe[0].value
+    assert float(shown["delta_d"].iloc[0]) == pytest.approx(float(est["delta_d"].iloc[0]))
+    at.text_input(key="tg_smiles").set_value("C1CC(").run()
+    assert not at.exception
+    assert errors(at)
+
+
+# ---------------------------------------------------------------- miscibility
+
+@pytest.mark.skipif(not has("mixing"), reason="selector.mixing not installed")
+def test_mixing_pair_matches_library_and_trade_fact(at):
+    go(at, "mixing")
+    at.selectbox(key="mx_a").set_value("water")
+    at.selectbox(key="mx_b").set_value("hexane").run()
+    assert not at.exception
+    ref = selector.miscibility("water", "hexane")
+    state = at.metric[0].value
+    assert state == ref.state
+    # Common practice: water and hexane do not mix.
+    assert state == "immiscible"
+    at.selectbox(key="mx_b").set_value("ethanol").run()
+    # Common practice: water and ethanol mix in all proportions.
+    assert at.metric[0].value == "miscible"
+
+
+@pytest.mark.skipif(not has("mixing"), reason="selector.mixing not installed")
+def test_mixing_heat_map_and_bad_temperature(at):
+    go(at, "mixing")
+    at.multiselect(key="mx_set").set_value(["water", "hexane", "acetone"]).run()
+    assert not at.exception and not errors(at)
+    assert len(at.get("plotly_chart")) >= 1
+    at.number_input(key="mx_t2").set_value(150.0).run()  # acetone boils at 56 C
+    assert not at.exception
+    assert any("not liquid" in e or "boils" in e for e in errors(at))
+
+
+# ---------------------------------------------------------------- sphere fitting
+
+@pytest.mark.skipif(not has("spheres"), reason="selector.spheres not installed")
+def test_sphere_fit_page_matches_fit_sphere(at):
+    go(at, "sphere")
+    at.select_slider(key="sp_boot").set_value(0).run()
+    assert not at.exception, errors(at)
+    demo = pd.read_csv(ROOT / "parameters" / "demo" / "lab_tests.csv")
+    ref = selector.fit_sphere(demo, seed=0, bootstrap=0)
+    vals = {m.label: m.value for m in at.metric}
+    assert vals["R0 (MPa½)"] == f"{ref.radius:.1f}"
+    assert vals["dD (MPa½)"] == f"{ref.delta_d:.1f}"
+    at.button(key="sp_use").click().run()
+    assert at.session_state["lw_target"]["radius"] == pytest.approx(ref.radius)
+
+
+@pytest.mark.skipif(not has("spheres"), reason="selector.spheres not installed")
+def test_sphere_bad_upload_is_an_error(at):
+    go(at, "sphere")
+    at.radio(key="sp_src").set_value("Upload a CSV").run()
+    at.file_uploader(key="sp_up").upload("tests.csv", b"\x00\xff\x00garbage", "text/csv").run()
+    assert not at.exception
+    assert errors(at)
+
+
+# ---------------------------------------------------------------- blends and substitutes
+
+@pytest.mark.skipif(not has("blends"), reason="selector.blends not installed")
+def test_blend_page_matches_find_blends(at):
+    set_typed_target(at, PS)
+    go(at, "blends")
+    assert not errors(at)
+    ref = selector.find_blends(selector.Target(*PS[:3], PS[3], name="polystyrene"), max_components=2,
+                               min_fraction=0.05, temperature=25.0, top=20)
+    first = at.table[0].value
+    label = " + ".join(f"{f:.0%} {c}" for c, f in zip(ref["components"].iloc[0], ref["fractions"].iloc[0]))
+    assert first.index[0] == label
+    assert len(first) == min(5, len(ref))
+
+
+@pytest.mark.skipif(not has("blends"), reason="selector.blends not installed")
+def test_replace_page_matches_substitutes(at):
+    go(at, "replace")
+    at.selectbox(key="rp_old").set_value("1-methyl-2-pyrrolidinone").run()
+    assert not at.exception
+    ref = selector.substitutes("1-methyl-2-pyrrolidinone")
+    shown = at.dataframe[0].value
+    assert len(shown) == len(ref)
+    assert any("safety data sheet" in w.value for w in at.warning)
+
+
+# ---------------------------------------------------------------- my liquids
+
+GOOD_CSV = b"name,delta_d,delta_p,delta_h,molar_volume\nresin thinner X,17.1,3.2,5.5,120\n"
+
+
+def test_my_liquids_import_save_and_rank(at, home):
+    go(at, "mine")
+    at.file_uploader(key="mine_up").upload("mine.csv", GOOD_CSV, "text/csv").run()
+    assert not at.exception and not errors(at)
+    at.button(key="mine_add").click().run()
+    at.button(key="mine_save").click().run()
+    assert not errors(at)
+    saved = pd.read_csv(home / "my_liquids.csv")
+    assert list(saved["name"]) == ["resin thinner X"]
+    # the saved liquid is now a candidate, ranked by the library with the merged table
+    go(at, "candidates")
+    ref = selector.rank(PS, library=selector.load_library(home / "my_liquids.csv"))
+    assert "resin thinner X" in set(ref["name"])
+
+
+def test_my_liquids_bad_upload_keeps_the_file(at, home):
+    f = home / "my_liquids.csv"
+    f.write_text("name,delta_d,delta_p,delta_h\nkeep me,16,4,4\n", encoding="utf-8")
+    before = f.read_bytes()
+    go(at, "mine")
+    # negative dP is outside the allowed range 0..40 MPa^0.5
+    at.file_uploader(key="mine_up").upload("bad.csv", b"name,delta_d,delta_p,delta_h\nx,16,-3,4\n",
+                                           "text/csv").run()
+    assert not at.exception
+    assert any("not imported" in e for e in errors(at))
+    assert f.read_bytes() == before
+
+
+# ---------------------------------------------------------------- report builder
+
+def test_flammability_categories_match_harmonised_classification():
+    # UN GHS table 2.6.1 applied to library flash and boiling points must give the categories
+    # of the harmonised EU classification (CLP Annex VI, from memory): H224 = category 1,
+    # H225 = category 2, H226 = category 3.
+    lib = selector.load_library()
+    expect = {"diethyl ether": 1, "2-methylbutane": 1, "pentane": 2, "toluene": 2, "acetone": 2,
+              "ethanol": 2, "1-butanol": 3}
+    rows = pd.DataFrame([selector.find_liquid(n, lib) for n in expect])
+    cats = flammability_category(rows["flash_point_c"], rows["boiling_point_c"])
+    for n, c, want in zip(expect, cats, expect.values()):
+        assert c.startswith(f"category {want}"), (n, c)
+        # glycerol (flash point ~ 160-200 C) is not a GHS flammable liquid (common practice)
+    gl = selector.find_liquid("glycerol", lib)
+    assert flammability_category(gl.flash_point_c, gl.boiling_point_c)[0].startswith("not classed")
+    # no flash point: unclassified, never "not flammable"
+    assert flammability_category(np.nan, 100.0)[0].startswith("unclassified")
+
+
+def test_report_contains_inputs_target_cautions_and_escapes():
+    ref = selector.rank(PS).head(5)
+    t = ref.attrs["target"]
+    md = build_report("Thinners", target=t, inputs={"temperature (C)": 25.0}, table=ref,
+                      columns=["rank", "name", "red"], liquids=ref, sources=["Hansen handbook"])
+    assert ref["name"].iloc[0] in md and "21.3" in md and "safety data sheet" in md
+    assert "category" in md  # per-liquid flammability notes
+    evil = pd.DataFrame({"name": ["<script>alert(1)</script>", "=HYPERLINK(\"x\")"], "ra": [1.0, 2.0]})
+    html = build_report("x", table=evil, fmt="html")
+    # OWASP: HTML-escape text; neutralise spreadsheet formulas with a leading apostrophe
+    assert "<script>" not in html and "&lt;script&gt;" in html
+    assert "&#x27;=HYPERLINK" in html
+    with pytest.raises(selector.SelectorError):
+        build_report("x", fmt="pdf")
+
+
+def test_caution_table_marks_unclassified():
+    df = pd.DataFrame({"name": ["a", "b"], "flash_point_c": [np.nan, 4.0], "boiling_point_c": [80.0, 111.0],
+                       "hazard_class": [None, "problematic"]})
+    ct = caution_table(df)
+    assert list(ct["hazard_class"]) == ["unclassified", "problematic"]
+    assert ct["flammability"].iloc[0].startswith("unclassified")
+    assert list(ct["exposure"]) == ["no exposure limit in the library"] * 2
+
+
+# ---------------------------------------------------------------- likewise app
+
+def test_app_command_binds_localhost(capsys):
+    from selector.cli import main
+    from selector.cli_app import ENTRY as E
+
+    assert main(["app", "--port", "8642", "--print-command"]) == 0
+    out = capsys.readouterr().out.split()
+    assert out[out.index("run") + 1] == str(E) and Path(E).exists()
+    assert out[out.index("--server.address") + 1] == "127.0.0.1"
+    assert out[out.index("--server.port") + 1] == "8642"
+    assert out[out.index("--server.headless") + 1] == "true"
+    assert out[out.index("--browser.gatherUsageStats") + 1] == "false"
+    assert main(["app", "--port", "70000"]) == 2
