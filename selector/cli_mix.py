@@ -1,0 +1,133 @@
+"""Subcommands ``mix`` (will two liquids mix?) and ``mix-grid`` (states for a set of liquids)."""
+from __future__ import annotations
+
+import argparse
+import math
+
+from .cli_common import CAUTION, add_filter_args, add_output_args, emit, filters_from_args, library_from_args
+
+PAIR_COLUMNS = ["a", "b", "temperature_c", "state", "chi", "chi_critical", "ucst_c", "confidence",
+                "a_in_b_vol_pct", "a_in_b_wt_pct", "a_in_b_mol_pct", "b_in_a_vol_pct", "b_in_a_wt_pct",
+                "b_in_a_mol_pct", "spinodal_low", "spinodal_high", "v_ref", "interaction_mpa", "model", "notes"]
+
+SHORT = {"miscible": "mix", "partially miscible": "part", "immiscible": "no"}
+
+
+def _pair_row(r) -> dict:
+    d = {k: getattr(r, k) for k in ("a", "b", "temperature_c", "state", "chi", "chi_critical", "ucst_c",
+                                    "confidence", "v_ref", "interaction_mpa", "model")}
+    for side in ("a_in_b", "b_in_a"):
+        for unit in ("vol_pct", "wt_pct", "mol_pct"):
+            d[f"{side}_{unit}"] = r.binodal[side][unit] if r.binodal else None
+    d["spinodal_low"], d["spinodal_high"] = r.spinodal if r.spinodal else (None, None)
+    d["notes"] = " | ".join(r.notes)
+    return d
+
+
+def _fmt(x, nd=2):
+    return "-" if x is None or (isinstance(x, float) and not math.isfinite(x)) else f"{x:.{nd}f}"
+
+
+def cmd_mix(a) -> int:
+    import pandas as pd
+
+    from .mixing import miscibility
+
+    lib = library_from_args(a)
+    r = miscibility(a.first, a.second, temperature=a.at, library=lib, model=a.model)
+    if a.format != "table" or a.output:
+        emit(pd.DataFrame([_pair_row(r)]), a, PAIR_COLUMNS)
+        return 0
+    print(f"{r.a} + {r.b} at {r.temperature_c:g} C: {r.state.upper()} (confidence {r.confidence})")
+    print(f"  chi {r.chi:.3f} (per {r.v_ref:.1f} cm3/mol), critical chi {r.chi_critical:.3f}; "
+          f"model: {r.model}")
+    print(f"  UCST: {_fmt(r.ucst_c, 1) + ' C' if r.ucst_c is not None else 'none in this model'}")
+    if r.binodal:
+        ab, ba = r.binodal["a_in_b"], r.binodal["b_in_a"]
+        print("  coexisting phases (binodal, equal chemical potentials):")
+        print(f"    {r.a} in the {r.b}-rich phase: {_fmt(ab['vol_pct'])} vol %, {_fmt(ab['wt_pct'])} wt %, "
+              f"{_fmt(ab['mol_pct'])} mol %")
+        print(f"    {r.b} in the {r.a}-rich phase: {_fmt(ba['vol_pct'])} vol %, {_fmt(ba['wt_pct'])} wt %, "
+              f"{_fmt(ba['mol_pct'])} mol %")
+        lo, hi = r.spinodal
+        print(f"  spinodal (volume fraction of {r.a}): {lo:.4f} .. {hi:.4f}")
+    for n in r.notes:
+        print(f"  - {n}")
+    print("\n" + CAUTION)
+    return 0
+
+
+def _names(s):
+    out = []
+    for item in s:
+        out += [x.strip() for x in item.split(",") if x.strip()]
+    return out
+
+
+def cmd_grid(a) -> int:
+    import pandas as pd
+
+    from .filters import filter_mask
+    from .library import locate_many
+    from .mixing import miscibility_matrix
+
+    lib = library_from_args(a)
+    if a.liquids:
+        df = lib.iloc[locate_many(_names(a.liquids), lib)]
+    else:
+        flt = filters_from_args(a)
+        if not flt and not a.all:
+            raise ValueError("name the liquids (e.g. water,ethanol,hexane), or use --all or a filter "
+                             "such as --only/--bp to pick them")
+        df = lib.loc[filter_mask(lib, temperature=a.at, **flt)]
+    m = miscibility_matrix(df, temperature=a.at, library=lib, model=a.model)
+    if a.long:
+        import numpy as np
+
+        iu, ju = np.triu_indices(len(m), 1)
+        st = m.to_numpy()
+        out = pd.DataFrame({"a": m.index.to_numpy()[iu], "b": m.columns.to_numpy()[ju], "state": st[iu, ju]})
+        if a.not_miscible:
+            out = out[out.state != "miscible"]
+        emit(out, a, caution=True, header=f"{len(out)} pairs at {a.at:g} C")
+        return 0
+    shown = m if a.format != "table" else m.replace(SHORT)
+    out = shown.reset_index().rename(columns={"index": "liquid"})
+    header = (f"{len(m)} liquids at {a.at:g} C; " + ("" if a.format != "table" else
+              "mix = miscible in all proportions, part = partially miscible, no = immiscible"))
+    emit(out, a, caution=True, header=header)
+    return 0
+
+
+def register(sub) -> None:
+    p = sub.add_parser("mix", help="will two liquids mix? state, chi, UCST, phase compositions",
+                       description="Predict whether two liquids stay one phase at a temperature: state, "
+                       "Flory-Huggins chi and its critical value, UCST, the coexisting compositions "
+                       "(vol/wt/mol %) and the spinodal, with a confidence level.",
+                       formatter_class=argparse.RawDescriptionHelpFormatter,
+                       epilog="examples:\n  likewise mix water 'ethyl acetate'\n"
+                       "  likewise mix methanol hexane --at 35 --format json")
+    p.add_argument("first", help="liquid name, synonym, CAS number or SMILES")
+    p.add_argument("second", help="liquid name, synonym, CAS number or SMILES")
+    p.add_argument("--at", type=float, default=25.0, metavar="C", help="temperature in C (default 25)")
+    p.add_argument("--model", choices=["hbond", "plain"], default="hbond",
+                   help="hbond (default: donor/acceptor-aware) or plain (Hansen Flory-Huggins)")
+    p.add_argument("--mine", metavar="CSV", help="CSV of your own liquids merged over the library")
+    add_output_args(p, default_top=None)
+    p.set_defaults(func=cmd_mix)
+
+    p = sub.add_parser("mix-grid", help="miscibility states for every pair of a set of liquids",
+                       description="States (miscible / partially miscible / immiscible) for every pair of the "
+                       "chosen liquids, up to the whole library.",
+                       formatter_class=argparse.RawDescriptionHelpFormatter,
+                       epilog="examples:\n  likewise mix-grid water,ethanol,hexane,toluene\n"
+                       "  likewise mix-grid --all --long --not-miscible --format csv -o gaps.csv")
+    p.add_argument("liquids", nargs="*", help="liquids (names/CAS, comma- or space-separated)")
+    p.add_argument("--all", action="store_true", help="every liquid in the library (after filters)")
+    p.add_argument("--long", action="store_true", help="one row per pair instead of a square table")
+    p.add_argument("--not-miscible", action="store_true", help="with --long: only pairs that split")
+    p.add_argument("--at", type=float, default=25.0, metavar="C", help="temperature in C (default 25)")
+    p.add_argument("--model", choices=["hbond", "plain"], default="hbond", help="hbond (default) or plain")
+    add_filter_args(p)
+    add_output_args(p, default_top=None)
+    p.set_defaults(func=cmd_grid)

@@ -1,0 +1,305 @@
+"""Accuracy of the miscibility models on the reference pairs; writes parameters/miscibility_accuracy.md.
+
+Run ``python -m selector.mixing_report`` (about a minute; needs ``thermo`` for UNIFAC).
+
+What it measures, on ``parameters/miscibility_pairs.csv`` (miscible in all proportions at 25 C
+or not; and, where the source gives it, the three-way state by the 1 wt % rule of
+:mod:`selector.mixing`):
+
+* the donor/acceptor model with the bundled numbers (:data:`selector.mixing.HBOND`, fitted on
+  all pairs: an in-sample figure);
+* leave-one-liquid-out: for every liquid, all pairs that contain it are held out, the four
+  numbers are refitted on the remaining pairs (:mod:`selector.mixing_fit`) and the held-out
+  pairs are predicted. Each pair is held out twice (once per liquid); both predictions count;
+* the plain Hansen Flory-Huggins form (nothing fitted);
+* UNIFAC, original (Fredenslund, Jones & Prausnitz, AIChE J. 21 (1975) 1086; parameters as
+  carried by ``thermo.unifac``, UFSG/UFIP) and Dortmund (Weidlich & Gmehling, Ind. Eng. Chem.
+  Res. 26 (1987) 1372; ``thermo.unifac`` DOUFSG/DOUFIP2016), with groups from
+  ``thermo.Chemical(cas).UNIFAC_groups`` / ``UNIFAC_Dortmund_groups``. A pair splits when the
+  Gibbs energy of mixing g(x) = GE/RT + x ln x + (1 - x) ln(1 - x) on a fine grid lies above its
+  lower convex hull (the common-tangent construction); the hull segment spanning the gap gives
+  the two phase compositions. Pairs with a missing group or group-interaction parameter are
+  not covered and are reported as such.
+"""
+from __future__ import annotations
+
+import math
+import sys
+import time
+
+import numpy as np
+import pandas as pd
+
+from .library import PARAMETERS_DIR, load_library
+from .mixing import (HBOND, PLAIN, MixingModel, _arrays, _classify, _compute, mole_to_mass,
+                     ucst)
+from .mixing_fit import GridScores, features
+
+REPORT_MD = PARAMETERS_DIR / "miscibility_accuracy.md"
+
+
+# ---------------------------------------------------------------- the HSP models
+
+def predict_states(model: MixingModel, f, rows=None) -> np.ndarray:
+    """Three-way states at 25 C for the reference pairs ``rows`` (default all) under ``model``."""
+    lib = load_library()
+    h, v, s, m, al = _arrays(lib)
+    idx = np.arange(len(f.ia)) if rows is None else np.asarray(rows)
+    ia, ib = f.ia[idx], f.ib[idx]
+    _, _, _, _, _, _, pa, pb = _compute(h[ia], h[ib], s[ia], s[ib], v[ia], v[ib], 25.0, model)
+    return _classify(pa, pb, v[ia], v[ib], m[ia], m[ib])
+
+
+def leave_one_liquid_out(f, gs: GridScores):
+    """(per-prediction table, parameters per fold) for the leave-one-liquid-out protocol."""
+    pairs = f.pairs
+    liquids = sorted(set(pairs["cas_a"]) | set(pairs["cas_b"]))
+    names = dict(zip(pairs["cas_a"], pairs["liquid_a"])) | dict(zip(pairs["cas_b"], pairs["liquid_b"]))
+    rows, folds = [], []
+    for c in liquids:
+        test = ((pairs["cas_a"] == c) | (pairs["cas_b"] == c)).to_numpy()
+        wp, wh, k, vmin = gs.best(~test)
+        mdl = MixingModel("fold", 1.0, wp, wh, k, vmin)
+        idx = np.flatnonzero(test)
+        st = predict_states(mdl, f, idx)
+        folds.append({"held_out": names[c], "pairs": int(test.sum()), "w_p": wp, "w_h": wh,
+                      "k_cross": k, "v_min": vmin})
+        for i, s_ in zip(idx, st):
+            rows.append({"pair": i, "held_out": names[c], "state": s_,
+                         "right": (s_ == "miscible") == bool(f.miscible[i])})
+    return pd.DataFrame(rows), pd.DataFrame(folds)
+
+
+# ---------------------------------------------------------------- UNIFAC
+
+def _unifac_tables(version):
+    from thermo import unifac as U
+
+    if version == 0:
+        return U.UFSG, U.UFIP
+    return U.DOUFSG, U.DOUFIP2016
+
+
+def _covered(groups, version) -> str | None:
+    """None if every group and group pair has parameters, else the reason."""
+    sg, ip = _unifac_tables(version)
+    if not groups or any(not g for g in groups):
+        return "no group assignment"
+    mains = set()
+    for g in groups:
+        for k in g:
+            if k not in sg:
+                return f"subgroup {k} without parameters"
+            mains.add(sg[k].main_group_id)
+    for a in mains:
+        for b in mains:
+            if a != b and (a not in ip or b not in ip[a]):
+                return f"no interaction parameters for main groups {a}-{b}"
+    return None
+
+
+def _lower_hull(x, y):
+    """Indices of the lower convex hull of points sorted by x (Andrew's monotone chain)."""
+    hull: list[int] = []
+    for i in range(len(x)):
+        while len(hull) >= 2:
+            i1, i2 = hull[-2], hull[-1]
+            if (x[i2] - x[i1]) * (y[i] - y[i1]) - (y[i2] - y[i1]) * (x[i] - x[i1]) <= 0:
+                hull.pop()
+            else:
+                break
+        hull.append(i)
+    return hull
+
+
+#: Mole-fraction grid for the tangent construction: logit-spaced, 1e-8 .. 1 - 1e-8.
+_XGRID = 1.0 / (1.0 + np.exp(-np.linspace(-18.4, 18.4, 401)))
+
+
+def unifac_split(groups, T=298.15, version=0):
+    """(x_a, x_b) coexisting mole fractions of liquid 1 by the convex-hull construction, or None."""
+    from thermo.unifac import UNIFAC
+
+    model = UNIFAC.from_subgroups(T=T, xs=[0.5, 0.5], chemgroups=groups, version=version)
+    x = _XGRID
+    ge = np.array([model.to_T_xs(T, [xi, 1.0 - xi]).GE() for xi in x])
+    g = ge / (8.314462618 * T) + x * np.log(x) + (1 - x) * np.log1p(-x)
+    hull = _lower_hull(x, g)
+    best = None
+    for i1, i2 in zip(hull[:-1], hull[1:]):
+        if i2 - i1 < 2:
+            continue
+        seg = slice(i1 + 1, i2)
+        line = g[i1] + (g[i2] - g[i1]) * (x[seg] - x[i1]) / (x[i2] - x[i1])
+        if np.max(g[seg] - line) > 1e-7:
+            if best is None or x[i2] - x[i1] > best[1] - best[0]:
+                best = (x[i1], x[i2])
+    return best
+
+
+def unifac_states(f, version) -> pd.DataFrame:
+    from thermo import Chemical
+
+    lib = load_library()
+    mm = lib["molar_mass"].to_numpy(float)
+    cache: dict[str, dict | None] = {}
+
+    def groups(cas):
+        if cas not in cache:
+            try:
+                c = Chemical(cas)
+                cache[cas] = c.UNIFAC_groups if version == 0 else c.UNIFAC_Dortmund_groups
+            except Exception:  # thermo could not build the chemical: not covered
+                cache[cas] = None
+        return cache[cas]
+
+    out = []
+    for k, (a, b) in enumerate(zip(f.pairs["cas_a"], f.pairs["cas_b"])):
+        gr = [groups(a), groups(b)]
+        why = _covered(gr, version)
+        if why is not None:
+            out.append({"pair": k, "covered": False, "why": why, "state": ""})
+            continue
+        split = unifac_split(gr, version=version)
+        if split is None:
+            out.append({"pair": k, "covered": True, "why": "", "state": "miscible"})
+            continue
+        m1, m2 = mm[f.ia[k]], mm[f.ib[k]]
+        w_a = float(mole_to_mass(split[0], m1, m2))
+        w_b = float(mole_to_mass(split[1], m1, m2))
+        smaller = min(100 * w_a, 100 * (1 - w_b))
+        from .mixing import IMMISCIBLE_BELOW_WT_PCT
+
+        state = "immiscible" if smaller < IMMISCIBLE_BELOW_WT_PCT else "partially miscible"
+        out.append({"pair": k, "covered": True, "why": "", "state": state})
+    return pd.DataFrame(out)
+
+
+# ---------------------------------------------------------------- report
+
+def _pct(x):
+    return f"{100 * x:.1f} %"
+
+
+def _acc(states, truth):
+    return float(np.mean((np.asarray(states) == "miscible") == np.asarray(truth)))
+
+
+def _acc3(states, truth3):
+    t = np.asarray(truth3)
+    k = t != ""
+    return float(np.mean(np.asarray(states)[k] == t[k])), int(k.sum())
+
+
+def build_report(with_unifac: bool = True) -> str:
+    t0 = time.time()
+    f = features()
+    gs = GridScores(f)
+    pairs = f.pairs
+    truth3 = pairs["state_25c"].to_numpy()
+    n = len(pairs)
+    fitted_all = gs.best(np.ones(n, bool))
+
+    st_h = predict_states(HBOND, f)
+    st_p = predict_states(PLAIN, f)
+    lolo, folds = leave_one_liquid_out(f, gs)
+    lolo_acc = float(lolo["right"].mean())
+    both = lolo.groupby("pair")["right"].all()
+    lolo3 = lolo.assign(truth=truth3[lolo["pair"]])
+    k3 = lolo3["truth"] != ""
+    lolo3_acc = float((lolo3.loc[k3, "state"] == lolo3.loc[k3, "truth"]).mean())
+
+    lines = ["# Miscibility: accuracy on the reference pairs", "",
+             "Generated by `python -m selector.mixing_report`; do not edit by hand.", "",
+             f"Reference set: `parameters/miscibility_pairs.csv`, {n} pairs of {len(set(pairs.cas_a) | set(pairs.cas_b))} "
+             f"liquids ({int(f.miscible.sum())} miscible in all proportions at 25 C, {int((~f.miscible).sum())} not; "
+             f"{int((truth3 != '').sum())} with a three-way state). Sources: see `parameters/miscibility_pairs.md`.", "",
+             "Miscible-or-not accuracy at 25 C (three-way state accuracy where the source gives it):", "",
+             "| model | pairs covered | miscible or not | three-way state |",
+             "|---|---|---|---|"]
+    a3h, n3 = _acc3(st_h, truth3)
+    a3p, _ = _acc3(st_p, truth3)
+    lines.append(f"| donor/acceptor Flory-Huggins, leave-one-liquid-out ({len(lolo)} held-out predictions) | {n} | "
+                 f"**{_pct(lolo_acc)}** (pairs right in both folds: {_pct(float(both.mean()))}) | {_pct(lolo3_acc)} |")
+    lines.append(f"| donor/acceptor Flory-Huggins, bundled numbers (in-sample) | {n} | {_pct(_acc(st_h, f.miscible))} | "
+                 f"{_pct(a3h)} ({n3} pairs) |")
+    lines.append(f"| plain Hansen Flory-Huggins (nothing fitted) | {n} | {_pct(_acc(st_p, f.miscible))} | {_pct(a3p)} |")
+    unifac_rows = {}
+    if with_unifac:
+        for version, label in ((0, "UNIFAC original (thermo UFSG/UFIP)"),
+                               (1, "UNIFAC Dortmund (thermo DOUFSG/DOUFIP2016)")):
+            u = unifac_states(f, version)
+            unifac_rows[version] = u
+            cov = u["covered"].to_numpy()
+            sub = u[cov]
+            acc = _acc(sub["state"], f.miscible[sub["pair"]]) if len(sub) else math.nan
+            a3, n3u = _acc3(sub["state"], truth3[sub["pair"]])
+            hb_same = _acc(st_h[sub["pair"]], f.miscible[sub["pair"]])
+            lines.append(f"| {label} | {int(cov.sum())} of {n} | {_pct(acc)} (bundled donor/acceptor model on the same "
+                         f"pairs: {_pct(hb_same)}) | {_pct(a3)} ({n3u} pairs) |")
+    lines += ["", f"Bundled numbers (`selector.mixing.HBOND`): w_p = {HBOND.w_p:g}, w_h = {HBOND.w_h:g}, "
+              f"K = {HBOND.k_cross:g} J cm3/mol2, V_min = {HBOND.v_min:g} cm3/mol; a fit on all pairs now gives "
+              f"w_p = {fitted_all[0]:g}, w_h = {fitted_all[1]:g}, K = {fitted_all[2]:g}, V_min = {fitted_all[3]:g}.", ""]
+    lines += ["Fold-to-fold spread of the refitted numbers (leave-one-liquid-out): "
+              + ", ".join(f"{c} {folds[c].min():g}..{folds[c].max():g} (median {folds[c].median():g})"
+                          for c in ("w_p", "w_h", "k_cross", "v_min")) + ".", ""]
+
+    # confidence calibration
+    from .mixing import miscibility
+
+    conf = []
+    for r in pairs.itertuples():
+        res = miscibility(r.cas_a, r.cas_b)
+        conf.append((res.confidence, (res.state == "miscible") == (r.miscible_25c == "yes")))
+    cdf = pd.DataFrame(conf, columns=["confidence", "right"])
+    lines += ["Confidence levels of `miscibility()` against the reference pairs (bundled numbers):", "",
+              "| confidence | pairs | right |", "|---|---|---|"]
+    for lev in ("high", "medium", "low"):
+        s = cdf[cdf.confidence == lev]
+        lines.append(f"| {lev} | {len(s)} | {_pct(s.right.mean()) if len(s) else '-'} |")
+    lines.append("")
+
+    # UCST table
+    lines += ["Upper critical solution temperatures (published values from memory, see the pairs file; the "
+              "methanol-hexane value is never used in a fit):", "", "| pair | published, C | model, C |", "|---|---|---|"]
+    lib = load_library()
+    h, v, s, _, al = _arrays(lib)
+    for k in np.flatnonzero(pairs["ucst_c"].notna().to_numpy()):
+        i, j = f.ia[k], f.ib[k]
+        u = float(ucst(h[i], h[j], s[i], s[j], v[i], v[j], HBOND, al[i], al[j]))
+        lines.append(f"| {pairs.liquid_a[k]} - {pairs.liquid_b[k]} | {pairs.ucst_c[k]:g} | "
+                     f"{'none' if not math.isfinite(u) else f'{u:.1f}'} |")
+    lines.append("")
+
+    # wrong pairs
+    lines += ["Pairs the bundled model gets wrong (miscible or not):", ""]
+    for k in range(n):
+        if (st_h[k] == "miscible") != bool(f.miscible[k]):
+            lines.append(f"- {pairs.liquid_a[k]} - {pairs.liquid_b[k]}: reference "
+                         f"{pairs.state_25c[k] or ('miscible' if f.miscible[k] else 'not miscible')}, model {st_h[k]}")
+    lines.append("")
+    if with_unifac:
+        for version, label in ((0, "original"), (1, "Dortmund")):
+            u = unifac_rows[version]
+            nc = u[~u["covered"]]
+            if len(nc):
+                lines.append(f"UNIFAC {label}: pairs not covered: " + "; ".join(
+                    f"{pairs.liquid_a[r.pair]} - {pairs.liquid_b[r.pair]} ({r.why})" for r in nc.itertuples()) + ".")
+                lines.append("")
+    lines.append(f"Run time {time.time() - t0:.0f} s.")
+    return "\n".join(lines) + "\n"
+
+
+def main(argv=None) -> int:
+    from .io import write_atomic
+
+    argv = sys.argv[1:] if argv is None else argv
+    text = build_report(with_unifac="--no-unifac" not in argv)
+    if "--print-only" not in argv:
+        write_atomic(REPORT_MD, text)
+    print(text)
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())
