@@ -444,6 +444,13 @@ def _best_radius(q, wm, good):
     ``wm`` weights and ``good`` flags broadcast to ``q``. Returns (R, S): the smallest R0 that
     minimises the summed loss S (see module doc: slope = W(q <= R) - G).
     """
+    if np.all(wm == 1.0):
+        # unit weights: the optimum is the G-th smallest distance (G = number of goods)
+        G = np.broadcast_to(good, q.shape[:-1] + np.shape(good)[-1:]).sum(-1)
+        g0 = int(G.flat[0])
+        if np.all(G == g0) and 1 <= g0:
+            R = np.partition(q, g0 - 1, axis=-1)[..., g0 - 1]
+            return R, _loss_at(q, wm, good, R)
     wm = np.broadcast_to(wm, q.shape)
     good = np.broadcast_to(good, q.shape)
     order = np.argsort(q, axis=-1, kind="stable")
@@ -457,8 +464,13 @@ def _best_radius(q, wm, good):
 
 def _dist(C, P, m):
     """Rescaled distances q (..., M, n) from centres C (..., M, 3) to points P (..., n, 3)."""
-    d = np.sqrt(((C[..., :, None, :] - P[..., None, :, :]) ** 2).sum(-1))
-    return d / m[..., None, :]
+    ref = P.mean(-2, keepdims=True)  # centring keeps the expanded form accurate
+    C = C - ref
+    P = P - ref
+    cc = (C * C).sum(-1)[..., :, None]
+    pp = (P * P).sum(-1)[..., None, :]
+    d2 = cc + pp - 2.0 * np.matmul(C, np.swapaxes(P, -1, -2))
+    return np.sqrt(np.maximum(d2, 0.0)) / m[..., None, :]
 
 
 def _clip(C):
@@ -647,7 +659,7 @@ def _bootstrap(fit: _Fit, P, w, good, m, n_boot, rng, keep=150):
                              gb[sl], mb[sl], W[sl])
         j = np.argmin(f, -1)
         C0 = Gk[j][:, None, :]
-        C, _ = _pattern_search(C0, fit.step, Pb[sl], wmb[sl], gb[sl], mb[sl], W[sl], rng, min_step=2e-3)
+        C, _ = _pattern_search(C0, fit.step, Pb[sl], wmb[sl], gb[sl], mb[sl], W[sl], rng, min_step=1e-2)
         C = C[:, 0, :]
         R, _ = _best_radius(_dist(C[:, None, :], Pb[sl], mb[sl])[:, 0, :], wmb[sl], gb[sl])
         out[sl, :3] = C / SCALE
