@@ -466,7 +466,7 @@ def _table(tgt, cand, h, idx, f, rr, t_c, cost=None):
     comp_ra = _ra(h[safe], tgt.hsp)
     out = pd.DataFrame({
         "components": [tuple(names[r[u]]) for r, u in zip(idx, used)],
-        "fractions": [tuple(np.round(x[u], 4)) for x, u in zip(fr, used)],
+        "fractions": [tuple(float(v) for v in x[u]) for x, u in zip(fr, used)],
         "n_components": k,
         "delta_d": bh[:, 0], "delta_p": bh[:, 1], "delta_h": bh[:, 2],
         "ra": rr,
@@ -491,9 +491,17 @@ def _table(tgt, cand, h, idx, f, rr, t_c, cost=None):
 
 
 def _pareto(ra, cost):
-    """Non-dominated rows (lower Ra and lower cost); ``ra`` must be sorted ascending."""
-    best = np.minimum.accumulate(np.concatenate([[np.inf], cost[:-1]]))
-    return cost < best - 1e-12
+    """Boolean mask of the non-dominated rows (no other row has lower-or-equal Ra and cost,
+    one of them strictly lower)."""
+    ra = np.asarray(ra, float)
+    cost = np.asarray(cost, float)
+    o = np.lexsort((cost, ra))
+    c = cost[o]
+    prev = np.minimum.accumulate(np.concatenate([[np.inf], c[:-1]]))
+    keep = c < prev - 1e-12
+    out = np.zeros(len(ra), dtype=bool)
+    out[o] = keep
+    return out
 
 
 def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,

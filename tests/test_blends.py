@@ -1,0 +1,282 @@
+"""Blend design and substitutes: exact fractions, constraints, non-solvent pairs, miscibility."""
+from __future__ import annotations
+
+import io
+import itertools
+import json
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import selector
+from selector.blends import (binary_fractions, blend_fractions, find_blends, relative_evaporation_rate,
+                             search_arrays, substitutes, ternary_fractions)
+from selector.cli import main
+from selector.errors import SelectorError
+from selector.hansen import ra
+
+LIB = selector.load_library()
+HSP = ["delta_d", "delta_p", "delta_h"]
+
+# Nitrocellulose (H-23, 1/2 s) sphere from the polymer table of Hansen's handbook, 2nd ed.
+# (from memory): dD 15.4, dP 14.7, dH 8.8, R0 11.5 MPa^0.5.
+NITROCELLULOSE = (15.4, 14.7, 8.8, 11.5)
+# Polystyrene sphere (Hansen's handbook, from memory), as in test_ranking.
+PS = (21.3, 5.8, 4.3, 12.7)
+SMALL = ["toluene", "ethanol", "acetone", "heptane", "ethyl acetate", "1-butanol", "water",
+         "cyclohexanone", "dimethyl sulfoxide", "methanol", "diethyl ether", "propylene carbonate"]
+
+
+def _hsp(names):
+    return np.array([LIB.loc[LIB["name"] == n, HSP].iloc[0].to_numpy(float) for n in names])
+
+
+def _grid_best(hsp, target, m, step=0.001):
+    """Brute force on a 0.1 % grid of volume fractions (independent of the closed form)."""
+    k = len(hsp)
+    g = np.round(np.arange(m, 1 - m * (k - 1) + 1e-12, step), 10)
+    if k == 2:
+        f = np.column_stack([g, 1 - g])
+    else:
+        a, b = np.meshgrid(g, g, indexing="ij")
+        c = 1 - a - b
+        ok = c >= m - 1e-12
+        f = np.column_stack([a[ok], b[ok], c[ok]])
+    mix = f @ hsp
+    d = ra(mix, np.asarray(target))
+    i = int(np.argmin(d))
+    return f[i], float(d[i])
+
+
+@pytest.mark.parametrize("combo,target", [
+    (("toluene", "ethanol"), (17.0, 5.0, 10.0)),
+    (("heptane", "acetone"), (15.5, 5.0, 3.0)),
+    (("water", "dimethyl sulfoxide"), (17.0, 16.0, 30.0)),
+    (("toluene", "heptane"), (20.0, 1.0, 1.0)),          # target off the line, clipped at 5 %
+    (("toluene", "ethanol", "acetone"), (16.5, 7.0, 9.0)),
+    (("heptane", "water", "dimethyl sulfoxide"), (16.0, 9.0, 12.0)),
+    (("toluene", "heptane", "water"), (25.0, 20.0, 2.0)),  # far outside: an edge or vertex wins
+    (("methanol", "propylene carbonate", "cyclohexanone"), (18.0, 12.0, 9.0)),
+])
+@pytest.mark.parametrize("m", [0.05, 0.2])
+def test_fractions_agree_with_brute_force_grid(combo, target, m):
+    h = _hsp(combo)
+    f, d = blend_fractions(h, target, m)
+    fg, dg = _grid_best(h, target, m)
+    assert d <= dg + 1e-9                       # exact optimum is never worse than the grid
+    assert d >= dg - 0.02                       # and the grid comes within its resolution
+    assert np.all(f >= m - 1e-12) and abs(f.sum() - 1) < 1e-12
+    assert np.abs(f - fg).max() < 0.01
+    # the reported Ra is that of the volume-weighted mean (Hansen's handbook, ch. 1)
+    assert abs(float(ra(f @ h, np.asarray(target))) - d) < 1e-9
+
+
+def test_search_equals_exhaustive_enumeration():
+    # the pruned, vectorised search returns exactly what enumerating every triple returns
+    rng = np.random.default_rng(7)
+    for _ in range(6):
+        n = int(rng.integers(8, 22))
+        X = rng.normal(size=(n, 3)) * 6
+        t = rng.normal(size=3) * 2
+        res = search_arrays(X, t, max_components=3, min_fraction=0.05, pool=40, min_gain=0.1)
+        B = {p: float(binary_fractions(X[p[0]], X[p[1]], t, 0.05)[1]) for p in itertools.combinations(range(n), 2)}
+        exp = []
+        for i, j, k in itertools.combinations(range(n), 3):
+            d = float(ternary_fractions(X[i], X[j], X[k], t, 0.05)[1])
+            if d < min(B[(i, j)], B[(i, k)], B[(j, k)]) - 0.1:
+                exp.append(d)
+        got = np.sort(res["ra"][res["idx"][:, 2] >= 0])
+        exp = np.sort(exp)[:40]
+        assert len(got) == len(exp)
+        assert np.allclose(got, exp, atol=1e-9)
+
+
+@pytest.fixture(scope="module")
+def blends_small():
+    return find_blends(PS, include=SMALL, max_components=3, top=30, min_gain=0.0, max_uses=30)
+
+
+def test_blend_hsp_is_volume_weighted_mean(blends_small):
+    for r in blends_small.itertuples():
+        h = _hsp(r.components)
+        mix = np.asarray(r.fractions) @ h
+        assert np.allclose(mix, [r.delta_d, r.delta_p, r.delta_h], atol=1e-3)
+        assert abs(float(ra(mix, PS[:3])) - r.ra) < 1e-3
+        assert abs(r.red - r.ra / PS[3]) < 1e-12
+
+
+def test_constraints_never_violated():
+    lib = LIB
+    res = find_blends((17.0, 7.0, 7.0, 6.0), max_components=3, min_fraction=0.1, top=40,
+                      boiling_point_c=(60, 160), flash_point_c=(0, None), max_hazard_class="problematic",
+                      exclude=["toluene"], min_gain=0.0)
+    assert len(res) > 0
+    hz = {r.name: r.hazard_class for r in selector.hazards.hazard_columns(lib).assign(name=lib["name"]).itertuples()}
+    for r in res.itertuples():
+        assert 1 <= len(r.components) <= 3
+        assert len(r.components) == 1 or min(r.fractions) >= 0.1 - 1e-4
+        assert abs(sum(r.fractions) - 1) < 1e-3
+        assert "toluene" not in r.components
+        for c in r.components:
+            row = lib.loc[lib["name"] == c].iloc[0]
+            assert 60 <= row.boiling_point_c <= 160
+            assert row.flash_point_c >= 0
+            assert hz[c] in ("recommended", "problematic")
+        assert r.hazard_class in ("recommended", "problematic")
+
+
+def test_diversity_limits_repeats():
+    res = find_blends((17.0, 7.0, 7.0, 6.0), max_components=2, top=20, max_uses=2)
+    counts = pd.Series([c for cs in res["components"] for c in cs]).value_counts()
+    assert counts.max() <= 2
+    assert not res["components"].map(frozenset).duplicated().any()
+
+
+def test_non_solvent_pair_dissolves_nitrocellulose():
+    # Common practice (collodion, pharmacopoeia preparation, from memory): cellulose nitrate
+    # dissolves in a diethyl ether / ethanol mixture (about 3:1 by volume) but in neither liquid
+    # alone - Hansen's handbook discusses such non-solvent pairs (ch. 1, from memory).
+    res = find_blends(NITROCELLULOSE, include=["diethyl ether", "ethanol", "water", "heptane"],
+                      max_components=2, top=10)
+    for name in ["diethyl ether", "ethanol"]:
+        assert float(ra(_hsp([name])[0], NITROCELLULOSE[:3])) / NITROCELLULOSE[3] > 1, name
+    row = res[res["components"].map(set) == {"diethyl ether", "ethanol"}]
+    assert len(row) == 1
+    assert bool(row["non_solvent_pair"].iloc[0]) and float(row["red"].iloc[0]) < 1
+    # the collodion proportion itself lands inside the sphere
+    mix = np.array([0.75, 0.25]) @ _hsp(["diethyl ether", "ethanol"])
+    assert float(ra(mix, NITROCELLULOSE[:3])) / NITROCELLULOSE[3] < 1
+    assert not res.loc[res["n_components"] == 1, "non_solvent_pair"].any()
+
+
+def test_immiscible_components_never_proposed_together():
+    # Common practice: water does not mix with heptane, hexane or toluene; yet the mean of water
+    # and a hydrocarbon is the closest point to this target.
+    names = ["water", "heptane", "hexane", "toluene", "ethanol", "acetone", "1-butanol"]
+    target = (15.2, 8.0, 21.0, 4.0)
+    mix = 0.5 * (_hsp(["water"])[0] + _hsp(["heptane"])[0])
+    assert float(ra(mix, target[:3])) < 1.0  # the unconstrained best would be water + heptane
+    res = find_blends(target, include=names, max_components=3, top=50, min_gain=0.0, max_uses=50)
+    assert len(res) > 0
+    for cs in res["components"]:
+        if len(cs) > 1:
+            assert selector.check_blend_miscible(list(cs)).ok, cs
+        assert not ({"water", "heptane"} <= set(cs) or {"water", "hexane"} <= set(cs)
+                    or {"water", "toluene"} <= set(cs)), cs
+    free = find_blends(target, include=names, max_components=2, top=50, require_miscible=False)
+    assert any({"water", "heptane"} <= set(cs) or {"water", "hexane"} <= set(cs) for cs in free["components"])
+
+
+def test_cost_pareto_front():
+    prices = {"toluene": 2.0, "ethanol": 1.0, "acetone": 1.5, "ethyl acetate": 1.8, "cyclohexanone": 4.0,
+              "1-butanol": 2.2, "heptane": 1.2}
+    res = find_blends(PS, cost_per_litre=prices, max_components=2, top=30, max_uses=30, min_gain=0.0)
+    assert set(c for cs in res["components"] for c in cs) <= set(prices)
+    for r in res.itertuples():
+        assert abs(r.cost_per_litre - sum(f * prices[c] for c, f in zip(r.components, r.fractions))) < 1e-3
+    front = res.attrs["pareto"]
+    assert len(front) >= 1
+    # nothing in the front is dominated by any other proposal
+    allr = res[["ra", "cost_per_litre"]].to_numpy()
+    for r in front[["ra", "cost_per_litre"]].to_numpy():
+        dom = (allr[:, 0] <= r[0]) & (allr[:, 1] <= r[1]) & ((allr[:, 0] < r[0]) | (allr[:, 1] < r[1]))
+        assert not dom.any()
+    with pytest.raises(SelectorError, match="cost"):
+        find_blends(PS, cost_per_litre={"toluene": -1})
+
+
+def test_full_library_ternary_search():
+    res = find_blends((18.0, 10.0, 7.0, 5.0), max_components=3, top=20)
+    assert len(res) == 20
+    assert (res["red"] < 1).all()
+    assert res["ra"].iloc[0] <= res["ra"].max()
+    assert res["fractions"].map(lambda f: len(f) == 1 or min(f) >= 0.05 - 1e-4).all()
+    assert res.attrs["caution"].startswith("Caution")
+
+
+def test_bad_input():
+    with pytest.raises(SelectorError, match="max_components"):
+        find_blends(PS, max_components=4)
+    with pytest.raises(SelectorError, match="min_fraction"):
+        find_blends(PS, min_fraction=0.4)
+    with pytest.raises(SelectorError, match="unknown liquid"):
+        find_blends(PS, include=["toluene", "no such liquid"])
+    with pytest.raises(SelectorError, match="no liquid passes"):
+        find_blends(PS, boiling_point_c=(500, 600))
+    with pytest.raises(SelectorError, match="unknown filter"):
+        find_blends(PS, colour="blue")
+    with pytest.raises(SelectorError):
+        find_blends((float("nan"), 1.0, 1.0))
+
+
+# ---------------------------------------------------------------- substitutes
+
+def test_relative_evaporation_rate_against_tables():
+    # ASTM D3539-type tables (n-butyl acetate = 1), values from memory: toluene ~2.0,
+    # water ~0.3, o-xylene ~0.6, ethanol ~1.7, acetone ~5.6. The estimate is rough: factor 2.
+    rer = relative_evaporation_rate(LIB)
+    ref = {"toluene": 2.0, "water": 0.3, "o-xylene": 0.6, "ethanol": 1.7, "acetone": 5.6}
+    for name, v in ref.items():
+        got = float(rer[(LIB["name"] == name).to_numpy()][0])
+        assert v / 2 < got < v * 2, (name, got)
+    # ordering is right: acetone > toluene > butyl acetate > o-xylene
+    get = lambda n: float(rer[(LIB["name"] == n).to_numpy()][0])  # noqa: E731
+    assert get("acetone") > get("toluene") > get("butyl acetate") > get("o-xylene")
+
+
+@pytest.fixture(scope="module")
+def nmp_subs():
+    return substitutes("NMP", top=10)
+
+
+def test_substitutes_are_strictly_safer(nmp_subs):
+    s = nmp_subs
+    assert s["role"].iloc[0] == "replaced"
+    assert s["components"].iloc[0] == ("1-methyl-2-pyrrolidinone",)
+    assert s["hazard_class"].iloc[0] == "hazardous"
+    assert (s["hazard_rank"].iloc[1:] < s["hazard_rank"].iloc[0]).all()
+    assert not s["components"].iloc[1:].map(lambda c: "1-methyl-2-pyrrolidinone" in c).any()
+    assert "Annex XVII" in s.attrs["regulatory_note"]
+    # trade-offs shown side by side with the liquid replaced
+    for col in ["boiling_point_c", "evaporation_rate", "viscosity_mpa_s", "ra", "score"]:
+        assert col in s.columns
+
+
+def test_substitutes_for_a_solute_sphere():
+    s = substitutes("toluene", solute=PS, top=5, max_components=1)
+    assert s["role"].iloc[0] == "replaced"
+    assert s["red"].iloc[1:].notna().all()
+    assert set(s["hazard_class"].iloc[1:]) <= {"recommended"}
+
+
+def test_substitutes_need_hazard_data():
+    unclassified = LIB.loc[~LIB["cas"].isin(selector.hazards.hazard_statements()["cas"]), "name"].iloc[0]
+    with pytest.raises(SelectorError, match="unclassified"):
+        substitutes(unclassified)
+    with pytest.raises(SelectorError, match="already"):
+        substitutes("ethanol")
+
+
+# ---------------------------------------------------------------- command line
+
+def test_cli_blend_csv(capsys):
+    assert main(["blend", "21.3,5.8,4.3,12.7", "--only", ",".join(SMALL), "--parts", "2",
+                 "--format", "csv", "--top", "5"]) == 0
+    df = pd.read_csv(io.StringIO(capsys.readouterr().out))
+    assert len(df) == 5 and {"blend", "ra", "red", "hazard_class", "fractions"} <= set(df.columns)
+
+
+def test_cli_replace_json_and_hazard(capsys):
+    assert main(["replace", "dichloromethane", "--parts", "1", "--format", "json", "--top", "3"]) == 0
+    recs = json.loads(capsys.readouterr().out)
+    assert recs[0]["role"] == "replaced" and len(recs) == 4
+    assert main(["hazard", "toluene", "water"]) == 0
+    out = capsys.readouterr().out
+    assert "problematic" in out and "safety data sheet" in out
+
+
+def test_cli_errors(capsys):
+    assert main(["blend", "21.3,5.8,4.3,12.7", "--parts", "3", "--min-share", "0.5"]) == 2
+    assert "min_fraction" in capsys.readouterr().err
+    assert main(["replace", "no such liquid"]) == 2
