@@ -1,5 +1,7 @@
-"""Show the result of :func:`selector.drying_path` (a table or an object carrying one)."""
+"""Show the result of :func:`selector.drying_path` (evaporated fraction, phi_<name>, RED...)."""
 from __future__ import annotations
+
+import math
 
 import pandas as pd
 import streamlit as st
@@ -7,36 +9,33 @@ import streamlit as st
 from lwui import plots
 
 
-def _table(path):
-    if isinstance(path, pd.DataFrame):
-        return path, []
-    for attr in ("path", "table", "steps", "frame"):
-        v = getattr(path, attr, None)
-        if isinstance(v, pd.DataFrame):
-            return v, list(getattr(path, "warnings", []) or [])
-    return None, []
-
-
-def show_drying(path, components) -> None:
-    df, warns = _table(path)
-    if df is None:
-        st.write(path)
-        return
-    xcands = [c for c in df.columns if any(k in c.lower() for k in ("evaporated", "time", "step", "lost"))]
-    x = xcands[0] if xcands else df.columns[0]
-    series = [c for c in df.columns if c in components or any(c.endswith(f"{k}") for k in components)]
-    if not series:
-        series = [c for c in df.columns if c.startswith(("phi", "fraction", "x_"))]
-    y2 = next((c for c in ("red", "ra") if c in df.columns), None)
-    if series:
-        st.plotly_chart(plots.drying_plot(df, x, series, y2), width="stretch", key="drying_plot")
-    for w in warns:
-        st.warning(w)
-    attrs = getattr(path, "attrs", {}) or {}
-    for k in ("warning", "warnings", "message"):
-        v = attrs.get(k)
-        if v:
-            for m in ([v] if isinstance(v, str) else v):
-                st.warning(str(m))
+def show_drying(path: pd.DataFrame, components) -> None:
+    x = "evaporated_fraction" if "evaporated_fraction" in path.columns else path.columns[0]
+    series = [c for c in path.columns if c.startswith("phi_")]
+    y2 = next((c for c in ("red", "ra") if c in path.columns and path[c].notna().any()), None)
+    fig = plots.drying_plot(path.rename(columns={c: c[4:] for c in series}), x, [c[4:] for c in series], y2)
+    if y2 == "red":
+        fig.add_hline(y=1.0, line=dict(color=plots.VERMILLION, dash="dot"), secondary_y=True,
+                      annotation_text="RED = 1 (sphere edge)")
+    st.plotly_chart(fig, width="stretch", key="drying_plot")
+    a = path.attrs or {}
+    tail = a.get("tail_solvent")
+    leaves = a.get("leaves_sphere_at")
+    bits = []
+    if tail:
+        bits.append(f"last to leave: <b>{tail}</b>")
+    if leaves is not None and isinstance(leaves, float) and not math.isnan(leaves):
+        bits.append(f"the liquid leaves the sphere after <b>{leaves:.0%}</b> has evaporated")
+    elif y2 == "red":
+        bits.append("the liquid stays inside the sphere along the whole path")
+    if bits:
+        st.markdown("<div id='lw-drying'>" + "; ".join(bits) + ".</div>", unsafe_allow_html=True)
+    if a.get("flag"):
+        st.warning("The solute may come out of solution before the film has set: the remaining liquid "
+                   "leaves the sphere early. Add a slower good solvent or change the shares.")
+    for w in a.get("warnings", []) or []:
+        st.warning(str(w))
+    if a.get("message"):
+        st.caption(str(a["message"]))
     with st.expander("Drying path table"):
-        st.dataframe(df, hide_index=True, width="stretch")
+        st.dataframe(path, hide_index=True, width="stretch")

@@ -26,6 +26,14 @@ def design(target_key, max_components, min_fraction, temperature, top, filters_k
                                 temperature=temperature, top=top, **dict(filters_key))
 
 
+@st.cache_data(show_spinner=False, max_entries=64)
+def dry(comps, fracs, temperature, tgt, activity, rh):
+    from selector.targets import Target
+
+    return selector.drying_path(list(comps), list(fracs), temperature=temperature,
+                                target=Target(*tgt[:3], tgt[3]), activity=activity, relative_humidity=rh)
+
+
 def freeze(f: dict):
     return tuple(sorted((k, tuple(v) if isinstance(v, list) else v) for k, v in f.items()))
 
@@ -80,7 +88,13 @@ tab1, tab2 = st.tabs(["Drying path", "Teas triangle"])
 with tab1:
     dmod = common.capability("drying")
     if dmod is not None:
-        path = common.call(selector.drying_path, comps, fracs, temperature=temp, target=t)
+        d1, d2 = st.columns(2)
+        act = d1.radio("Evaporation model", ["raoult", "hsp"], horizontal=True, key="bl_act",
+                       format_func={"raoult": "ideal (Raoult)", "hsp": "Flory-Huggins with HSP"}.get,
+                       help="the HSP form is rough for water and strongly hydrogen-bonded pairs")
+        rh = d2.slider("Relative humidity (%)", 0, 100, 50, 5, key="bl_rh", help="acts on water only")
+        path = common.call(dry, tuple(comps), tuple(fracs), temp, (t.delta_d, t.delta_p, t.delta_h, t.radius),
+                           act, float(rh))
         if path is not None:
             from lwui.drying_view import show_drying
 
