@@ -144,7 +144,10 @@ def drying_path(components, fractions, *, temperature: float = 25.0, target=None
         tot = float(np.dot(v, F))
         if tot <= 0:
             return None
-        return -V0 * F / (n * tot)
+        # F_i / n_i written without dividing by a vanishing amount
+        with np.errstate(divide="ignore", invalid="ignore"):
+            per_mol = np.maximum(g * P / N - np.where(p_air > 0, p_air / n, 0.0), 0.0)
+        return -V0 * per_mol / tot
 
     phi_max = float(max_evaporated)
     grid = np.linspace(0.0, phi_max, int(points))
