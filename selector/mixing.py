@@ -255,17 +255,20 @@ def critical_fraction(n1, n2):
     return r2 / (r1 + r2)
 
 
-def chemical_potentials(phi, chi, n1, n2):
+def chemical_potentials(phi, chi, n1, n2, one_minus_phi=None):
     """Exchange chemical potentials (mu_i - mu_i^0) / RT of liquids 1 and 2 at volume fraction phi.
 
     mu1/RT = ln phi + (1 - N1/N2)(1 - phi) + N1 chi (1 - phi)^2 and
     mu2/RT = ln(1 - phi) + (1 - N2/N1) phi + N2 chi phi^2 (Flory, 1953, ch. 12).
+    ``one_minus_phi``: 1 - phi given separately, for phi so close to 1 that 1 - phi is not
+    representable as a difference.
 
     >>> [round(float(x), 6) for x in chemical_potentials(0.5, 0.0, 1.0, 1.0)]
     [-0.693147, -0.693147]
     """
     phi = np.asarray(phi, float)
-    return _mu(np.log(phi), np.log1p(-phi), phi, 1.0 - phi, chi, n1, n2)
+    q = 1.0 - phi if one_minus_phi is None else np.asarray(one_minus_phi, float)
+    return _mu(np.log(phi), np.log(q), phi, q, chi, n1, n2)
 
 
 def _mu(lnp, lnq, p, q, chi, n1, n2):
@@ -383,6 +386,13 @@ def mole_to_mass(x, m1, m2):
 _NUM_FIELDS = ("delta_d", "delta_p", "delta_h", "molar_volume")
 
 
+def _shared_library() -> pd.DataFrame:
+    """The bundled library frame itself (read only here; saves a copy per call)."""
+    from .library import _bundled
+
+    return _bundled()
+
+
 def _liquid(obj, lib) -> dict:
     """A liquid as a plain record; library name/CAS/SMILES or a user dict/Series."""
     if isinstance(obj, str):
@@ -476,7 +486,11 @@ def _check_temperature_frame(t, df):
 
 def _lcst_prone(rec) -> bool:
     """Water + amine/glycol-ether type partners show lower critical behaviour (common practice)."""
-    smi = rec["smiles"]
+    return _lcst_prone_smiles(rec["smiles"])
+
+
+@functools.lru_cache(maxsize=1024)
+def _lcst_prone_smiles(smi: str) -> bool:
     if not smi:
         return False
     from rdkit import Chem
@@ -576,6 +590,42 @@ def _compute(h1, h2, s1, s2, v1, v2, t_c, model, al1=np.nan, al2=np.nan):
     return a12, vr, n1, n2, chi, cc, pa, pb
 
 
+def _ucst_scalar(h1, h2, s1, s2, v1, v2, model, al1, al2, lo=-150.0, hi=400.0) -> float:
+    """:func:`ucst` for one pair with plain floats (fast path of :func:`miscibility`)."""
+    al1 = float(al1) if math.isfinite(float(al1)) else DEFAULT_EXPANSION
+    al2 = float(al2) if math.isfinite(float(al2)) else DEFAULT_EXPANSION
+    k1 = (1.25 * al1, 0.5 * al1, 1.22e-3 + 0.5 * al1)
+    k2 = (1.25 * al2, 0.5 * al2, 1.22e-3 + 0.5 * al2)
+    w = (model.w_d, model.w_p, model.w_h)
+    cross = model.k_cross * (s1[0] * s2[1] + s2[0] * s1[1]) if model.k_cross else 0.0
+    h1 = [float(x) for x in h1]
+    h2 = [float(x) for x in h2]
+
+    def f(t):
+        dt = t - 25.0
+        a = -cross
+        for i in range(3):
+            d = h1[i] * math.exp(-k1[i] * dt) - h2[i] * math.exp(-k2[i] * dt)
+            a += w[i] * d * d
+        e1 = max(v1 * math.exp(al1 * dt), model.v_min)
+        e2 = max(v2 * math.exp(al2 * dt), model.v_min)
+        vr = min(e1, e2)
+        cc = 0.5 * ((e1 / vr) ** -0.5 + (e2 / vr) ** -0.5) ** 2
+        return vr * a / (R_GAS * (t + 273.15)) - cc
+
+    if f(lo) < 0:
+        return math.nan
+    if f(hi) > 0:
+        return math.inf
+    for _ in range(50):
+        m = 0.5 * (lo + hi)
+        if f(m) < 0:
+            hi = m
+        else:
+            lo = m
+    return 0.5 * (lo + hi)
+
+
 def ucst(h1, h2, s1, s2, v1, v2, model, al1=np.nan, al2=np.nan, lo=-150.0, hi=400.0):
     """Upper critical solution temperature (C) of pairs: the T where chi(T) = chi_c.
 
@@ -643,7 +693,7 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     mdl = _model(model)
     lib = library
     if (isinstance(a, str) or isinstance(b, str)) and lib is None:
-        lib = load_library()
+        lib = _shared_library()
     ra_, rb_ = _liquid(a, lib), _liquid(b, lib)
     t = _check_temperature(temperature, [ra_, rb_])
     h1 = np.array([ra_["delta_d"], ra_["delta_p"], ra_["delta_h"]])
@@ -657,7 +707,7 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     m1, m2 = ra_["molar_mass"], rb_["molar_mass"]
     state = str(_classify(np.array(pa), np.array(pb), v1, v2, m1, m2))
     notes = []
-    u = float(ucst(h1, h2, s[0], s[1], np.float64(v1), np.float64(v2), mdl, al1, al2))
+    u = _ucst_scalar(h1, h2, s[0], s[1], v1, v2, mdl, al1, al2)
     ucst_c = u if math.isfinite(u) else None
     spin = bino = None
     if math.isfinite(pa):
