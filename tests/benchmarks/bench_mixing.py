@@ -1,0 +1,91 @@
+"""Benchmark of selector.mixing: whole-library state matrix and one pair with its binodal.
+
+Run: ``python tests/benchmarks/bench_mixing.py``. Prints medians and the ratio against a naive
+baseline run side by side in the same process:
+
+* matrix: :func:`selector.mixing.state_matrix` over the whole library (n x n pairs, chi, chi_c,
+  binodal of every pair with a gap, three-way state) against a per-pair Python loop calling
+  :func:`selector.mixing.miscibility` (timed on a random sample of pairs and scaled to all
+  n (n - 1) / 2 pairs, since the full loop would take tens of minutes);
+* one pair: :func:`selector.mixing.miscibility` (state, chi, UCST, binodal, spinodal) against
+  a naive version that copies the library, looks both liquids up and solves the binodal with
+  scipy.optimize.fsolve in plain volume fractions.
+Targets: matrix <= 2 s, one pair <= 10 ms.
+"""
+from __future__ import annotations
+
+import statistics
+import time
+
+import numpy as np
+
+
+def _median_time(fn, repeat):
+    ts = []
+    for _ in range(repeat):
+        t = time.perf_counter()
+        fn()
+        ts.append(time.perf_counter() - t)
+    return statistics.median(ts)
+
+
+def naive_pair(a, b):
+    from scipy.optimize import fsolve
+
+    from selector.library import find_liquid, load_library
+    from selector.mixing import HBOND, critical_chi, site_densities
+
+    lib = load_library()
+    r1, r2 = find_liquid(a, lib), find_liquid(b, lib)
+    s = site_densities([r1.smiles, r2.smiles], [r1.molar_volume, r2.molar_volume])
+    a12 = HBOND.interaction([r1.delta_d, r1.delta_p, r1.delta_h], [r2.delta_d, r2.delta_p, r2.delta_h], s[0], s[1])
+    e1, e2 = max(r1.molar_volume, HBOND.v_min), max(r2.molar_volume, HBOND.v_min)
+    vr = min(e1, e2)
+    n1, n2 = e1 / vr, e2 / vr
+    chi = vr * a12 / (8.314462618 * 298.15)
+    if chi <= critical_chi(n1, n2):
+        return None
+
+    def eqs(p):
+        pa, pb = p
+        m1 = lambda x: np.log(x) + (1 - n1 / n2) * (1 - x) + n1 * chi * (1 - x) ** 2
+        m2 = lambda x: np.log(1 - x) + (1 - n2 / n1) * x + n2 * chi * x ** 2
+        return [m1(pa) - m1(pb), m2(pa) - m2(pb)]
+
+    return fsolve(eqs, [0.05, 0.95])
+
+
+def main() -> None:
+    from selector.library import load_library
+    from selector.mixing import miscibility, state_matrix
+
+    lib = load_library()
+    n = len(lib)
+    state_matrix(lib)  # warm-up (RDKit site counts are cached per SMILES)
+    t_matrix = _median_time(lambda: state_matrix(lib), 5)
+
+    rng = np.random.default_rng(0)
+    sample = rng.choice(n, size=(150, 2))
+    names = lib["name"].to_numpy()
+
+    def loop():
+        for i, j in sample:
+            miscibility(names[i], names[j], library=lib)
+
+    t_loop_sample = _median_time(loop, 3)
+    n_pairs = n * (n - 1) // 2
+    t_loop_all = t_loop_sample / len(sample) * n_pairs
+    print(f"whole-library matrix ({n} x {n} = {n_pairs} pairs): median {t_matrix:.3f} s "
+          f"(target <= 2 s)")
+    print(f"  per-pair Python loop, scaled from {len(sample)} random pairs: {t_loop_all:.0f} s; "
+          f"ratio {t_loop_all / t_matrix:.0f}x")
+
+    miscibility("water", "ethyl acetate")
+    t_pair = _median_time(lambda: miscibility("water", "ethyl acetate"), 200)
+    t_naive = _median_time(lambda: naive_pair("water", "ethyl acetate"), 30)
+    print(f"one pair with binodal (water + ethyl acetate): median {1e3 * t_pair:.2f} ms (target <= 10 ms)")
+    print(f"  naive (library copy + look-up + fsolve): {1e3 * t_naive:.2f} ms; ratio {t_naive / t_pair:.1f}x")
+
+
+if __name__ == "__main__":
+    main()
