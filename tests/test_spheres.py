@@ -229,14 +229,18 @@ def test_row_order_and_consistent_duplicates():
 
 
 def test_weights_matter():
-    # A heavy weight on a misclassified test pulls the sphere to classify it right.
-    df = pd.DataFrame({"solvent": PS_GOOD + PS_BAD + ["acetone"],
-                       "outcome": [True] * len(PS_GOOD) + [False] * len(PS_BAD) + [False]})
+    # A bad result recorded for the liquid nearest the centre of the polystyrene-like goods:
+    # with weight 1 the sphere keeps it inside (a misfit), with a heavy weight it must exclude it.
+    base = pd.DataFrame({"solvent": PS_GOOD + PS_BAD, "outcome": [True] * len(PS_GOOD) + [False] * len(PS_BAD)})
+    first = fit_sphere(base, bootstrap=0)
+    ranked = selector.rank(first, polarity_weight=0.0, exclude=PS_GOOD + PS_BAD)
+    odd = str(ranked["name"].iloc[0])
+    df = pd.concat([base, pd.DataFrame({"solvent": [odd], "outcome": [False]})], ignore_index=True)
+    h_odd = LIB.loc[LIB.name == odd, HSP].to_numpy(float)
     light = fit_sphere(df, bootstrap=0)
-    acetone = LIB.loc[LIB.name == "acetone", HSP].to_numpy(float)
-    heavy = fit_sphere(df.assign(weight=[1.0] * (len(df) - 1) + [50.0]), bootstrap=0)
-    assert _ra(acetone, heavy.hsp)[0] / heavy.radius >= _ra(acetone, light.hsp)[0] / light.radius - 1e-9
-    assert not heavy.contains(acetone)[0]
+    heavy = fit_sphere(df.assign(weight=[1.0] * len(base) + [50.0]), bootstrap=0)
+    assert light.contains(h_odd)[0] and odd in set(light.misfits["label"])
+    assert not heavy.contains(h_odd)[0]
 
 
 # ----------------------------------------------------------------------------- input handling
