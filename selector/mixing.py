@@ -367,6 +367,49 @@ def binodal(chi, n1, n2, tol: float = 1e-12, max_iter: int = 100):
     return pa.reshape(shape), pb.reshape(shape)
 
 
+def _binodal_scalar(chi: float, n1: float, n2: float, tol: float = 1e-12, max_iter: int = 100):
+    """:func:`binodal` for one pair with plain floats (same method; fast path of miscibility)."""
+    cc = 0.5 * (n1 ** -0.5 + n2 ** -0.5) ** 2
+    if not chi > cc * (1 + 1e-9):
+        return math.nan, math.nan
+    lo, hi = (float(x) for x in spinodal(chi, n1, n2))
+    ulo_max = math.log(lo) - math.log1p(-lo) - 1e-7
+    uhi_min = math.log(hi) - math.log1p(-hi) + 1e-7
+    if chi / cc < 1.5:
+        pc = math.sqrt(n2) / (math.sqrt(n1) + math.sqrt(n2))
+        a0 = max(lo - (pc - lo), 1e-12)
+        b0 = min(hi + (hi - pc), 1 - 1e-12)
+        ua, ub = math.log(a0) - math.log1p(-a0), math.log(b0) - math.log1p(-b0)
+    else:
+        ua, ub = -(1 - n1 / n2) - n1 * chi, (1 - n2 / n1) + n2 * chi
+    ua, ub = min(ua, ulo_max), max(ub, uhi_min)
+
+    def sp(x):  # log(1 + e^x), stable
+        return x + math.log1p(math.exp(-x)) if x > 0 else math.log1p(math.exp(x))
+
+    for _ in range(max_iter):
+        lpa, lqa, lpb, lqb = -sp(-ua), -sp(ua), -sp(-ub), -sp(ub)
+        a_, qa, b_, qb = math.exp(lpa), math.exp(lqa), math.exp(lpb), math.exp(lqb)
+        f1 = (lpa + (1 - n1 / n2) * qa + n1 * chi * qa * qa) - (lpb + (1 - n1 / n2) * qb + n1 * chi * qb * qb)
+        f2 = (lqa + (1 - n2 / n1) * a_ + n2 * chi * a_ * a_) - (lqb + (1 - n2 / n1) * b_ + n2 * chi * b_ * b_)
+        if abs(f1) < tol and abs(f2) < tol:
+            break
+        d1a = (1.0 - (1 - n1 / n2) * a_ - 2 * n1 * chi * qa * a_) * qa
+        d2a = -a_ + (1 - n2 / n1) * a_ * qa + 2 * n2 * chi * a_ * a_ * qa
+        d1b = (1.0 - (1 - n1 / n2) * b_ - 2 * n1 * chi * qb * b_) * qb
+        d2b = -b_ + (1 - n2 / n1) * b_ * qb + 2 * n2 * chi * b_ * b_ * qb
+        det = -d1a * d2b + d1b * d2a
+        if abs(det) < 1e-300:
+            det = 1e-300
+        dua = (f1 * d2b - d1b * f2) / det
+        dub = (-d1a * f2 + d2a * f1) / det
+        step = max(abs(dua), abs(dub))
+        scale = 2.0 / step if step > 2.0 else 1.0
+        ua = min(ua + scale * dua, ulo_max)
+        ub = max(ub + scale * dub, uhi_min)
+    return 1.0 / (1.0 + math.exp(-ua)), 1.0 / (1.0 + math.exp(-ub))
+
+
 def volume_to_mole(phi, v1, v2):
     """Mole fraction of liquid 1 from its volume fraction phi and molar volumes V1, V2 (cm^3/mol)."""
     a = np.asarray(phi, float) / np.asarray(v1, float)
@@ -701,11 +744,22 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     v1, v2 = ra_["molar_volume"], rb_["molar_volume"]
     al1, al2 = ra_["expansion_coeff"], rb_["expansion_coeff"]
     s = site_densities([ra_["smiles"], rb_["smiles"]], [v1, v2])
-    a12, vr, n1, n2, chi, cc, pa, pb = _compute(h1, h2, s[0], s[1], np.float64(v1),
-                                                np.float64(v2), t, mdl, al1, al2)
-    pa, pb, chi, cc, a12 = float(pa), float(pb), float(chi), float(cc), float(a12)
+    if t != 25.0:
+        h1, h2 = hsp_at(h1, al1, t), hsp_at(h2, al2, t)
+        v1t, v2t = float(volume_at(v1, al1, t)), float(volume_at(v2, al2, t))
+    else:
+        v1t, v2t = v1, v2
+    a12 = float(mdl.interaction(h1, h2, s[0], s[1]))
+    e1, e2 = max(v1t, mdl.v_min), max(v2t, mdl.v_min)
+    vr = min(e1, e2)
+    n1, n2 = e1 / vr, e2 / vr
+    chi = vr * a12 / (R_GAS * (t + 273.15))
+    cc = 0.5 * (n1 ** -0.5 + n2 ** -0.5) ** 2
+    pa, pb = _binodal_scalar(chi, n1, n2)
+    h1 = np.array([ra_["delta_d"], ra_["delta_p"], ra_["delta_h"]])
+    h2 = np.array([rb_["delta_d"], rb_["delta_p"], rb_["delta_h"]])
     m1, m2 = ra_["molar_mass"], rb_["molar_mass"]
-    state = str(_classify(np.array(pa), np.array(pb), v1, v2, m1, m2))
+    state = str(_classify(np.array(pa), np.array(pb), v1t, v2t, m1, m2))
     notes = []
     u = _ucst_scalar(h1, h2, s[0], s[1], v1, v2, mdl, al1, al2)
     ucst_c = u if math.isfinite(u) else None
@@ -713,7 +767,7 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     if math.isfinite(pa):
         lo, hi = spinodal(chi, n1, n2)
         spin = (float(lo), float(hi))
-        bino = _binodal_dict(pa, pb, v1, v2, m1, m2)
+        bino = _binodal_dict(pa, pb, v1t, v2t, m1, m2)
     if ucst_c is not None:
         if ucst_c < t:
             notes.append(f"model UCST {ucst_c:.0f} C, below {t:g} C: one phase here; a gap may open "
