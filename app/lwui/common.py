@@ -175,7 +175,10 @@ def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool
     d = defaults if defaults is not None else (demo_filters() if is_demo() else {})
     bp = d.get("boiling_point_c", (None, None))
     with st.expander("Candidate filters", expanded=expanded):
-        c1, c2, c3, c4 = st.columns(4)
+        if temperature:
+            c1, c2, c3, c4 = st.columns(4)
+        else:
+            c2, c3, c4 = st.columns(3)
         t = 25.0
         if temperature:
             t = c1.number_input("Temperature (°C)", value=25.0, min_value=-100.0, max_value=300.0,

@@ -1,29 +1,33 @@
-"""Show the result of :func:`selector.hazard` whatever its container (object, dict, Series)."""
+"""Show a :class:`selector.hazards.HazardRecord` (CHEM21 scores, class, statements, sources)."""
 from __future__ import annotations
 
-import dataclasses
+import math
 
-import pandas as pd
 import streamlit as st
 
 
-def as_dict(h) -> dict:
-    if isinstance(h, dict):
-        return dict(h)
-    if isinstance(h, pd.Series):
-        return h.to_dict()
-    if isinstance(h, pd.DataFrame) and len(h):
-        return h.iloc[0].to_dict()
-    if dataclasses.is_dataclass(h):
-        return dataclasses.asdict(h)
-    return {k: v for k, v in vars(h).items() if not k.startswith("_")} if hasattr(h, "__dict__") else {"value": h}
+def _score(v):
+    try:
+        return "—" if math.isnan(float(v)) else f"{float(v):.0f}"
+    except (TypeError, ValueError):
+        return "—"
 
 
 def show_hazard(h) -> None:
-    d = as_dict(h)
-    cls = d.get("hazard_class") or "unclassified"
-    st.markdown(f"**Hazard class:** {cls}")
-    rest = {k: (", ".join(map(str, v)) if isinstance(v, (list, tuple)) else v) for k, v in d.items()
-            if k != "hazard_class"}
-    if rest:
-        st.table(pd.DataFrame({"item": list(rest), "value": [str(v) for v in rest.values()]}).set_index("item"))
+    d = h.as_dict() if hasattr(h, "as_dict") else dict(h)
+    m = st.columns(4)
+    m[0].metric("CHEM21 class", str(d.get("hazard_class") or "unclassified"))
+    m[1].metric("Safety score (1-10)", _score(d.get("safety_score")))
+    m[2].metric("Health score (1-10)", _score(d.get("health_score")))
+    m[3].metric("Environment score (1-10)", _score(d.get("environment_score")))
+    stm = d.get("statements") or ()
+    st.markdown("**GHS hazard statements:** " + (", ".join(stm) if stm else "none stored"))
+    if d.get("peroxide_former"):
+        st.markdown("**Forms peroxides** on storage (EUH019).")
+    if d.get("regulatory_note"):
+        st.markdown(f"**Regulation:** {d['regulatory_note']}")
+    src = d.get("sources") or {}
+    if src:
+        st.caption("Sources: " + "; ".join(f"{k}: {v}" for k, v in src.items()))
+    if d.get("caution"):
+        st.warning(d["caution"], icon=":material/warning:")

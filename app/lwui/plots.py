@@ -39,8 +39,8 @@ def _hover(df: pd.DataFrame) -> list[str]:
 
 
 def _layout(fig: go.Figure, height=560):
-    fig.update_layout(height=height, margin=dict(l=10, r=10, t=40, b=10),
-                      legend=dict(orientation="h", yanchor="bottom", y=1.0, x=0),
+    fig.update_layout(height=height, margin=dict(l=10, r=10, t=90, b=10),
+                      legend=dict(orientation="h", yanchor="bottom", y=1.02, x=0),
                       template="plotly_white")
     return fig
 

@@ -87,7 +87,7 @@ with tab1:
     r = common.call(pair, a, b, float(t))
     if r is not None:
         state = str(getattr(r, "state", "?"))
-        m = st.columns(5)
+        m = st.columns([2, 1, 1, 1, 1])
         m[0].metric("At this temperature", state)
         m[1].metric("chi", _num(getattr(r, "chi", None)))
         m[2].metric("chi_c (critical)", _num(getattr(r, "chi_critical", None)))

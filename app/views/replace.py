@@ -1,4 +1,4 @@
-"""Replace a liquid: safer liquids and blends close to one that must go."""
+"""Replace a liquid: safer single liquids and blends close to one that must go."""
 import streamlit as st
 
 import selector
@@ -7,66 +7,87 @@ from selector.report import LIBRARY_SOURCES, build_report
 
 st.title("Replace a liquid")
 st.caption("Pick a liquid that regulation or site policy is removing (e.g. NMP, DMF, dichloromethane, "
-           "toluene). The candidates sit close to it in Hansen space and carry a better hazard class.")
-mod = common.capability("blends")
-if mod is None:
+           "toluene). Candidates carry a strictly better CHEM21 hazard class and sit close to it in "
+           "Hansen space, with similar boiling point, evaporation rate and viscosity.")
+if common.capability("blends") is None or common.capability("hazards") is None:
     st.stop()
 
 names = common.liquid_names()
 default = common.demo().get("current_solvent", "toluene") if common.is_demo() else "toluene"
-old = st.selectbox("Liquid to replace", names, index=names.index(default) if default in names else 0,
+c1, c2 = st.columns([2, 1])
+old = c1.selectbox("Liquid to replace", names, index=names.index(default) if default in names else 0,
                    key="rp_old")
+keep = c2.checkbox("Must also dissolve the current target", value=common.is_demo(), key="rp_keep",
+                   help="rank by RED to the target's sphere instead of the distance to the old liquid")
 if common.is_demo():
-    st.info("Invented demo: the co-op thins its (invented) varnish with toluene today.", icon=":material/science:")
-filters, temp = common.filter_panel("rp", temperature=False)
+    st.info("Invented demo: the co-op thins its (invented) FV-3 varnish with toluene today.",
+            icon=":material/science:")
+filters, _ = common.filter_panel("rp", temperature=False, expanded=False)
+c3, c4 = st.columns(2)
+ncomp = c3.radio("Liquids per candidate (at most)", [1, 2], index=1, horizontal=True, key="rp_n")
+pw = c4.slider("Weight of boiling point / evaporation / viscosity match", 0.0, 2.0, 0.5, 0.1, key="rp_pw",
+               help="0 = Hansen distance only")
 
 
 @st.cache_data(show_spinner="Looking for substitutes…", max_entries=64)
-def subs(old, filters_key):
-    return selector.substitutes(old, **dict(filters_key))
+def subs(old, solute, ncomp, pw, filters_key):
+    from selector.targets import Target
+
+    sol = None if solute is None else Target(*solute[:3], solute[3], name=solute[4])
+    return selector.substitutes(old, solute=sol, max_components=ncomp, property_weight=pw,
+                                **dict(filters_key))
 
 
 freeze = tuple(sorted((k, tuple(v) if isinstance(v, list) else v) for k, v in filters.items()))
-hz_mod = common.capability("hazards")
-if hz_mod is not None:
-    h = common.call(selector.hazard, old)
-    if h is not None:
-        with st.expander(f"Hazard profile of {old}", expanded=True):
-            from lwui.hazard_view import show_hazard
+h = common.call(selector.hazard, old)
+if h is not None:
+    with st.expander(f"Hazard profile of {old}", expanded=False):
+        from lwui.hazard_view import show_hazard
 
-            show_hazard(h)
-res = common.call(subs, old, freeze)
+        show_hazard(h)
+t = common.target()
+res = common.call(subs, old, (t.delta_d, t.delta_p, t.delta_h, t.radius, t.name) if keep else None,
+                  int(ncomp), float(pw), freeze)
 if res is None:
     st.stop()
-if len(res) == 0:
-    st.warning("No substitute passes these filters; widen them.")
-    st.stop()
 res = res.copy()
-if "components" in res.columns:
-    res.insert(0, "candidate", [" + ".join(f"{f:.0%} {c}" for c, f in zip(cs, fs)) if len(cs) > 1 else cs[0]
-                                for cs, fs in zip(res["components"], res["fractions"])])
-    label = "candidate"
-else:
-    label = "name"
-metric = next((c for c in ("red", "ra") if c in res.columns and res[c].notna().any()), None)
+res.insert(0, "candidate", [" + ".join(f"{f:.0%} {c}" for c, f in zip(cs, fs)) if len(cs) > 1 else cs[0]
+                            for cs, fs in zip(res["components"], res["fractions"])])
+ref = res.loc[res["role"] == "replaced"] if "role" in res else res.iloc[:0]
+cand = res.loc[res["role"] != "replaced"] if "role" in res else res
+if len(cand) == 0:
+    st.warning("No safer candidate passes these filters; widen them.")
+    st.stop()
+metric = "red" if keep and cand["red"].notna().any() else "ra"
+if len(ref):
+    r0 = ref.iloc[0]
+    st.markdown(f"**{old}** today: hazard class {r0.get('hazard_class', 'unclassified')}, boiling point "
+                f"{r0.get('boiling_point_c', float('nan')):.0f} °C, lowest flash point "
+                f"{r0.get('lowest_flash_point_c', float('nan')):.0f} °C.")
 st.subheader("Best five")
-common.readable_top(res, [label, metric, "hazard_class", "flash_point_c", "boiling_point_c"], 5)
+common.readable_top(cand, ["candidate", metric, "score", "hazard_class", "boiling_point_c",
+                           "lowest_flash_point_c"], 5)
 show = [c for c in res.columns if c not in ("components", "fractions")]
-st.dataframe(res[show], hide_index=True, width="stretch", column_config=common.COLUMN_CONFIG)
+st.dataframe(res[show], hide_index=True, width="stretch", column_config=dict(
+    common.COLUMN_CONFIG, candidate=st.column_config.TextColumn("Candidate"),
+    lowest_flash_point_c=st.column_config.NumberColumn("Lowest flash point (°C)", format="%.0f"),
+    evaporation_rate=st.column_config.NumberColumn("Evaporation rate", format="%.2f"),
+    mismatch=st.column_config.NumberColumn("Property mismatch", format="%.2f")))
+st.caption("The first row is the liquid being replaced, for comparison.")
 
 lib = common.library()
-if "components" in res.columns:
-    nm = sorted({c for cs in res["components"] for c in cs})
-else:
-    nm = list(res["name"])
+nm = sorted({c for cs in res["components"] for c in cs})
 rows = lib.loc[lib["name"].isin(nm)]
 common.cautions(rows, title="Safety notes for the candidates")
-tg = common.call(selector.as_target, old, lib)
-kw = dict(target=tg, inputs=dict(common.filters_as_inputs(filters, 25.0), **{"liquid replaced": old}),
-          table=res.head(10), columns=[c for c in [label, "ra", "red", "hazard_class", "flash_point_c",
-                                                   "boiling_point_c"] if c in res], liquids=common.with_hazards(rows),
-          sources=LIBRARY_SOURCES + ["Hazard classes: selector.hazards (CHEM21 guide, Prat et al., "
-                                     "Green Chem. 18 (2016) 288)."])
+tg = t if keep else common.call(selector.as_target, old, lib)
+inputs = dict(common.filters_as_inputs(filters, 25.0), **{"liquid replaced": old, "liquids per candidate": int(ncomp),
+                                                          "property weight": float(pw)})
+kw = dict(target=tg, inputs=inputs, table=res.head(11),
+          columns=[c for c in ["candidate", "ra", "red", "score", "hazard_class", "boiling_point_c",
+                               "lowest_flash_point_c", "role"] if c in res], liquids=common.with_hazards(rows),
+          sources=LIBRARY_SOURCES + ["Hazard classes: CHEM21 guide (Prat et al., Green Chem. 18 (2016) 288-296), "
+                                     "statements from memory - confirm with the safety data sheet."],
+          notes=(["The target is the INVENTED demo resin, not measured data."] if keep and common.is_demo() else []))
 common.downloads(res[show], stem=f"replace_{old.replace(' ', '_')}",
                  report_md=build_report(f"Replacing {old}", **kw),
                  report_html=build_report(f"Replacing {old}", fmt="html", **kw), key="rp")

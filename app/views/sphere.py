@@ -64,7 +64,7 @@ tests = st.data_editor(base, num_rows="dynamic", width="stretch", key=f"sp_ed_{s
                                       "dissolved": st.column_config.CheckboxColumn("dissolved"),
                                       "score": st.column_config.NumberColumn("score", help="graded result, optional")})
 c1, c2, c3, c4 = st.columns(4)
-boot = c1.select_slider("Bootstrap resamples (for the intervals)", [0, 25, 50, 100, 200], value=50, key="sp_boot")
+boot = c1.select_slider("Bootstrap resamples (for the intervals)", [0, 25, 50, 100, 200], value=100, key="sp_boot")
 seed = c2.number_input("Random seed", 0, 10_000, 0, key="sp_seed")
 graded = c3.checkbox("Use the score column as grades", value=False, key="sp_graded",
                      help="grade at or above the pass mark counts as good; higher grades = further inside")
