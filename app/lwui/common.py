@@ -274,7 +274,7 @@ def cautions(liquids: pd.DataFrame, *, title: str = "Safety notes for the liquid
 
 def readable_top(df: pd.DataFrame, columns: list[str], n: int = 5, key: str = "top") -> None:
     """The first rows as a plain HTML table (readable by people, printers and browser tests)."""
-    cols = [c for c in columns if c in df.columns]
+    cols = list(dict.fromkeys(c for c in columns if c and c in df.columns))
     top = df.head(n)[cols].copy()
     labels = {c: (COLUMN_CONFIG[c]["label"] if c in COLUMN_CONFIG and isinstance(COLUMN_CONFIG[c], dict)
                   and COLUMN_CONFIG[c].get("label") else c) for c in cols}
