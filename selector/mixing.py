@@ -486,7 +486,9 @@ def _record(row, name) -> dict:
     rec["boiling_point_c"] = _opt(get("boiling_point_c"))
     rec["expansion_coeff"] = _opt(get("expansion_coeff"))
     smi = get("smiles", "")
-    rec["smiles"] = "" if smi is None or (isinstance(smi, float) and math.isnan(smi)) else str(smi)
+    rec["smiles"] = "" if smi is None or (isinstance(smi, float) and math.isnan(smi)) else str(smi).strip()
+    if rec["smiles"] and math.isnan(site_counts(rec["smiles"])[0]):
+        raise SelectorError(f"{name}: {rec['smiles']!r} is not a valid SMILES string")
     rec["sources_disagree"] = str(get("sources_disagree", False)).lower() == "true"
     return rec
 

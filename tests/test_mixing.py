@@ -262,6 +262,9 @@ def test_bad_input_is_a_clear_error():
     with pytest.raises(SelectorError):
         miscibility({"name": "x", "delta_d": float("nan"), "delta_p": 1, "delta_h": 2,
                      "molar_volume": 90}, "water")
+    with pytest.raises(SelectorError, match="SMILES"):
+        miscibility({"name": "x", "delta_d": 16, "delta_p": 1, "delta_h": 2, "molar_volume": 90,
+                     "smiles": "C1CC(("}, "water")
     with pytest.raises(SelectorError):
         miscibility_matrix([])
     with pytest.raises(SelectorError, match="unknown liquid"):
