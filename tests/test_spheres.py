@@ -9,7 +9,7 @@ Reference points outside the project:
 * common practice of the trade for polystyrene solvents and non-solvents;
 * the volume-fraction blending rule and Hansen-Beerbower temperature rule (handbook, ch. 1).
 
-Intervals in these tests use a smaller bootstrap (30 samples instead of the default 200) to
+Intervals in these tests use a smaller bootstrap (20-30 samples instead of the default 200) to
 stay inside the time budget; the profile-region part of each interval is unaffected by it.
 """
 from __future__ import annotations
@@ -56,7 +56,7 @@ def _case(seed, n=40, noise=0.0):
 
 # ----------------------------------------------------------------------------- recovery
 
-@pytest.mark.parametrize("seed", [11, 12, 13, 14])
+@pytest.mark.parametrize("seed", [11, 12, 13])
 def test_whole_library_clean_recovery(seed):
     # Method definition (Hansen's handbook, ch. 1): with every library liquid tested and clean
     # outcomes, the fitted sphere must be the generating one (centre within 0.5 MPa^0.5 on each
@@ -77,13 +77,13 @@ def test_whole_library_clean_recovery(seed):
 
 @pytest.mark.parametrize("noise", [0.0, 0.05])
 def test_interval_coverage_40_tests(noise):
-    # 40 tests, clean or 5 % flipped: each true value inside its interval in >= 85 % of 24 seeded
+    # 40 tests, clean or 5 % flipped: each true value inside its interval in >= 85 % of 20 seeded
     # cases (true spheres generated here; outcomes from real library HSP).
-    cases = 24
+    cases = 20
     hits = np.zeros(4)
     for s in range(cases):
         df, c, R = _case(300 + s, noise=noise)
-        fit = fit_sphere(df, bootstrap=30, seed=s)
+        fit = fit_sphere(df, bootstrap=20, seed=s)
         for j, (k, tv) in enumerate(zip(PARAMS, [*c, R])):
             lo, hi = fit.intervals[k]
             assert lo <= getattr(fit, k) <= hi + 1e-9
@@ -128,7 +128,7 @@ def _brute(tab, step=0.5, margin=2.5):
     return best
 
 
-@pytest.mark.parametrize("seed", [21, 22, 23])
+@pytest.mark.parametrize("seed", [21, 22])
 def test_global_optimum_against_exhaustive_grid(seed):
     # The classical score (handbook ch. 1) by brute force over a grid of centres with every
     # tested Ra as R0; the fit must be at least as good (5 % flipped: plateaus, local optima).
