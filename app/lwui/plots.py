@@ -38,10 +38,11 @@ def _hover(df: pd.DataFrame) -> list[str]:
             zip(df["name"], df["delta_d"], df["delta_p"], df["delta_h"])]
 
 
-def _layout(fig: go.Figure, height=560):
-    fig.update_layout(height=height, margin=dict(l=10, r=10, t=90, b=10),
-                      legend=dict(orientation="h", yanchor="bottom", y=1.02, x=0),
-                      template="plotly_white")
+def _layout(fig: go.Figure, height=560, legend_below=False):
+    legend = (dict(orientation="h", yanchor="top", y=-0.18, x=0) if legend_below
+              else dict(orientation="h", yanchor="bottom", y=1.02, x=0))
+    fig.update_layout(height=height, margin=dict(l=10, r=10, t=90, b=10 if not legend_below else 90),
+                      legend=legend, template="plotly_white")
     return fig
 
 
@@ -110,7 +111,7 @@ def projections_2d(groups, spheres=()) -> go.Figure:
                                      hovertext=label, hoverinfo="text"), row=1, col=j)
         fig.update_xaxes(title_text=AXIS[a[-1]], row=1, col=j)
         fig.update_yaxes(title_text=AXIS[b[-1]], row=1, col=j)
-    return _layout(fig, 430)
+    return _layout(fig, 500, legend_below=True)
 
 
 def teas_triangle(groups, points=()) -> go.Figure:
@@ -127,13 +128,13 @@ def teas_triangle(groups, points=()) -> go.Figure:
                                                     symbol=style["symbol"], opacity=style.get("opacity", 0.9))))
     for label, h in points:
         f = 100 * teas_fractions(np.asarray(h, float))
-        fig.add_trace(go.Scatterternary(a=[f[0]], b=[f[1]], c=[f[2]], mode="markers+text", name=label,
-                                        text=[label], textposition="top center",
+        fig.add_trace(go.Scatterternary(a=[f[0]], b=[f[1]], c=[f[2]], mode="markers", name=label,
+                                        text=[label], hoverinfo="text",
                                         marker=dict(size=12, color=BLACK, symbol="diamond")))
-    fig.update_layout(ternary=dict(aaxis=dict(title="fd x 100", min=0), baxis=dict(title="fp x 100", min=0),
-                                   caxis=dict(title="fh x 100", min=0)),
+    fig.update_layout(ternary=dict(sum=100, aaxis=dict(title="100 fd", min=0), baxis=dict(title="100 fp", min=0),
+                                   caxis=dict(title="100 fh", min=0)),
                       title="Teas triangle (fractional parameters)")
-    return _layout(fig, 520)
+    return _layout(fig, 560, legend_below=True)
 
 
 def heat_map(states: pd.DataFrame, title="Miscibility at the chosen temperature") -> go.Figure:

@@ -31,6 +31,10 @@ def _saved() -> pd.DataFrame:
 
 if KEY not in st.session_state:
     st.session_state[KEY] = _saved()
+if st.session_state.get("mine_msg"):
+    st.success(st.session_state.pop("mine_msg"))
+st.caption("Add a row with the + at the bottom of the table; select rows and press the bin to delete. "
+           "Nothing is written until you press *Save my liquids*.")
 table = st.session_state[KEY]
 for c in COLUMNS:
     if c not in table.columns:
@@ -56,7 +60,9 @@ if c1.button("Save my liquids", type="primary", key="mine_save"):
             common.show_error(f"Not saved - the file on disk is unchanged. {e}")
         else:
             st.session_state[KEY] = validate_user_table(path)
-            st.success(f"Saved {len(rows)} liquid(s) to {path}.")
+            st.session_state.pop("mine_editor", None)
+            st.session_state["mine_msg"] = f"Saved {len(rows)} liquid(s) to {path}."
+            st.rerun()
 c2.download_button("Export (CSV)", to_csv_text(rows), file_name="my_liquids.csv", mime="text/csv",
                    key="mine_export", on_click="ignore")
 if c3.button("Discard edits", key="mine_reload"):
@@ -79,3 +85,22 @@ if up is not None:
             st.session_state.pop("mine_editor", None)
             st.info("Added to the table - press *Save my liquids* to keep them.")
             st.rerun()
+
+solutes = rows.loc[pd.to_numeric(rows.get("radius", pd.Series(dtype=float)), errors="coerce") > 0] \
+    if "radius" in rows else rows.iloc[:0]
+if len(solutes):
+    st.subheader("Use a solute of yours as the target")
+    pick = st.selectbox("Solute (rows with R0)", list(solutes["name"].astype(str)), key="mine_sol")
+    if st.button("Use as target", key="mine_use"):
+        r = solutes.loc[solutes["name"].astype(str) == pick].iloc[0]
+        try:
+            from selector.targets import Target
+
+            Target(float(r["delta_d"]), float(r["delta_p"]), float(r["delta_h"]), float(r["radius"]), name=pick)
+        except (ValueError, TypeError) as e:
+            common.show_error(e)
+        else:
+            common.set_target({"kind": "mine", "name": pick, "delta_d": float(r["delta_d"]),
+                               "delta_p": float(r["delta_p"]), "delta_h": float(r["delta_h"]),
+                               "radius": float(r["radius"]), "source": "my liquids"})
+            st.success(f"{pick} is now the target.")
