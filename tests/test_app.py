@@ -235,6 +235,12 @@ def test_blend_page_matches_find_blends(at):
     label = " + ".join(f"{f:.0%} {c}" for c, f in zip(ref["components"].iloc[0], ref["fractions"].iloc[0]))
     assert first.index[0] == label
     assert len(first) == min(5, len(ref))
+    # the drying path of the first blend is the library's (ideal evaporation, 50 % humidity default)
+    path = selector.drying_path(list(ref["components"].iloc[0]), list(ref["fractions"].iloc[0]),
+                                temperature=25.0, target=selector.Target(*PS[:3], PS[3]),
+                                activity="raoult", relative_humidity=50.0)
+    note = [m.value for m in at.markdown if "lw-drying" in m.value]
+    assert note and f"last to leave: <b>{path.attrs['tail_solvent']}</b>" in note[0]
 
 
 @pytest.mark.skipif(not has("blends"), reason="selector.blends not installed")
