@@ -54,6 +54,12 @@ elif src == "Upload a CSV":
             common.show_error(f"Could not read {up.name}: {str(e).splitlines()[0]}")
             base = None
     if base is None:
+        from selector.io import to_csv_text
+
+        st.download_button("Template CSV", to_csv_text(pd.DataFrame({
+            "solvent": ["toluene", "ethanol", "toluene [60] & ethanol [40]"], "dissolved": [True, False, True],
+            "score": [None, None, None]})), file_name="lab_tests_template.csv", mime="text/csv",
+            key="sp_tpl", on_click="ignore")
         st.stop()
 else:
     base = pd.DataFrame({"solvent": ["toluene", "acetone", "ethanol", "hexane"],
@@ -113,6 +119,30 @@ if nxt is not None:
     lib = common.library()
     if "name" in getattr(nxt, "columns", []):
         common.cautions(lib.loc[lib["name"].isin(nxt["name"])], title="Safety notes for the suggested tests")
+
+from selector.report import build_report
+
+rep_in = {"tests": len(res.tests), "bootstrap resamples": int(boot), "seed": int(seed),
+          "graded": f"pass mark {thr:g}" if graded else "no", "two spheres allowed": bool(two),
+          "fit score": res.score}
+summ = res.summary() if hasattr(res, "summary") else None
+kw = dict(target=selector.Target(res.delta_d, res.delta_p, res.delta_h, res.radius, name="fitted sphere",
+                                 source="fitted to " + ("INVENTED demo results" if src.startswith("Invented")
+                                                        else "your lab results")),
+          inputs=rep_in, table=summ, liquids=None if nxt is None else nxt,
+          notes=list(getattr(res, "warnings", []) or []) + (
+              ["Suggested next tests: " + ", ".join(nxt["name"])] if nxt is not None and "name" in nxt else []),
+          sources=["Sphere fit: classical desirability (Hansen's handbook, 2nd ed., 2007, ch. 1) as implemented "
+                   "in selector.spheres; intervals by bootstrap and the profile region."])
+from selector.io import to_csv_text
+
+c1, c2, c3 = st.columns(3)
+c1.download_button("Fitted sphere (CSV)", to_csv_text(summ) if summ is not None else "", file_name="sphere.csv",
+                   mime="text/csv", key="sp_csv", on_click="ignore")
+c2.download_button("Report (Markdown)", build_report("Sphere from lab tests", **kw), file_name="sphere_report.md",
+                   mime="text/markdown", key="sp_md", on_click="ignore")
+c3.download_button("Printable report (HTML)", build_report("Sphere from lab tests", fmt="html", **kw),
+                   file_name="sphere_report.html", mime="text/html", key="sp_html", on_click="ignore")
 
 lib = common.library()
 tested = getattr(res, "tests", None)
