@@ -74,7 +74,6 @@ def set_typed_target(at, values, name="polystyrene"):
 def test_opens_on_invented_demo_with_rank_result(at):
     # the landing page shows the invented scenario, labelled so, and the ranking the library computes
     assert any("INVENTED" in i.value for i in at.info)
-    sc = selector.cli_core.demo_scenario() if hasattr(selector, "cli_core") else None
     from selector.cli_core import demo_scenario
 
     sc = demo_scenario()
