@@ -151,13 +151,18 @@ class GridScores:
         u = _ucst_grid(self.G, f, self.ucst_cols)
         self.ucst_err = np.minimum(np.abs(u - f.ucst[self.ucst_cols][None, :]) / 50.0, 1.0)
 
-    def best(self, train: np.ndarray) -> np.ndarray:
-        """Grid point (w_p, w_h, k_cross, v_min) with the best score on the ``train`` pairs."""
+    def best(self, train: np.ndarray, allowed: np.ndarray | None = None) -> np.ndarray:
+        """Grid point (w_p, w_h, k_cross, v_min) with the best score on the ``train`` pairs.
+
+        ``allowed``: optional boolean mask over grid points (e.g. k_cross == 0 for an ablation).
+        """
         train = np.asarray(train, bool)
         sc = self.right[:, train].mean(1) - 1e-3 * self.penalty[:, train].mean(1)
         ut = train[self.ucst_cols]
         if ut.any():
             sc = sc - 0.02 * self.ucst_err[:, ut].mean(1)
+        if allowed is not None:
+            sc = np.where(allowed, sc, -np.inf)
         return self.G[int(np.argmax(sc))]
 
 
