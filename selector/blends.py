@@ -202,12 +202,13 @@ def _miscibility(cand, temperature):
 
 
 def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, pool=2000,
-                  min_gain=DEFAULT_MIN_GAIN, hazard_rank=None, resolution=0.5):
+                  min_gain=DEFAULT_MIN_GAIN, hazard_rank=None, resolution=0.5, ternary_pool=None):
     """Core search on scaled candidate points ``X`` (n, 3) and scaled target ``t`` (3,).
 
     Returns a dict of arrays: ``idx`` (p, 3) candidate indices (-1 for unused slots), ``f`` (p, 3)
-    fractions, ``ra`` (p,), ``key`` (p,) - every single liquid and, for two and three components,
-    the ``pool`` best admissible blends (module doc), each set ordered by ``key``: Ra in steps of
+    fractions, ``ra`` (p,), ``key`` (p,) - every single liquid, the ``pool`` best admissible blends
+    of two and the ``ternary_pool`` (default ``max(200, pool // 10)``) best of three (module doc),
+    each set ordered by ``key``: Ra in steps of
     ``resolution`` (MPa^0.5), then the worst ``hazard_rank`` of the components (0-3, 4 for
     unclassified; optional (n,) array), then Ra. ``miscible``: optional (n, n) bool; pairs marked
     False are never blended. Exact: a triple is skipped only when the distance of the target to its
@@ -248,10 +249,54 @@ def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, p
                            np.column_stack([a2, 1 - a2, np.zeros(len(i2))]), bij[keep],
                            key(bij[keep], np.maximum(hz[i2], hz[j2])), pool))
     if max_components >= 3 and n >= 3:
+        tp = max(200, pool // 10) if ternary_pool is None else int(ternary_pool)
         parts.append(_ternary_search(Z, G, gd, B, hz, single, _check_min_fraction(min_fraction, 3),
-                                     min_gain, pool, res, key))
+                                     min_gain, tp, res, key))
     idx, f, rr, kk = (np.concatenate(x) for x in zip(*parts))
     return {"idx": idx, "f": f, "ra": rr, "key": kk}
+
+
+def _edge_gram(gcc, gbb, gaa, gbc, gac, gab, m):
+    """Edge of a triple with c at m, a = u, b = 1 - m - u, from Gram entries (target at 0)."""
+    base2 = m * m * gcc + 2 * m * (1 - m) * gbc + (1 - m) ** 2 * gbb
+    bd = m * (gac - gbc) + (1 - m) * (gab - gbb)
+    dd = gaa + gbb - 2 * gab
+    with np.errstate(invalid="ignore", divide="ignore"):
+        u = np.where(dd > 0, -bd / np.where(dd > 0, dd, 1.0), m)
+    u = np.clip(u, m, 1 - 2 * m)
+    return u, base2 + 2 * u * bd + u * u * dd
+
+
+def _ternary_gram(gii, gij, gik, gjj, gkk, gjk, m):
+    """Exact ternary optimum from the six Gram entries of (z_i, z_j, z_k) (target at 0)."""
+    ybb = gjj - 2 * gij + gii
+    ycc = gkk - 2 * gik + gii
+    ybc = gjk - gij - gik + gii
+    rb = gii - gij
+    rc = gii - gik
+    det = ybb * ycc - ybc * ybc
+    ok = det > 1e-10 * np.maximum(ybb * ycc, 1e-300)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        sd = np.where(ok, det, 1.0)
+        fb = (ycc * rb - ybc * rc) / sd
+        fc = (ybb * rc - ybc * rb) / sd
+    fa = 1 - fb - fc
+    inside = ok & (fa >= m) & (fb >= m) & (fc >= m)
+    best = np.where(inside, gii - (fb * rb + fc * rc), np.inf)
+    f = np.stack([fa, fb, fc], -1)
+    # (fixed component, the one that gets u, the one that gets 1 - m - u)
+    for fx, a, b, gx, ga, gb, gxb, gxa, gab in (
+            (2, 0, 1, gkk, gii, gjj, gjk, gik, gij),
+            (0, 1, 2, gii, gjj, gkk, gik, gij, gjk),
+            (1, 0, 2, gjj, gii, gkk, gjk, gij, gik)):
+        u, val = _edge_gram(gx, gb, ga, gxb, gxa, gab, m)
+        better = ~inside & (val < best)
+        if better.any():
+            f[better, fx] = m
+            f[better, a] = u[better]
+            f[better, b] = 1 - m - u[better]
+            best = np.where(better, val, best)
+    return f, np.maximum(best, 0.0)
 
 
 def _tau_table(tau_key, res):
@@ -321,7 +366,7 @@ def _ternary_search(Z, G, gd, B, hz, single, m, min_gain, pool, res, key):
                 continue
             j = jj + r0
             k = kk + r0
-            ff, d2 = _ternary_core(np.broadcast_to(Z[i], (len(j), 3)), Z[j], Z[k], m)
+            ff, d2 = _ternary_gram(gii, gi[j], gi[k], gd[j], gd[k], G[j, k], m)
             rt = np.sqrt(d2)
             lim = np.minimum(np.minimum(Bthr[i, j], Bthr[i, k]), Bthr[j, k])
             lim = np.minimum(lim, tau_t[np.maximum(Hp[j, k], hzp[i])])
@@ -339,7 +384,9 @@ def _ternary_search(Z, G, gd, B, hz, single, m, min_gain, pool, res, key):
         e = np.zeros((0, 3))
         return e.astype(int), e, np.zeros(0), np.zeros(0)
     idx, f, rr, kk = _best(*best, pool)
-    return perm[idx], f, rr, kk
+    # polish the pool in direct coordinates (same optimum, computed from the points themselves)
+    f, d2 = _ternary_core(Z[idx[:, 0]], Z[idx[:, 1]], Z[idx[:, 2]], m)
+    return perm[idx], f, np.sqrt(d2), kk
 
 
 def _best(idx, f, rr, kk, pool):

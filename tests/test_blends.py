@@ -14,6 +14,7 @@ from selector.blends import (binary_fractions, blend_fractions, find_blends, rel
                              search_arrays, substitutes, ternary_fractions)
 from selector.cli import main
 from selector.errors import SelectorError
+from selector.hazards import hazard_columns, hazard_statements
 from selector.hansen import ra
 
 LIB = selector.load_library()
@@ -79,7 +80,7 @@ def test_search_equals_exhaustive_enumeration():
         n = int(rng.integers(8, 22))
         X = rng.normal(size=(n, 3)) * 6
         t = rng.normal(size=3) * 2
-        res = search_arrays(X, t, max_components=3, min_fraction=0.05, pool=40, min_gain=0.1)
+        res = search_arrays(X, t, max_components=3, min_fraction=0.05, pool=40, ternary_pool=40, min_gain=0.1)
         B = {p: float(binary_fractions(X[p[0]], X[p[1]], t, 0.05)[1]) for p in itertools.combinations(range(n), 2)}
         exp = []
         for i, j, k in itertools.combinations(range(n), 3):
@@ -112,7 +113,7 @@ def test_constraints_never_violated():
                       boiling_point_c=(60, 160), flash_point_c=(0, None), max_hazard_class="problematic",
                       exclude=["toluene"], min_gain=0.0)
     assert len(res) > 0
-    hz = {r.name: r.hazard_class for r in selector.hazards.hazard_columns(lib).assign(name=lib["name"]).itertuples()}
+    hz = {r.name: r.hazard_class for r in hazard_columns(lib).assign(name=lib["name"]).itertuples()}
     for r in res.itertuples():
         assert 1 <= len(r.components) <= 3
         assert len(r.components) == 1 or min(r.fractions) >= 0.1 - 1e-4
@@ -251,7 +252,7 @@ def test_substitutes_for_a_solute_sphere():
 
 
 def test_substitutes_need_hazard_data():
-    unclassified = LIB.loc[~LIB["cas"].isin(selector.hazards.hazard_statements()["cas"]), "name"].iloc[0]
+    unclassified = LIB.loc[~LIB["cas"].isin(hazard_statements()["cas"]), "name"].iloc[0]
     with pytest.raises(SelectorError, match="unclassified"):
         substitutes(unclassified)
     with pytest.raises(SelectorError, match="already"):
