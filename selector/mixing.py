@@ -1,37 +1,41 @@
 """Will two liquids mix? Flory-Huggins with Hansen parameters, plus a donor/acceptor term.
 
-The free energy of mixing per reference volume V_r (Flory, 1942; Huggins, 1942), with phi the
-volume fraction of liquid 1 and N_i = V_i / V_r::
+The free energy of mixing per reference volume V_r (Flory, J. Chem. Phys. 10 (1942) 51;
+Huggins, Ann. N. Y. Acad. Sci. 43 (1942) 1), with phi the volume fraction of liquid 1 and
+N_i = V_i* / V_r::
 
     g(phi) / RT = (phi / N1) ln phi + ((1 - phi) / N2) ln(1 - phi) + chi phi (1 - phi)
 
 Interaction energy density A12 (J/cm^3 = MPa) and chi = V_r A12 / (R T):
 
-* plain Hansen form (Hansen's handbook, 2nd ed., 2007, ch. 1 and 2)::
+* plain Hansen form (:data:`PLAIN`; Hansen's handbook, 2nd ed., 2007, ch. 1-2), V_i* = V_i::
 
       A12 = (dD1 - dD2)^2 + 0.25 (dP1 - dP2)^2 + 0.25 (dH1 - dH2)^2
 
-* this project's donor/acceptor-aware form (:data:`HBOND`)::
+* this project's donor/acceptor-aware form (:data:`HBOND`, the default)::
 
-      A12 = (dD1 - dD2)^2 + w_p (dP1 - dP2)^2 + w_h (dH1 - dH2)^2
-            - K (eD1 eA2 + eD2 eA1)
+      A12 = (dD1 - dD2)^2 + w_p (dP1 - dP2)^2 + w_h (dH1 - dH2)^2 - K (eD1 eA2 + eD2 eA1)
+      V_i* = max(V_i, V_min)
 
-  where eD and eA (mol/cm^3) are the *excess* hydrogen-bond donor and acceptor sites per volume
-  of each liquid, counted from its structure with RDKit (:func:`site_densities`): a liquid
-  whose donors outnumber its acceptors (water, primary amines) has spare donors, a liquid with
-  acceptors but no donors (ketones, ethers, esters, amides, nitriles, sulfoxides, tertiary
-  amines) has spare acceptors. The geometric-mean rule hidden in (dH1 - dH2)^2 cannot see that
-  the spare sites of one liquid can bond to those of the other; the K term is the energy of
-  those cross bonds (a regular-solution, 1/T term like the rest of chi). The weights w_p, w_h
-  and K are the only fitted numbers (on ``parameters/miscibility_pairs.csv``; see
-  :mod:`selector.mixing_report` for the leave-one-liquid-out accuracy).
+  where eD and eA (mol/cm^3) are the *spare* hydrogen-bond donor and acceptor strengths per
+  volume of each liquid, found from its structure with RDKit (:func:`site_counts`,
+  :func:`site_densities`; Kamlet-Taft weights per site class): a liquid whose donors outweigh
+  its acceptors (water) has spare donors, one with acceptors but no donors (ketones, ethers,
+  esters, amides, nitriles, sulfoxides, tertiary amines) spare acceptors. The geometric-mean
+  rule hidden in (dH1 - dH2)^2 cannot see that the spare sites of one liquid bond to those of
+  the other; the K term is the energy of those cross bonds. V_min is a floor on the volume in
+  the combinatorial entropy (it only affects liquids smaller than 40 cm^3/mol, above all water).
+  w_p, w_h, K and V_min are the only fitted numbers (:mod:`selector.mixing_fit`, on
+  ``parameters/miscibility_pairs.csv``; accuracy in ``parameters/miscibility_accuracy.md``).
 
-The pair splits when chi > chi_c = 0.5 (N1^-0.5 + N2^-0.5)^2; because V_r cancels out of the
-phase behaviour in volume fractions, V_r is simply taken as the smaller molar volume (so chi
-is per molecule of the smaller liquid). With A12 independent of T, chi falls as 1/T and the
-model has an upper critical solution temperature UCST = V_r A12 / (R chi_c). The two coexisting
-compositions (the binodal) come from equal chemical potentials of both liquids in both phases,
-solved by Newton's method; the spinodal from d2g/dphi2 = 0.
+The pair splits when chi > chi_c = 0.5 (N1^-0.5 + N2^-0.5)^2 (Flory, Principles of Polymer
+Chemistry, 1953, ch. 13). V_r cancels out of the phase behaviour in volume fractions and is
+taken as the smaller V_i*. Away from 25 C the HSP follow the Hansen-Beerbower relations
+(:func:`selector.hansen.hsp_at_temperature`) and the molar volumes V exp(alpha (T - 25)); chi
+falls with T, so the model has an upper critical solution temperature, where chi(T) = chi_c
+(:func:`ucst`). The coexisting compositions (the binodal) come from equal chemical potentials
+of both liquids in both phases (:func:`binodal`, Newton's method); the spinodal from
+d2g/dphi2 = 0 (:func:`spinodal`).
 
 States at a temperature:
 
@@ -43,7 +47,9 @@ States at a temperature:
   with 1-butanol, ethyl acetate, diethyl ether, 2-butanone; methanol with hexane).
 
 Lower critical solution behaviour (water with triethylamine, some glycol ethers) is outside
-this model; such pairs get a note and low confidence.
+this model; such pairs get a note and low confidence. The model overestimates the solubility
+of water in organic liquids (often tenfold); the dilute end on the water side is closer.
+Every answer is a hint for a small test mix; read the safety data sheets of both liquids.
 """
 from __future__ import annotations
 
