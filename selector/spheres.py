@@ -18,7 +18,8 @@ piecewise-linear function of R0 whose slope is ``W(Ra <= R0) - G`` (W: weight of
 closer than R0, G: weight of the good ones), so the best R0 is found exactly: it is the
 smallest sorted Ra at which the cumulative weight reaches G. The centre is then searched by
 (1) vectorised evaluation over a coarse grid spanning the good results, (2) a pattern search
-from the best few well-separated grid points, each step trying 26 directions whose orientation
+from the best eight well-separated grid points (the best three of them carried on below 1/16
+of the grid step), each step trying 26 directions whose orientation
 is drawn from the seeded random generator (so no direction is systematically missed on the
 ridges of the surface), halving the step when no direction improves, down to 5e-4 MPa^0.5.
 Ties in the score are broken towards the smaller R0 by a 1e-9 penalty per MPa^0.5.
@@ -564,7 +565,10 @@ def _fit_one(P, w, good, m, rng, starts=STARTS):
     G = _grid(axes)
     f, R, S = _objective(G, P, wm, good, m, W)
     idx = _separated(G, f, starts, 1.5 * step)
-    C, fc = _pattern_search(G[idx], step, P, wm, good, m, W, rng)
+    # all starts down to 1/16 of the grid step, then the best three to the end
+    C, fc = _pattern_search(G[idx], step, P, wm, good, m, W, rng, min_step=step / 16)
+    keep = np.argsort(fc, kind="stable")[:3]
+    C, fc = _pattern_search(C[keep], step / 16, P, wm, good, m, W, rng)
     b = int(np.argmin(fc))
     c = C[b]
     Rb, Sb = _best_radius(_dist(c[None], P, m)[0], wm, good)
@@ -613,7 +617,7 @@ def _radius_range(q, wm, good, level):
     return np.where(anyin, a, np.nan), np.where(anyin, b, np.nan)
 
 
-def _profile(fit: _Fit, P, w, good, m, level, max_points=12000):
+def _profile(fit: _Fit, P, w, good, m, level, max_points=8000):
     """Near-optimal region: centres (scaled) with their R0 ranges, summed loss <= best + level."""
     wm = w * m
     thr = fit.loss + level
