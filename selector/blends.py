@@ -46,7 +46,7 @@ import pandas as pd
 from .errors import SelectorError
 from .filters import check_filter_keys, check_temperature, filter_mask
 from .hansen import ra as _ra
-from .library import HSP, load_library, locate, locate_many, vapour_pressure_kpa
+from .library import load_library, locate, locate_many, vapour_pressure_kpa
 from .targets import Target
 
 REFERENCE_RADIUS = 8.0  # MPa^0.5, as in selector.ranking
@@ -713,8 +713,6 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     exc = list(filt.get("exclude") or [])
     filt["exclude"] = ([exc] if isinstance(exc, str) else exc) + [xname]
     tgt = as_target(solute, lib) if solute is not None else as_target(xname, lib)
-    if solute is not None and isinstance(solute, str):
-        tgt = as_target(solute, lib)
     k = int(max_components) if max_components in (1, 2, 3) else None
     if k is None:
         raise SelectorError(f"max_components must be 1, 2 or 3, got {max_components!r}")
@@ -734,7 +732,6 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     used = res["idx"] >= 0
     tab["hazard_rank"] = np.where(used, hr[np.where(used, res["idx"], 0)], -np.inf).max(1)
     # the liquid being replaced, evaluated the same way
-    xh = x[HSP].to_numpy(float)
     from .ranking import corrected_hsp
 
     xh = corrected_hsp(x, t_c)

@@ -43,7 +43,7 @@ import pandas as pd
 from .errors import SelectorError
 from .filters import check_temperature
 from .hansen import R_GAS, ra as _ra
-from .library import HSP, load_library, locate_many, vapour_pressure_kpa
+from .library import load_library, locate_many, vapour_pressure_kpa
 
 WATER_CAS = "7732-18-5"
 MODELS = ("raoult", "hsp")
