@@ -791,6 +791,9 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     else:
         notes.append("no UCST in this model: one phase at all temperatures from -150 C up")
     wa, wb = _is_water(ra_), _is_water(rb_)
+    if (wa or wb) and ucst_c is not None:
+        notes.append("with water the model UCST is only a rough hint (water-1-butanol: model about "
+                     "41 C, published about 125 C)")
     lcst = (wa != wb) and _lcst_prone(rb_ if wa else ra_)
     if lcst:
         notes.append("water with an amine, pyridine or glycol ether: such pairs can show lower "
