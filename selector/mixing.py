@@ -446,7 +446,7 @@ def _liquid(obj, lib) -> dict:
     """A liquid as a plain record; library name/CAS/SMILES or a user dict/Series."""
     if isinstance(obj, str):
         if lib is None:
-            lib = load_library()
+            lib = _shared_library()
         row = lib.iloc[locate(obj, lib)]
         return _record(row, str(row["name"]))
     if isinstance(obj, (dict, pd.Series)):
@@ -924,7 +924,7 @@ def _rows(liquids, library):
         raise SelectorError("no liquids selected")
     lib = library
     if lib is None and any(isinstance(x, str) for x in items):
-        lib = load_library()
+        lib = _shared_library()
     recs = []
     for x in items:
         if isinstance(x, str):
@@ -948,7 +948,7 @@ def miscibility_matrix(liquids, *, temperature: float = 25.0, library: pd.DataFr
     ('immiscible', 'miscible')
     """
     if isinstance(liquids, (list, tuple)) and any(isinstance(x, str) for x in liquids) and library is None:
-        library = load_library()
+        library = _shared_library()
     if isinstance(liquids, (list, tuple)) and library is not None and all(isinstance(x, str) for x in liquids):
         from .library import locate_many
 
@@ -990,7 +990,7 @@ def check_blend_miscible(names_or_rows, *, temperature: float = 25.0,
     [('water', 'toluene', 'immiscible')]
     """
     if isinstance(names_or_rows, (list, tuple)) and names_or_rows and all(isinstance(x, str) for x in names_or_rows):
-        lib = load_library() if library is None else library
+        lib = _shared_library() if library is None else library
         from .library import locate_many
 
         df = lib.iloc[locate_many(list(names_or_rows), lib)].reset_index(drop=True)
