@@ -30,6 +30,13 @@ def write_atomic(path, data: str | bytes) -> Path:
             fh.write(data)
             fh.flush()
             os.fsync(fh.fileno())
+        # mkstemp creates 0600 files: keep the mode of the file being replaced, or the umask default
+        if path.exists():
+            os.chmod(tmp, path.stat().st_mode & 0o777)
+        else:
+            umask = os.umask(0)
+            os.umask(umask)
+            os.chmod(tmp, 0o666 & ~umask)
         os.replace(tmp, path)
     except BaseException:
         if os.path.exists(tmp):
