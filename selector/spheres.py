@@ -47,8 +47,9 @@ information criterion, BIC = 2 sum(loss) + k ln n (k = 4 or 8 parameters, weight
 mean 1), is lower than the one-sphere BIC.
 
 *Next tests*. The bootstrap spheres and a sample of the profile region form an ensemble; for
-each untested liquid p is the share of ensemble spheres that contain it, and p (1 - p) (largest
-where the ensemble disagrees most) ranks the liquids worth testing next.
+each untested liquid p is the share of ensemble spheres that contain it (with two spheres,
+p = 1 - (1 - p1)(1 - p2)), and p (1 - p) (largest where the ensemble disagrees most) ranks the
+liquids worth testing next.
 
 Blend notation
 --------------
@@ -734,8 +735,10 @@ class SphereFit:
     (parameter -> (low, high) MPa^0.5), ``misfits`` (DataFrame of tests the sphere gets wrong),
     ``score`` (weighted geometric mean of the desirability A_i, 1 = every test right),
     ``warnings`` (list of str), ``spheres`` (list of :class:`~selector.targets.Target`, two when
-    the two-sphere model was adopted), ``tests`` (the validated tests with their Ra and RED),
-    ``ensemble`` (bootstrap and near-optimal spheres, (k, 4)).
+    the two-sphere model was adopted; as a target the fit stands for ``spheres[0]``, the one with
+    more good results), ``all_intervals`` (one interval dict per sphere), ``tests`` (the
+    validated tests with their Ra and RED), ``ensemble`` (per sphere, a (k, 4) array of
+    bootstrap and near-optimal spheres dD, dP, dH, R0).
     """
 
     delta_d: float
@@ -748,12 +751,13 @@ class SphereFit:
     warnings: list
     spheres: list
     tests: pd.DataFrame
-    ensemble: np.ndarray
+    ensemble: list
     name: str = "fitted sphere"
     source: str = "fitted from lab tests"
     method: str = "classical desirability"
     bic: dict = field(default_factory=dict)
     library: pd.DataFrame | None = field(default=None, repr=False)
+    all_intervals: list = field(default_factory=list)
 
     @property
     def hsp(self) -> np.ndarray:
@@ -793,7 +797,7 @@ class SphereFit:
         each candidate; with p the share voting inside, ``information = p (1 - p)`` is largest
         where the fits disagree. Ties go to RED nearer 1, then smaller molar volume. ``shelf``: a
         list of names/CAS to choose from; other keyword filters as :mod:`selector.filters`.
-        Returns name, cas, HSP, ``red`` (to the main sphere), ``p_inside``, ``information``,
+        Returns name, cas, HSP, ``red`` (to the nearest fitted sphere), ``p_inside``, ``information``,
         boiling and flash point.
         """
         from .filters import check_filter_keys, check_temperature, filter_mask
@@ -820,11 +824,14 @@ class SphereFit:
         from .ranking import corrected_hsp
 
         h = corrected_hsp(cand, t) * SCALE  # (N, 3)
-        E = self.ensemble
-        d = np.sqrt(((h[:, None, :] - (E[None, :, :3] * SCALE)) ** 2).sum(-1))  # (N, k)
-        p = (d < E[None, :, 3]).mean(1)
+        p_out = np.ones(len(h))
+        for E in self.ensemble:  # inside any sphere: 1 - prod(1 - p_j)
+            d = np.sqrt(((h[:, None, :] - (E[None, :, :3] * SCALE)) ** 2).sum(-1))  # (N, k)
+            p_out *= 1.0 - (d < E[None, :, 3]).mean(1)
+        p = 1.0 - p_out
         info = p * (1 - p)
-        red_main = np.sqrt(((h - self.hsp * SCALE) ** 2).sum(-1)) / self.radius
+        red_main = np.min([np.sqrt(((h - sp.hsp * SCALE) ** 2).sum(-1)) / sp.radius
+                           for sp in self.spheres], axis=0)
         out = cand[["name", "cas"] + HSP + ["molar_volume", "boiling_point_c", "flash_point_c"]].copy()
         out["red"] = red_main
         out["p_inside"] = p
@@ -954,7 +961,8 @@ def fit_sphere(tests, *, seed: int = 0, bootstrap: int = 200, outcome: str | Non
                     sel = np.concatenate([gi[lab == j], np.flatnonzero(~good)])
                     fj = _fit_one(P[sel], w[sel], good[sel], m[sel], rng)
                     parts.append((fj, sel))
-                msgs.append(f"two spheres adopted: BIC {bic2:.1f} against {bic1:.1f} for one sphere")
+                msgs.append(f"two spheres adopted: BIC {bic2:.1f} against {bic1:.1f} for one sphere; "
+                            "used as a ranking target the fit stands for sphere 1 (more good results)")
             else:
                 msgs.append(f"one sphere kept: two spheres do not pay for their four extra "
                             f"parameters (BIC {bic2:.1f} against {bic1:.1f})")
@@ -1019,7 +1027,7 @@ def fit_sphere(tests, *, seed: int = 0, bootstrap: int = 200, outcome: str | Non
               ].reset_index(drop=True)
     warn = _warnings(parts[0][0].centre, parts[0][0].radius, P, good, tab, tab.attrs.get("notes", []), msgs)
     res = SphereFit(main.delta_d, main.delta_p, main.delta_h, main.radius, intervals_all[0], mis,
-                    float(score), warn, spheres, tout, np.vstack(ensembles), name=name,
-                    source=f"fitted from {n} lab tests", method=method, bic=bic, library=lib)
-    res.all_intervals = intervals_all
+                    float(score), warn, spheres, tout, ensembles, name=name,
+                    source=f"fitted from {n} lab tests", method=method, bic=bic, library=lib,
+                    all_intervals=intervals_all)
     return res

@@ -377,6 +377,9 @@ def test_two_spheres_adopted_only_when_they_pay():
     for c in (c1, c2):
         assert _ra(cents, c).min() < 3.0
     assert fit.score >= fit_sphere(df, bootstrap=0).score
+    # next tests sit at the edge of one of the two spheres, not deep inside either
+    nxt = fit.suggest_tests(5)
+    assert np.all(np.abs(nxt["red"] - 1) < 0.5) and np.all(nxt["p_inside"] < 1)
     # one-sphere data: the second sphere does not pay for its parameters
     one, _, _ = _case(77, n=40)
     f1 = fit_sphere(one, bootstrap=0, two_spheres=True)
