@@ -130,7 +130,9 @@ def _table_cells(df: pd.DataFrame, columns) -> tuple[list[str], list[list[str]]]
     cols = [c for c in (columns or list(df.columns)) if c in df.columns]
     g = guard_cells(df[cols])
     head = [COLUMN_LABELS.get(c, c) for c in cols]
-    rows = [[_cell(v) for v in r] for r in g.itertuples(index=False, name=None)]
+    whole = [c.endswith("_c") for c in cols]  # temperatures in C: whole degrees
+    rows = [[(f"{float(v):.0f}" if w and isinstance(v, (float, np.floating)) and math.isfinite(float(v))
+              else _cell(v)) for v, w in zip(r, whole)] for r in g.itertuples(index=False, name=None)]
     return head, rows
 
 
