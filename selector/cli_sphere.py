@@ -9,7 +9,7 @@ from pathlib import Path
 from .cli_common import CAUTION, add_filter_args, filters_from_args, library_from_args
 
 NEXT_COLUMNS = ["name", "cas", "delta_d", "delta_p", "delta_h", "red", "p_inside", "information",
-                "boiling_point_c", "flash_point_c"]
+                "boiling_point_c", "flash_point_c", "hazard_class"]
 
 
 def register(sub) -> None:
@@ -90,7 +90,8 @@ def cmd_sphere(a) -> int:
                      threshold=a.pass_mark, scale=_scale(a.scale), temperature=a.at,
                      two_spheres=a.two, library=lib, name=Path(a.tests).stem)
     shelf = [x.strip() for x in a.shelf.split(",") if x.strip()] if a.shelf else None
-    nxt = fit.suggest_tests(a.next, shelf=shelf, **filters_from_args(a)) if a.next > 0 else pd.DataFrame()
+    nxt = (fit.suggest_tests(a.next, shelf=shelf, temperature=a.at, **filters_from_args(a))
+           if a.next > 0 else pd.DataFrame())
     if a.format == "json":
         doc = {
             "method": fit.method, "score": fit.score, "tests": len(fit.tests),

@@ -795,10 +795,13 @@ class SphereFit:
 
         Each ensemble sphere (bootstrap refits and near-optimal spheres) votes inside/outside for
         each candidate; with p the share voting inside, ``information = p (1 - p)`` is largest
-        where the fits disagree. Ties go to RED nearer 1, then smaller molar volume. ``shelf``: a
+        where the fits disagree. Ties (information equal to 0.01) go to the better CHEM21
+        hazard class (:mod:`selector.hazards`; a liquid without hazard data counts as between
+        hazardous and highly hazardous), then RED nearer 1, then smaller molar volume. ``shelf``: a
         list of names/CAS to choose from; other keyword filters as :mod:`selector.filters`.
         Returns name, cas, HSP, ``red`` (to the nearest fitted sphere), ``p_inside``, ``information``,
-        boiling and flash point.
+        boiling and flash point (C) and ``hazard_class``. Check the safety data sheet of every
+        suggested liquid before testing it.
         """
         from .filters import check_filter_keys, check_temperature, filter_mask
 
@@ -836,8 +839,17 @@ class SphereFit:
         out["red"] = red_main
         out["p_inside"] = p
         out["information"] = info
-        order = np.lexsort((out["molar_volume"].to_numpy(float), np.abs(red_main - 1.0),
-                            -np.round(info, 4)))
+        try:  # CHEM21 class where the hazards module knows the liquid
+            from .hazards import hazard_columns
+
+            hz = hazard_columns(lib).loc[cand.index]
+            out["hazard_class"] = hz["hazard_class"].to_numpy()
+            hrank = np.where(np.isfinite(hz["hazard_rank"].to_numpy(float)),
+                             hz["hazard_rank"].to_numpy(float), 2.5)
+        except (ImportError, KeyError, ValueError):
+            hrank = np.zeros(len(out))
+        order = np.lexsort((out["molar_volume"].to_numpy(float), np.abs(red_main - 1.0), hrank,
+                            -np.round(info, 2)))
         out = out.iloc[order].head(n).reset_index(drop=True)
         return out
 
@@ -1025,7 +1037,11 @@ def fit_sphere(tests, *, seed: int = 0, bootstrap: int = 200, outcome: str | Non
     mis["problem"] = np.where(mis["good"], "good but outside", "bad but inside")
     mis = mis[["label", "problem", "red", "ra"] + HSP + (["grade"] if tab.attrs.get("graded") else [])
               ].reset_index(drop=True)
-    warn = _warnings(parts[0][0].centre, parts[0][0].radius, P, good, tab, tab.attrs.get("notes", []), msgs)
+    sel0 = parts[0][1]
+    warn = _warnings(parts[0][0].centre, parts[0][0].radius, P[sel0], good[sel0], tab,
+                     tab.attrs.get("notes", []), msgs)
+    if len(P) < FEW_TESTS and len(sel0) >= FEW_TESTS:
+        warn.insert(0, f"only {len(P)} tests: the sphere is loosely defined; 15-40 well spread tests are usual")
     res = SphereFit(main.delta_d, main.delta_p, main.delta_h, main.radius, intervals_all[0], mis,
                     float(score), warn, spheres, tout, ensembles, name=name,
                     source=f"fitted from {n} lab tests", method=method, bic=bic, library=lib,

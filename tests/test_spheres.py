@@ -195,7 +195,7 @@ def test_suggest_tests(ps_fit):
     tested = set(PS_GOOD + PS_BAD)
     assert not tested & set(nxt["name"])
     assert np.all((nxt["p_inside"] > 0) & (nxt["p_inside"] < 1))
-    assert np.all(np.diff(nxt["information"].to_numpy()) <= 1e-4)
+    assert np.all(np.diff(nxt["information"].to_numpy()) <= 0.005 + 1e-9)  # ties within 0.01
     assert np.all(np.abs(nxt["red"] - 1) < 0.5)
     np.testing.assert_allclose(nxt["information"], nxt["p_inside"] * (1 - nxt["p_inside"]))
     shelf = ["acetone", "ethyl acetate", "toluene", "butyl acetate", "pyridine"]
