@@ -221,8 +221,9 @@ def register(sub) -> None:
     p.add_argument("--at", type=float, default=25.0, metavar="C", help="temperature in C (default 25)")
     p.add_argument("--humidity", type=float, default=0.0, metavar="PCT", help="relative humidity of the air, %% "
                    "(acts on water only; default 0)")
-    p.add_argument("--model", choices=["raoult", "hsp"], default="raoult",
-                   help="raoult (ideal, default) or hsp (Flory-Huggins activity from Hansen parameters)")
+    p.add_argument("--model", choices=["raoult", "hsp", "unifac"], default="raoult",
+                   help="raoult (ideal, default), hsp (Flory-Huggins activity from Hansen parameters) "
+                   "or unifac (original UNIFAC from the thermo library)")
     p.add_argument("--keep-until", type=float, default=0.9, metavar="F",
                    help="warn when RED reaches 1 before this fraction has evaporated (default 0.9)")
     p.add_argument("--points", type=int, default=21, metavar="N", help="rows in the table (default 21)")

@@ -27,7 +27,10 @@ interaction, ln gamma_i = ln(phi_i/x_i) + 1 - phi_i/x_i + (v_i/RT) sum_j sum_k p
 Flory combinatorial term (P. J. Flory, Principles of Polymer Chemistry, 1953) and the
 regular-solution residual term of Hildebrand and Scott (The Solubility of Nonelectrolytes,
 1950) with Hansen's interaction (Hansen's handbook, ch. 1). It is known to be poor for water and
-strongly hydrogen-bonded pairs.
+strongly hydrogen-bonded pairs. ``activity="unifac"``: original UNIFAC (Fredenslund, Jones and
+Prausnitz, AIChE J. 21 (1975) 1086) as implemented by the ``thermo`` library
+(``thermo.unifac.UNIFAC``, version 0), with the DDBST group assignments that ``thermo`` carries,
+looked up by InChIKey; a liquid without an assignment is an error.
 
 The remaining liquid's HSP is the volume-weighted mean of what is left; with a sphere target
 its RED is followed and the path is flagged when RED reaches 1 before ``must_stay_until`` of the
@@ -46,7 +49,7 @@ from .hansen import R_GAS, ra as _ra
 from .library import load_library, locate_many, vapour_pressure_kpa
 
 WATER_CAS = "7732-18-5"
-MODELS = ("raoult", "hsp")
+MODELS = ("raoult", "hsp", "unifac")
 
 
 def _gamma_hsp(x, v, h, T):
@@ -60,6 +63,31 @@ def _gamma_hsp(x, v, h, T):
         ratio = np.where(x > 0, phi / x, v / np.dot(x, v))
     comb = np.log(ratio) + 1.0 - ratio
     return comb + res
+
+
+def unifac_gammas(rows: pd.DataFrame, temperature: float = 25.0):
+    """A function x -> activity coefficients (k,) by original UNIFAC from ``thermo`` for ``rows``.
+
+    Groups: the DDBST assignments in ``thermo.unifac`` (looked up by InChIKey). Raises
+    :class:`SelectorError` naming the liquids that have none.
+    """
+    import thermo.unifac as U
+
+    U.load_group_assignments_DDBST()
+    groups = [U.DDBST_UNIFAC_assignments.get(str(k)) for k in rows["inchikey"]]
+    bad = [str(n) for n, g in zip(rows["name"], groups) if not g]
+    if bad:
+        raise SelectorError("no UNIFAC groups for: " + ", ".join(bad) + " (use activity='raoult' or 'hsp')")
+    T = float(temperature) + 273.15
+    k = len(groups)
+    ge = U.UNIFAC.from_subgroups(T=T, xs=[1.0 / k] * k, chemgroups=groups, version=0)
+
+    def gammas(x):
+        xs = np.maximum(np.asarray(x, float), 1e-300)
+        xs = (xs / xs.sum()).tolist()
+        return np.asarray(ge.to_T_xs(T, xs).gammas(), dtype=float)
+
+    return gammas
 
 
 def drying_path(components, fractions, *, temperature: float = 25.0, target=None,
@@ -131,6 +159,7 @@ def drying_path(components, fractions, *, temperature: float = 25.0, target=None
     h = corrected_hsp(rows, t_c)
     T = t_c + 273.15
     p_air = np.where(rows["cas"].astype(str).to_numpy() == WATER_CAS, rh / 100.0 * P, 0.0)
+    uni = unifac_gammas(rows, t_c) if activity == "unifac" else None
 
     n0 = f0 / v  # mol per cm3 of initial liquid
     V0 = float(np.dot(n0, v))  # = 1
@@ -139,7 +168,12 @@ def drying_path(components, fractions, *, temperature: float = 25.0, target=None
         n = np.exp(ln_n)
         N = n.sum()
         x = n / N
-        g = np.exp(_gamma_hsp(x, v, h, T)) if activity == "hsp" else 1.0
+        if activity == "hsp":
+            g = np.exp(_gamma_hsp(x, v, h, T))
+        elif uni is not None:
+            g = uni(x)
+        else:
+            g = 1.0
         F = np.maximum(g * x * P - p_air, 0.0)
         tot = float(np.dot(v, F))
         if tot <= 0:

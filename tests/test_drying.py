@@ -137,3 +137,24 @@ def test_cli_dry(capsys):
     assert "evaporated_fraction" in out and "phi_acetone" in out
     assert main(["dry", "toluene,butyl acetate", "--shares", "0.5,0.5"]) == 0
     assert "tail solvent" in capsys.readouterr().out
+
+
+def test_unifac_option():
+    from selector.drying import unifac_gammas
+
+    # ethanol-water deviates positively from Raoult's law (minimum-boiling azeotrope, a fact of
+    # the trade); gamma of water infinitely dilute in ethanol at 25 C is about 2.5 (measured,
+    # from memory)
+    rows = LIB[LIB["name"].isin(["ethanol", "water"])].set_index("name").loc[["ethanol", "water"]].reset_index()
+    g = unifac_gammas(rows, 25.0)
+    g_e_inf = g([1e-9, 1 - 1e-9])[0]
+    g_w_inf = g([1 - 1e-9, 1e-9])[1]
+    assert g_e_inf > 1.5 and 2.0 < g_w_inf < 3.2
+    # toluene + ethylbenzene is close to ideal: the UNIFAC path follows Raoult's law
+    a = drying_path(["toluene", "ethylbenzene"], [0.5, 0.5], activity="unifac")
+    b = drying_path(["toluene", "ethylbenzene"], [0.5, 0.5], activity="raoult")
+    assert np.abs(a["phi_toluene"].to_numpy() - b["phi_toluene"].to_numpy()).max() < 0.03
+    # water leaves faster than Raoult predicts when it is the minority in ethanol
+    u = drying_path(["ethanol", "water"], [0.9, 0.1], activity="unifac", max_evaporated=0.3)
+    r = drying_path(["ethanol", "water"], [0.9, 0.1], activity="raoult", max_evaporated=0.3)
+    assert u["phi_water"].iloc[-1] < r["phi_water"].iloc[-1]
