@@ -281,3 +281,19 @@ def test_cli_errors(capsys):
     assert main(["blend", "21.3,5.8,4.3,12.7", "--parts", "3", "--min-share", "0.5"]) == 2
     assert "min_fraction" in capsys.readouterr().err
     assert main(["replace", "no such liquid"]) == 2
+
+
+def test_cli_prices_and_bad_price_file(tmp_path, capsys):
+    good = tmp_path / "prices.csv"
+    good.write_text("name,cost_per_litre\ntoluene,2.0\nethanol,1.0\nacetone,1.5\nethyl acetate,1.8\n")
+    out = tmp_path / "blends.json"
+    assert main(["blend", "21.3,5.8,4.3,12.7", "--parts", "2", "--prices", str(good), "--format", "json",
+                 "-o", str(out)]) == 0
+    recs = json.loads(out.read_text())
+    assert recs and all(set(r["components"]) <= {"toluene", "ethanol", "acetone", "ethyl acetate"} for r in recs)
+    assert all("pareto" in r and r["cost_per_litre"] is not None for r in recs)
+    bad = tmp_path / "bad.csv"
+    bad.write_text("liquid;price\ntoluene;2\n")
+    assert main(["blend", "21.3,5.8,4.3,12.7", "--prices", str(bad), "-o", str(out)]) == 2
+    assert "cost_per_litre" in capsys.readouterr().err
+    assert json.loads(out.read_text()) == recs  # the earlier output file is untouched
