@@ -84,6 +84,8 @@ COARSE_POINTS = 17
 FINE_STEP = 5e-4
 #: Default number of separated coarse-grid starts for the pattern search.
 STARTS = 8
+#: Multiplier on chi2(1, confidence)/2 for the profile region (1 = the likelihood-ratio level).
+PROFILE_FACTOR = 1.0
 #: Fewer tests than this gets a warning (four parameters need well spread tests).
 FEW_TESTS = 12
 #: Fewer tests than this is an error.
@@ -783,11 +785,11 @@ class SphereFit:
         return [self.delta_d, self.delta_p, self.delta_h, self.radius]
 
     def contains(self, hsp) -> np.ndarray:
-        """True where points (n, 3) lie inside any fitted sphere (RED < 1)."""
+        """True where points (n, 3) lie inside any fitted sphere (RED <= 1)."""
         h = np.atleast_2d(np.asarray(hsp, float)) * SCALE
         inside = np.zeros(len(h), bool)
-        for s in self.spheres:
-            inside |= np.sqrt(((h - s.hsp * SCALE) ** 2).sum(-1)) < s.radius
+        for s in self.spheres:  # on the surface counts as inside, as in the fit
+            inside |= np.sqrt(((h - s.hsp * SCALE) ** 2).sum(-1)) <= s.radius * (1 + 1e-9)
         return inside
 
     def suggest_tests(self, n: int = 5, *, shelf=None, temperature: float = 25.0, **filters) -> pd.DataFrame:
@@ -951,7 +953,7 @@ def fit_sphere(tests, *, seed: int = 0, bootstrap: int = 200, outcome: str | Non
     rng = np.random.default_rng(seed)
     from scipy.stats import chi2
 
-    level = float(chi2.ppf(conf, 1) / 2.0)
+    level = PROFILE_FACTOR * float(chi2.ppf(conf, 1) / 2.0)
     one = _fit_one(P, w, good, m, rng)
     n = len(P)
     bic1 = 2 * one.loss + 4 * math.log(n)

@@ -188,15 +188,19 @@ def test_fit_works_as_a_target(ps_fit):
 
 
 def test_suggest_tests(ps_fit):
-    # Common practice: the most informative next tests are borderline liquids (RED near 1),
-    # never liquids already tested.
+    # Common practice: the most informative next tests are borderline liquids - outside the
+    # shell of the good results (the smallest consistent sphere, where everything is certain)
+    # but well within the span of the bad ones - never liquids already tested.
     nxt = ps_fit.suggest_tests(6)
     assert len(nxt) == 6
     tested = set(PS_GOOD + PS_BAD)
     assert not tested & set(nxt["name"])
     assert np.all((nxt["p_inside"] > 0) & (nxt["p_inside"] < 1))
     assert np.all(np.diff(nxt["information"].to_numpy()) <= 0.005 + 1e-9)  # ties within 0.01
-    assert np.all(np.abs(nxt["red"] - 1) < 0.5)
+    assert np.all((nxt["p_inside"] > 0.2) & (nxt["p_inside"] < 0.8))
+    red_tests = ps_fit.tests["red"].to_numpy()
+    good = ps_fit.tests["good"].to_numpy(bool)
+    assert np.all((nxt["red"] > red_tests[good].max() - 1e-6) & (nxt["red"] < 0.5 * red_tests[~good].max()))
     np.testing.assert_allclose(nxt["information"], nxt["p_inside"] * (1 - nxt["p_inside"]))
     shelf = ["acetone", "ethyl acetate", "toluene", "butyl acetate", "pyridine"]
     s = ps_fit.suggest_tests(10, shelf=shelf)
