@@ -202,7 +202,8 @@ def _miscibility(cand, temperature):
 
 
 def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, pool=2000,
-                  min_gain=DEFAULT_MIN_GAIN, hazard_rank=None, resolution=0.5, ternary_pool=None):
+                  min_gain=DEFAULT_MIN_GAIN, hazard_rank=None, resolution=0.5, ternary_pool=None,
+                  workers=None):
     """Core search on scaled candidate points ``X`` (n, 3) and scaled target ``t`` (3,).
 
     Returns a dict of arrays: ``idx`` (p, 3) candidate indices (-1 for unused slots), ``f`` (p, 3)
@@ -212,7 +213,8 @@ def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, p
     ``resolution`` (MPa^0.5), then the worst ``hazard_rank`` of the components (0-3, 4 for
     unclassified; optional (n,) array), then Ra. ``miscible``: optional (n, n) bool; pairs marked
     False are never blended. Exact: a triple is skipped only when the distance of the target to its
-    plane already rules it out.
+    plane already rules it out. ``workers``: threads for the ternary scan (default 1;
+    numpy releases the GIL in its array loops, so 2 can help on an idle 2-core machine).
     """
     X = np.asarray(X, float)
     n = len(X)
@@ -250,8 +252,9 @@ def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, p
                            key(bij[keep], np.maximum(hz[i2], hz[j2])), pool))
     if max_components >= 3 and n >= 3:
         tp = max(200, pool // 10) if ternary_pool is None else int(ternary_pool)
+        workers = 1 if workers is None else workers
         parts.append(_ternary_search(Z, G, gd, B, hz, single, _check_min_fraction(min_fraction, 3),
-                                     min_gain, tp, res, key))
+                                     min_gain, tp, res, key, workers=workers))
     idx, f, rr, kk = (np.concatenate(x) for x in zip(*parts))
     return {"idx": idx, "f": f, "ra": rr, "key": kk}
 
@@ -312,7 +315,7 @@ def _tau_table(tau_key, res):
                     np.where(lv == level, (bucket + frac / 0.999) * res, bucket * res))
 
 
-def _ternary_search(Z, G, gd, B, hz, single, m, min_gain, pool, res, key):
+def _ternary_search(Z, G, gd, B, hz, single, m, min_gain, pool, res, key, workers=1):
     n = len(Z)
     # visit the most promising liquids first (better class, closer to the target) so that the
     # pool threshold tightens early; the result does not depend on the order
@@ -326,60 +329,77 @@ def _ternary_search(Z, G, gd, B, hz, single, m, min_gain, pool, res, key):
     Bthr = np.where(np.isfinite(B), B, -np.inf)[np.ix_(perm, perm)] - min_gain
     Bthr[np.tril_indices(n)] = -np.inf
     Hp = np.maximum.outer(hzp, hzp)
-    tau_t = np.full(5, np.inf)
-    best = None
-    for i in range(n - 2):
-        s0 = i + 1
-        gii = gd[i]
-        gi = G[i]
-        ybb = gd - 2 * gi + gii             # |z_j - z_i|^2
-        w = np.cross(Z[i], Z)               # z_i x z_j: triple product z_i.(z_j x z_k) = w_j.z_k
-        msz = n - s0
-        nstrip = 1 if msz < 64 else 4
-        edges = s0 + (msz * (1 - np.sqrt(1 - np.arange(nstrip + 1) / nstrip))).astype(int)
-        edges[-1] = n
-        for r0, r1 in zip(edges[:-1], edges[1:]):
-            if r1 <= r0:
-                continue
-            R = slice(r0, r1)
-            C = slice(r0, n)
-            # squared distance of the target to the plane of (i, j, k) = num^2 / det (a lower
-            # bound on the triple's Ra^2); det = |(z_j - z_i) x (z_k - z_i)|^2
-            num = w[R] @ Z[C].T
-            num *= num
-            ybc = G[R, C] - gi[R, None]
-            ybc -= (gi[C] - gii)[None, :]
-            det = np.multiply.outer(ybb[R], ybb[C])
-            ybc *= ybc
-            det -= ybc
-            bi = Bthr[i]
-            thr = np.minimum.outer(bi[R], bi[C])
-            np.minimum(thr, Bthr[R, C], out=thr)
-            hzo = np.maximum(Hp[R, C], hzp[i])
-            np.minimum(thr, tau_t[hzo], out=thr)
-            np.maximum(thr, 0.0, out=thr)
-            thr *= thr
-            thr *= det
-            cand = num < thr * (1 + 1e-9)
-            jj, kk = np.nonzero(cand)
-            if len(jj) == 0:
-                continue
-            j = jj + r0
-            k = kk + r0
-            ff, d2 = _ternary_gram(gii, gi[j], gi[k], gd[j], gd[k], G[j, k], m)
-            rt = np.sqrt(d2)
-            lim = np.minimum(np.minimum(Bthr[i, j], Bthr[i, k]), Bthr[j, k])
-            lim = np.minimum(lim, tau_t[np.maximum(Hp[j, k], hzp[i])])
-            good = rt < lim
-            if not good.any():
-                continue
-            j, k, ff, rt = j[good], k[good], ff[good], rt[good]
-            new = (np.column_stack([np.full(len(j), i), j, k]), ff, rt,
-                   key(rt, np.maximum(np.maximum(hzp[i], hzp[j]), hzp[k])))
-            best = new if best is None else tuple(np.concatenate(x) for x in zip(best, new))
-            if len(best[2]) >= pool:
-                best = _best(*best, pool)
-                tau_t = _tau_table(best[3][-1], res)
+
+    def scan(rows):
+        tau_t = np.full(5, np.inf)
+        best = None
+        for i in rows:
+            s0 = i + 1
+            gii = gd[i]
+            gi = G[i]
+            ybb = gd - 2 * gi + gii             # |z_j - z_i|^2
+            w = np.cross(Z[i], Z)               # z_i x z_j: triple product z_i.(z_j x z_k) = w_j.z_k
+            msz = n - s0
+            nstrip = 1 if msz < 64 else 4
+            edges = s0 + (msz * (1 - np.sqrt(1 - np.arange(nstrip + 1) / nstrip))).astype(int)
+            edges[-1] = n
+            for r0, r1 in zip(edges[:-1], edges[1:]):
+                if r1 <= r0:
+                    continue
+                R = slice(r0, r1)
+                C = slice(r0, n)
+                # squared distance of the target to the plane of (i, j, k) = num^2 / det (a lower
+                # bound on the triple's Ra^2); det = |(z_j - z_i) x (z_k - z_i)|^2
+                num = w[R] @ Z[C].T
+                num *= num
+                ybc = G[R, C] - gi[R, None]
+                ybc -= (gi[C] - gii)[None, :]
+                det = np.multiply.outer(ybb[R], ybb[C])
+                ybc *= ybc
+                det -= ybc
+                bi = Bthr[i]
+                thr = np.minimum.outer(bi[R], bi[C])
+                np.minimum(thr, Bthr[R, C], out=thr)
+                hzo = np.maximum(Hp[R, C], hzp[i])
+                np.minimum(thr, tau_t[hzo], out=thr)
+                np.maximum(thr, 0.0, out=thr)
+                thr *= thr
+                thr *= det
+                cand = num < thr * (1 + 1e-9)
+                jj, kk = np.nonzero(cand)
+                if len(jj) == 0:
+                    continue
+                j = jj + r0
+                k = kk + r0
+                ff, d2 = _ternary_gram(gii, gi[j], gi[k], gd[j], gd[k], G[j, k], m)
+                rt = np.sqrt(d2)
+                lim = np.minimum(np.minimum(Bthr[i, j], Bthr[i, k]), Bthr[j, k])
+                lim = np.minimum(lim, tau_t[np.maximum(Hp[j, k], hzp[i])])
+                good = rt < lim
+                if not good.any():
+                    continue
+                j, k, ff, rt = j[good], k[good], ff[good], rt[good]
+                new = (np.column_stack([np.full(len(j), i), j, k]), ff, rt,
+                       key(rt, np.maximum(np.maximum(hzp[i], hzp[j]), hzp[k])))
+                best = new if best is None else tuple(np.concatenate(x) for x in zip(best, new))
+                if len(best[2]) >= pool:
+                    best = _best(*best, pool)
+                    tau_t = _tau_table(best[3][-1], res)
+
+        return best
+
+    workers = max(1, min(int(workers), n - 2))
+    if workers == 1:
+        best = scan(range(n - 2))
+    else:
+        # numpy releases the GIL inside its array loops: threads share the read-only arrays and
+        # each keeps its own pool; the pools are merged exactly below
+        from concurrent.futures import ThreadPoolExecutor
+
+        with ThreadPoolExecutor(workers) as ex:
+            parts = [p for p in ex.map(scan, [range(w, n - 2, workers) for w in range(workers)])
+                     if p is not None]
+        best = tuple(np.concatenate(x) for x in zip(*parts)) if parts else None
     if best is None:
         e = np.zeros((0, 3))
         return e.astype(int), e, np.zeros(0), np.zeros(0)
@@ -393,7 +413,7 @@ def _best(idx, f, rr, kk, pool):
     if len(kk) > pool:
         sel = np.argpartition(kk, pool - 1)[:pool]
         idx, f, rr, kk = idx[sel], f[sel], rr[sel], kk[sel]
-    o = np.argsort(kk, kind="stable")
+    o = np.lexsort((idx[:, 2], idx[:, 1], idx[:, 0], kk))  # ties broken by index: deterministic
     return idx[o], f[o], rr[o], kk[o]
 
 

@@ -91,6 +91,9 @@ def test_search_equals_exhaustive_enumeration():
         exp = np.sort(exp)[:40]
         assert len(got) == len(exp)
         assert np.allclose(got, exp, atol=1e-9)
+        two = search_arrays(X, t, max_components=3, min_fraction=0.05, pool=40, ternary_pool=40,
+                            min_gain=0.1, workers=2)
+        assert np.allclose(np.sort(two["ra"][two["idx"][:, 2] >= 0]), got, atol=1e-12)
 
 
 @pytest.fixture(scope="module")

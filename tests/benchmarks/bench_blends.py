@@ -91,6 +91,9 @@ def main():
         print(f"  best ternary Ra {best3.min() if len(best3) else float('nan'):.4f}; Ra exact minus SLSQP on "
               f"the subset: pairs max {np.max(ex2 - ra_pairs):+.1e}, triples max {np.max(ex3 - ra_tri):+.1e} "
               "(SLSQP never beats the closed form by more than its tolerance)")
+    t = np.asarray(TARGETS["polystyrene"]) * SCALE
+    (tw, cw) = timed(lambda: search_arrays(X, t, max_components=3, min_fraction=M, hazard_rank=hz, workers=2), 1)
+    print(f"\nternary search, polystyrene, 2 threads: wall {tw:.3f} s (CPU {cw:.3f} s)")
     tgt = TARGETS["demo resin (invented)"] + (8.6,)
     te, ce = timed(lambda: find_blends(tgt, max_components=3), 3)
     te2, ce2 = timed(lambda: find_blends(tgt, max_components=2), 3)
