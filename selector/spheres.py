@@ -62,6 +62,8 @@ supplier's safety data sheet and follow local regulation before handling any sol
 """
 from __future__ import annotations
 
+import csv
+import io
 import math
 import re
 from dataclasses import dataclass, field
@@ -116,8 +118,16 @@ def _frame(source) -> pd.DataFrame:
         if p.is_dir():
             raise SelectorError(f"{p} is a folder, not a CSV file of lab tests")
         try:
-            return pd.read_csv(p, keep_default_na=False, na_values=[""], dtype=str)
-        except (pd.errors.ParserError, UnicodeDecodeError, pd.errors.EmptyDataError) as e:
+            text = p.read_text(encoding="utf-8-sig")
+            rows = list(csv.reader(io.StringIO(text)))
+            width = len(rows[0]) if rows else 0
+            ragged = [f"row {i + 1} has {len(r)} fields, the header has {width}"
+                      for i, r in enumerate(rows[1:], start=1) if r and len(r) != width]
+            if ragged:
+                raise InputTableError(f"{p.name}", ragged[:20])
+            return pd.read_csv(io.StringIO(text), keep_default_na=False, na_values=[""], dtype=str,
+                               index_col=False)
+        except (pd.errors.ParserError, UnicodeDecodeError, pd.errors.EmptyDataError, csv.Error) as e:
             raise SelectorError(f"{p.name} is not a readable CSV file: {str(e).splitlines()[0]}") from None
     raise SelectorError("lab tests must be a pandas DataFrame or the path of a CSV file")
 
@@ -226,9 +236,11 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
         raise InputTableError("lab tests", ["the table has no rows"])
     has_numbers = all(c in df.columns for c in HSP)
     if "solvent" not in df.columns and not has_numbers:
+        hint = ("; the file looks separated by semicolons or tabs: use commas"
+                if len(df.columns) == 1 and re.search(r"[;\t]", str(df.columns[0])) else "")
         raise InputTableError("lab tests", [
             "no 'solvent' column and no delta_d, delta_p, delta_h columns: say which liquid each "
-            f"test used (columns found: {', '.join(df.columns)})"])
+            f"test used (columns found: {', '.join(map(str, df.columns))}){hint}"])
     graded = threshold is not None
     if graded:
         thr = _to_float(threshold)

@@ -19,6 +19,8 @@ import json
 import numpy as np
 import pandas as pd
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 import selector
 from selector.errors import InputTableError, SelectorError
@@ -291,6 +293,37 @@ def test_bad_numbers_and_files(tmp_path):
         read_tests(tmp_path / "missing.csv")
     with pytest.raises(SelectorError):
         fit_sphere(pd.DataFrame({"solvent": ["toluene"] * 2, "outcome": [1, 1]}), bootstrap=-1)
+
+
+def test_malformed_csv_files(tmp_path):
+    ragged = tmp_path / "ragged.csv"
+    ragged.write_text("solvent,outcome\ntoluene,good,extra\nwater,bad\n")
+    with pytest.raises(InputTableError, match="row 2 has 3 fields"):
+        read_tests(ragged)
+    semi = tmp_path / "semi.csv"
+    semi.write_text("solvent;outcome\ntoluene;good\n")
+    with pytest.raises(InputTableError, match="semicolons"):
+        read_tests(semi)
+    binary = tmp_path / "bin.csv"
+    binary.write_bytes(b"\x00\xff\xfe\x01")
+    with pytest.raises(SelectorError, match="not a readable CSV"):
+        read_tests(binary)
+
+
+@settings(max_examples=40, deadline=None)
+@given(st.lists(st.tuples(st.sampled_from(["toluene", "water", "hexane", "tolune", "", "1,4-dioxane",
+                                           "toluene [1] & water [1]", "acetone [x] & water [1]"]),
+                          st.one_of(st.text(max_size=6), st.booleans(), st.integers(-2, 7),
+                                    st.floats(allow_nan=True))),
+                min_size=0, max_size=8))
+def test_read_tests_never_crashes(rows):
+    # Any junk table either validates or raises a SelectorError naming the problem.
+    df = pd.DataFrame(rows, columns=["solvent", "outcome"])
+    try:
+        tab = read_tests(df)
+    except SelectorError:
+        return
+    assert len(tab) >= 4 and tab["good"].sum() >= 2
 
 
 def test_degenerate_warnings():
