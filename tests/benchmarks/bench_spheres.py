@@ -125,7 +125,8 @@ def main(cases_opt: int = 100, speed: bool = True) -> int:
     print(f"  exhaustive grid baseline       {med['grid'][0]:7.3f} s ({med['grid'][1]:.3f})  "
           f"-> baseline / fit = {med['grid'][0] / med['one'][0]:.1f}x")
     adopted = fit_sphere(read_tests(two_sphere_case(200)), bootstrap=0, two_spheres=True)
-    print(f"  two-sphere case: {len(adopted.spheres)} sphere(s) adopted; {adopted.describe()}")
+    print(f"  two-sphere case (true: 17.0, 3.0, 4.0, R0 5 and 16.5, 10.0, 16.0, R0 5): "
+          f"{len(adopted.spheres)} sphere(s) adopted;\n    " + adopted.describe().replace("\n", "\n    "))
     # ---------------------------------------------------------------- global optimum
     worse, gap = 0, []
     for s in range(cases_opt):
