@@ -300,3 +300,23 @@ def test_cli_prices_and_bad_price_file(tmp_path, capsys):
     assert main(["blend", "21.3,5.8,4.3,12.7", "--prices", str(bad), "-o", str(out)]) == 2
     assert "cost_per_litre" in capsys.readouterr().err
     assert json.loads(out.read_text()) == recs  # the earlier output file is untouched
+
+
+from hypothesis import given, settings, strategies as st  # noqa: E402
+
+_pt = st.tuples(st.floats(12, 24), st.floats(0, 25), st.floats(0, 40))
+
+
+@settings(max_examples=60, deadline=None)
+@given(pts=st.lists(_pt, min_size=2, max_size=3), target=_pt, m=st.floats(0.0, 0.3),
+       probe=st.lists(st.floats(0.0, 1.0), min_size=3, max_size=3))
+def test_optimum_beats_any_feasible_mix(pts, target, m, probe):
+    # optimality (convex problem): no feasible volume-fraction vector gets closer than the optimum
+    h = np.array(pts)
+    k = len(h)
+    m = min(m, 1.0 / k)
+    f, d = blend_fractions(h, target, m)
+    assert np.all(f >= m - 1e-9) and abs(f.sum() - 1) < 1e-9
+    g = np.array(probe[:k]) + 1e-12
+    g = m + (1 - k * m) * g / g.sum()              # a random feasible mix
+    assert d <= float(ra(g @ h, np.asarray(target))) + 1e-7
