@@ -1,0 +1,219 @@
+"""Molecular features for :mod:`selector.estimation` (RDKit is imported lazily).
+
+Features of one molecule (all computed from its RDKit graph, hydrogens implicit):
+
+* a subset of RDKit's 2-D descriptors (``rdkit.Chem.Descriptors``; the slow or noisy ones -
+  QED, BCUT2D, Ipc, SPS - are left out), which include RDKit's ``fr_*`` functional-group counts;
+* counts of polar groups matched by SMARTS patterns of our own (hydroxyl, carboxylic acid,
+  N-H, carbonyl, ester, ether, nitrile, nitro, halogens, sulfur and phosphorus groups);
+* those counts divided by the McGowan characteristic volume (HSP are cohesive energy
+  densities, i.e. group energies divided by a volume, so per-volume counts are the natural
+  scale);
+* hashed Morgan (circular, radius 2) substructure counts.
+
+McGowan characteristic volume (Abraham and McGowan, Chromatographia 23 (1987) 243-246):
+V_x = sum of atom increments - 6.56 per bond (cm^3/mol); the increments below are quoted
+from memory and serve here only as a size feature, not as a published result.
+
+Validation of a molecule before estimation is in :func:`check_molecule`.
+"""
+from __future__ import annotations
+
+import functools
+
+import numpy as np
+
+#: Elements accepted for estimation (organic molecules of the kind the training tables carry).
+ORGANIC_ELEMENTS = frozenset({"C", "H", "N", "O", "S", "P", "F", "Cl", "Br", "I", "Si", "B"})
+
+# McGowan atom increments, cm^3/mol (from memory, see module docstring).
+_MCGOWAN = {"C": 16.35, "H": 8.71, "O": 12.43, "N": 14.39, "F": 10.48, "Cl": 20.95, "Br": 26.21,
+            "I": 34.53, "S": 22.91, "P": 24.87, "Si": 26.83, "B": 18.32, "Se": 27.81}
+
+# Polar and other groups; names are ours, patterns written for this project.
+GROUP_SMARTS = {
+    "oh_alcohol": "[OX2H][CX4,c;!$(C=O)]",
+    "oh_any": "[OX2H]",
+    "cooh": "[CX3](=O)[OX2H1]",
+    "nh2": "[NX3;H2;!$(NC=O)]",
+    "nh": "[NX3;H1;!$(NC=O)]",
+    "amide_nh": "[NX3;H1,H2][CX3]=O",
+    "amide": "[NX3][CX3]=[OX1]",
+    "carbonyl": "[CX3]=[OX1]",
+    "ketone": "[#6][CX3](=O)[#6]",
+    "aldehyde": "[CX3H1](=O)",
+    "ester": "[#6][CX3](=O)[OX2][#6]",
+    "carbonate": "[OX2][CX3](=O)[OX2]",
+    "ether": "[OD2]([#6;!$(C=O)])[#6;!$(C=O)]",
+    "nitrile": "[NX1]#[CX2]",
+    "nitro": "[$([NX3](=O)=O),$([NX3+](=O)[O-])]",
+    "arom_n": "[n]",
+    "tert_amine": "[NX3;H0;!$(NC=O);!$(N=*);!$([N+])]([#6])([#6])[#6]",
+    "f": "[F]",
+    "cl": "[Cl]",
+    "br": "[Br]",
+    "i": "[I]",
+    "thiol": "[SX2H]",
+    "sulfide": "[SX2]([#6])[#6]",
+    "sulfoxide": "[SX3](=O)",
+    "sulfone": "[SX4](=O)(=O)",
+    "phosphate": "[PX4](=O)",
+    "n_oxide_or_charge": "[+,-]",
+    "c_double": "[CX3]=[CX3]",
+    "c_triple": "[CX2]#[CX2]",
+    "arom_ring_atom": "[a]",
+    "donor": "[$([O,S;H1]),$([N;H1,H2,H3])]",
+    "acceptor": "[$([O;H0;X2]),$([O;X1]),$([n;H0]),$([N;X1]),$([N;H0;X3;!$(NC=O);!$(N-a)])]",
+}
+
+_SLOW = ("qed", "BCUT2D", "Ipc", "AvgIpc", "SPS")
+
+MORGAN_BITS = 512
+MORGAN_RADIUS = 2
+SIM_BITS = 2048  # bit fingerprint used for the applicability domain (Tanimoto)
+
+
+@functools.lru_cache(maxsize=1)
+def _rdkit():
+    from rdkit import Chem, RDLogger
+    from rdkit.Chem import Descriptors, rdFingerprintGenerator
+
+    RDLogger.DisableLog("rdApp.*")
+    descs = [(n, f) for n, f in Descriptors._descList if not n.startswith(_SLOW)]
+    patt = {k: Chem.MolFromSmarts(v) for k, v in GROUP_SMARTS.items()}
+    bad = [k for k, p in patt.items() if p is None]
+    if bad:  # pragma: no cover - patterns are fixed
+        raise RuntimeError(f"invalid SMARTS for {bad}")
+    gen_count = rdFingerprintGenerator.GetMorganGenerator(radius=MORGAN_RADIUS, fpSize=MORGAN_BITS)
+    gen_bits = rdFingerprintGenerator.GetMorganGenerator(radius=2, fpSize=SIM_BITS)
+    return Chem, descs, patt, gen_count, gen_bits
+
+
+def feature_names() -> list[str]:
+    """Names of the columns returned by :func:`featurize`."""
+    _, descs, patt, _, _ = _rdkit()
+    names = [f"rd_{n}" for n, _ in descs]
+    names += ["mcgowan_volume", "heavy_atoms", "n_h"]
+    names += [f"grp_{k}" for k in patt]
+    names += [f"pv_{k}" for k in patt]  # per 100 cm^3/mol of McGowan volume
+    names += [f"morgan_{i}" for i in range(MORGAN_BITS)]
+    return names
+
+
+def mcgowan_volume(mol) -> float:
+    """McGowan characteristic volume of an RDKit molecule, cm^3/mol (see module docstring)."""
+    total = 0.0
+    n_atoms = 0
+    for a in mol.GetAtoms():
+        total += _MCGOWAN.get(a.GetSymbol(), 20.0)
+        h = a.GetTotalNumHs()
+        total += h * _MCGOWAN["H"]
+        n_atoms += 1 + h
+    n_rings = mol.GetRingInfo().NumRings()
+    n_bonds = n_atoms - 1 + n_rings  # bonds of the molecule with explicit hydrogens
+    return total - 6.56 * n_bonds
+
+
+def check_molecule(smiles) -> tuple[object | None, str]:
+    """Parse and vet one SMILES for estimation.
+
+    Returns ``(mol, "")`` for an acceptable molecule, or ``(None, reason)``. Refused, each with
+    its own reason: non-text or empty input, SMILES that RDKit cannot parse, several fragments
+    (salts and mixtures: estimate each neutral component on its own), polymer repeat units
+    (``*``), elements outside C H N O S P F Cl Br I Si B (metals, most inorganics), molecules
+    without carbon, a net charge (ions; charge-separated neutral groups such as nitro are
+    accepted) and radicals.
+    """
+    Chem = _rdkit()[0]
+    if not isinstance(smiles, str) or not smiles.strip():
+        return None, "empty SMILES"
+    s = smiles.strip()
+    if "*" in s:
+        return None, ("polymer repeat unit or wildcard atom '*' is not supported; estimate a small "
+                      "model compound of the repeat unit (cap the ends with H or methyl)")
+    mol = Chem.MolFromSmiles(s)
+    if mol is None:
+        return None, f"not a valid SMILES: {s!r}"
+    if "." in s or len(Chem.GetMolFrags(mol)) > 1:
+        return None, ("several disconnected parts (a salt or a mixture); estimate each neutral "
+                      "component on its own")
+    if mol.GetNumAtoms() == 0:
+        return None, "empty molecule"
+    symbols = {a.GetSymbol() for a in mol.GetAtoms()}
+    others = sorted(symbols - ORGANIC_ELEMENTS)
+    if others:
+        return None, (f"contains {', '.join(others)}: metals and most inorganic elements are outside "
+                      "what the training tables cover (only C H N O S P F Cl Br I Si B)")
+    if "C" not in symbols:
+        return None, "no carbon atom: inorganic compounds are outside what the model covers"
+    charge = sum(a.GetFormalCharge() for a in mol.GetAtoms())
+    if charge != 0:
+        return None, (f"net charge {charge:+d}: ions are not supported; give the neutral molecule "
+                      "(a salt's HSP is not that of its ions)")
+    if any(a.GetNumRadicalElectrons() for a in mol.GetAtoms()):
+        return None, "radical (unpaired electrons): give a closed-shell molecule"
+    return mol, ""
+
+
+def featurize(mols) -> np.ndarray:
+    """Feature matrix (n_molecules x len(feature_names())) of RDKit molecules, float64."""
+    Chem, descs, patt, gen_count, _ = _rdkit()
+    n_desc = len(descs)
+    n_grp = len(patt)
+    width = n_desc + 3 + 2 * n_grp + MORGAN_BITS
+    X = np.zeros((len(mols), width))
+    pats = list(patt.values())
+    for i, m in enumerate(mols):
+        row = X[i]
+        for j, (_, f) in enumerate(descs):
+            try:
+                row[j] = f(m)
+            except Exception:  # noqa: BLE001 - a descriptor that fails is left missing
+                row[j] = np.nan
+        v = mcgowan_volume(m)
+        k = n_desc
+        row[k] = v
+        row[k + 1] = m.GetNumHeavyAtoms()
+        row[k + 2] = sum(a.GetTotalNumHs() for a in m.GetAtoms())
+        k += 3
+        counts = np.array([len(m.GetSubstructMatches(p)) for p in pats], dtype=float)
+        row[k:k + n_grp] = counts
+        row[k + n_grp:k + 2 * n_grp] = counts * (100.0 / max(v, 1.0))
+        k += 2 * n_grp
+        row[k:] = gen_count.GetCountFingerprintAsNumPy(m)
+    X[~np.isfinite(X)] = np.nan
+    # clip absurd descriptor values (some RDKit descriptors explode on odd graphs)
+    np.clip(X, -1e6, 1e6, out=X)
+    return X
+
+
+def similarity_bits(mols) -> np.ndarray:
+    """Morgan bit fingerprints (radius 2, 2048 bits) as a boolean matrix, for Tanimoto similarity."""
+    _, _, _, _, gen_bits = _rdkit()
+    out = np.zeros((len(mols), SIM_BITS), dtype=bool)
+    for i, m in enumerate(mols):
+        out[i] = gen_bits.GetFingerprintAsNumPy(m).astype(bool)
+    return out
+
+
+def tanimoto(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """Tanimoto similarity matrix between two boolean fingerprint matrices (vectorised)."""
+    a = a.astype(np.float32)
+    b = b.astype(np.float32)
+    inter = a @ b.T
+    na = a.sum(axis=1)[:, None]
+    nb = b.sum(axis=1)[None, :]
+    union = na + nb - inter
+    with np.errstate(invalid="ignore", divide="ignore"):
+        s = np.where(union > 0, inter / union, 1.0)
+    return s
+
+
+def murcko_scaffold(mol) -> str:
+    """Bemis-Murcko scaffold SMILES (empty for acyclic molecules)."""
+    from rdkit.Chem.Scaffolds import MurckoScaffold
+
+    try:
+        return MurckoScaffold.MurckoScaffoldSmiles(mol=mol)
+    except Exception:  # noqa: BLE001
+        return ""
