@@ -213,8 +213,8 @@ def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, p
     ``resolution`` (MPa^0.5), then the worst ``hazard_rank`` of the components (0-3, 4 for
     unclassified; optional (n,) array), then Ra. ``miscible``: optional (n, n) bool; pairs marked
     False are never blended. Exact: a triple is skipped only when the distance of the target to its
-    plane already rules it out. ``workers``: threads for the ternary scan (default 1;
-    numpy releases the GIL in its array loops, so 2 can help on an idle 2-core machine).
+    plane already rules it out. ``workers``: threads for the ternary scan (default: up to
+    2; numpy releases the GIL in its array loops; the result does not depend on it).
     """
     X = np.asarray(X, float)
     n = len(X)
@@ -252,7 +252,10 @@ def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, p
                            key(bij[keep], np.maximum(hz[i2], hz[j2])), pool))
     if max_components >= 3 and n >= 3:
         tp = max(200, pool // 10) if ternary_pool is None else int(ternary_pool)
-        workers = 1 if workers is None else workers
+        if workers is None:
+            import os
+
+            workers = min(2, os.cpu_count() or 1)
         parts.append(_ternary_search(Z, G, gd, B, hz, single, _check_min_fraction(min_fraction, 3),
                                      min_gain, tp, res, key, workers=workers))
     idx, f, rr, kk = (np.concatenate(x) for x in zip(*parts))
