@@ -18,6 +18,7 @@ from lwui import common  # noqa: E402
 
 st.set_page_config(page_title="likewise · solvent choice", page_icon=":material/science:", layout="wide")
 common.init_state()
+common.start_estimator_warmup()
 
 V = APP_DIR / "views"
 pages = {

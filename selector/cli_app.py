@@ -27,6 +27,7 @@ def app_command(port: int = 8501, entry: Path | None = None) -> list[str]:
 
 
 def cmd_app(a) -> int:
+    import os
     import subprocess
 
     from .errors import SelectorError
@@ -41,7 +42,8 @@ def cmd_app(a) -> int:
     print(f"likewise app: serving on http://127.0.0.1:{a.port} (local only; Ctrl+C stops it)",
           file=sys.stderr)
     try:
-        return subprocess.call(cmd)
+        # the app trains the structure estimator in the background once the first page is up
+        return subprocess.call(cmd, env=dict(os.environ, LIKEWISE_WARM_ESTIMATOR="1"))
     except KeyboardInterrupt:
         return 0
 

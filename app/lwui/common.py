@@ -6,7 +6,11 @@ the front end.
 from __future__ import annotations
 
 import importlib
+import importlib.util
 import math
+import os
+import threading
+import time
 from pathlib import Path
 
 import numpy as np
@@ -150,6 +154,42 @@ def call(fn, *args, **kwargs):
     except ERRORS as e:
         show_error(e)
         return None
+
+
+# ---------------------------------------------------------------- structure estimator
+
+#: A molecule outside the library (tert-butyl cyclohexanecarboxylate): estimating it trains the model.
+_WARM_SMILES = "CC(C)(C)OC(=O)C1CCCCC1"
+
+
+def _warm() -> None:
+    time.sleep(3)  # let the first page render first
+    try:
+        selector.estimate(_WARM_SMILES)
+    except Exception:  # noqa: BLE001 - a failed warm-up only means the first estimate is slow
+        pass
+
+
+@st.cache_resource(show_spinner=False)
+def _estimator_warmup() -> threading.Thread:
+    th = threading.Thread(target=_warm, daemon=True, name="likewise-estimator-warmup")
+    th.start()
+    return th
+
+
+def start_estimator_warmup() -> None:
+    """Train the structure estimator in the background once per server (``likewise app`` sets
+    LIKEWISE_WARM_ESTIMATOR=1), so that the first SMILES estimate does not wait for it."""
+    if os.environ.get("LIKEWISE_WARM_ESTIMATOR") == "1" and importlib.util.find_spec("selector.estimation"):
+        _estimator_warmup()
+
+
+def wait_for_estimator() -> None:
+    if os.environ.get("LIKEWISE_WARM_ESTIMATOR") == "1":
+        th = _estimator_warmup()
+        if th.is_alive():
+            with st.spinner("Preparing the structure estimator (trained once per start, 10-60 s)…"):
+                th.join()
 
 
 # ---------------------------------------------------------------- widgets

@@ -82,6 +82,10 @@ res = common.call(fit, tests.dropna(how="all").to_csv(index=False), int(boot), i
 if res is None:
     st.stop()
 
+_label = "demo results (invented)" if src.startswith("Invented") else "your lab results"
+st.session_state["lw_fit"] = {"name": "fitted sphere", "delta_d": float(res.delta_d), "delta_p": float(res.delta_p),
+                              "delta_h": float(res.delta_h), "radius": float(res.radius),
+                              "source": f"fitted to {_label}"}
 m = st.columns(5)
 m[0].metric("dD (MPa½)", f"{res.delta_d:.1f}")
 m[1].metric("dP (MPa½)", f"{res.delta_p:.1f}")
@@ -98,11 +102,7 @@ if iv:
     st.table(pd.DataFrame([{"parameter": k, "low": f"{v[0]:.2f}", "high": f"{v[1]:.2f}"} for k, v in iv.items()])
              .set_index("parameter"))
 if st.button("Use this sphere as the target", key="sp_use", type="primary"):
-    label = "demo results (invented)" if src.startswith("Invented") else "your lab results"
-    common.set_target({"kind": "fitted", "name": "fitted sphere", "delta_d": float(res.delta_d),
-                       "delta_p": float(res.delta_p), "delta_h": float(res.delta_h),
-                       "radius": float(res.radius), "source": f"fitted to {label}"})
-    st.session_state["lw_fit"] = {k: v for k, v in common.target_spec().items() if k != "kind"}
+    common.set_target(dict(st.session_state["lw_fit"], kind="fitted"))
     st.success("The fitted sphere is now the target for the ranking and blend pages.")
 
 mis = getattr(res, "misfits", None)

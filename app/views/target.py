@@ -63,30 +63,47 @@ with tabs[1]:
             st.rerun()
 
 with tabs[2]:
-    st.caption("Hansen parameters estimated from the structure by the bundled estimator. An estimate "
-               "carries an uncertainty band; outside the estimator's domain it is flagged.")
+    st.caption("Hansen parameters and molar volume estimated from the structure by the bundled estimator "
+               "(trained on the published HSP tables), with a 90 % interval and an applicability-domain "
+               "check. A molecule already in the library is answered from the library.")
     est_mod = common.capability("estimation")
-    smi = st.text_input("SMILES", key="tg_smiles", placeholder="e.g. CC(=O)OCCCC")
-    r0s = st.number_input("R0 (MPa½), optional", value=None, min_value=0.0, max_value=40.0, step=0.5,
-                          key="tg_r0s", placeholder="none (a point)")
-    if est_mod is not None and smi.strip():
-        est = common.call(selector.estimate, smi.strip())
-        if est is not None and len(est):
-            e = est.iloc[0]
-            show = [c for c in ["smiles", "delta_d", "delta_d_low", "delta_d_high", "delta_p", "delta_p_low",
-                                "delta_p_high", "delta_h", "delta_h_low", "delta_h_high", "molar_volume",
-                                "in_domain", "source", "message"] if c in est.columns]
-            st.dataframe(est[show], hide_index=True, width="stretch")
-            ok = all(np.isfinite(float(e[k])) for k in ("delta_d", "delta_p", "delta_h"))
-            if "in_domain" in est.columns and not bool(e["in_domain"]):
-                st.warning("This structure is outside the estimator's domain: treat the numbers as rough.")
-            if not ok:
-                st.error(str(e.get("message", "no estimate for this structure")))
-            elif st.button("Use this estimate", key="tg_use_est", type="primary"):
-                common.set_target({"kind": "estimate", "name": smi.strip(), "delta_d": float(e["delta_d"]),
-                                   "delta_p": float(e["delta_p"]), "delta_h": float(e["delta_h"]),
-                                   "radius": r0s or None, "source": f"estimated ({e.get('source', 'estimator')})"})
-                st.rerun()
+    with st.form("tg_est"):
+        smi = st.text_input("SMILES", key="tg_smiles", placeholder="e.g. CC(C)(C)OC(=O)C1CCCCC1")
+        r0s = st.number_input("R0 (MPa½), optional", value=None, min_value=0.0, max_value=40.0, step=0.5,
+                              key="tg_r0s", placeholder="none (a point)")
+        go_est = st.form_submit_button("Estimate", disabled=est_mod is None)
+    if go_est and smi.strip():
+        common.wait_for_estimator()
+        with st.spinner("Estimating… (the first estimate after a start may train the model: 10-60 s)"):
+            est = common.call(selector.estimate, smi.strip())
+        st.session_state["lw_est"] = None if est is None or not len(est) else est
+    elif go_est:
+        st.error("Type a SMILES string first, e.g. CCO for ethanol.")
+    est = st.session_state.get("lw_est")
+    if est is not None and len(est):
+        e = est.iloc[0]
+        show = [c for c in ["smiles", "delta_d", "delta_d_low", "delta_d_high", "delta_p", "delta_p_low",
+                            "delta_p_high", "delta_h", "delta_h_low", "delta_h_high", "molar_volume",
+                            "molar_volume_low", "molar_volume_high", "similarity", "in_domain", "nearest",
+                            "source", "message"] if c in est.columns]
+        st.dataframe(est[show], hide_index=True, width="stretch", column_config={
+            "delta_d": st.column_config.NumberColumn("dD", format="%.1f"),
+            "delta_p": st.column_config.NumberColumn("dP", format="%.1f"),
+            "delta_h": st.column_config.NumberColumn("dH", format="%.1f"),
+            "molar_volume": st.column_config.NumberColumn("V (cm³/mol)", format="%.0f"),
+            "similarity": st.column_config.NumberColumn("similarity", format="%.2f",
+                                                        help="Tanimoto to the nearest training molecule")})
+        if "in_domain" in est.columns and not bool(e["in_domain"]):
+            st.warning("This structure is outside the estimator's domain: treat the numbers as rough.")
+        st.caption(str(e.get("message", "")) + " Estimates are not measurements.")
+        if st.button("Use this estimate as the target", key="tg_use_est", type="primary"):
+            r0v = st.session_state.get("tg_r0s")
+            common.set_target({"kind": "estimate", "name": str(e.get("library_name") or e["smiles"]),
+                               "delta_d": float(e["delta_d"]), "delta_p": float(e["delta_p"]),
+                               "delta_h": float(e["delta_h"]), "radius": r0v or None,
+                               "source": f"{e.get('source', 'estimated')} from SMILES {e['smiles']}"})
+            st.session_state.pop("lw_est", None)
+            st.rerun()
 
 with tabs[3]:
     fit = st.session_state.get("lw_fit")
