@@ -1,0 +1,263 @@
+"""Tests of HSP / molar-volume estimation from SMILES (selector.estimation).
+
+Check values come from outside the project: the published HSP tables carried by the
+``chemicals`` library (source keys ALSHERI_HANSEN, MANUEL_RUBEN_2022), molar volumes from
+``thermo`` (``thermo.Chemical(...).Vm`` at 25 C), RDKit's own parsing, and facts of the trade.
+"""
+from __future__ import annotations
+
+import functools
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from selector import estimation as E
+from selector.errors import SelectorError
+from selector.estimation_features import check_molecule
+
+# ---------------------------------------------------------------------------------- helpers
+
+ALLOWED = ("ALSHERI_HANSEN", "MANUEL_RUBEN_2022", "WDR_SCHRIER")
+
+
+def published_hsp(cas):
+    """HSP in MPa^0.5 from chemicals.solubility, first allowed source that has the compound
+    (chemicals stores Pa^0.5)."""
+    from chemicals import solubility as s
+
+    for m in ALLOWED:
+        if m in s.hansen_delta_d_methods(cas):
+            return np.array([s.hansen_delta_d(cas, method=m), s.hansen_delta_p(cas, method=m),
+                             s.hansen_delta_h(cas, method=m)]) / 1000.0
+    raise LookupError(cas)
+
+
+@functools.lru_cache(maxsize=1)
+def training():
+    df, mols = E._training_cached()
+    X = np.nan_to_num(E.training_features(df, mols))
+    return df, mols, X
+
+
+# ---------------------------------------------------------------------------------- bad input
+
+@pytest.mark.parametrize("smiles, words", [
+    ("C1CC", "not a valid SMILES"),                 # unclosed ring: RDKit refuses to parse it
+    ("", "empty"),
+    ("[Na+].[Cl-]", "salt or a mixture"),           # sodium chloride, dot-separated ions
+    ("CC(=O)[O-].[Na+]", "salt or a mixture"),      # sodium acetate
+    ("CCO.O", "salt or a mixture"),                 # ethanol-water mixture
+    ("CC[Sn](CC)(CC)CC", "Sn"),                     # tetraethyltin: a metal
+    ("[Fe]", "Fe"),
+    ("O=S=O", "no carbon"),                         # sulfur dioxide: inorganic
+    ("C[N+](C)(C)C", "net charge +1"),              # tetramethylammonium cation
+    ("CC(=O)[O-]", "net charge -1"),                # acetate anion
+    ("*CC*", "polymer"),                            # polyethylene repeat unit
+    ("*CC(*)c1ccccc1", "polymer"),                  # polystyrene repeat unit
+    ("[CH3]", "radical"),                           # methyl radical
+])
+def test_refused_inputs_say_why(smiles, words):
+    mol, why = check_molecule(smiles)
+    assert mol is None
+    assert words in why
+
+
+def test_charge_separated_neutral_groups_are_accepted():
+    # nitromethane is neutral although RDKit writes the nitro group with +/- charges
+    mol, why = check_molecule("C[N+](=O)[O-]")
+    assert mol is not None and why == ""
+
+
+def test_single_bad_smiles_raises_selector_error():
+    with pytest.raises(SelectorError, match="salt or a mixture"):
+        E.estimate("[Na+].[Cl-]")
+    with pytest.raises(SelectorError, match="not a valid SMILES"):
+        E.estimate("C1CC")
+    with pytest.raises(SelectorError, match="empty selection"):
+        E.estimate([])
+    with pytest.raises(SelectorError, match="file not found"):
+        E.estimate("/no/such/file.csv")
+
+
+def test_bad_training_input_is_refused():
+    est = E.HSPEstimator(n_estimators=5)
+    with pytest.raises(SelectorError, match="xx"):
+        est.fit(["CCO"] * 9 + ["xx"], np.ones((10, 3)))
+    with pytest.raises(SelectorError, match="NaN"):
+        est.fit(["CCO"] * 10, np.full((10, 3), np.nan))
+    with pytest.raises(SelectorError, match="shape"):
+        est.fit(["CCO"] * 10, np.ones((10, 2)))
+    with pytest.raises(SelectorError, match="not fitted"):
+        E.HSPEstimator().predict(["CCO"])
+
+
+def test_batch_survives_bad_rows_and_uses_library(tmp_path):
+    # Water and ethanol are in the library: answered with the published values, no model needed
+    res = E.estimate(["O", "CCO", "xx", "[Na+].[Cl-]", "*CC*"])
+    assert list(res["source"]) == ["library", "library", "", "", ""]
+    # published values of ethanol, chemicals.solubility (ALSHERI_HANSEN kept first)
+    np.testing.assert_allclose(res.loc[1, E.HSP_COLS].to_numpy(float), published_hsp("64-17-5"), atol=1e-9)
+    assert "not a valid SMILES" in res.loc[2, "message"]
+    assert res.loc[2:, "delta_d"].isna().all()
+    # the same with a CSV file, where the other spelling of ethanol is matched by canonical SMILES
+    p = tmp_path / "batch.csv"
+    p.write_text("name,smiles\nethanol,OCC\nbroken,C1CC\n", encoding="utf-8")
+    res = E.estimate(str(p))
+    assert list(res["name"]) == ["ethanol", "broken"]
+    assert list(res["source"]) == ["library", ""]
+    bad = tmp_path / "nosmiles.csv"
+    bad.write_text("name\nx\n", encoding="utf-8")
+    with pytest.raises(SelectorError, match="no 'smiles' column"):
+        E.estimate(str(bad))
+
+
+# ---------------------------------------------------------------------------------- sklearn protocol
+
+def test_clone_params_and_determinism():
+    from sklearn.base import clone
+
+    df, mols, X = training()
+    sub = np.arange(0, len(df), 5)[:200]
+    smi = df["smiles"].iloc[sub].tolist()
+    Y = df[E.HSP_COLS].to_numpy(float)[sub]
+    est = E.HSPEstimator(n_estimators=8, calibration_folds=3, random_state=3)
+    c = clone(est)
+    assert c.get_params() == est.get_params() and not hasattr(c, "models_")
+    a = est.fit(smi, Y, features=X[sub]).predict_interval(features=X[sub[:20]])
+    b = clone(est).fit(smi, Y, features=X[sub]).predict_interval(features=X[sub[:20]])
+    for u, v in zip(a, b):
+        np.testing.assert_array_equal(u, v)       # same seed: identical results
+    other = clone(est).set_params(random_state=4).fit(smi, Y, features=X[sub]).predict_interval(features=X[sub[:20]])
+    assert not np.array_equal(a[0], other[0])     # another seed: other trees
+    assert np.all(a[1] <= a[0]) and np.all(a[0] <= a[2])
+    with pytest.raises(ValueError, match="invalid parameter"):
+        est.set_params(depth=3)
+
+
+# ---------------------------------------------------------------------------------- accuracy
+
+@pytest.fixture(scope="module")
+def reduced_cv():
+    """Reduced model (25 trees), 5-fold CV grouped by Murcko scaffold, seed 0."""
+    from selector.train_estimator import cross_conformal_coverage, cross_validate
+
+    df, mols, X = training()
+    Y = df[E.HSP_COLS].to_numpy(float)
+    groups = E.scaffold_groups(mols, df["smiles"].tolist())
+    est = E.HSPEstimator(n_estimators=25, random_state=0, n_jobs=-1)
+    P, S, fold_of = cross_validate(X, Y, groups, est, 5, 0)
+    cov, _ = cross_conformal_coverage(Y, P, S, fold_of, 0.9)
+    return Y, P, cov
+
+
+def test_scaffold_cv_accuracy_has_not_regressed(reduced_cv):
+    Y, P, cov = reduced_cv
+    mae = np.abs(P - Y).mean(axis=0)
+    # Margin: the issue's reference (untuned extra-trees on RDKit descriptors + Morgan counts in a
+    # scaffold split: 0.72 / 1.66 / 1.53 MPa^0.5) plus 0.15 MPa^0.5 for the reduced 25-tree model.
+    # The full model measures below the reference (see parameters/estimator_accuracy.md).
+    assert mae[0] <= 0.72 + 0.15
+    assert mae[1] <= 1.66 + 0.15
+    assert mae[2] <= 1.53 + 0.15
+    # and far better than knowing only the mean of the published table (common practice check)
+    naive = np.abs(Y - Y.mean(axis=0)).mean(axis=0)
+    assert np.all(mae < 0.6 * naive)
+
+
+def test_intervals_cover_about_90_percent_out_of_fold(reduced_cv):
+    _, _, cov = reduced_cv
+    # the issue's requirement: 90 % intervals cover 85-95 % of held-out values
+    assert np.all((cov >= 0.85) & (cov <= 0.95)), cov
+
+
+HELD_OUT = {  # CAS of common liquids, values checked against chemicals.solubility
+    "toluene": "108-88-3",
+    "acetone": "67-64-1",
+    "ethyl acetate": "141-78-6",
+    "1-butanol": "71-36-3",
+    "cyclohexanone": "108-94-1",
+    "dichloromethane": "75-09-2",
+}
+HELD_SMILES = {"toluene": "Cc1ccccc1", "acetone": "CC(C)=O", "ethyl acetate": "CCOC(C)=O",
+               "1-butanol": "CCCCO", "cyclohexanone": "O=C1CCCCC1", "dichloromethane": "ClCCl"}
+
+
+def test_held_out_liquids_within_their_intervals():
+    from rdkit import Chem
+
+    df, mols, X = training()
+    held = {Chem.CanonSmiles(s) for s in HELD_SMILES.values()}
+    keep = ~df["smiles"].isin(held).to_numpy()
+    assert keep.sum() == len(df) - len(held)       # all six are in the published tables
+    est = E.HSPEstimator(n_estimators=40, calibration_folds=3, random_state=0, n_jobs=-1)
+    est.fit(df["smiles"][keep].tolist(), df[E.HSP_COLS].to_numpy(float)[keep], features=X[keep])
+    pred, low, high = est.predict_interval(list(HELD_SMILES.values()))
+    truth = np.array([published_hsp(HELD_OUT[n]) for n in HELD_SMILES])
+    inside = (truth >= low) & (truth <= high)
+    # 18 values with 90 % intervals: expect about 16 inside; at least 15 must be
+    assert inside.sum() >= 15, (inside, pred, truth)
+    # the estimates are close in Hansen distance (Ra^2 = 4 dD^2 + dP^2 + dH^2) to the published point
+    ra = np.sqrt(4 * (pred[:, 0] - truth[:, 0]) ** 2 + ((pred[:, 1:] - truth[:, 1:]) ** 2).sum(axis=1))
+    assert np.median(ra) < 3.5, ra
+
+
+def test_held_out_molar_volumes_against_thermo():
+    import thermo
+    from rdkit import Chem
+
+    vm, vv, names = E.library_volume_table()
+    held = {Chem.CanonSmiles(s) for s in HELD_SMILES.values()}
+    can = [Chem.MolToSmiles(m) for m in vm]
+    keep = [i for i, c in enumerate(can) if c not in held]
+    assert len(keep) == len(vm) - len(held)
+    model = E.MolarVolumeModel().fit([vm[i] for i in keep], vv[keep])
+    for name, smi in HELD_SMILES.items():
+        pred = model.predict([Chem.MolFromSmiles(smi)])[0]
+        # liquid molar volume at 25 C from thermo (cm3/mol)
+        ref = thermo.Chemical(HELD_OUT[name], T=298.15).Vm * 1e6
+        assert abs(pred - ref) / ref < 0.06, (name, pred, ref)
+
+
+# ---------------------------------------------------------------------------------- public API
+
+def test_estimate_new_molecule_and_use_it_everywhere():
+    from selector.ranking import rank
+    from selector.targets import as_target
+
+    # di-tert-butyl succinate: not in the library
+    smi = "CC(C)(C)OC(=O)CCC(=O)OC(C)(C)C"
+    res = E.estimate([smi, "CCO"], names=["dtb succinate", "ethanol"])
+    row = res.iloc[0]
+    assert row["source"] == "estimated" and res.iloc[1]["source"] == "library"
+    for c in E.OUT_COLS:
+        assert row[c + "_low"] <= row[c] <= row[c + "_high"]
+    # an aliphatic diester: dD in the usual range of esters (15-17.5, common practice), small dH
+    assert 14.5 < row["delta_d"] < 18.0
+    assert row["delta_h"] < 10
+    assert "(" in row["nearest"] and row["similarity"] > 0
+    assert bool(row["in_domain"]) == (row["similarity"] >= E.DOMAIN_THRESHOLD)
+    rows = E.as_library_rows(res)
+    assert list(rows["origin"]) == ["estimated"] and rows.loc[0, "name"] == "dtb succinate"
+    from selector.library import load_library
+
+    lib = E.merge_estimates(load_library(), rows)
+    ranked = rank((row["delta_d"], row["delta_p"], row["delta_h"], 4.0), library=lib)
+    assert ranked.iloc[0]["name"] == "dtb succinate"  # distance zero to itself
+    t = as_target(rows.iloc[0])
+    assert t.delta_d == pytest.approx(row["delta_d"])
+
+
+def test_cli_guess(capsys, tmp_path):
+    from selector.cli import main
+
+    assert main(["guess", "CCO"]) == 0
+    out = capsys.readouterr().out
+    assert "library" in out and "safety data sheet" in out
+    assert main(["guess", "[Na+].[Cl-]"]) == 2
+    assert "salt or a mixture" in capsys.readouterr().err
+    p = tmp_path / "in.csv"
+    p.write_text("smiles\nCCO\nnot-a-smiles\n", encoding="utf-8")
+    assert main(["guess", str(p), "--format", "csv", "-o", str(tmp_path / "out.csv")]) == 0
+    out = pd.read_csv(tmp_path / "out.csv")
+    assert list(out["source"].fillna("")) == ["library", ""]
