@@ -14,19 +14,27 @@ Interaction energy density A12 (J/cm^3 = MPa) and chi = V_r A12 / (R T):
 
 * this project's donor/acceptor-aware form (:data:`HBOND`, the default)::
 
-      A12 = (dD1 - dD2)^2 + w_p (dP1 - dP2)^2 + w_h (dH1 - dH2)^2 - K (eD1 eA2 + eD2 eA1)
-      V_i* = max(V_i, V_min)
+      A12 = (dD1 - dD2)^2 + w_p (dP1 - dP2)^2 + w_h (dH1 r1 - dH2 r2)(dH1 / r1 - dH2 / r2)
+      r_i = sqrt((alpha_i + f) / (beta_i + f))          V_i* = max(V_i, V_min)
 
-  where eD and eA (mol/cm^3) are the *spare* hydrogen-bond donor and acceptor strengths per
-  volume of each liquid, found from its structure with RDKit (:func:`site_counts`,
-  :func:`site_densities`; Kamlet-Taft weights per site class): a liquid whose donors outweigh
-  its acceptors (water) has spare donors, one with acceptors but no donors (ketones, ethers,
-  esters, amides, nitriles, sulfoxides, tertiary amines) spare acceptors. The geometric-mean
-  rule hidden in (dH1 - dH2)^2 cannot see that the spare sites of one liquid bond to those of
-  the other; the K term is the energy of those cross bonds. V_min is a floor on the volume in
-  the combinatorial entropy (it only affects liquids smaller than 40 cm^3/mol, above all water).
-  w_p, w_h, K and V_min are the only fitted numbers (:mod:`selector.mixing_fit`, on
-  ``parameters/miscibility_pairs.csv``; accuracy in ``parameters/miscibility_accuracy.md``).
+  Each liquid's hydrogen-bond parameter is split into a donor part dH r and an acceptor part
+  dH / r (their product is dH^2, the hydrogen-bond cohesive energy density), in the ratio of its
+  Kamlet-Taft acidity alpha and basicity beta found from its structure with RDKit
+  (:func:`site_counts`, :func:`site_strengths`; Kamlet-Taft weights per site class). The cross
+  energy then follows the donor-acceptor (acid-base) combining rule (D1 - D2)(A1 - A2) instead
+  of the geometric mean hidden in (dH1 - dH2)^2; the difference is
+  -(sqrt(D1 A2) - sqrt(D2 A1))^2 <= 0, so the split only ever favours mixing, and most where
+  one liquid has spare donors (water) and the other spare acceptors (ketones, ethers, esters,
+  amides, nitriles, sulfoxides, tertiary amines). The same acid-base product form is used in
+  MOSCED (Thomas & Eckert, Ind. Eng. Chem. Process Des. Dev. 23 (1984) 194) and in the split
+  of dH into acidic and basic parts by Stefanis & Panayiotou (Int. J. Pharm. 426 (2012) 29);
+  both from memory. ``f`` (:data:`ACID_FLOOR`, 0.1) keeps the split finite for liquids without
+  donor or acceptor sites; V_min (:data:`V_MIN`, 43.4 cm^3/mol) is a floor on the volume in the
+  combinatorial entropy: water counted by its contact surface (UNIQUAC q), not its volume (it
+  only affects liquids smaller than 43.4 cm^3/mol, above all water). Both are set from
+  pure-liquid data, not fitted; w_p and w_h are the only fitted numbers
+  (:mod:`selector.mixing_fit`, on ``parameters/miscibility_pairs.csv``; accuracy in
+  ``parameters/miscibility_accuracy.md``).
 
 The pair splits when chi > chi_c = 0.5 (N1^-0.5 + N2^-0.5)^2 (Flory, Principles of Polymer
 Chemistry, 1953, ch. 13). V_r cancels out of the phase behaviour in volume fractions and is
@@ -74,8 +82,9 @@ STATES = ("miscible", "partially miscible", "immiscible")
 class MixingModel:
     """Weights of the interaction energy density A12 (J/cm^3) and the entropy volume floor.
 
-    ``w_d, w_p, w_h``: weights of the squared differences in dD, dP, dH (dimensionless);
-    ``k_cross``: energy of donor-acceptor cross bonds, J cm^3 / mol^2 (0 = plain model);
+    ``w_d, w_p, w_h``: weights of the dD, dP and hydrogen-bond terms (dimensionless);
+    ``acid_floor``: Kamlet-Taft floor added to alpha and beta before dH is split into donor and
+    acceptor parts (0 = no split: the geometric-mean term (dH1 - dH2)^2 of the plain form);
     ``v_min``: smallest molar volume (cm^3/mol) used in the combinatorial entropy (0 = the
     liquid's own molar volume; see the module docstring).
     """
@@ -84,33 +93,60 @@ class MixingModel:
     w_d: float = 1.0
     w_p: float = 0.25
     w_h: float = 0.25
-    k_cross: float = 0.0
+    acid_floor: float = 0.0
     v_min: float = 0.0
     source: str = ""
 
+    def split_ratio(self, sites):
+        """sqrt((alpha + f) / (beta + f)) per liquid from (..., 2) (alpha, beta) arrays; 1 if no split."""
+        s = np.asarray(sites, float)
+        if not self.acid_floor:
+            return np.ones(s.shape[:-1])
+        s = np.nan_to_num(s, nan=0.0)
+        return np.sqrt((s[..., 0] + self.acid_floor) / (s[..., 1] + self.acid_floor))
+
     def interaction(self, hsp1, hsp2, sites1=None, sites2=None):
-        """A12 in J/cm^3 for broadcastable (..., 3) HSP arrays and (..., 2) site arrays."""
-        d = np.asarray(hsp1, float) - np.asarray(hsp2, float)
-        a = self.w_d * d[..., 0] ** 2 + self.w_p * d[..., 1] ** 2 + self.w_h * d[..., 2] ** 2
-        if self.k_cross and sites1 is not None and sites2 is not None:
-            s1 = np.asarray(sites1, float)
-            s2 = np.asarray(sites2, float)
-            a = a - self.k_cross * (s1[..., 0] * s2[..., 1] + s2[..., 0] * s1[..., 1])
-        return a
+        """A12 in J/cm^3 for broadcastable (..., 3) HSP arrays and (..., 2) (alpha, beta) arrays.
+
+        Hydrogen-bond term: w_h (dH1 r1 - dH2 r2)(dH1 / r1 - dH2 / r2) with r from
+        :meth:`split_ratio` (equal to w_h (dH1 - dH2)^2 when r1 = r2, e.g. without a split).
+        """
+        h1 = np.asarray(hsp1, float)
+        h2 = np.asarray(hsp2, float)
+        d = h1 - h2
+        a = self.w_d * d[..., 0] ** 2 + self.w_p * d[..., 1] ** 2
+        if self.acid_floor and sites1 is not None and sites2 is not None:
+            r1, r2 = self.split_ratio(sites1), self.split_ratio(sites2)
+            hb = (h1[..., 2] * r1 - h2[..., 2] * r2) * (h1[..., 2] / r1 - h2[..., 2] / r2)
+        else:
+            hb = d[..., 2] ** 2
+        return a + self.w_h * hb
 
     def entropy_volume(self, v):
         """Molar volume used for the combinatorial entropy, max(V, v_min), cm^3/mol."""
         return np.maximum(np.asarray(v, float), self.v_min)
 
 
+#: Kamlet-Taft acidity floor of the donor/acceptor split: the alpha of the weakly C-H-acidic
+#: aprotic liquids (acetone 0.08, dichloromethane 0.13, acetonitrile 0.19; Marcus, Chem. Soc.
+#: Rev. 22 (1993) 409, from memory). Set, not fitted.
+ACID_FLOOR = 0.1
+
+#: Entropy volume floor (cm^3/mol): water's contact surface as an equivalent volume, the
+#: UNIQUAC surface parameter of water q = 1.40 (Abrams & Prausnitz, AIChE J. 21 (1975) 116;
+#: also in ``thermo.unifac.UFSG``) times the median molar volume per unit q of the other 72
+#: reference liquids, 31.0 cm^3/mol (UNIFAC group Q values of ``thermo.unifac.UFSG``). Set,
+#: not fitted.
+V_MIN = 43.4
+
 #: The plain Hansen Flory-Huggins form (Hansen's handbook, ch. 2).
 PLAIN = MixingModel("plain Hansen Flory-Huggins", 1.0, 0.25, 0.25, 0.0, 0.0,
                     "C. M. Hansen, Hansen Solubility Parameters, 2nd ed., 2007")
 
-#: Donor/acceptor-aware form; w_p, w_h, k_cross and v_min fitted on
-#: parameters/miscibility_pairs.csv by :func:`selector.mixing_fit.fit` (all pairs).
-HBOND = MixingModel("donor/acceptor Flory-Huggins", 1.0, 0.2, 0.1, 2.0e5, 40.0,
-                    "this project, fitted on parameters/miscibility_pairs.csv")
+#: Donor/acceptor-aware form; only w_p and w_h are fitted, on parameters/miscibility_pairs.csv
+#: by :func:`selector.mixing_fit.fit` (all pairs); :data:`ACID_FLOOR` and :data:`V_MIN` are set.
+HBOND = MixingModel("donor/acceptor Flory-Huggins", 1.0, 0.2, 0.0975, ACID_FLOOR, V_MIN,
+                    "this project, w_p and w_h fitted on parameters/miscibility_pairs.csv")
 
 DEFAULT_MODEL = HBOND
 
@@ -233,6 +269,20 @@ def site_densities(smiles, molar_volume) -> np.ndarray:
     excess = np.stack([np.maximum(counts[:, 0] - counts[:, 1], 0.0),
                        np.maximum(counts[:, 1] - counts[:, 0], 0.0)], axis=1)
     return excess / v[:, None]
+
+
+def site_strengths(smiles) -> np.ndarray:
+    """(n, 2) summed Kamlet-Taft donor and acceptor strengths (alpha, beta) per molecule.
+
+    From :func:`site_counts`; liquids without a usable SMILES get (0, 0), which makes the
+    donor/acceptor split neutral (the plain geometric-mean dH term).
+
+    >>> site_strengths(["O", "CC(C)=O", None]).tolist()
+    [[1.16, 0.47], [0.0, 0.48], [0.0, 0.0]]
+    """
+    smi = [("" if s is None or (isinstance(s, float) and math.isnan(s)) else str(s)) for s in smiles]
+    counts = np.array([site_counts(s) for s in smi], dtype=float).reshape(-1, 2)
+    return np.nan_to_num(counts, nan=0.0)
 
 
 # ---------------------------------------------------------------- Flory-Huggins core
@@ -647,17 +697,19 @@ def _ucst_scalar(h1, h2, s1, s2, v1, v2, model, al1, al2, lo=-150.0, hi=400.0) -
     al2 = float(al2) if math.isfinite(float(al2)) else DEFAULT_EXPANSION
     k1 = (1.25 * al1, 0.5 * al1, 1.22e-3 + 0.5 * al1)
     k2 = (1.25 * al2, 0.5 * al2, 1.22e-3 + 0.5 * al2)
-    w = (model.w_d, model.w_p, model.w_h)
-    cross = model.k_cross * (s1[0] * s2[1] + s2[0] * s1[1]) if model.k_cross else 0.0
+    r1 = float(model.split_ratio(np.asarray(s1, float)))
+    r2 = float(model.split_ratio(np.asarray(s2, float)))
     h1 = [float(x) for x in h1]
     h2 = [float(x) for x in h2]
 
     def f(t):
         dt = t - 25.0
-        a = -cross
-        for i in range(3):
-            d = h1[i] * math.exp(-k1[i] * dt) - h2[i] * math.exp(-k2[i] * dt)
-            a += w[i] * d * d
+        d0 = h1[0] * math.exp(-k1[0] * dt) - h2[0] * math.exp(-k2[0] * dt)
+        d1 = h1[1] * math.exp(-k1[1] * dt) - h2[1] * math.exp(-k2[1] * dt)
+        x1 = h1[2] * math.exp(-k1[2] * dt)
+        x2 = h2[2] * math.exp(-k2[2] * dt)
+        a = (model.w_d * d0 * d0 + model.w_p * d1 * d1
+             + model.w_h * (x1 * r1 - x2 * r2) * (x1 / r1 - x2 / r2))
         e1 = max(v1 * math.exp(al1 * dt), model.v_min)
         e2 = max(v2 * math.exp(al2 * dt), model.v_min)
         vr = min(e1, e2)
@@ -751,7 +803,7 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     h2 = np.array([rb_["delta_d"], rb_["delta_p"], rb_["delta_h"]])
     v1, v2 = ra_["molar_volume"], rb_["molar_volume"]
     al1, al2 = ra_["expansion_coeff"], rb_["expansion_coeff"]
-    s = site_densities([ra_["smiles"], rb_["smiles"]], [v1, v2])
+    s = site_strengths([ra_["smiles"], rb_["smiles"]])
     if t != 25.0:
         h1, h2 = hsp_at(h1, al1, t), hsp_at(h2, al2, t)
         v1t, v2t = float(volume_at(v1, al1, t)), float(volume_at(v2, al2, t))
@@ -793,7 +845,7 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     wa, wb = _is_water(ra_), _is_water(rb_)
     if (wa or wb) and ucst_c is not None:
         notes.append("with water the model UCST is only a rough hint (water-1-butanol: model about "
-                     "41 C, published about 125 C)")
+                     "28 C, published about 125 C)")
     lcst = (wa != wb) and _lcst_prone(rb_ if wa else ra_)
     if lcst:
         notes.append("water with an amine, pyridine or glycol ether: such pairs can show lower "
@@ -859,7 +911,7 @@ def _arrays(df: pd.DataFrame):
         raise SelectorError("missing, negative or non-numeric HSP or molar volume for: "
                             + ", ".join(map(str, names[:8])))
     smi = df["smiles"].tolist() if "smiles" in df.columns else [""] * len(df)
-    s = site_densities(smi, v)
+    s = site_strengths(smi)
     m = (pd.to_numeric(df["molar_mass"], errors="coerce").to_numpy(float) if "molar_mass" in df.columns
          else np.full(len(df), np.nan))
     al = (pd.to_numeric(df["expansion_coeff"], errors="coerce").to_numpy(float)

@@ -2,12 +2,17 @@
 
 The reference data are ``parameters/miscibility_pairs.csv`` (see ``miscibility_pairs.md``):
 liquid pairs with their behaviour at 25 C (miscible in all proportions or not) and, for a few,
-a published upper critical solution temperature. Four numbers are fitted by an exhaustive grid
+a published upper critical solution temperature. Two numbers are fitted by an exhaustive grid
 search (the score surface is a step function, so a gradient method is of no use):
 
-* ``w_p``, ``w_h``: weights of (dP1 - dP2)^2 and (dH1 - dH2)^2 (dD keeps weight 1);
-* ``k_cross``: donor-acceptor cross-bond energy, J cm^3 / mol^2;
-* ``v_min``: floor of the molar volume in the combinatorial entropy, cm^3/mol.
+* ``w_p``, ``w_h``: weights of (dP1 - dP2)^2 and of the donor/acceptor hydrogen-bond term
+  (dD keeps weight 1).
+
+The Kamlet-Taft floor of the donor/acceptor split (:data:`selector.mixing.ACID_FLOOR`) and the
+entropy volume floor (:data:`selector.mixing.V_MIN`) are set from published pure-liquid values,
+not fitted: no number is fitted to water mixtures alone, so leaving water out of a fit still
+determines every fitted number. ``acid_floor`` and ``v_min`` may be passed to the functions
+below to measure how much the results depend on them (the report's sensitivity table).
 
 Score of a grid point on the training pairs: fraction classified right (miscible or not at
 25 C), minus 0.001 x the mean distance |ln(chi/chi_c)| of the wrong ones from the boundary
@@ -33,9 +38,7 @@ UCST_HELD_OUT = {frozenset(("67-56-1", "110-54-3"))}   # methanol-hexane
 
 GRID = {
     "w_p": np.round(np.arange(0.10, 0.3001, 0.0125), 4),
-    "w_h": np.round(np.arange(0.06, 0.1601, 0.005), 4),
-    "k_cross": np.arange(0.0, 1.0001e6, 1.0e5),
-    "v_min": np.array([0.0, 20.0, 30.0, 35.0, 40.0, 45.0, 50.0, 60.0]),
+    "w_h": np.round(np.arange(0.04, 0.2001, 0.0025), 4),
 }
 
 
@@ -56,7 +59,8 @@ class PairFeatures:
     ib: np.ndarray
     h1: np.ndarray
     h2: np.ndarray
-    cross: np.ndarray
+    s1: np.ndarray
+    s2: np.ndarray
     v1: np.ndarray
     v2: np.ndarray
     al1: np.ndarray
@@ -77,30 +81,44 @@ def features(pairs: pd.DataFrame | None = None, library: pd.DataFrame | None = N
     ia = np.array([locate(c, lib) for c in pairs["cas_a"]])
     ib = np.array([locate(c, lib) for c in pairs["cas_b"]])
     h, v, s, _, al = _arrays(lib)
-    cross = s[ia, 0] * s[ib, 1] + s[ib, 0] * s[ia, 1]
     ucst = pairs["ucst_c"].to_numpy(float).copy()
     for k, (a, b) in enumerate(zip(pairs["cas_a"], pairs["cas_b"])):
         if frozenset((a, b)) in UCST_HELD_OUT:
             ucst[k] = np.nan
-    return PairFeatures(pairs, ia, ib, h[ia], h[ib], cross, v[ia], v[ib], al[ia], al[ib],
+    return PairFeatures(pairs, ia, ib, h[ia], h[ib], s[ia], s[ib], v[ia], v[ib], al[ia], al[ib],
                         (pairs["miscible_25c"] == "yes").to_numpy(), ucst)
 
 
 def _grid_array(grid=None) -> np.ndarray:
     g = GRID if grid is None else grid
-    return np.array(list(itertools.product(g["w_p"], g["w_h"], g["k_cross"], g["v_min"])), float)
+    return np.array(list(itertools.product(g["w_p"], g["w_h"])), float)
 
 
-def _log_ratio(G, f: PairFeatures, t_c: float = 25.0):
+def _ratios(f: PairFeatures, acid_floor: float):
+    from .mixing import MixingModel
+
+    m = MixingModel("split", acid_floor=acid_floor)
+    return m.split_ratio(f.s1), m.split_ratio(f.s2)
+
+
+def _a12(G, d2, hb):
+    """A12 per grid point (rows) and pair (columns) from squared dD, dP differences and the H term."""
+    return d2[None, ..., 0] + G[:, 0, None] * d2[None, ..., 1] + G[:, 1, None] * hb[None]
+
+
+def _hb(h1, h2, r1, r2):
+    return (h1[..., 2] * r1 - h2[..., 2] * r2) * (h1[..., 2] / r1 - h2[..., 2] / r2)
+
+
+def _log_ratio(G, f: PairFeatures, acid_floor: float, v_min: float, t_c: float = 25.0):
     """ln(chi / chi_c) for every grid point (rows) and pair (columns) at t_c."""
     from .mixing import hsp_at
 
     h1, h2 = (f.h1, f.h2) if t_c == 25.0 else (hsp_at(f.h1, f.al1, t_c), hsp_at(f.h2, f.al2, t_c))
-    d2 = (h1 - h2) ** 2
-    a = (d2[None, :, 0] + G[:, 0, None] * d2[None, :, 1] + G[:, 1, None] * d2[None, :, 2]
-         - G[:, 2, None] * f.cross[None, :])
-    e1 = np.maximum(f.v1[None, :], G[:, 3, None])
-    e2 = np.maximum(f.v2[None, :], G[:, 3, None])
+    r1, r2 = _ratios(f, acid_floor)
+    a = _a12(G, (h1 - h2) ** 2, _hb(h1, h2, r1, r2))
+    e1 = np.maximum(f.v1, v_min)[None, :]
+    e2 = np.maximum(f.v2, v_min)[None, :]
     vr = np.minimum(e1, e2)
     cc = 0.5 * ((e1 / vr) ** -0.5 + (e2 / vr) ** -0.5) ** 2
     chi = vr * a / (R_GAS * (t_c + 273.15))
@@ -108,7 +126,7 @@ def _log_ratio(G, f: PairFeatures, t_c: float = 25.0):
         return np.log(np.maximum(chi, 1e-12) / cc)
 
 
-def _ucst_grid(G, f: PairFeatures, cols) -> np.ndarray:
+def _ucst_grid(G, f: PairFeatures, cols, acid_floor: float, v_min: float) -> np.ndarray:
     """Model UCST (C) per grid point for the pairs ``cols`` (vectorised bisection, -150..400 C)."""
     from .mixing import hsp_at, volume_at
 
@@ -116,15 +134,15 @@ def _ucst_grid(G, f: PairFeatures, cols) -> np.ndarray:
         return np.zeros((len(G), 0))
     lo = np.full((len(G), len(cols)), -150.0)
     hi = np.full((len(G), len(cols)), 400.0)
+    r1, r2 = (r[cols] for r in _ratios(f, acid_floor))
 
     def fval(t):
         h1 = hsp_at(f.h1[cols][None, :, :], f.al1[cols][None, :], t)
         h2 = hsp_at(f.h2[cols][None, :, :], f.al2[cols][None, :], t)
         d2 = (h1 - h2) ** 2
-        a = (d2[..., 0] + G[:, 0, None] * d2[..., 1] + G[:, 1, None] * d2[..., 2]
-             - G[:, 2, None] * f.cross[cols][None, :])
-        e1 = np.maximum(volume_at(f.v1[cols][None, :], f.al1[cols][None, :], t), G[:, 3, None])
-        e2 = np.maximum(volume_at(f.v2[cols][None, :], f.al2[cols][None, :], t), G[:, 3, None])
+        a = d2[..., 0] + G[:, 0, None] * d2[..., 1] + G[:, 1, None] * _hb(h1, h2, r1, r2)
+        e1 = np.maximum(volume_at(f.v1[cols][None, :], f.al1[cols][None, :], t), v_min)
+        e2 = np.maximum(volume_at(f.v2[cols][None, :], f.al2[cols][None, :], t), v_min)
         vr = np.minimum(e1, e2)
         cc = 0.5 * ((e1 / vr) ** -0.5 + (e2 / vr) ** -0.5) ** 2
         return vr * a / (R_GAS * (t + 273.15)) - cc
@@ -141,20 +159,25 @@ def _ucst_grid(G, f: PairFeatures, cols) -> np.ndarray:
 class GridScores:
     """Per-grid-point, per-pair pieces of the score, computed once and reused by every fold."""
 
-    def __init__(self, f: PairFeatures, grid=None):
+    def __init__(self, f: PairFeatures, grid=None, acid_floor: float | None = None,
+                 v_min: float | None = None):
+        from .mixing import ACID_FLOOR, V_MIN
+
         self.f = f
+        self.acid_floor = ACID_FLOOR if acid_floor is None else float(acid_floor)
+        self.v_min = V_MIN if v_min is None else float(v_min)
         self.G = _grid_array(grid)
-        lr = _log_ratio(self.G, f)
+        lr = _log_ratio(self.G, f, self.acid_floor, self.v_min)
         self.right = (lr <= 0) == f.miscible[None, :]
         self.penalty = np.where(self.right, 0.0, np.abs(lr))
         self.ucst_cols = np.flatnonzero(np.isfinite(f.ucst))
-        u = _ucst_grid(self.G, f, self.ucst_cols)
+        u = _ucst_grid(self.G, f, self.ucst_cols, self.acid_floor, self.v_min)
         self.ucst_err = np.minimum(np.abs(u - f.ucst[self.ucst_cols][None, :]) / 50.0, 1.0)
 
     def best(self, train: np.ndarray, allowed: np.ndarray | None = None) -> np.ndarray:
-        """Grid point (w_p, w_h, k_cross, v_min) with the best score on the ``train`` pairs.
+        """Grid point (w_p, w_h) with the best score on the ``train`` pairs.
 
-        ``allowed``: optional boolean mask over grid points (e.g. k_cross == 0 for an ablation).
+        ``allowed``: optional boolean mask over grid points.
         """
         train = np.asarray(train, bool)
         sc = self.right[:, train].mean(1) - 1e-3 * self.penalty[:, train].mean(1)
@@ -166,16 +189,18 @@ class GridScores:
         return self.G[int(np.argmax(sc))]
 
 
-def fit(pairs: pd.DataFrame | None = None, library: pd.DataFrame | None = None, train=None):
-    """Fit (w_p, w_h, k_cross, v_min) on the reference pairs (all, or the ``train`` mask).
+def fit(pairs: pd.DataFrame | None = None, library: pd.DataFrame | None = None, train=None,
+        acid_floor: float | None = None, v_min: float | None = None):
+    """Fit (w_p, w_h) on the reference pairs (all, or the ``train`` mask).
 
-    Returns a :class:`selector.mixing.MixingModel`.
+    ``acid_floor``, ``v_min``: the set numbers (default :data:`selector.mixing.ACID_FLOOR`,
+    :data:`selector.mixing.V_MIN`). Returns a :class:`selector.mixing.MixingModel`.
     """
     from .mixing import MixingModel
 
     f = features(pairs, library)
-    gs = GridScores(f)
+    gs = GridScores(f, acid_floor=acid_floor, v_min=v_min)
     train = np.ones(len(f.pairs), bool) if train is None else np.asarray(train, bool)
-    wp, wh, k, vmin = gs.best(train)
-    return MixingModel("donor/acceptor Flory-Huggins", 1.0, float(wp), float(wh), float(k),
-                       float(vmin), "fitted on parameters/miscibility_pairs.csv")
+    wp, wh = gs.best(train)
+    return MixingModel("donor/acceptor Flory-Huggins", 1.0, float(wp), float(wh), gs.acid_floor,
+                       gs.v_min, "fitted on parameters/miscibility_pairs.csv")

@@ -33,11 +33,11 @@ def naive_pair(a, b):
     from scipy.optimize import fsolve
 
     from selector.library import find_liquid, load_library
-    from selector.mixing import HBOND, critical_chi, site_densities
+    from selector.mixing import HBOND, critical_chi, site_strengths
 
     lib = load_library()
     r1, r2 = find_liquid(a, lib), find_liquid(b, lib)
-    s = site_densities([r1.smiles, r2.smiles], [r1.molar_volume, r2.molar_volume])
+    s = site_strengths([r1.smiles, r2.smiles])
     a12 = HBOND.interaction([r1.delta_d, r1.delta_p, r1.delta_h], [r2.delta_d, r2.delta_p, r2.delta_h], s[0], s[1])
     e1, e2 = max(r1.molar_volume, HBOND.v_min), max(r2.molar_volume, HBOND.v_min)
     vr = min(e1, e2)
