@@ -159,9 +159,6 @@ def _blend_options(p, parts_default=3):
     p.add_argument("--min-share", type=float, default=0.05, metavar="F",
                    help="smallest volume fraction of any liquid in a blend (default 0.05)")
     p.add_argument("--at", type=float, default=25.0, metavar="C", help="use temperature in C (default 25)")
-    p.add_argument("--flash", metavar="LOW:HIGH", help="flash-point window in C, e.g. 23: (no data: dropped)")
-    p.add_argument("--max-class", choices=CLASS_CHOICES,
-                   help="worst CHEM21 hazard class allowed for every liquid (unclassified: dropped)")
 
 
 def register(sub) -> None:

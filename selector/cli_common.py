@@ -20,6 +20,10 @@ def add_filter_args(p: argparse.ArgumentParser) -> None:
     g.add_argument("--bp", metavar="LOW:HIGH", help="boiling-point window in C, e.g. 80:180 or 100:")
     g.add_argument("--min-flash", type=float, metavar="C", help="minimum flash point in C "
                    "(liquids without flash-point data are dropped)")
+    g.add_argument("--flash", metavar="LOW:HIGH", help="flash-point window in C, e.g. 23:100 or 40: "
+                   "(liquids without flash-point data are dropped)")
+    g.add_argument("--max-class", choices=["recommended", "problematic", "hazardous", "highly-hazardous"],
+                   help="worst CHEM21 hazard class allowed for every liquid (unclassified liquids are dropped)")
     g.add_argument("--max-volume", type=float, metavar="CM3", help="maximum molar volume, cm3/mol")
     g.add_argument("--agreed-only", action="store_true",
                    help="only liquids whose published HSP sources agree within 1 MPa^0.5")
@@ -30,16 +34,16 @@ def _names(s):
     return [x.strip() for x in s.split(",") if x.strip()] if s else None
 
 
-def parse_window(s):
+def parse_window(s, option="--bp"):
     if not s:
         return None
     if ":" not in s:
-        raise ValueError(f"--bp expects LOW:HIGH in C (either side may be empty), got {s!r}")
+        raise ValueError(f"{option} expects LOW:HIGH in C (either side may be empty), got {s!r}")
     lo, hi = s.split(":", 1)
     try:
         return (float(lo) if lo.strip() else None, float(hi) if hi.strip() else None)
     except ValueError:
-        raise ValueError(f"--bp expects numbers in C, got {s!r}") from None
+        raise ValueError(f"{option} expects numbers in C, got {s!r}") from None
 
 
 def filters_from_args(a) -> dict:
@@ -50,6 +54,10 @@ def filters_from_args(a) -> dict:
         f["exclude"] = _names(a.without)
     if getattr(a, "bp", None):
         f["boiling_point_c"] = parse_window(a.bp)
+    if getattr(a, "flash", None):
+        f["flash_point_c"] = parse_window(a.flash, "--flash")
+    if getattr(a, "max_class", None):
+        f["max_hazard_class"] = a.max_class.replace("-", " ")
     if getattr(a, "min_flash", None) is not None:
         f["min_flash_point_c"] = a.min_flash
     if getattr(a, "max_volume", None) is not None:
