@@ -1,5 +1,6 @@
 """Target: the solute (resin, polymer, active) the liquids are ranked against."""
 import numpy as np
+import pandas as pd
 import streamlit as st
 
 import selector
@@ -82,20 +83,30 @@ with tabs[2]:
     est = st.session_state.get("lw_est")
     if est is not None and len(est):
         e = est.iloc[0]
-        show = [c for c in ["smiles", "delta_d", "delta_d_low", "delta_d_high", "delta_p", "delta_p_low",
-                            "delta_p_high", "delta_h", "delta_h_low", "delta_h_high", "molar_volume",
-                            "molar_volume_low", "molar_volume_high", "similarity", "in_domain", "nearest",
-                            "source", "message"] if c in est.columns]
-        st.dataframe(est[show], hide_index=True, width="stretch", column_config={
-            "delta_d": st.column_config.NumberColumn("dD", format="%.1f"),
-            "delta_p": st.column_config.NumberColumn("dP", format="%.1f"),
-            "delta_h": st.column_config.NumberColumn("dH", format="%.1f"),
-            "molar_volume": st.column_config.NumberColumn("V (cm³/mol)", format="%.0f"),
-            "similarity": st.column_config.NumberColumn("similarity", format="%.2f",
-                                                        help="Tanimoto to the nearest training molecule")})
+        def _f(v, fmt):
+            try:
+                return fmt.format(float(v)) if np.isfinite(float(v)) else "—"
+            except (TypeError, ValueError):
+                return "—"
+
+        rows = []
+        for col, lab, fmt in (("delta_d", "dD (MPa½)", "{:.1f}"), ("delta_p", "dP (MPa½)", "{:.1f}"),
+                              ("delta_h", "dH (MPa½)", "{:.1f}"), ("molar_volume", "V (cm³/mol)", "{:.0f}")):
+            if col in est.columns:
+                rows.append({"": lab, "value": _f(e[col], fmt), "90 % low": _f(e.get(f"{col}_low"), fmt),
+                             "90 % high": _f(e.get(f"{col}_high"), fmt)})
+        st.markdown(f"**{e.get('library_name') or e['smiles']}** — source: {e.get('source', '')}")
+        st.table(pd.DataFrame(rows).set_index(""))
+        bits = []
+        if "similarity" in est.columns:
+            bits.append(f"similarity to the nearest training molecule {_f(e['similarity'], '{:.2f}')}")
+        if e.get("nearest"):
+            bits.append(f"nearest: {e['nearest']}")
+        if bits:
+            st.caption("; ".join(bits))
         if "in_domain" in est.columns and not bool(e["in_domain"]):
             st.warning("This structure is outside the estimator's domain: treat the numbers as rough.")
-        st.caption(str(e.get("message", "")) + " Estimates are not measurements.")
+        st.caption(str(e.get("message", "")).rstrip(".") + ". Estimates are not measurements: confirm with a test.")
         if st.button("Use this estimate as the target", key="tg_use_est", type="primary"):
             r0v = st.session_state.get("tg_r0s")
             common.set_target({"kind": "estimate", "name": str(e.get("library_name") or e["smiles"]),
