@@ -91,3 +91,13 @@ def test_console_script_cold_start():
     r = subprocess.run([sys.executable, "-m", "selector", "rank", "nope-liquid"],
                        capture_output=True, text=True, timeout=60)
     assert r.returncode == 2 and "Traceback" not in r.stderr
+
+
+def test_rank_hazard_and_flash_filters(capsys):
+    rc, out, _ = run(["rank", "17.9,6.1,6.4,8.6", "--max-class", "recommended", "--flash", "23:",
+                      "--format", "json", "--top", "8"], capsys)
+    assert rc == 0
+    recs = json.loads(out)
+    assert recs and all(r["flash_point_c"] >= 23 for r in recs)
+    # every proposed liquid is "recommended" by the CHEM21 scoring in selector.hazards
+    assert all(selector.hazard(r["name"]).hazard_class == "recommended" for r in recs)
