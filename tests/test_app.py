@@ -58,6 +58,15 @@ def top_names(at, i=0):
     return list(df["Liquid"]) if "Liquid" in df.columns else list(df.index)
 
 
+def plot_array(v):
+    """A plotly JSON array (plain list or base64 'bdata' typed array) as numpy."""
+    if isinstance(v, dict) and "bdata" in v:
+        import base64
+
+        return np.frombuffer(base64.b64decode(v["bdata"]), dtype=v["dtype"])
+    return np.asarray(v)
+
+
 def set_typed_target(at, values, name="polystyrene"):
     go(at, "target")
     at.text_input(key="tg_name").set_value(name)
@@ -87,6 +96,16 @@ def test_opens_on_invented_demo_with_rank_result(at):
     np.testing.assert_allclose(shown["red"].to_numpy(float), ref["red"].head(len(shown)).to_numpy(float))
     # the usual cautions are shown next to a recommendation
     assert any("safety data sheet" in w.value for w in at.warning)
+    # 3-D plot: liquids inside the sphere (RED < 1) and outside differ in marker shape and colour
+    import json
+
+    fig = json.loads(at.get("plotly_chart")[0].proto.spec)["data"]
+    good = [t for t in fig if t.get("name", "").startswith("inside")][0]
+    bad = [t for t in fig if t.get("name", "").startswith("outside")][0]
+    assert len(plot_array(good["x"])) == int((ref["red"] < 1).sum())
+    assert len(plot_array(bad["x"])) == int((ref["red"] >= 1).sum())
+    assert good["marker"]["symbol"] != bad["marker"]["symbol"]
+    assert good["marker"]["color"] != bad["marker"]["color"]
 
 
 def test_polystyrene_target_ranks_like_the_library_and_common_practice(at):
@@ -200,7 +219,15 @@ def test_mixing_heat_map_and_bad_temperature(at):
     go(at, "mixing")
     at.multiselect(key="mx_set").set_value(["water", "hexane", "acetone"]).run()
     assert not at.exception and not errors(at)
-    assert len(at.get("plotly_chart")) >= 1
+    import json
+
+    heat = [json.loads(c.proto.spec) for c in at.get("plotly_chart")]
+    heat = [f["data"][0] for f in heat if f["data"] and f["data"][0]["type"] == "heatmap"][0]
+    ref = selector.miscibility_matrix(["water", "hexane", "acetone"])
+    assert heat["text"] == ref.to_numpy().tolist() and heat["x"] == list(ref.columns)
+    # Common practice: water-hexane immiscible, water-acetone and hexane-acetone miscible.
+    assert heat["text"][0][1] == "immiscible" and heat["text"][0][2] == "miscible"
+    assert heat["text"][1][2] == "miscible"
     at.number_input(key="mx_t2").set_value(150.0).run()  # acetone boils at 56 C
     assert not at.exception
     assert any("not liquid" in e or "boils" in e for e in errors(at))
