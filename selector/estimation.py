@@ -536,6 +536,27 @@ def _library_index(lib: pd.DataFrame):
     return by_smiles, by_key
 
 
+def _match_library(mols, lib):
+    """Library row position of each molecule (canonical SMILES, then InChIKey), or None."""
+    from rdkit import Chem
+
+    by_smiles, by_key = _library_index(lib)
+    out = []
+    for m in mols:
+        if m is None:
+            out.append(None)
+            continue
+        pos = by_smiles.get(Chem.MolToSmiles(m))
+        if pos is None and by_key:
+            try:
+                key = Chem.MolToInchiKey(m)
+            except Exception:  # noqa: BLE001 - InChI failures just mean "no match"
+                key = ""
+            pos = by_key.get(key) if key else None
+        out.append(pos)
+    return out
+
+
 # --------------------------------------------------------------------------- estimate()
 
 def _read_batch(path: Path) -> pd.DataFrame:
@@ -573,7 +594,9 @@ def estimate(smiles, library=None, names=None, progress=False, domain_threshold=
     training molecule), ``in_domain``, ``nearest`` (the three most similar training compounds),
     ``source`` ("library" when the molecule is in the solvent library - values then come from the
     library and the intervals are empty - "estimated", or "" for a failed row) and ``message``.
-    See the module docstring for the methods. Estimates are not measurements.
+    A molecule found in the library is answered from it even where the model would refuse it
+    (water, carbon disulfide...). See the module docstring for the methods. Estimates are not
+    measurements.
     """
     from .estimation_features import featurize, similarity_bits, tanimoto
     from .library import load_library
@@ -601,7 +624,13 @@ def estimate(smiles, library=None, names=None, progress=False, domain_threshold=
     lib = load_library() if library is None else library
     n = len(items)
     mols, msgs = parse_smiles(items)
-    if single and msgs[0]:
+    from rdkit import Chem
+
+    # a molecule the model refuses (water, an inorganic liquid...) may still be in the library
+    parsed = [m if m is not None else (Chem.MolFromSmiles(s.strip()) if isinstance(s, str) and s.strip()
+                                        and "*" not in s else None) for m, s in zip(mols, items)]
+    lib_pos = _match_library(parsed, lib)
+    if single and msgs[0] and lib_pos[0] is None:
         raise SelectorError(f"cannot estimate {items[0]!r}: {msgs[0]}")
 
     out = pd.DataFrame({"smiles": [str(s).strip() for s in items]})
@@ -618,21 +647,10 @@ def estimate(smiles, library=None, names=None, progress=False, domain_threshold=
     out["library_name"] = ""
     out["message"] = msgs
 
-    from rdkit import Chem
-
-    by_smiles, by_key = _library_index(lib)
     est_rows = []
-    for i, m in enumerate(mols):
-        if m is None:
+    for i, pos in enumerate(lib_pos):
+        if pos is None and mols[i] is None:
             continue
-        can = Chem.MolToSmiles(m)
-        pos = by_smiles.get(can)
-        if pos is None and by_key:
-            try:
-                key = Chem.MolToInchiKey(m)
-            except Exception:  # noqa: BLE001
-                key = ""
-            pos = by_key.get(key) if key else None
         if pos is not None:
             row = lib.iloc[pos]
             for c in OUT_COLS:

@@ -121,14 +121,15 @@ def test_clone_params_and_determinism():
     sub = np.arange(0, len(df), 5)[:200]
     smi = df["smiles"].iloc[sub].tolist()
     Y = df[E.HSP_COLS].to_numpy(float)[sub]
+    new = np.arange(2, len(df), 50)[:20]           # rows not used for fitting
     est = E.HSPEstimator(n_estimators=8, calibration_folds=3, random_state=3)
     c = clone(est)
     assert c.get_params() == est.get_params() and not hasattr(c, "models_")
-    a = est.fit(smi, Y, features=X[sub]).predict_interval(features=X[sub[:20]])
-    b = clone(est).fit(smi, Y, features=X[sub]).predict_interval(features=X[sub[:20]])
+    a = est.fit(smi, Y, features=X[sub]).predict_interval(features=X[new])
+    b = clone(est).fit(smi, Y, features=X[sub]).predict_interval(features=X[new])
     for u, v in zip(a, b):
         np.testing.assert_array_equal(u, v)       # same seed: identical results
-    other = clone(est).set_params(random_state=4).fit(smi, Y, features=X[sub]).predict_interval(features=X[sub[:20]])
+    other = clone(est).set_params(random_state=4).fit(smi, Y, features=X[sub]).predict_interval(features=X[new])
     assert not np.array_equal(a[0], other[0])     # another seed: other trees
     assert np.all(a[1] <= a[0]) and np.all(a[0] <= a[2])
     with pytest.raises(ValueError, match="invalid parameter"):
@@ -212,11 +213,16 @@ def test_held_out_molar_volumes_against_thermo():
     keep = [i for i, c in enumerate(can) if c not in held]
     assert len(keep) == len(vm) - len(held)
     model = E.MolarVolumeModel().fit([vm[i] for i in keep], vv[keep])
+    # the shipped 90 % interval factor (out-of-fold calibrated by selector.train_estimator)
+    lf = E.load_calibration()["volume_log_factor"]
+    rel = []
     for name, smi in HELD_SMILES.items():
         pred = model.predict([Chem.MolFromSmiles(smi)])[0]
         # liquid molar volume at 25 C from thermo (cm3/mol)
         ref = thermo.Chemical(HELD_OUT[name], T=298.15).Vm * 1e6
-        assert abs(pred - ref) / ref < 0.06, (name, pred, ref)
+        assert pred * np.exp(-lf) <= ref <= pred * np.exp(lf), (name, pred, ref)
+        rel.append(abs(pred - ref) / ref)
+    assert np.median(rel) < 0.05, rel
 
 
 # ---------------------------------------------------------------------------------- public API
