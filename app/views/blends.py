@@ -84,7 +84,7 @@ st.subheader("One blend in detail")
 pick = st.selectbox("Blend", list(res["blend"]), key="bl_pick")
 row = res.loc[res["blend"] == pick].iloc[0]
 comps, fracs = list(row["components"]), list(row["fractions"])
-tab1, tab2 = st.tabs(["Drying path", "Teas triangle"])
+tab1, tab2, tab3 = st.tabs(["Drying path", "Teas triangle", "3-D Hansen space"])
 with tab1:
     dmod = common.capability("drying")
     if dmod is not None:
@@ -104,3 +104,13 @@ with tab2:
     pts = [(t.name, t.hsp), ("blend", (row["delta_d"], row["delta_p"], row["delta_h"]))]
     st.plotly_chart(plots.teas_triangle([("components", crow, plots.GOOD, 6)], pts), width="stretch",
                     key="bl_teas")
+with tab3:
+    crow = lib.loc[lib["name"].isin(comps)]
+    blend_pt = pd.DataFrame({"name": [pick], "delta_d": [row["delta_d"]], "delta_p": [row["delta_p"]],
+                             "delta_h": [row["delta_h"]]})
+    st.plotly_chart(plots.hsp_space_3d([("components", crow, dict(plots.BAD, color=plots.ORANGE), 6),
+                                        ("blend", blend_pt, plots.GOOD, 8)],
+                                       [(t.name, tuple(t.hsp), t.radius)], title="The blend and its components"),
+                    width="stretch", key="bl_3d")
+    st.caption("A blend's point is the volume-weighted mean of its components: two liquids outside the "
+               "sphere can give a blend inside it.")
