@@ -98,8 +98,11 @@ for w in getattr(res, "warnings", []) or []:
     st.warning(str(w))
 iv = getattr(res, "intervals", None) or {}
 if iv:
-    st.markdown("**Bootstrap intervals**")
-    st.table(pd.DataFrame([{"parameter": k, "low": f"{v[0]:.2f}", "high": f"{v[1]:.2f}"} for k, v in iv.items()])
+    st.markdown("**Intervals** (bootstrap and profile region combined)")
+    names = {"delta_d": "dD (MPa½)", "delta_p": "dP (MPa½)", "delta_h": "dH (MPa½)", "radius": "R0 (MPa½)"}
+    vals = {"delta_d": res.delta_d, "delta_p": res.delta_p, "delta_h": res.delta_h, "radius": res.radius}
+    st.table(pd.DataFrame([{"parameter": names.get(k, k), "fitted": f"{vals[k]:.2f}" if k in vals else "",
+                            "low": f"{v[0]:.2f}", "high": f"{v[1]:.2f}"} for k, v in iv.items()])
              .set_index("parameter"))
 if st.button("Use this sphere as the target", key="sp_use", type="primary"):
     common.set_target(dict(st.session_state["lw_fit"], kind="fitted"))
