@@ -58,6 +58,7 @@ if len(res) == 0:
     st.stop()
 
 res = res.copy()
+res.attrs = {}  # a Target in attrs cannot go to the browser
 res.insert(0, "blend", [" + ".join(f"{f:.0%} {c}" for c, f in zip(cs, fs))
                         for cs, fs in zip(res["components"], res["fractions"])])
 has_r = "red" in res and res["red"].notna().any()
