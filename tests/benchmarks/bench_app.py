@@ -113,6 +113,17 @@ def main() -> None:
 
     rows.append(("blend design: 2 liquids, full library", _median(blends, at=at)))
 
+    at.switch_page("views/target.py").run()
+    at.button(key="tg_demo").click().run()  # back to the demo sphere with its filters
+    at.switch_page("views/blends.py").run()
+    at.radio(key="bl_n").set_value(3)
+
+    def blends3(i):
+        at.number_input(key="bl_min").set_value(0.05 + 0.01 * i)
+        at.button[[b.label for b in at.button].index("Design blends")].click().run()
+
+    rows.append(("blend design: 3 liquids, demo filters (bp 100-200 C)", _median(blends3, repeat=3, at=at)))
+
     at.switch_page("views/mixing.py").run()
     pairs = [("water", "1-butanol"), ("hexane", "methanol"), ("water", "ethyl acetate"),
              ("acetone", "hexane"), ("water", "toluene"), ("ethanol", "hexadecane"), ("water", "2-butanone")]
