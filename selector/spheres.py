@@ -967,6 +967,10 @@ def fit_sphere(tests, *, seed: int = 0, bootstrap: int = 200, outcome: str | Non
 
     level = PROFILE_FACTOR * float(chi2.ppf(conf, 1) / 2.0)
     one = _fit_one(P, w, good, m, rng)
+    if not one.radius > 1e-9:
+        raise SelectorError("the fit collapses to a sphere of zero radius: the good results coincide "
+                            "in Hansen space with each other or with bad ones; test more, different "
+                            "liquids")
     n = len(P)
     bic1 = 2 * one.loss + 4 * math.log(n)
     msgs = []

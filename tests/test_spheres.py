@@ -310,7 +310,7 @@ def test_malformed_csv_files(tmp_path):
         read_tests(binary)
 
 
-@settings(max_examples=40, deadline=None)
+@settings(max_examples=25, deadline=None)
 @given(st.lists(st.tuples(st.sampled_from(["toluene", "water", "hexane", "tolune", "", "1,4-dioxane",
                                            "toluene [1] & water [1]", "acetone [x] & water [1]"]),
                           st.one_of(st.text(max_size=6), st.booleans(), st.integers(-2, 7),
