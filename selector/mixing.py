@@ -14,7 +14,7 @@ Interaction energy density A12 (J/cm^3 = MPa) and chi = V_r A12 / (R T):
 
 * this project's donor/acceptor-aware form (:data:`HBOND`, the default)::
 
-      A12 = (dD1 - dD2)^2 + w_p (dP1 - dP2)^2 + w_h (dH1 r1 - dH2 r2)(dH1 / r1 - dH2 / r2)
+      A12 = (dD1 - dD2)^2 + w_p (q1 q2)^2 (dP1 - dP2)^2 + w_h (dH1 r1 - dH2 r2)(dH1 / r1 - dH2 / r2)
       r_i = sqrt((alpha_i + f) / (beta_i + f))          V_i* = max(V_i, V_min)
 
   Each liquid's hydrogen-bond parameter is split into a donor part dH r and an acceptor part
@@ -31,8 +31,11 @@ Interaction energy density A12 (J/cm^3 = MPa) and chi = V_r A12 / (R T):
   both from memory. ``f`` (:data:`ACID_FLOOR`, 0.1) keeps the split finite for liquids without
   donor or acceptor sites; V_min (:data:`V_MIN`, 43.4 cm^3/mol) is a floor on the volume in the
   combinatorial entropy: water counted by its contact surface (UNIQUAC q), not its volume (it
-  only affects liquids smaller than 43.4 cm^3/mol, above all water). Both are set from
-  pure-liquid data, not fitted; w_p and w_h are the only fitted numbers
+  only affects liquids smaller than 43.4 cm^3/mol, above all water). q_i (:data:`AROMATIC_Q`,
+  0.9 for aromatic liquids, else 1) is MOSCED's induction factor: a polar molecule induces a
+  dipole in a polarisable aromatic ring, which softens the polar mismatch (methanol mixes with
+  benzene and toluene but not with hexane). All three are set from published values, not
+  fitted; w_p and w_h are the only fitted numbers
   (:mod:`selector.mixing_fit`, on ``parameters/miscibility_pairs.csv``; accuracy in
   ``parameters/miscibility_accuracy.md``).
 
@@ -86,7 +89,8 @@ class MixingModel:
     ``acid_floor``: Kamlet-Taft floor added to alpha and beta before dH is split into donor and
     acceptor parts (0 = no split: the geometric-mean term (dH1 - dH2)^2 of the plain form);
     ``v_min``: smallest molar volume (cm^3/mol) used in the combinatorial entropy (0 = the
-    liquid's own molar volume; see the module docstring).
+    liquid's own molar volume; see the module docstring); ``aromatic_q``: induction factor q of
+    aromatic liquids, the polar term is weighted by (q1 q2)^2 (1 = no induction correction).
     """
 
     name: str
@@ -96,25 +100,38 @@ class MixingModel:
     acid_floor: float = 0.0
     v_min: float = 0.0
     source: str = ""
+    aromatic_q: float = 1.0
 
     def split_ratio(self, sites):
         """sqrt((alpha + f) / (beta + f)) per liquid from (..., 2) (alpha, beta) arrays; 1 if no split."""
-        s = np.asarray(sites, float)
+        s = np.asarray(sites, float)[..., :2]
         if not self.acid_floor:
             return np.ones(s.shape[:-1])
         s = np.nan_to_num(s, nan=0.0)
         return np.sqrt((s[..., 0] + self.acid_floor) / (s[..., 1] + self.acid_floor))
 
-    def interaction(self, hsp1, hsp2, sites1=None, sites2=None):
-        """A12 in J/cm^3 for broadcastable (..., 3) HSP arrays and (..., 2) (alpha, beta) arrays.
+    def induction(self, sites):
+        """Induction factor q per liquid from (..., 3) site arrays (third column: aromatic 0/1)."""
+        s = np.asarray(sites, float)
+        if self.aromatic_q == 1.0 or s.shape[-1] < 3:
+            return np.ones(s.shape[:-1])
+        return 1.0 - (1.0 - self.aromatic_q) * np.nan_to_num(s[..., 2], nan=0.0)
 
-        Hydrogen-bond term: w_h (dH1 r1 - dH2 r2)(dH1 / r1 - dH2 / r2) with r from
-        :meth:`split_ratio` (equal to w_h (dH1 - dH2)^2 when r1 = r2, e.g. without a split).
+    def interaction(self, hsp1, hsp2, sites1=None, sites2=None):
+        """A12 in J/cm^3 for broadcastable (..., 3) HSP arrays and (..., 3) site arrays.
+
+        Site arrays: (alpha, beta, aromatic 0/1) from :func:`site_strengths`. Polar term:
+        w_p (q1 q2)^2 (dP1 - dP2)^2 with q from :meth:`induction`. Hydrogen-bond term:
+        w_h (dH1 r1 - dH2 r2)(dH1 / r1 - dH2 / r2) with r from :meth:`split_ratio` (equal to
+        w_h (dH1 - dH2)^2 when r1 = r2, e.g. without a split).
         """
         h1 = np.asarray(hsp1, float)
         h2 = np.asarray(hsp2, float)
         d = h1 - h2
-        a = self.w_d * d[..., 0] ** 2 + self.w_p * d[..., 1] ** 2
+        wp = self.w_p
+        if self.aromatic_q != 1.0 and sites1 is not None and sites2 is not None:
+            wp = wp * (self.induction(sites1) * self.induction(sites2)) ** 2
+        a = self.w_d * d[..., 0] ** 2 + wp * d[..., 1] ** 2
         if self.acid_floor and sites1 is not None and sites2 is not None:
             r1, r2 = self.split_ratio(sites1), self.split_ratio(sites2)
             hb = (h1[..., 2] * r1 - h2[..., 2] * r2) * (h1[..., 2] / r1 - h2[..., 2] / r2)
@@ -139,6 +156,12 @@ ACID_FLOOR = 0.1
 #: not fitted.
 V_MIN = 43.4
 
+#: Induction factor of aromatic liquids in the polar term, from MOSCED (q = 0.9 for aromatic
+#: molecules, 1 otherwise; Lazzaroni, Bush, Eckert, Frank, Gupta & Olesik, Ind. Eng. Chem. Res.
+#: 44 (2005) 4075; from memory): a polar molecule induces a dipole in a polarisable aromatic
+#: ring, which softens the polar mismatch. Set, not fitted.
+AROMATIC_Q = 0.9
+
 #: The plain Hansen Flory-Huggins form (Hansen's handbook, ch. 2).
 PLAIN = MixingModel("plain Hansen Flory-Huggins", 1.0, 0.25, 0.25, 0.0, 0.0,
                     "C. M. Hansen, Hansen Solubility Parameters, 2nd ed., 2007")
@@ -146,7 +169,8 @@ PLAIN = MixingModel("plain Hansen Flory-Huggins", 1.0, 0.25, 0.25, 0.0, 0.0,
 #: Donor/acceptor-aware form; only w_p and w_h are fitted, on parameters/miscibility_pairs.csv
 #: by :func:`selector.mixing_fit.fit` (all pairs); :data:`ACID_FLOOR` and :data:`V_MIN` are set.
 HBOND = MixingModel("donor/acceptor Flory-Huggins", 1.0, 0.2, 0.0975, ACID_FLOOR, V_MIN,
-                    "this project, w_p and w_h fitted on parameters/miscibility_pairs.csv")
+                    "this project, w_p and w_h fitted on parameters/miscibility_pairs.csv",
+                    AROMATIC_Q)
 
 DEFAULT_MODEL = HBOND
 
@@ -271,18 +295,36 @@ def site_densities(smiles, molar_volume) -> np.ndarray:
     return excess / v[:, None]
 
 
+@functools.lru_cache(maxsize=4096)
+def is_aromatic(smiles: str) -> bool:
+    """True when the molecule has an aromatic ring (RDKit aromaticity); False for bad SMILES.
+
+    >>> is_aromatic("c1ccccc1"), is_aromatic("C1CCCCC1"), is_aromatic("c1ccncc1")
+    (True, False, True)
+    """
+    if not smiles:
+        return False
+    from rdkit import Chem, RDLogger
+
+    RDLogger.DisableLog("rdApp.*")
+    mol = Chem.MolFromSmiles(smiles)
+    return bool(mol is not None and any(a.GetIsAromatic() for a in mol.GetAtoms()))
+
+
 def site_strengths(smiles) -> np.ndarray:
-    """(n, 2) summed Kamlet-Taft donor and acceptor strengths (alpha, beta) per molecule.
+    """(n, 3): summed Kamlet-Taft donor and acceptor strengths (alpha, beta) and aromatic (0/1).
 
-    From :func:`site_counts`; liquids without a usable SMILES get (0, 0), which makes the
-    donor/acceptor split neutral (the plain geometric-mean dH term).
+    From :func:`site_counts` and :func:`is_aromatic`; liquids without a usable SMILES get
+    (0, 0, 0), which makes the donor/acceptor split and the induction factor neutral (the plain
+    geometric-mean dH term).
 
-    >>> site_strengths(["O", "CC(C)=O", None]).tolist()
-    [[1.16, 0.47], [0.0, 0.48], [0.0, 0.0]]
+    >>> site_strengths(["O", "CC(C)=O", "c1ccccc1", None]).tolist()
+    [[1.16, 0.47, 0.0], [0.0, 0.48, 0.0], [0.0, 0.0, 1.0], [0.0, 0.0, 0.0]]
     """
     smi = [("" if s is None or (isinstance(s, float) and math.isnan(s)) else str(s)) for s in smiles]
     counts = np.array([site_counts(s) for s in smi], dtype=float).reshape(-1, 2)
-    return np.nan_to_num(counts, nan=0.0)
+    arom = np.array([float(is_aromatic(s)) for s in smi]).reshape(-1, 1)
+    return np.hstack([np.nan_to_num(counts, nan=0.0), arom])
 
 
 # ---------------------------------------------------------------- Flory-Huggins core
@@ -699,6 +741,7 @@ def _ucst_scalar(h1, h2, s1, s2, v1, v2, model, al1, al2, lo=-150.0, hi=400.0) -
     k2 = (1.25 * al2, 0.5 * al2, 1.22e-3 + 0.5 * al2)
     r1 = float(model.split_ratio(np.asarray(s1, float)))
     r2 = float(model.split_ratio(np.asarray(s2, float)))
+    wp = model.w_p * float(model.induction(np.asarray(s1, float)) * model.induction(np.asarray(s2, float))) ** 2
     h1 = [float(x) for x in h1]
     h2 = [float(x) for x in h2]
 
@@ -708,7 +751,7 @@ def _ucst_scalar(h1, h2, s1, s2, v1, v2, model, al1, al2, lo=-150.0, hi=400.0) -
         d1 = h1[1] * math.exp(-k1[1] * dt) - h2[1] * math.exp(-k2[1] * dt)
         x1 = h1[2] * math.exp(-k1[2] * dt)
         x2 = h2[2] * math.exp(-k2[2] * dt)
-        a = (model.w_d * d0 * d0 + model.w_p * d1 * d1
+        a = (model.w_d * d0 * d0 + wp * d1 * d1
              + model.w_h * (x1 * r1 - x2 * r2) * (x1 / r1 - x2 / r2))
         e1 = max(v1 * math.exp(al1 * dt), model.v_min)
         e2 = max(v2 * math.exp(al2 * dt), model.v_min)

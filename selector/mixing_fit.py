@@ -8,10 +8,10 @@ search (the score surface is a step function, so a gradient method is of no use)
 * ``w_p``, ``w_h``: weights of (dP1 - dP2)^2 and of the donor/acceptor hydrogen-bond term
   (dD keeps weight 1).
 
-The Kamlet-Taft floor of the donor/acceptor split (:data:`selector.mixing.ACID_FLOOR`) and the
-entropy volume floor (:data:`selector.mixing.V_MIN`) are set from published pure-liquid values,
-not fitted: no number is fitted to water mixtures alone, so leaving water out of a fit still
-determines every fitted number. ``acid_floor`` and ``v_min`` may be passed to the functions
+The Kamlet-Taft floor of the donor/acceptor split (:data:`selector.mixing.ACID_FLOOR`), the
+entropy volume floor (:data:`selector.mixing.V_MIN`) and the induction factor of aromatic
+liquids (:data:`selector.mixing.AROMATIC_Q`) are set from published values, not fitted: no number is fitted to water mixtures alone, so leaving water out of a fit still
+determines every fitted number. ``acid_floor``, ``v_min`` and ``aromatic_q`` may be passed to the functions
 below to measure how much the results depend on them (the report's sensitivity table).
 
 Score of a grid point on the training pairs: fraction classified right (miscible or not at
@@ -101,22 +101,31 @@ def _ratios(f: PairFeatures, acid_floor: float):
     return m.split_ratio(f.s1), m.split_ratio(f.s2)
 
 
-def _a12(G, d2, hb):
+def _polar_factor(f: PairFeatures, aromatic_q: float):
+    """(q1 q2)^2 per pair, the induction factor of the polar term."""
+    from .mixing import MixingModel
+
+    m = MixingModel("induction", aromatic_q=aromatic_q)
+    return (m.induction(f.s1) * m.induction(f.s2)) ** 2
+
+
+def _a12(G, d2, hb, pf):
     """A12 per grid point (rows) and pair (columns) from squared dD, dP differences and the H term."""
-    return d2[None, ..., 0] + G[:, 0, None] * d2[None, ..., 1] + G[:, 1, None] * hb[None]
+    return d2[None, ..., 0] + G[:, 0, None] * pf * d2[None, ..., 1] + G[:, 1, None] * hb[None]
 
 
 def _hb(h1, h2, r1, r2):
     return (h1[..., 2] * r1 - h2[..., 2] * r2) * (h1[..., 2] / r1 - h2[..., 2] / r2)
 
 
-def _log_ratio(G, f: PairFeatures, acid_floor: float, v_min: float, t_c: float = 25.0):
+def _log_ratio(G, f: PairFeatures, acid_floor: float, v_min: float, aromatic_q: float = 1.0,
+               t_c: float = 25.0):
     """ln(chi / chi_c) for every grid point (rows) and pair (columns) at t_c."""
     from .mixing import hsp_at
 
     h1, h2 = (f.h1, f.h2) if t_c == 25.0 else (hsp_at(f.h1, f.al1, t_c), hsp_at(f.h2, f.al2, t_c))
     r1, r2 = _ratios(f, acid_floor)
-    a = _a12(G, (h1 - h2) ** 2, _hb(h1, h2, r1, r2))
+    a = _a12(G, (h1 - h2) ** 2, _hb(h1, h2, r1, r2), _polar_factor(f, aromatic_q))
     e1 = np.maximum(f.v1, v_min)[None, :]
     e2 = np.maximum(f.v2, v_min)[None, :]
     vr = np.minimum(e1, e2)
@@ -126,7 +135,8 @@ def _log_ratio(G, f: PairFeatures, acid_floor: float, v_min: float, t_c: float =
         return np.log(np.maximum(chi, 1e-12) / cc)
 
 
-def _ucst_grid(G, f: PairFeatures, cols, acid_floor: float, v_min: float) -> np.ndarray:
+def _ucst_grid(G, f: PairFeatures, cols, acid_floor: float, v_min: float,
+               aromatic_q: float = 1.0) -> np.ndarray:
     """Model UCST (C) per grid point for the pairs ``cols`` (vectorised bisection, -150..400 C)."""
     from .mixing import hsp_at, volume_at
 
@@ -135,12 +145,13 @@ def _ucst_grid(G, f: PairFeatures, cols, acid_floor: float, v_min: float) -> np.
     lo = np.full((len(G), len(cols)), -150.0)
     hi = np.full((len(G), len(cols)), 400.0)
     r1, r2 = (r[cols] for r in _ratios(f, acid_floor))
+    pf = _polar_factor(f, aromatic_q)[cols]
 
     def fval(t):
         h1 = hsp_at(f.h1[cols][None, :, :], f.al1[cols][None, :], t)
         h2 = hsp_at(f.h2[cols][None, :, :], f.al2[cols][None, :], t)
         d2 = (h1 - h2) ** 2
-        a = d2[..., 0] + G[:, 0, None] * d2[..., 1] + G[:, 1, None] * _hb(h1, h2, r1, r2)
+        a = d2[..., 0] + G[:, 0, None] * pf * d2[..., 1] + G[:, 1, None] * _hb(h1, h2, r1, r2)
         e1 = np.maximum(volume_at(f.v1[cols][None, :], f.al1[cols][None, :], t), v_min)
         e2 = np.maximum(volume_at(f.v2[cols][None, :], f.al2[cols][None, :], t), v_min)
         vr = np.minimum(e1, e2)
@@ -160,18 +171,19 @@ class GridScores:
     """Per-grid-point, per-pair pieces of the score, computed once and reused by every fold."""
 
     def __init__(self, f: PairFeatures, grid=None, acid_floor: float | None = None,
-                 v_min: float | None = None):
-        from .mixing import ACID_FLOOR, V_MIN
+                 v_min: float | None = None, aromatic_q: float | None = None):
+        from .mixing import ACID_FLOOR, AROMATIC_Q, V_MIN
 
         self.f = f
         self.acid_floor = ACID_FLOOR if acid_floor is None else float(acid_floor)
         self.v_min = V_MIN if v_min is None else float(v_min)
+        self.aromatic_q = AROMATIC_Q if aromatic_q is None else float(aromatic_q)
         self.G = _grid_array(grid)
-        lr = _log_ratio(self.G, f, self.acid_floor, self.v_min)
+        lr = _log_ratio(self.G, f, self.acid_floor, self.v_min, self.aromatic_q)
         self.right = (lr <= 0) == f.miscible[None, :]
         self.penalty = np.where(self.right, 0.0, np.abs(lr))
         self.ucst_cols = np.flatnonzero(np.isfinite(f.ucst))
-        u = _ucst_grid(self.G, f, self.ucst_cols, self.acid_floor, self.v_min)
+        u = _ucst_grid(self.G, f, self.ucst_cols, self.acid_floor, self.v_min, self.aromatic_q)
         self.ucst_err = np.minimum(np.abs(u - f.ucst[self.ucst_cols][None, :]) / 50.0, 1.0)
 
     def best(self, train: np.ndarray, allowed: np.ndarray | None = None) -> np.ndarray:
@@ -190,17 +202,19 @@ class GridScores:
 
 
 def fit(pairs: pd.DataFrame | None = None, library: pd.DataFrame | None = None, train=None,
-        acid_floor: float | None = None, v_min: float | None = None):
+        acid_floor: float | None = None, v_min: float | None = None,
+        aromatic_q: float | None = None):
     """Fit (w_p, w_h) on the reference pairs (all, or the ``train`` mask).
 
-    ``acid_floor``, ``v_min``: the set numbers (default :data:`selector.mixing.ACID_FLOOR`,
-    :data:`selector.mixing.V_MIN`). Returns a :class:`selector.mixing.MixingModel`.
+    ``acid_floor``, ``v_min``, ``aromatic_q``: the set numbers (default
+    :data:`selector.mixing.ACID_FLOOR`, :data:`selector.mixing.V_MIN`,
+    :data:`selector.mixing.AROMATIC_Q`). Returns a :class:`selector.mixing.MixingModel`.
     """
     from .mixing import MixingModel
 
     f = features(pairs, library)
-    gs = GridScores(f, acid_floor=acid_floor, v_min=v_min)
+    gs = GridScores(f, acid_floor=acid_floor, v_min=v_min, aromatic_q=aromatic_q)
     train = np.ones(len(f.pairs), bool) if train is None else np.asarray(train, bool)
     wp, wh = gs.best(train)
     return MixingModel("donor/acceptor Flory-Huggins", 1.0, float(wp), float(wh), gs.acid_floor,
-                       gs.v_min, "fitted on parameters/miscibility_pairs.csv")
+                       gs.v_min, "fitted on parameters/miscibility_pairs.csv", gs.aromatic_q)

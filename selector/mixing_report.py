@@ -73,7 +73,7 @@ def leave_one_liquid_out(f, gs: GridScores):
     for c in liquids:
         test = ((pairs["cas_a"] == c) | (pairs["cas_b"] == c)).to_numpy()
         wp, wh = gs.best(~test)
-        mdl = MixingModel("fold", 1.0, wp, wh, gs.acid_floor, gs.v_min)
+        mdl = MixingModel("fold", 1.0, wp, wh, gs.acid_floor, gs.v_min, aromatic_q=gs.aromatic_q)
         idx = np.flatnonzero(test)
         st = predict_states(mdl, f, idx)
         folds.append({"held_out": names[c], "pairs": int(test.sum()), "w_p": wp, "w_h": wh})
@@ -252,7 +252,8 @@ def build_report(with_unifac: bool = True) -> str:
                          f"pairs: {_pct(hb_same)}) | {_pct(a3)} ({n3u} pairs) |")
     lines += ["", f"Bundled numbers (`selector.mixing.HBOND`): fitted w_p = {HBOND.w_p:g}, w_h = {HBOND.w_h:g} "
               f"(a fit on all pairs now gives w_p = {fitted_all[0]:g}, w_h = {fitted_all[1]:g}); set, not fitted: "
-              f"Kamlet-Taft floor f = {HBOND.acid_floor:g}, entropy volume floor V_min = {HBOND.v_min:g} cm3/mol "
+              f"Kamlet-Taft floor f = {HBOND.acid_floor:g}, entropy volume floor V_min = {HBOND.v_min:g} cm3/mol, "
+              f"aromatic induction factor q = {HBOND.aromatic_q:g} "
               "(sources in `selector/mixing.py`).", ""]
     byfold = lolo.groupby("held_out")["right"].agg(["mean", "count", "sum"])
     byfold["wrong"] = byfold["count"] - byfold["sum"]
@@ -266,15 +267,17 @@ def build_report(with_unifac: bool = True) -> str:
     lines += ["Ablation, leave-one-liquid-out miscible-or-not accuracy with parts of the model switched off "
               "(w_p, w_h refitted per fold):", "", "| variant | in-sample (refitted on all pairs) | leave-one-liquid-out |",
               "|---|---|---|"]
-    for label, fl, vm in (("the model (donor/acceptor split, entropy floor)", None, None),
-                          ("without the donor/acceptor split (plain (dH1 - dH2)^2)", 0.0, None),
-                          ("without the entropy floor (V_min = 0)", None, 0.0),
-                          ("neither (w_p, w_h fitted on the plain form)", 0.0, 0.0)):
-        g2 = gs if fl is None and vm is None else GridScores(f, acid_floor=fl, v_min=vm)
+    for label, fl, vm, aq in (("the model (donor/acceptor split, entropy floor, aromatic induction)", None, None, None),
+                              ("without the donor/acceptor split (plain (dH1 - dH2)^2)", 0.0, None, None),
+                              ("without the entropy floor (V_min = 0)", None, 0.0, None),
+                              ("without the aromatic induction factor (q = 1)", None, None, 1.0),
+                              ("none of the three (w_p, w_h fitted on the plain form)", 0.0, 0.0, 1.0)):
+        g2 = gs if fl is None and vm is None and aq is None else GridScores(f, acid_floor=fl, v_min=vm,
+                                                                             aromatic_q=aq)
         ins = float(g2.right[int(np.flatnonzero((g2.G == g2.best(np.ones(n, bool))).all(1))[0])].mean())
         lines.append(f"| {label} | {_pct(ins)} | {_pct(lolo_binary(f, g2))} |")
     lines.append("")
-    lines += ["Sensitivity to the two set numbers (leave-one-liquid-out miscible-or-not, w_p and w_h refitted "
+    lines += ["Sensitivity to two of the set numbers (leave-one-liquid-out miscible-or-not, w_p and w_h refitted "
               "per fold; bold: the bundled values). These numbers are not fitted; the table shows how much the "
               "result depends on them:", ""]
     floors = (0.05, HBOND.acid_floor, 0.15, 0.2)

@@ -288,6 +288,16 @@ def test_split_sees_chloroform_acetone_hydrogen_bond(lib):
     assert hb("acetone", "diethyl ether") >= 0
 
 
+def test_methanol_mixes_with_aromatics_not_alkanes():
+    # Common practice (standard solvent miscibility tables): at 25 C methanol is miscible with
+    # benzene and toluene but not with hexane or cyclohexane (UCSTs about 43 and 45 C, Sorensen
+    # & Arlt 1979, from memory).
+    for other in ("benzene", "toluene"):
+        assert miscibility("methanol", other).state == "miscible"
+    for other in ("hexane", "cyclohexane"):
+        assert miscibility("methanol", other).state != "miscible"
+
+
 def test_entropy_floor_is_water_surface_from_unifac_q():
     # V_MIN is set, not fitted: the UNIQUAC/UNIFAC surface parameter of water (Q of subgroup
     # H2O, 1.40; Abrams & Prausnitz 1975; thermo.unifac.UFSG) times the median molar volume per
