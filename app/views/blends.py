@@ -48,6 +48,9 @@ with st.form("bl_form"):
     top = c3.number_input("Blends to show", 5, 100, 20, 5, key="bl_top")
     st.form_submit_button("Design blends", type="primary")
 
+if int(ncomp) == 3 and not filters:
+    st.info("Three-liquid designs over the whole library take several seconds; a boiling-point or "
+            "flash-point filter makes them much faster.")
 t = common.target()
 res = common.call(design, (t.delta_d, t.delta_p, t.delta_h, t.radius, t.name), int(ncomp), float(minf),
                   temp, int(top), freeze(filters))
