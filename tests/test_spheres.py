@@ -338,6 +338,18 @@ def test_degenerate_warnings():
     assert np.all(fit.hsp >= pts.min(0) - 1e-6) and np.all(fit.hsp <= pts.max(0) + 1e-6)
 
 
+def test_untested_edge_warning():
+    # Water-like solute (common practice: glycols, water and short alcohols dissolve it, the rest
+    # do not): nothing tested beyond water's dH bounds the sphere there, and the fit says so.
+    df = pd.DataFrame({"solvent": ["methanol", "ethanol", "water", "ethylene glycol", "1-propanol",
+                                   "hexane", "toluene", "acetone", "ethyl acetate", "chloroform",
+                                   "diethyl ether", "heptane"],
+                       "outcome": [1, 1, 1, 1, 0, 0, 0, 0, 0, 0, 0, 0]})
+    fit = fit_sphere(df, bootstrap=10)
+    assert any("outside the tested region" in w for w in fit.warnings)
+    assert fit.contains(LIB.loc[LIB.name == "water", HSP].to_numpy(float))[0]
+
+
 def test_graded_outcomes_need_threshold_and_scale():
     df = pd.DataFrame({"solvent": PS_GOOD[:4] + PS_BAD[:4], "score": [6, 5, 6, 4, 1, 1, 2, 3]})
     with pytest.raises(InputTableError, match="threshold"):
@@ -407,7 +419,9 @@ def _two_sphere_df(seed, n=80):
 def test_two_spheres_adopted_only_when_they_pay():
     df, c1, c2 = _two_sphere_df(8)
     fit = fit_sphere(df, bootstrap=10, two_spheres=True, seed=0)
-    assert len(fit.spheres) == 2
+    assert len(fit.spheres) == 2 and len(fit.all_intervals) == 2
+    for s, iv in zip(fit.spheres, fit.all_intervals):
+        assert all(iv[k][0] <= getattr(s, k) <= iv[k][1] + 1e-9 for k in PARAMS)
     assert fit.bic["two_spheres"] < fit.bic["one_sphere"]
     cents = np.array([s.hsp for s in fit.spheres])
     # each true centre has a fitted centre near it (Ra < 3 MPa^0.5)
