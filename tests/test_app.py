@@ -247,6 +247,13 @@ def test_sphere_fit_page_matches_fit_sphere(at):
     assert vals["dD (MPa½)"] == f"{ref.delta_d:.1f}"
     at.button(key="sp_use").click().run()
     assert at.session_state["lw_target"]["radius"] == pytest.approx(ref.radius)
+    # the fitted sphere is offered on the target page too, and the ranking uses it
+    go(at, "target")
+    at.button(key="tg_demo").click().run()
+    go(at, "target")
+    at.button(key="tg_use_fit").click().run()
+    go(at, "candidates")
+    assert top_names(at) == list(selector.rank(ref).head(5)["name"])
 
 
 @pytest.mark.skipif(not has("spheres"), reason="selector.spheres not installed")
