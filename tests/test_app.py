@@ -228,6 +228,13 @@ def test_mixing_heat_map_and_bad_temperature(at):
     # Common practice: water-hexane immiscible, water-acetone and hexane-acetone miscible.
     assert heat["text"][0][1] == "immiscible" and heat["text"][0][2] == "miscible"
     assert heat["text"][1][2] == "miscible"
+    at.button(key="mx_fill").click().run()
+    assert not at.exception and not errors(at)
+    from selector.cli_core import demo_scenario
+
+    r = demo_scenario()["resin"]
+    ref = selector.rank((r["delta_d"], r["delta_p"], r["delta_h"], r["radius"]))
+    assert at.multiselect(key="mx_set").value == list(ref["name"].head(10))
     at.number_input(key="mx_t2").set_value(150.0).run()  # acetone boils at 56 C
     assert not at.exception
     assert any("not liquid" in e or "boils" in e for e in errors(at))

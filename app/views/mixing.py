@@ -121,7 +121,16 @@ with tab1:
 with tab2:
     default = [n for n in ["water", "methanol", "ethanol", "acetone", "toluene", "hexane", "ethyl acetate",
                            "1-butanol"] if n in names]
-    liqs = st.multiselect("Liquids (2 to 25)", names, default=default, key="mx_set")
+    def _fill_top():
+        r = common.call(selector.rank, common.rank_target(), library=common.library())
+        if r is not None:
+            st.session_state["mx_set"] = list(r["name"].head(10))
+
+    st.button("Fill with the 10 best-ranked liquids for the current target", key="mx_fill", on_click=_fill_top,
+              help="do the candidates mix with each other? (useful before designing a blend)")
+    if "mx_set" not in st.session_state:
+        st.session_state["mx_set"] = default
+    liqs = st.multiselect("Liquids (2 to 25)", names, key="mx_set")
     t2 = st.number_input("Temperature (°C)", value=25.0, min_value=-100.0, max_value=300.0, step=5.0, key="mx_t2")
     if len(liqs) < 2:
         st.info("Choose at least two liquids.")
