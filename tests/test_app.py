@@ -318,7 +318,9 @@ def test_replace_page_matches_substitutes(at):
 
 # ---------------------------------------------------------------- my liquids
 
-GOOD_CSV = b"name,delta_d,delta_p,delta_h,molar_volume\nresin thinner X,17.1,3.2,5.5,120\n"
+GOOD_CSV = (b"name,kind,delta_d,delta_p,delta_h,molar_volume,radius\n"
+            b"resin thinner X,liquid,17.1,3.2,5.5,120,\n"
+            b"my resin,solute,18.5,7.0,6.0,,7.0\n")
 
 
 def test_my_liquids_import_save_and_rank(at, home):
@@ -329,11 +331,18 @@ def test_my_liquids_import_save_and_rank(at, home):
     at.button(key="mine_save").click().run()
     assert not errors(at)
     saved = pd.read_csv(home / "my_liquids.csv")
-    assert list(saved["name"]) == ["resin thinner X"]
-    # the saved liquid is now a candidate, ranked by the library with the merged table
+    assert list(saved["name"]) == ["resin thinner X", "my resin"]
+    # the solute becomes the target; the liquid is a candidate, the solute never is
+    at.selectbox(key="mine_sol").set_value("my resin")
+    at.button(key="mine_use").click().run()
+    assert at.session_state["lw_target"]["radius"] == 7.0
     go(at, "candidates")
-    ref = selector.rank(PS, library=selector.load_library(home / "my_liquids.csv"))
-    assert "resin thinner X" in set(ref["name"])
+    at.slider(key="rank_n").set_value(100).run()
+    liquids = saved.loc[saved["kind"] == "liquid"]
+    ref = selector.rank((18.5, 7.0, 6.0, 7.0), library=selector.load_library(liquids))
+    shown = at.dataframe[0].value
+    assert list(shown["name"]) == list(ref["name"].head(100))
+    assert "resin thinner X" in set(ref["name"]) and "my resin" not in set(ref["name"])
 
 
 def test_my_liquids_bad_upload_keeps_the_file(at, home):

@@ -62,9 +62,25 @@ def _user_file() -> Path:
     return user_liquids_file()
 
 
+def user_solute_mask(table: pd.DataFrame) -> np.ndarray:
+    """Rows of a user table that are solutes (``kind`` = solute, or an R0 without a ``kind``):
+    they can be targets but are never candidate liquids."""
+    if "kind" in table.columns:
+        return table["kind"].astype(str).str.strip().str.lower().eq("solute").to_numpy()
+    if "radius" in table.columns:
+        return (pd.to_numeric(table["radius"], errors="coerce") > 0).to_numpy()
+    return np.zeros(len(table), dtype=bool)
+
+
 @st.cache_resource(show_spinner=False)
 def _library_cached(path: str | None, mtime: float):
-    return selector.load_library(path) if path else selector.load_library()
+    if not path:
+        return selector.load_library()
+    from selector.library import validate_user_table
+
+    user = validate_user_table(path)
+    liquids = user.loc[~user_solute_mask(user)]
+    return selector.load_library(liquids) if len(liquids) else selector.load_library()
 
 
 def library() -> pd.DataFrame:

@@ -13,8 +13,9 @@ st.caption(f"Saved in `{path}` (set LIKEWISE_HOME to use another folder). Entrie
            "Required: name, dD, dP, dH (MPa½). Optional: molar volume (cm³/mol), CAS, SMILES, boiling "
            "and flash point (°C), R0 for a solute.")
 
-COLUMNS = ["name", "cas", "smiles", "delta_d", "delta_p", "delta_h", "molar_volume", "boiling_point_c",
+COLUMNS = ["name", "kind", "cas", "smiles", "delta_d", "delta_p", "delta_h", "molar_volume", "boiling_point_c",
            "flash_point_c", "radius", "note"]
+TEXT = ("name", "kind", "cas", "smiles", "note")
 KEY = "mine_table"
 
 
@@ -25,7 +26,7 @@ def _saved() -> pd.DataFrame:
         except (ValueError, KeyError) as e:
             common.show_error(f"The saved file could not be read (it is left untouched): {e}")
             return pd.read_csv(path, dtype=str, keep_default_na=False)
-    return pd.DataFrame({c: pd.Series(dtype=object if c in ("name", "cas", "smiles", "note") else float)
+    return pd.DataFrame({c: pd.Series(dtype=object if c in TEXT else float)
                          for c in COLUMNS})
 
 
@@ -38,10 +39,13 @@ st.caption("Add a row with the + at the bottom of the table; select rows and pre
 table = st.session_state[KEY]
 for c in COLUMNS:
     if c not in table.columns:
-        table[c] = pd.Series(dtype=object if c in ("name", "cas", "smiles", "note") else float)
+        table[c] = pd.Series(dtype=object if c in TEXT else float)
 
 edited = st.data_editor(table, num_rows="dynamic", width="stretch", key="mine_editor",
-                        column_config={"delta_d": st.column_config.NumberColumn("dD (MPa½)"),
+                        column_config={"kind": st.column_config.SelectboxColumn(
+                                           "kind", options=["liquid", "solute"], default="liquid",
+                                           help="solutes (with R0) can be targets but are never proposed as liquids"),
+                                       "delta_d": st.column_config.NumberColumn("dD (MPa½)"),
                                        "delta_p": st.column_config.NumberColumn("dP (MPa½)"),
                                        "delta_h": st.column_config.NumberColumn("dH (MPa½)"),
                                        "molar_volume": st.column_config.NumberColumn("V (cm³/mol)"),
@@ -49,6 +53,7 @@ edited = st.data_editor(table, num_rows="dynamic", width="stretch", key="mine_ed
                                        "flash_point_c": st.column_config.NumberColumn("Flash point (°C)"),
                                        "radius": st.column_config.NumberColumn("R0 (MPa½)")})
 rows = edited.dropna(how="all")
+rows = rows.astype({c: object for c in TEXT if c in rows.columns})
 c1, c2, c3 = st.columns(3)
 if c1.button("Save my liquids", type="primary", key="mine_save"):
     if len(rows) == 0:
@@ -86,11 +91,11 @@ if up is not None:
             st.info("Added to the table - press *Save my liquids* to keep them.")
             st.rerun()
 
-solutes = rows.loc[pd.to_numeric(rows.get("radius", pd.Series(dtype=float)), errors="coerce") > 0] \
+solutes = rows.loc[common.user_solute_mask(rows) & (pd.to_numeric(rows["radius"], errors="coerce") > 0).to_numpy()] \
     if "radius" in rows else rows.iloc[:0]
 if len(solutes):
     st.subheader("Use a solute of yours as the target")
-    pick = st.selectbox("Solute (rows with R0)", list(solutes["name"].astype(str)), key="mine_sol")
+    pick = st.selectbox("Solute (kind = solute, with R0)", list(solutes["name"].astype(str)), key="mine_sol")
     if st.button("Use as target", key="mine_use"):
         r = solutes.loc[solutes["name"].astype(str) == pick].iloc[0]
         try:
