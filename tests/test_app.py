@@ -330,7 +330,7 @@ def test_my_liquids_import_save_and_rank(at, home):
     at.button(key="mine_add").click().run()
     at.button(key="mine_save").click().run()
     assert not errors(at)
-    saved = pd.read_csv(home / "my_liquids.csv")
+    saved = pd.read_csv(home / "my_liquids.csv", dtype={"cas": str})
     assert list(saved["name"]) == ["resin thinner X", "my resin"]
     # the solute becomes the target; the liquid is a candidate, the solute never is
     at.selectbox(key="mine_sol").set_value("my resin")
