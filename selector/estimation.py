@@ -204,7 +204,12 @@ class HSPEstimator:
 
     @staticmethod
     def _tree_stats(model, X):
-        per_tree = np.stack([t.predict(X) for t in model.estimators_])
+        X32 = np.ascontiguousarray(X, dtype=np.float32)  # the dtype the fitted trees work in
+        # tree_.predict skips sklearn's per-call input validation (X is validated once here)
+        try:
+            per_tree = np.stack([t.tree_.predict(X32)[:, 0] for t in model.estimators_])
+        except (AttributeError, TypeError, ValueError, IndexError):  # other scikit-learn internals
+            per_tree = np.stack([t.predict(X) for t in model.estimators_])
         return per_tree.mean(axis=0), per_tree.std(axis=0)
 
     def _fit_models(self, X, Y):
@@ -509,10 +514,14 @@ class _Bundle:
             _progress("likewise: estimator ready.")
 
 
-@functools.lru_cache(maxsize=1)
+_BUNDLE: list = []
+
+
 def default_bundle(verbose=True) -> _Bundle:
     """The default estimator, trained once per process (see module docstring)."""
-    return _Bundle(verbose=verbose)
+    if not _BUNDLE:
+        _BUNDLE.append(_Bundle(verbose=verbose))
+    return _BUNDLE[0]
 
 
 # --------------------------------------------------------------------------- library match
