@@ -15,7 +15,7 @@ Interaction energy density A12 (J/cm^3 = MPa) and chi = V_r A12 / (R T):
 * this project's donor/acceptor-aware form (:data:`HBOND`, the default)::
 
       A12 = (dD1 - dD2)^2 + w_p (q1 q2)^2 (dP1 - dP2)^2 + w_h (dH1 r1 - dH2 r2)(dH1 / r1 - dH2 / r2)
-      r_i = sqrt((alpha_i + f) / (beta_i + f))          V_i* = max(V_i, V_min)
+      r_i = sqrt((alpha_i + f) / (beta_i + f))          V_i* = max(V_i (1 + c m_i), V_min)
 
   Each liquid's hydrogen-bond parameter is split into a donor part dH r and an acceptor part
   dH / r (their product is dH^2, the hydrogen-bond cohesive energy density), in the ratio of its
@@ -35,7 +35,10 @@ Interaction energy density A12 (J/cm^3 = MPa) and chi = V_r A12 / (R T):
   0.9 for aromatic liquids, else 1) is MOSCED's induction factor: a polar molecule induces a
   dipole in a polarisable aromatic ring, which softens the polar mismatch (methanol mixes with
   benzene and toluene but not with hexane). All three are set from published values, not
-  fitted; w_p and w_h are the only fitted numbers
+  fitted. m_i is the number of alcohol O-H groups beyond the first (glycols 1, glycerol 2):
+  polyols form a three-dimensional hydrogen-bond network and enter the combinatorial entropy
+  as clusters (c = :attr:`MixingModel.polyol_c`, fitted between 0 and 1). w_p, w_h and c are
+  the only fitted numbers
   (:mod:`selector.mixing_fit`, on ``parameters/miscibility_pairs.csv``; accuracy in
   ``parameters/miscibility_accuracy.md``).
 
@@ -90,7 +93,9 @@ class MixingModel:
     acceptor parts (0 = no split: the geometric-mean term (dH1 - dH2)^2 of the plain form);
     ``v_min``: smallest molar volume (cm^3/mol) used in the combinatorial entropy (0 = the
     liquid's own molar volume; see the module docstring); ``aromatic_q``: induction factor q of
-    aromatic liquids, the polar term is weighted by (q1 q2)^2 (1 = no induction correction).
+    aromatic liquids, the polar term is weighted by (q1 q2)^2 (1 = no induction correction);
+    ``polyol_c``: a liquid with n > 1 alcohol O-H groups per molecule (glycols, glycerol) enters
+    the combinatorial entropy with the volume V (1 + c (n - 1)) (0 = no such correction).
     """
 
     name: str
@@ -101,6 +106,7 @@ class MixingModel:
     v_min: float = 0.0
     source: str = ""
     aromatic_q: float = 1.0
+    polyol_c: float = 0.0
 
     def split_ratio(self, sites):
         """sqrt((alpha + f) / (beta + f)) per liquid from (..., 2) (alpha, beta) arrays; 1 if no split."""
@@ -139,9 +145,18 @@ class MixingModel:
             hb = d[..., 2] ** 2
         return a + self.w_h * hb
 
-    def entropy_volume(self, v):
-        """Molar volume used for the combinatorial entropy, max(V, v_min), cm^3/mol."""
-        return np.maximum(np.asarray(v, float), self.v_min)
+    def entropy_volume(self, v, sites=None):
+        """Volume used for the combinatorial entropy, max(V (1 + c (n - 1)), v_min), cm^3/mol.
+
+        ``sites``: (..., 4) arrays from :func:`site_strengths` (fourth column: n - 1, the alcohol
+        O-H groups beyond the first); without them the factor is 1.
+        """
+        v = np.asarray(v, float)
+        if self.polyol_c and sites is not None:
+            s = np.asarray(sites, float)
+            if s.shape[-1] >= 4:
+                v = v * (1.0 + self.polyol_c * np.nan_to_num(s[..., 3], nan=0.0))
+        return np.maximum(v, self.v_min)
 
 
 #: Kamlet-Taft acidity floor of the donor/acceptor split: the alpha of the weakly C-H-acidic
@@ -166,11 +181,12 @@ AROMATIC_Q = 0.9
 PLAIN = MixingModel("plain Hansen Flory-Huggins", 1.0, 0.25, 0.25, 0.0, 0.0,
                     "C. M. Hansen, Hansen Solubility Parameters, 2nd ed., 2007")
 
-#: Donor/acceptor-aware form; only w_p and w_h are fitted, on parameters/miscibility_pairs.csv
-#: by :func:`selector.mixing_fit.fit` (all pairs); :data:`ACID_FLOOR` and :data:`V_MIN` are set.
+#: Donor/acceptor-aware form; only w_p, w_h and polyol_c are fitted, on
+#: parameters/miscibility_pairs.csv by :func:`selector.mixing_fit.fit` (all pairs);
+#: :data:`ACID_FLOOR`, :data:`V_MIN` and :data:`AROMATIC_Q` are set.
 HBOND = MixingModel("donor/acceptor Flory-Huggins", 1.0, 0.2, 0.0975, ACID_FLOOR, V_MIN,
-                    "this project, w_p and w_h fitted on parameters/miscibility_pairs.csv",
-                    AROMATIC_Q)
+                    "this project, w_p, w_h and polyol_c fitted on parameters/miscibility_pairs.csv",
+                    AROMATIC_Q, 1.0)
 
 DEFAULT_MODEL = HBOND
 
@@ -296,6 +312,32 @@ def site_densities(smiles, molar_volume) -> np.ndarray:
 
 
 @functools.lru_cache(maxsize=4096)
+def extra_alcohol_groups(smiles: str) -> int:
+    """Alcohol O-H groups (O-H on an sp3 carbon) beyond the first; 0 for bad SMILES.
+
+    >>> extra_alcohol_groups("OCCO"), extra_alcohol_groups("OCC(O)CO"), extra_alcohol_groups("CCO")
+    (1, 2, 0)
+    """
+    if not smiles:
+        return 0
+    from rdkit import Chem, RDLogger
+
+    RDLogger.DisableLog("rdApp.*")
+    mol = Chem.MolFromSmiles(smiles)
+    if mol is None:
+        return 0
+    n = len(mol.GetSubstructMatches(_alcohol_pattern()))
+    return max(n - 1, 0)
+
+
+@functools.lru_cache(maxsize=1)
+def _alcohol_pattern():
+    from rdkit import Chem
+
+    return Chem.MolFromSmarts("[OX2H1][CX4]")
+
+
+@functools.lru_cache(maxsize=4096)
 def is_aromatic(smiles: str) -> bool:
     """True when the molecule has an aromatic ring (RDKit aromaticity); False for bad SMILES.
 
@@ -312,19 +354,20 @@ def is_aromatic(smiles: str) -> bool:
 
 
 def site_strengths(smiles) -> np.ndarray:
-    """(n, 3): summed Kamlet-Taft donor and acceptor strengths (alpha, beta) and aromatic (0/1).
+    """(n, 4): Kamlet-Taft alpha and beta summed over the sites, aromatic (0/1), extra O-H groups.
 
-    From :func:`site_counts` and :func:`is_aromatic`; liquids without a usable SMILES get
-    (0, 0, 0), which makes the donor/acceptor split and the induction factor neutral (the plain
-    geometric-mean dH term).
+    From :func:`site_counts`, :func:`is_aromatic` and :func:`extra_alcohol_groups`; liquids
+    without a usable SMILES get (0, 0, 0, 0), which makes the donor/acceptor split, the
+    induction factor and the polyol entropy neutral (the plain form).
 
-    >>> site_strengths(["O", "CC(C)=O", "c1ccccc1", None]).tolist()
-    [[1.16, 0.47, 0.0], [0.0, 0.48, 0.0], [0.0, 0.0, 1.0], [0.0, 0.0, 0.0]]
+    >>> site_strengths(["O", "CC(C)=O", "c1ccccc1", "OCCO", None]).tolist()
+    [[1.16, 0.47, 0.0, 0.0], [0.0, 0.48, 0.0, 0.0], [0.0, 0.0, 1.0, 0.0], [1.6, 1.4, 0.0, 1.0], [0.0, 0.0, 0.0, 0.0]]
     """
     smi = [("" if s is None or (isinstance(s, float) and math.isnan(s)) else str(s)) for s in smiles]
     counts = np.array([site_counts(s) for s in smi], dtype=float).reshape(-1, 2)
     arom = np.array([float(is_aromatic(s)) for s in smi]).reshape(-1, 1)
-    return np.hstack([np.nan_to_num(counts, nan=0.0), arom])
+    extra = np.array([float(extra_alcohol_groups(s)) for s in smi]).reshape(-1, 1)
+    return np.hstack([np.nan_to_num(counts, nan=0.0), arom, extra])
 
 
 # ---------------------------------------------------------------- Flory-Huggins core
@@ -723,7 +766,7 @@ def _compute(h1, h2, s1, s2, v1, v2, t_c, model, al1=np.nan, al2=np.nan):
         h1, h2 = hsp_at(h1, al1, t_c), hsp_at(h2, al2, t_c)
         v1, v2 = volume_at(v1, al1, t_c), volume_at(v2, al2, t_c)
     a12 = model.interaction(h1, h2, s1, s2)
-    e1, e2 = model.entropy_volume(v1), model.entropy_volume(v2)
+    e1, e2 = model.entropy_volume(v1, s1), model.entropy_volume(v2, s2)
     vr = np.minimum(e1, e2)
     n1, n2 = e1 / vr, e2 / vr
     T = t_c + 273.15
@@ -731,6 +774,13 @@ def _compute(h1, h2, s1, s2, v1, v2, t_c, model, al1=np.nan, al2=np.nan):
     cc = critical_chi(n1, n2)
     pa, pb = binodal(chi, n1, n2)
     return a12, vr, n1, n2, chi, cc, pa, pb
+
+
+def _polyol_factor(model, sites) -> float:
+    s = np.asarray(sites, float)
+    if not model.polyol_c or s.shape[-1] < 4:
+        return 1.0
+    return 1.0 + model.polyol_c * float(np.nan_to_num(s[..., 3], nan=0.0))
 
 
 def _ucst_scalar(h1, h2, s1, s2, v1, v2, model, al1, al2, lo=-150.0, hi=400.0) -> float:
@@ -742,6 +792,7 @@ def _ucst_scalar(h1, h2, s1, s2, v1, v2, model, al1, al2, lo=-150.0, hi=400.0) -
     r1 = float(model.split_ratio(np.asarray(s1, float)))
     r2 = float(model.split_ratio(np.asarray(s2, float)))
     wp = model.w_p * float(model.induction(np.asarray(s1, float)) * model.induction(np.asarray(s2, float))) ** 2
+    g1, g2 = _polyol_factor(model, s1), _polyol_factor(model, s2)
     h1 = [float(x) for x in h1]
     h2 = [float(x) for x in h2]
 
@@ -753,8 +804,8 @@ def _ucst_scalar(h1, h2, s1, s2, v1, v2, model, al1, al2, lo=-150.0, hi=400.0) -
         x2 = h2[2] * math.exp(-k2[2] * dt)
         a = (model.w_d * d0 * d0 + wp * d1 * d1
              + model.w_h * (x1 * r1 - x2 * r2) * (x1 / r1 - x2 / r2))
-        e1 = max(v1 * math.exp(al1 * dt), model.v_min)
-        e2 = max(v2 * math.exp(al2 * dt), model.v_min)
+        e1 = max(v1 * math.exp(al1 * dt) * g1, model.v_min)
+        e2 = max(v2 * math.exp(al2 * dt) * g2, model.v_min)
         vr = min(e1, e2)
         cc = 0.5 * ((e1 / vr) ** -0.5 + (e2 / vr) ** -0.5) ** 2
         return vr * a / (R_GAS * (t + 273.15)) - cc
@@ -785,8 +836,8 @@ def ucst(h1, h2, s1, s2, v1, v2, model, al1=np.nan, al2=np.nan, lo=-150.0, hi=40
 
     def f(t):
         a = model.interaction(hsp_at(h1, al1, t), hsp_at(h2, al2, t), s1, s2)
-        e1 = model.entropy_volume(volume_at(v1, al1, t))
-        e2 = model.entropy_volume(volume_at(v2, al2, t))
+        e1 = model.entropy_volume(volume_at(v1, al1, t), s1)
+        e2 = model.entropy_volume(volume_at(v2, al2, t), s2)
         vr = np.minimum(e1, e2)
         return vr * a / (R_GAS * (t + 273.15)) - critical_chi(e1 / vr, e2 / vr)
 
@@ -853,7 +904,7 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     else:
         v1t, v2t = v1, v2
     a12 = float(mdl.interaction(h1, h2, s[0], s[1]))
-    e1, e2 = max(v1t, mdl.v_min), max(v2t, mdl.v_min)
+    e1, e2 = float(mdl.entropy_volume(v1t, s[0])), float(mdl.entropy_volume(v2t, s[1]))
     vr = min(e1, e2)
     n1, n2 = e1 / vr, e2 / vr
     chi = vr * a12 / (R_GAS * (t + 273.15))
@@ -1000,7 +1051,7 @@ def miscible_pairs(liquids: pd.DataFrame, temperature: float = 25.0, model=None)
     if t != 25.0:
         h, v = hsp_at(h, al, t), volume_at(v, al, t)
     a12 = mdl.interaction(h[:, None, :], h[None, :, :], s[:, None, :], s[None, :, :])
-    e = mdl.entropy_volume(v)
+    e = mdl.entropy_volume(v, s)
     vr = np.minimum(e[:, None], e[None, :])
     chi = vr * a12 / (R_GAS * (t + 273.15))
     cc = critical_chi(e[:, None] / vr, e[None, :] / vr)

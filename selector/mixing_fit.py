@@ -2,11 +2,15 @@
 
 The reference data are ``parameters/miscibility_pairs.csv`` (see ``miscibility_pairs.md``):
 liquid pairs with their behaviour at 25 C (miscible in all proportions or not) and, for a few,
-a published upper critical solution temperature. Two numbers are fitted by an exhaustive grid
+a published upper critical solution temperature. Three numbers are fitted by an exhaustive grid
 search (the score surface is a step function, so a gradient method is of no use):
 
 * ``w_p``, ``w_h``: weights of (dP1 - dP2)^2 and of the donor/acceptor hydrogen-bond term
-  (dD keeps weight 1).
+  (dD keeps weight 1);
+* ``polyol_c``: the entropy volume of a liquid with n > 1 alcohol O-H groups is V (1 + c (n - 1))
+  (glycols and glycerol form a three-dimensional hydrogen-bond network and mix as clusters
+  rather than as single molecules; c is searched between 0 and 1, at most one more molecule
+  per extra O-H group).
 
 The Kamlet-Taft floor of the donor/acceptor split (:data:`selector.mixing.ACID_FLOOR`), the
 entropy volume floor (:data:`selector.mixing.V_MIN`) and the induction factor of aromatic
@@ -39,6 +43,8 @@ UCST_HELD_OUT = {frozenset(("67-56-1", "110-54-3"))}   # methanol-hexane
 GRID = {
     "w_p": np.round(np.arange(0.10, 0.3001, 0.0125), 4),
     "w_h": np.round(np.arange(0.04, 0.2001, 0.0025), 4),
+    # c <= 1: each O-H group beyond the first ties at most one more molecule into the cluster
+    "polyol_c": np.array([0.0, 0.25, 0.5, 0.75, 1.0]),
 }
 
 
@@ -91,7 +97,7 @@ def features(pairs: pd.DataFrame | None = None, library: pd.DataFrame | None = N
 
 def _grid_array(grid=None) -> np.ndarray:
     g = GRID if grid is None else grid
-    return np.array(list(itertools.product(g["w_p"], g["w_h"])), float)
+    return np.array(list(itertools.product(g["w_p"], g["w_h"], g["polyol_c"])), float)
 
 
 def _ratios(f: PairFeatures, acid_floor: float):
@@ -126,8 +132,8 @@ def _log_ratio(G, f: PairFeatures, acid_floor: float, v_min: float, aromatic_q: 
     h1, h2 = (f.h1, f.h2) if t_c == 25.0 else (hsp_at(f.h1, f.al1, t_c), hsp_at(f.h2, f.al2, t_c))
     r1, r2 = _ratios(f, acid_floor)
     a = _a12(G, (h1 - h2) ** 2, _hb(h1, h2, r1, r2), _polar_factor(f, aromatic_q))
-    e1 = np.maximum(f.v1, v_min)[None, :]
-    e2 = np.maximum(f.v2, v_min)[None, :]
+    e1 = np.maximum(f.v1[None, :] * (1.0 + G[:, 2, None] * f.s1[None, :, 3]), v_min)
+    e2 = np.maximum(f.v2[None, :] * (1.0 + G[:, 2, None] * f.s2[None, :, 3]), v_min)
     vr = np.minimum(e1, e2)
     cc = 0.5 * ((e1 / vr) ** -0.5 + (e2 / vr) ** -0.5) ** 2
     chi = vr * a / (R_GAS * (t_c + 273.15))
@@ -152,8 +158,10 @@ def _ucst_grid(G, f: PairFeatures, cols, acid_floor: float, v_min: float,
         h2 = hsp_at(f.h2[cols][None, :, :], f.al2[cols][None, :], t)
         d2 = (h1 - h2) ** 2
         a = d2[..., 0] + G[:, 0, None] * pf * d2[..., 1] + G[:, 1, None] * _hb(h1, h2, r1, r2)
-        e1 = np.maximum(volume_at(f.v1[cols][None, :], f.al1[cols][None, :], t), v_min)
-        e2 = np.maximum(volume_at(f.v2[cols][None, :], f.al2[cols][None, :], t), v_min)
+        g1 = 1.0 + G[:, 2, None] * f.s1[cols][None, :, 3]
+        g2 = 1.0 + G[:, 2, None] * f.s2[cols][None, :, 3]
+        e1 = np.maximum(volume_at(f.v1[cols][None, :], f.al1[cols][None, :], t) * g1, v_min)
+        e2 = np.maximum(volume_at(f.v2[cols][None, :], f.al2[cols][None, :], t) * g2, v_min)
         vr = np.minimum(e1, e2)
         cc = 0.5 * ((e1 / vr) ** -0.5 + (e2 / vr) ** -0.5) ** 2
         return vr * a / (R_GAS * (t + 273.15)) - cc
@@ -187,7 +195,7 @@ class GridScores:
         self.ucst_err = np.minimum(np.abs(u - f.ucst[self.ucst_cols][None, :]) / 50.0, 1.0)
 
     def best(self, train: np.ndarray, allowed: np.ndarray | None = None) -> np.ndarray:
-        """Grid point (w_p, w_h) with the best score on the ``train`` pairs.
+        """Grid point (w_p, w_h, polyol_c) with the best score on the ``train`` pairs.
 
         ``allowed``: optional boolean mask over grid points.
         """
@@ -204,7 +212,7 @@ class GridScores:
 def fit(pairs: pd.DataFrame | None = None, library: pd.DataFrame | None = None, train=None,
         acid_floor: float | None = None, v_min: float | None = None,
         aromatic_q: float | None = None):
-    """Fit (w_p, w_h) on the reference pairs (all, or the ``train`` mask).
+    """Fit (w_p, w_h, polyol_c) on the reference pairs (all, or the ``train`` mask).
 
     ``acid_floor``, ``v_min``, ``aromatic_q``: the set numbers (default
     :data:`selector.mixing.ACID_FLOOR`, :data:`selector.mixing.V_MIN`,
@@ -215,6 +223,7 @@ def fit(pairs: pd.DataFrame | None = None, library: pd.DataFrame | None = None, 
     f = features(pairs, library)
     gs = GridScores(f, acid_floor=acid_floor, v_min=v_min, aromatic_q=aromatic_q)
     train = np.ones(len(f.pairs), bool) if train is None else np.asarray(train, bool)
-    wp, wh = gs.best(train)
+    wp, wh, pc = gs.best(train)
     return MixingModel("donor/acceptor Flory-Huggins", 1.0, float(wp), float(wh), gs.acid_floor,
-                       gs.v_min, "fitted on parameters/miscibility_pairs.csv", gs.aromatic_q)
+                       gs.v_min, "fitted on parameters/miscibility_pairs.csv", gs.aromatic_q,
+                       float(pc))

@@ -72,11 +72,13 @@ def leave_one_liquid_out(f, gs: GridScores):
     rows, folds = [], []
     for c in liquids:
         test = ((pairs["cas_a"] == c) | (pairs["cas_b"] == c)).to_numpy()
-        wp, wh = gs.best(~test)
-        mdl = MixingModel("fold", 1.0, wp, wh, gs.acid_floor, gs.v_min, aromatic_q=gs.aromatic_q)
+        wp, wh, pc = gs.best(~test)
+        mdl = MixingModel("fold", 1.0, wp, wh, gs.acid_floor, gs.v_min, aromatic_q=gs.aromatic_q,
+                          polyol_c=pc)
         idx = np.flatnonzero(test)
         st = predict_states(mdl, f, idx)
-        folds.append({"held_out": names[c], "pairs": int(test.sum()), "w_p": wp, "w_h": wh})
+        folds.append({"held_out": names[c], "pairs": int(test.sum()), "w_p": wp, "w_h": wh,
+                      "polyol_c": pc})
         for i, s_ in zip(idx, st):
             rows.append({"pair": i, "held_out": names[c], "state": s_,
                          "right": (s_ == "miscible") == bool(f.miscible[i])})
@@ -250,8 +252,9 @@ def build_report(with_unifac: bool = True) -> str:
             hb_same = _acc(st_h[sub["pair"]], f.miscible[sub["pair"]])
             lines.append(f"| {label} | {int(cov.sum())} of {n} | {_pct(acc)} (bundled donor/acceptor model on the same "
                          f"pairs: {_pct(hb_same)}) | {_pct(a3)} ({n3u} pairs) |")
-    lines += ["", f"Bundled numbers (`selector.mixing.HBOND`): fitted w_p = {HBOND.w_p:g}, w_h = {HBOND.w_h:g} "
-              f"(a fit on all pairs now gives w_p = {fitted_all[0]:g}, w_h = {fitted_all[1]:g}); set, not fitted: "
+    lines += ["", f"Bundled numbers (`selector.mixing.HBOND`): fitted w_p = {HBOND.w_p:g}, w_h = {HBOND.w_h:g}, "
+              f"polyol_c = {HBOND.polyol_c:g} (a fit on all pairs now gives w_p = {fitted_all[0]:g}, "
+              f"w_h = {fitted_all[1]:g}, polyol_c = {fitted_all[2]:g}); set, not fitted: "
               f"Kamlet-Taft floor f = {HBOND.acid_floor:g}, entropy volume floor V_min = {HBOND.v_min:g} cm3/mol, "
               f"aromatic induction factor q = {HBOND.aromatic_q:g} "
               "(sources in `selector/mixing.py`).", ""]
@@ -265,20 +268,23 @@ def build_report(with_unifac: bool = True) -> str:
               "Folds with most misses: " + ", ".join(f"{k} {int(r.wrong)} of {int(r['count'])}"
                                                      for k, r in worst.iterrows()) + ".", ""]
     lines += ["Ablation, leave-one-liquid-out miscible-or-not accuracy with parts of the model switched off "
-              "(w_p, w_h refitted per fold):", "", "| variant | in-sample (refitted on all pairs) | leave-one-liquid-out |",
+              "(the fitted numbers refitted per fold):", "", "| variant | in-sample (refitted on all pairs) | leave-one-liquid-out |",
               "|---|---|---|"]
-    for label, fl, vm, aq in (("the model (donor/acceptor split, entropy floor, aromatic induction)", None, None, None),
+    for label, fl, vm, aq in (("the model (donor/acceptor split, entropy floor, aromatic induction, polyol entropy)", None, None, None),
                               ("without the donor/acceptor split (plain (dH1 - dH2)^2)", 0.0, None, None),
                               ("without the entropy floor (V_min = 0)", None, 0.0, None),
                               ("without the aromatic induction factor (q = 1)", None, None, 1.0),
-                              ("none of the three (w_p, w_h fitted on the plain form)", 0.0, 0.0, 1.0)):
+                              ("without the polyol entropy (polyol_c = 0)", None, None, None),
+                              ("none of these (w_p, w_h fitted on the plain form)", 0.0, 0.0, 1.0)):
         g2 = gs if fl is None and vm is None and aq is None else GridScores(f, acid_floor=fl, v_min=vm,
                                                                              aromatic_q=aq)
-        ins = float(g2.right[int(np.flatnonzero((g2.G == g2.best(np.ones(n, bool))).all(1))[0])].mean())
-        lines.append(f"| {label} | {_pct(ins)} | {_pct(lolo_binary(f, g2))} |")
+        no_polyol = label.startswith("without the polyol") or label.startswith("none")
+        mask = (g2.G[:, 2] == 0) if no_polyol else None
+        ins = float(g2.right[int(np.flatnonzero((g2.G == g2.best(np.ones(n, bool), mask)).all(1))[0])].mean())
+        lines.append(f"| {label} | {_pct(ins)} | {_pct(lolo_binary(f, g2, mask))} |")
     lines.append("")
-    lines += ["Sensitivity to two of the set numbers (leave-one-liquid-out miscible-or-not, w_p and w_h refitted "
-              "per fold; bold: the bundled values). These numbers are not fitted; the table shows how much the "
+    lines += ["Sensitivity to two of the set numbers (leave-one-liquid-out miscible-or-not, the fitted numbers "
+              "refitted per fold; bold: the bundled values). These numbers are not fitted; the table shows how much the "
               "result depends on them:", ""]
     floors = (0.05, HBOND.acid_floor, 0.15, 0.2)
     vmins = (30.0, 40.0, HBOND.v_min, 50.0)
@@ -294,7 +300,7 @@ def build_report(with_unifac: bool = True) -> str:
     lines.append("")
     lines += ["Fold-to-fold spread of the refitted numbers (leave-one-liquid-out): "
               + ", ".join(f"{c} {folds[c].min():g}..{folds[c].max():g} (median {folds[c].median():g})"
-                          for c in ("w_p", "w_h")) + ".", ""]
+                          for c in ("w_p", "w_h", "polyol_c")) + ".", ""]
 
     # confidence calibration
     from .mixing import miscibility

@@ -298,6 +298,16 @@ def test_methanol_mixes_with_aromatics_not_alkanes():
         assert miscibility("methanol", other).state != "miscible"
 
 
+def test_ethylene_glycol_mixes_with_polar_liquids_only():
+    # Common practice (standard miscibility tables) and the Merck Index (from memory):
+    # ethylene glycol is miscible with water, methanol, ethanol and acetone, not with hexane,
+    # toluene or diethyl ether.
+    for other in ("water", "methanol", "ethanol", "acetone"):
+        assert miscibility("ethylene glycol", other).state == "miscible"
+    for other in ("hexane", "toluene", "diethyl ether"):
+        assert miscibility("ethylene glycol", other).state != "miscible"
+
+
 def test_entropy_floor_is_water_surface_from_unifac_q():
     # V_MIN is set, not fitted: the UNIQUAC/UNIFAC surface parameter of water (Q of subgroup
     # H2O, 1.40; Abrams & Prausnitz 1975; thermo.unifac.UFSG) times the median molar volume per

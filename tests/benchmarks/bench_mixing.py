@@ -39,7 +39,7 @@ def naive_pair(a, b):
     r1, r2 = find_liquid(a, lib), find_liquid(b, lib)
     s = site_strengths([r1.smiles, r2.smiles])
     a12 = HBOND.interaction([r1.delta_d, r1.delta_p, r1.delta_h], [r2.delta_d, r2.delta_p, r2.delta_h], s[0], s[1])
-    e1, e2 = max(r1.molar_volume, HBOND.v_min), max(r2.molar_volume, HBOND.v_min)
+    e1, e2 = float(HBOND.entropy_volume(r1.molar_volume, s[0])), float(HBOND.entropy_volume(r2.molar_volume, s[1]))
     vr = min(e1, e2)
     n1, n2 = e1 / vr, e2 / vr
     chi = vr * a12 / (8.314462618 * 298.15)
