@@ -975,9 +975,11 @@ def _confidence(chi, cc, ra_, rb_, lcst, notes) -> str:
 def _binodal_dict(pa, pb, v1, v2, m1, m2) -> dict:
     """Binodal of a pair as fixed keys (a = first liquid, b = second).
 
-    ``phi_a``: (lean, rich) volume fractions of a in the two phases; ``a_in_b`` and ``b_in_a``:
-    the mutual solubilities (a in the b-rich phase, b in the a-rich phase) in vol %, wt % and
-    mole %; wt % is NaN when a molar mass is missing.
+    ``phi_a``: (lean, rich) volume fractions of a in the two phases (the Flory-Huggins
+    composition variable; liquids with an entropy volume V* > V count as clusters of V* / V
+    molecules of their real volume, so vol % and mole % use the real molar volumes);
+    ``a_in_b`` and ``b_in_a``: the mutual solubilities (a in the b-rich phase, b in the
+    a-rich phase) in vol %, wt % and mole %; wt % is NaN when a molar mass is missing.
     """
     xa, xb = float(volume_to_mole(pa, v1, v2)), float(volume_to_mole(pb, v1, v2))
     have_m = math.isfinite(m1) and math.isfinite(m2)

@@ -8,11 +8,12 @@ or not; and, where the source gives it, the three-way state by the 1 wt % rule o
 
 * the donor/acceptor model with the bundled numbers (:data:`selector.mixing.HBOND`, fitted on
   all pairs: an in-sample figure);
-* leave-one-liquid-out: for every liquid, all pairs that contain it are held out, the two
-  fitted numbers (w_p, w_h) are refitted on the remaining pairs (:mod:`selector.mixing_fit`)
-  and the held-out pairs are predicted. Each pair is held out twice (once per liquid); both
-  predictions count. The two set numbers (Kamlet-Taft floor, entropy volume floor) come from
-  pure-liquid data and are not refitted; a sensitivity table shows how much they matter;
+* leave-one-liquid-out: for every liquid, all pairs that contain it are held out, the three
+  fitted numbers (w_p, w_h, polyol_c) are refitted on the remaining pairs
+  (:mod:`selector.mixing_fit`) and the held-out pairs are predicted. Each pair is held out
+  twice (once per liquid); both predictions count. The set numbers (Kamlet-Taft floor, entropy
+  volume floor, aromatic induction factor) come from published values and are not refitted; a
+  sensitivity table shows how much the first two matter;
 * the plain Hansen Flory-Huggins form (nothing fitted);
 * UNIFAC, original (Fredenslund, Jones & Prausnitz, AIChE J. 21 (1975) 1086; parameters as
   carried by ``thermo.unifac``, UFSG/UFIP) and Dortmund (Weidlich & Gmehling, Ind. Eng. Chem.
