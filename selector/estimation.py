@@ -22,7 +22,9 @@ What it does
   ``python -m selector.train_estimator`` (``parameters/estimator/calibration.json``, plain JSON).
 * **Applicability domain**: Tanimoto similarity of Morgan fingerprints (radius 2, 2048 bits) to
   the training molecules; ``in_domain`` is true when the nearest one is at least
-  :data:`DOMAIN_THRESHOLD` similar. The nearest three training compounds are named.
+  :data:`DOMAIN_THRESHOLD` similar and its size (heavy atoms) lies within the training range
+  and within a factor 1.6 (or 6 atoms) of one of the three most similar training compounds
+  (fingerprints do not see chain length). The nearest three training compounds are named.
 * A molecule that is in the solvent library (same canonical SMILES or InChIKey) is answered
   from the library (``source`` = "library"), not estimated.
 
@@ -509,6 +511,9 @@ class _Bundle:
             self.volume.calibrate(vv, oof)
         self.names = df["name"].astype(str).to_numpy()
         self.train_bits = similarity_bits(mols)
+        heavy = np.array([m.GetNumHeavyAtoms() for m in mols])
+        self.heavy_range = (int(heavy.min()), int(heavy.max()))
+        self.train_heavy = heavy
         self.domain_threshold = float(cal.get("domain_threshold", DOMAIN_THRESHOLD))
         if verbose:
             _progress("likewise: estimator ready.")
@@ -690,6 +695,13 @@ def estimate(smiles, library=None, names=None, progress=False, domain_threshold=
         top = np.argsort(-sims, axis=1)[:, :3]
         best = sims[np.arange(len(emols))[:, None], top]
         unseen = b.volume.unseen_types(emols)
+        heavy = np.array([m.GetNumHeavyAtoms() for m in emols])
+        lo_h, hi_h = b.heavy_range
+        near_heavy = b.train_heavy[top]                      # (n, 3): the three nearest
+        hq = heavy[:, None]
+        ratio = np.maximum(hq, near_heavy) / np.maximum(np.minimum(hq, near_heavy), 1)
+        close_size = ~((ratio > 1.6) & (np.abs(hq - near_heavy) > 6))
+        size_ok = (heavy >= lo_h) & (heavy <= hi_h) & close_size.any(axis=1)
         idx = np.array(est_rows)
         for j, c in enumerate(HSP_COLS):
             out.loc[idx, c] = np.clip(pred[:, j], 0.0, None)
@@ -699,7 +711,7 @@ def estimate(smiles, library=None, names=None, progress=False, domain_threshold=
         out.loc[idx, "molar_volume_low"] = vol * np.exp(-lf)
         out.loc[idx, "molar_volume_high"] = vol * np.exp(lf)
         out.loc[idx, "similarity"] = best[:, 0]
-        out.loc[idx, "in_domain"] = best[:, 0] >= thr
+        out.loc[idx, "in_domain"] = (best[:, 0] >= thr) & size_ok
         out.loc[idx, "source"] = "estimated"
         for k, i in enumerate(est_rows):
             out.at[i, "nearest"] = "; ".join(f"{b.names[t]} ({s:.2f})" for t, s in zip(top[k], best[k]))
@@ -707,6 +719,10 @@ def estimate(smiles, library=None, names=None, progress=False, domain_threshold=
             if best[k, 0] < thr:
                 notes.append(f"outside the applicability domain (nearest training compound only "
                              f"{best[k, 0]:.2f} similar): treat as a rough guess")
+            if not size_ok[k]:
+                notes.append(f"outside the applicability domain: {heavy[k]} heavy atoms against "
+                             f"{'/'.join(str(v) for v in near_heavy[k])} in the most similar training compounds (training range "
+                             f"{lo_h}-{hi_h}; fingerprint similarity does not see size)")
             if unseen[k]:
                 notes.append("molar volume less certain: atom type(s) " + ", ".join(unseen[k]) +
                              " not in the volume training set")

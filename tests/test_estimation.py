@@ -242,7 +242,12 @@ def test_estimate_new_molecule_and_use_it_everywhere():
     assert 14.5 < row["delta_d"] < 18.0
     assert row["delta_h"] < 10
     assert "(" in row["nearest"] and row["similarity"] > 0
-    assert bool(row["in_domain"]) == (row["similarity"] >= E.DOMAIN_THRESHOLD)
+    assert bool(row["in_domain"]) == ("outside the applicability domain" not in row["message"])
+    if row["similarity"] < E.DOMAIN_THRESHOLD:
+        assert not row["in_domain"]
+    # a C40 fatty acid looks like stearic acid to the fingerprint but is twice its size: flagged
+    big = E.estimate("C" * 39 + "C(=O)O")
+    assert not big.loc[0, "in_domain"] and "heavy atoms" in big.loc[0, "message"]
     rows = E.as_library_rows(res)
     assert list(rows["origin"]) == ["estimated"] and rows.loc[0, "name"] == "dtb succinate"
     from selector.library import load_library
