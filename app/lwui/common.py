@@ -52,7 +52,26 @@ COLUMN_CONFIG = {
     "sources_disagree": st.column_config.CheckboxColumn("Sources disagree",
                                                         help="published HSP differ by > 1 MPa^0.5"),
     "ra_to_target": st.column_config.NumberColumn("Ra", format="%.2f"),
-    "hazard_class": st.column_config.TextColumn("Hazard class"),
+    "hazard_class": st.column_config.TextColumn("Hazard class", help="CHEM21; unclassified = no data, not safe"),
+    "blend": st.column_config.TextColumn("Blend (volume %)"),
+    "candidate": st.column_config.TextColumn("Candidate (volume %)"),
+    "n_components": st.column_config.NumberColumn("Liquids", format="%d"),
+    "component_red": st.column_config.ListColumn("RED of each liquid"),
+    "component_ra": st.column_config.ListColumn("Ra of each liquid"),
+    "non_solvent_pair": st.column_config.CheckboxColumn("Two non-solvents", help="every component alone is "
+                                                        "outside the sphere; only the blend is inside"),
+    "bp_low_c": st.column_config.NumberColumn("Lowest bp (°C)", format="%.0f"),
+    "bp_high_c": st.column_config.NumberColumn("Highest bp (°C)", format="%.0f"),
+    "lowest_flash_point_c": st.column_config.NumberColumn("Lowest flash point (°C)", format="%.0f"),
+    "lowest_flash_component": st.column_config.TextColumn("…of"),
+    "evaporation_rate": st.column_config.NumberColumn("Evaporation rate", format="%.2f",
+                                                      help="relative evaporation rate (n-butyl acetate = 1)"),
+    "viscosity_mpa_s": st.column_config.NumberColumn("Viscosity (mPa·s)", format="%.2f"),
+    "hazard_rank": None,
+    "mismatch": st.column_config.NumberColumn("Property mismatch", format="%.2f"),
+    "role": st.column_config.TextColumn("Role"),
+    "p_inside": st.column_config.NumberColumn("Share of fits inside", format="%.2f"),
+    "information": st.column_config.NumberColumn("Information p(1-p)", format="%.3f"),
 }
 
 
