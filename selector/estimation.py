@@ -348,20 +348,21 @@ class MolarVolumeModel:
         self.log_factor_ = None
         return self
 
-    def _matrix(self, mols):
-        A = atom_type_counts(mols)
-        unseen = [c for c in A.columns if c not in self.columns_ and A[c].any()]
-        A = A.reindex(columns=self.columns_, fill_value=0.0)
-        return A.to_numpy(float), unseen
-
     def predict(self, mols):
-        X, _ = self._matrix(mols)
-        return np.clip(self.model_.predict(X), 5.0, None)
+        """Molar volume (cm^3/mol) of each molecule."""
+        return self.predict_with_unseen(mols)[0]
 
-    def unseen_types(self, mols) -> list[list[str]]:
+    def predict_with_unseen(self, mols):
+        """``(volume, unseen)``: the volumes and, per molecule, the atom types the model never saw."""
         A = atom_type_counts(mols)
-        cols = [c for c in A.columns if c not in self.columns_]
-        return [[c for c in cols if row[c]] for _, row in A.iterrows()] if cols else [[] for _ in mols]
+        extra = [c for c in A.columns if c not in self.columns_]
+        if extra:
+            E = A[extra].to_numpy() > 0
+            unseen = [[c for c, f in zip(extra, row) if f] for row in E]
+        else:
+            unseen = [[] for _ in range(len(A))]
+        X = A.reindex(columns=self.columns_, fill_value=0.0).to_numpy(float)
+        return np.clip(self.model_.predict(X), 5.0, None), unseen
 
     def calibrate(self, volume, oof_pred):
         r = np.abs(np.log(np.asarray(oof_pred, float) / np.asarray(volume, float)))
@@ -689,12 +690,11 @@ def estimate(smiles, library=None, names=None, progress=False, domain_threshold=
                 _progress_bar(min(start + chunk, len(emols)), len(emols))
         X = np.vstack(parts)
         pred, low, high = b.hsp.predict_interval(features=X)
-        vol = b.volume.predict(emols)
+        vol, unseen = b.volume.predict_with_unseen(emols)
         lf = b.volume.log_factor_ if b.volume.log_factor_ is not None else np.nan
         sims = tanimoto(similarity_bits(emols), b.train_bits)
         top = np.argsort(-sims, axis=1)[:, :3]
         best = sims[np.arange(len(emols))[:, None], top]
-        unseen = b.volume.unseen_types(emols)
         heavy = np.array([m.GetNumHeavyAtoms() for m in emols])
         lo_h, hi_h = b.heavy_range
         near_heavy = b.train_heavy[top]                      # (n, 3): the three nearest
