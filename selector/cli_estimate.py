@@ -70,11 +70,17 @@ def _save_mine(res, path) -> None:
     from .io import write_atomic
     from .library import _as_frame, validate_user_table
 
+    if not res["source"].eq("estimated").any():
+        print("nothing saved: no row was estimated (library matches and failed rows are not saved)",
+              file=sys.stderr)
+        return
     rows = as_library_rows(res)
     keep = ["name", "smiles", "delta_d", "delta_p", "delta_h", "molar_volume", "hsp_source",
             "delta_d_low", "delta_d_high", "delta_p_low", "delta_p_high", "delta_h_low", "delta_h_high",
             "molar_volume_low", "molar_volume_high", "in_domain"]
-    new = rows[keep]
+    new = rows[keep].copy()
+    num = [c for c in keep if c.startswith(("delta_", "molar_volume"))]
+    new[num] = new[num].astype(float).round(3)
     if path.exists():
         old = _as_frame(path)
         old = old[~old["name"].astype(str).str.lower().isin(new["name"].str.lower())] if "name" in old else old

@@ -272,3 +272,14 @@ def test_cli_guess(capsys, tmp_path):
     assert main(["guess", str(p), "--format", "csv", "-o", str(tmp_path / "out.csv")]) == 0
     out = pd.read_csv(tmp_path / "out.csv")
     assert list(out["source"].fillna("")) == ["library", ""]
+    # saving an estimate to the user's own liquids, then ranking with it
+    mine = tmp_path / "mine.csv"
+    mine.write_text("name,delta_d,delta_p,delta_h\nkeep me,16,5,5\n", encoding="utf-8")
+    assert main(["guess", "CC(C)(C)OC(=O)CCC(=O)OC(C)(C)C", "--name", "dtb succinate",
+                 "--save-mine", str(mine)]) == 0
+    saved = pd.read_csv(mine)
+    assert list(saved["name"]) == ["keep me", "dtb succinate"]   # the old row is kept
+    assert saved.loc[1, "hsp_source"].startswith("estimated")
+    capsys.readouterr()
+    assert main(["rank", "16,5,5,4", "--mine", str(mine), "--format", "csv", "--top", "900"]) == 0
+    assert "dtb succinate" in capsys.readouterr().out
