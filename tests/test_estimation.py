@@ -283,3 +283,19 @@ def test_cli_guess(capsys, tmp_path):
     capsys.readouterr()
     assert main(["rank", "16,5,5,4", "--mine", str(mine), "--format", "csv", "--top", "900"]) == 0
     assert "dtb succinate" in capsys.readouterr().out
+
+
+def test_works_inside_scikit_learn_cross_validation():
+    from sklearn.base import is_regressor
+    from sklearn.model_selection import GroupKFold, cross_val_score
+
+    df, mols, _ = training()
+    sub = np.arange(0, len(df), 4)
+    Y = df[E.HSP_COLS].to_numpy(float)[sub]
+    est = E.HSPEstimator(n_estimators=10, calibration_folds=0)
+    assert is_regressor(est)
+    scores = cross_val_score(est, df["smiles"].iloc[sub].tolist(), Y, cv=GroupKFold(3),
+                             groups=E.scaffold_groups([mols[i] for i in sub]))
+    # score = -MAE; must beat predicting the mean of the published values (common practice check)
+    assert np.all(np.isfinite(scores))
+    assert -scores.mean() < 0.7 * np.abs(Y - Y.mean(axis=0)).mean()
