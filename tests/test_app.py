@@ -417,3 +417,12 @@ def test_app_command_binds_localhost(capsys):
     assert out[out.index("--server.headless") + 1] == "true"
     assert out[out.index("--browser.gatherUsageStats") + 1] == "false"
     assert main(["app", "--port", "70000"]) == 2
+
+
+@pytest.mark.skipif(not (has("blends") and has("spheres")), reason="capabilities not installed")
+def test_every_recommending_page_offers_csv_and_report(at):
+    for page in ("candidates", "blends", "replace", "sphere"):
+        go(at, page)
+        labels = [d.proto.label for d in at.get("download_button")]
+        assert any("CSV" in x for x in labels), (page, labels)
+        assert any("Markdown" in x for x in labels) and any("HTML" in x for x in labels), (page, labels)
