@@ -9,6 +9,10 @@ Features of one molecule (all computed from its RDKit graph, hydrogens implicit)
 * those counts divided by the McGowan characteristic volume (HSP are cohesive energy
   densities, i.e. group energies divided by a volume, so per-volume counts are the natural
   scale);
+* a crude dipole descriptor: Gasteiger-Marsili partial charges (Tetrahedron 36 (1980) 3219)
+  times 2-D depiction coordinates of the canonical atom order, |sum q r|, with the charge
+  totals, and |mu| / V^0.5 and mu^2 / V (the scale of the Hansen-Beerbower relation
+  dP = 37.4 mu / V^0.5, dipole in debye - here only as a feature, not as that formula);
 * hashed Morgan (circular, radius 2) substructure counts.
 
 McGowan characteristic volume (Abraham and McGowan, Chromatographia 23 (1987) 243-246):
@@ -96,8 +100,28 @@ def feature_names() -> list[str]:
     names += ["mcgowan_volume", "heavy_atoms", "n_h"]
     names += [f"grp_{k}" for k in patt]
     names += [f"pv_{k}" for k in patt]  # per 100 cm^3/mol of McGowan volume
+    names += DIPOLE_NAMES
     names += [f"morgan_{i}" for i in range(MORGAN_BITS)]
     return names
+
+
+DIPOLE_NAMES = ["dip2d", "charge_abs_sum", "charge_max", "charge_min", "dip2d_per_sqrt_v", "dip2d_sq_per_v"]
+
+
+def dipole_features(mol, volume: float) -> list[float]:
+    """2-D charge-dipole features of one molecule (see module docstring); canonical atom order,
+    so that every SMILES of the same molecule gives the same numbers."""
+    Chem = _rdkit()[0]
+    from rdkit.Chem import rdDepictor, rdPartialCharges
+
+    m = Chem.AddHs(Chem.MolFromSmiles(Chem.MolToSmiles(mol)))
+    rdDepictor.Compute2DCoords(m)
+    rdPartialCharges.ComputeGasteigerCharges(m)
+    q = np.nan_to_num(np.array([a.GetDoubleProp("_GasteigerCharge") for a in m.GetAtoms()]))
+    pos = m.GetConformer().GetPositions()[:, :2]
+    mu = float(np.hypot(*(q[:, None] * pos).sum(axis=0)))
+    v = max(volume, 1.0)
+    return [mu, float(np.abs(q).sum()), float(q.max()), float(q.min()), mu / np.sqrt(v), mu * mu / v]
 
 
 def mcgowan_volume(mol) -> float:
@@ -160,7 +184,8 @@ def featurize(mols) -> np.ndarray:
     Chem, descs, patt, gen_count, _ = _rdkit()
     n_desc = len(descs)
     n_grp = len(patt)
-    width = n_desc + 3 + 2 * n_grp + MORGAN_BITS
+    n_dip = len(DIPOLE_NAMES)
+    width = n_desc + 3 + 2 * n_grp + n_dip + MORGAN_BITS
     X = np.zeros((len(mols), width))
     pats = list(patt.values())
     for i, m in enumerate(mols):
@@ -180,6 +205,11 @@ def featurize(mols) -> np.ndarray:
         row[k:k + n_grp] = counts
         row[k + n_grp:k + 2 * n_grp] = counts * (100.0 / max(v, 1.0))
         k += 2 * n_grp
+        try:
+            row[k:k + n_dip] = dipole_features(m, v)
+        except Exception:  # noqa: BLE001 - charges or coordinates that fail stay missing
+            row[k:k + n_dip] = np.nan
+        k += n_dip
         row[k:] = gen_count.GetCountFingerprintAsNumPy(m)
     X[~np.isfinite(X)] = np.nan
     # clip absurd descriptor values (some RDKit descriptors explode on odd graphs)
