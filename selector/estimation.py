@@ -417,7 +417,7 @@ def _feature_cache_path(sha: str) -> Path:
     from .estimation_features import MORGAN_BITS
     from .library import user_data_dir
 
-    tag = hashlib.sha256(f"{sha}|{rdkit.__version__}|{MORGAN_BITS}|v2".encode()).hexdigest()[:16]
+    tag = hashlib.sha256(f"{sha}|{rdkit.__version__}|{MORGAN_BITS}|v3".encode()).hexdigest()[:16]
     return user_data_dir() / "cache" / f"estimator_features_{tag}.npy"
 
 
@@ -713,8 +713,9 @@ def estimate(smiles, library=None, names=None, progress=False, domain_threshold=
         out.loc[idx, "similarity"] = best[:, 0]
         out.loc[idx, "in_domain"] = (best[:, 0] >= thr) & size_ok
         out.loc[idx, "source"] = "estimated"
+        nearest_txt, messages = [], []
         for k, i in enumerate(est_rows):
-            out.at[i, "nearest"] = "; ".join(f"{b.names[t]} ({s:.2f})" for t, s in zip(top[k], best[k]))
+            nearest_txt.append("; ".join(f"{b.names[t]} ({s:.2f})" for t, s in zip(top[k], best[k])))
             notes = ["estimated from structure"]
             if best[k, 0] < thr:
                 notes.append(f"outside the applicability domain (nearest training compound only "
@@ -726,7 +727,9 @@ def estimate(smiles, library=None, names=None, progress=False, domain_threshold=
             if unseen[k]:
                 notes.append("molar volume less certain: atom type(s) " + ", ".join(unseen[k]) +
                              " not in the volume training set")
-            out.at[i, "message"] = "; ".join(notes)
+            messages.append("; ".join(notes))
+        out.loc[idx, "nearest"] = nearest_txt
+        out.loc[idx, "message"] = messages
     elif progress:
         _progress_bar(n, n)
     out["in_domain"] = out["in_domain"].astype(bool)

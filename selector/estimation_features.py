@@ -9,8 +9,8 @@ Features of one molecule (all computed from its RDKit graph, hydrogens implicit)
 * those counts divided by the McGowan characteristic volume (HSP are cohesive energy
   densities, i.e. group energies divided by a volume, so per-volume counts are the natural
   scale);
-* a crude dipole descriptor: Gasteiger-Marsili partial charges (Tetrahedron 36 (1980) 3219)
-  times 2-D depiction coordinates of the canonical atom order, |sum q r|, with the charge
+* a crude dipole descriptor: Gasteiger-Marsili partial charges (Tetrahedron 36 (1980) 3219),
+  each heavy atom with its hydrogens, times 2-D depiction coordinates of the canonical atom order, |sum q r|, with the charge
   totals, and |mu| / V^0.5 and mu^2 / V (the scale of the Hansen-Beerbower relation
   dP = 37.4 mu / V^0.5, dipole in debye - here only as a feature, not as that formula);
 * hashed Morgan (circular, radius 2) substructure counts.
@@ -72,6 +72,9 @@ GROUP_SMARTS = {
 
 _SLOW = ("qed", "BCUT2D", "Ipc", "AvgIpc", "SPS")
 
+_ESTATE = {"MaxEStateIndex": np.max, "MinEStateIndex": np.min,
+           "MaxAbsEStateIndex": lambda e: np.max(np.abs(e)), "MinAbsEStateIndex": lambda e: np.min(np.abs(e))}
+
 MORGAN_BITS = 512
 MORGAN_RADIUS = 2
 SIM_BITS = 2048  # bit fingerprint used for the applicability domain (Tanimoto)
@@ -114,10 +117,11 @@ def dipole_features(mol, volume: float) -> list[float]:
     Chem = _rdkit()[0]
     from rdkit.Chem import rdDepictor, rdPartialCharges
 
-    m = Chem.AddHs(Chem.MolFromSmiles(Chem.MolToSmiles(mol)))
+    m = Chem.MolFromSmiles(Chem.MolToSmiles(mol))  # hydrogens stay implicit: group charges
     rdDepictor.Compute2DCoords(m)
     rdPartialCharges.ComputeGasteigerCharges(m)
-    q = np.nan_to_num(np.array([a.GetDoubleProp("_GasteigerCharge") for a in m.GetAtoms()]))
+    q = np.nan_to_num(np.array([a.GetDoubleProp("_GasteigerCharge") + a.GetDoubleProp("_GasteigerHCharge")
+                                for a in m.GetAtoms()]))
     pos = m.GetConformer().GetPositions()[:, :2]
     mu = float(np.hypot(*(q[:, None] * pos).sum(axis=0)))
     v = max(volume, 1.0)
@@ -188,13 +192,21 @@ def featurize(mols) -> np.ndarray:
     width = n_desc + 3 + 2 * n_grp + n_dip + MORGAN_BITS
     X = np.zeros((len(mols), width))
     pats = list(patt.values())
+    from rdkit.Chem.EState import EState
+
+    estate_pos = {n: j for j, (n, _) in enumerate(descs) if n in _ESTATE}
+    plain = [(j, f) for j, (n, f) in enumerate(descs) if n not in _ESTATE]
     for i, m in enumerate(mols):
         row = X[i]
-        for j, (_, f) in enumerate(descs):
+        for j, f in plain:
             try:
                 row[j] = f(m)
             except Exception:  # noqa: BLE001 - a descriptor that fails is left missing
                 row[j] = np.nan
+        if estate_pos:  # the four E-state extremes from one E-state computation
+            e = np.asarray(EState.EStateIndices(m), dtype=float)
+            for n, j in estate_pos.items():
+                row[j] = _ESTATE[n](e) if e.size else np.nan
         v = mcgowan_volume(m)
         k = n_desc
         row[k] = v
