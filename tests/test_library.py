@@ -255,3 +255,11 @@ def test_build_compare_reports_changes(lib):
     assert any("delta_d" in d for d in diffs)
     assert any("only in the committed table" in d for d in diffs)
     assert build.compare(sub, sub.copy()) == []
+
+
+def test_densities_are_physical(lib):
+    # Common practice: liquids at 25 C have densities between about 0.6 g/cm3 (light alkanes,
+    # amines) and 3.2 g/cm3 (bromine, diiodomethane); a molar volume outside that band is an error.
+    rho = lib["molar_mass"] / lib["molar_volume"]
+    assert rho.between(0.6, 3.2).all(), lib.loc[~rho.between(0.6, 3.2), "name"].tolist()
+    assert lib["molar_volume_estimated"].sum() < 0.8 * len(lib)
