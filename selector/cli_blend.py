@@ -13,25 +13,8 @@ REPLACE_COLUMNS = ["role", "blend", "ra", "red", "hazard_class", "boiling_point_
 CLASS_CHOICES = ["recommended", "problematic", "hazardous", "highly-hazardous"]
 
 
-def _window(text, opt):
-    if not text:
-        return None
-    if ":" not in text:
-        raise ValueError(f"{opt} expects LOW:HIGH in C (either side may be empty), got {text!r}")
-    lo, hi = text.split(":", 1)
-    try:
-        return (float(lo) if lo.strip() else None, float(hi) if hi.strip() else None)
-    except ValueError:
-        raise ValueError(f"{opt} expects numbers in C, got {text!r}") from None
-
-
 def _filters(a) -> dict:
-    f = filters_from_args(a)
-    if getattr(a, "flash", None):
-        f["flash_point_c"] = _window(a.flash, "--flash")
-    if getattr(a, "max_class", None):
-        f["max_hazard_class"] = a.max_class.replace("-", " ")
-    return f
+    return filters_from_args(a)  # includes --flash and --max-class
 
 
 def _label(df):
