@@ -42,9 +42,9 @@ def _prices(path):
 
 
 def _target(a, lib):
-    from .cli_core import _target_from_args
+    from .cli_core import target_from_text
 
-    return _target_from_args(a, lib)
+    return target_from_text(a.target, a.radius, lib)
 
 
 def cmd_blend(a) -> int:
@@ -71,16 +71,9 @@ def cmd_replace(a) -> int:
     lib = library_from_args(a)
     solute = None
     if a.solute:
-        from .cli_core import parse_target
+        from .cli_core import target_from_text
 
-        solute = parse_target(a.solute, a.solute_radius)
-        if isinstance(solute, tuple) and solute and solute[0] == "__named__":
-            from .library import find_liquid
-            from .targets import Target
-
-            row = find_liquid(solute[1], lib)
-            solute = Target(float(row.delta_d), float(row.delta_p), float(row.delta_h), solute[2],
-                            name=str(row["name"]))
+        solute = target_from_text(a.solute, a.solute_radius, lib)
     res = substitutes(a.liquid, solute=solute, max_components=a.parts, min_fraction=a.min_share,
                       temperature=a.at, top=a.top, library=lib, **_filters(a))
     note = res.attrs.get("regulatory_note") or ""

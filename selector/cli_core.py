@@ -17,8 +17,12 @@ SHOW_FIELDS = ["name", "cas", "smiles", "formula", "molar_mass", "delta_d", "del
                "vapour_pressure_method", "flash_point_source", "origin"]
 
 
-def parse_target(text: str, radius: float | None = None):
-    """'dD,dP,dH[,R0]' -> tuple; anything else is a liquid name (with the optional radius)."""
+def target_from_text(text: str, radius: float | None = None, library=None):
+    """A target from command-line text.
+
+    'dD,dP,dH[,R0]' (MPa^0.5) -> tuple; anything else is a liquid name, CAS or SMILES, returned
+    as is, or as a :class:`~selector.targets.Target` at that liquid's point with ``radius`` as R0.
+    """
     parts = [p.strip() for p in text.split(",")]
     if len(parts) in (3, 4):
         try:
@@ -31,26 +35,21 @@ def parse_target(text: str, radius: float | None = None):
                     raise ValueError("R0 given twice: in the target and with --radius")
                 nums = nums + (radius,)
             return nums
-    return text if radius is None else ("__named__", text, radius)
-
-
-def _target_from_args(a, lib):
+    if radius is None:
+        return text
     from .library import find_liquid
     from .targets import Target
 
-    t = parse_target(a.target, a.radius)
-    if isinstance(t, tuple) and t and t[0] == "__named__":
-        row = find_liquid(t[1], lib)
-        return Target(float(row.delta_d), float(row.delta_p), float(row.delta_h), t[2],
-                      name=str(row["name"]), source="library point with given R0")
-    return t
+    row = find_liquid(text, library)
+    return Target(float(row.delta_d), float(row.delta_p), float(row.delta_h), radius,
+                  name=str(row["name"]), source="library point with given R0")
 
 
 def cmd_rank(a) -> int:
     from .ranking import rank
 
     lib = library_from_args(a)
-    res = rank(_target_from_args(a, lib), temperature=a.at, library=lib,
+    res = rank(target_from_text(a.target, a.radius, lib), temperature=a.at, library=lib,
                polarity_weight=a.polarity_weight, **filters_from_args(a))
     tgt = res.attrs["target"]
     cols = RANK_COLUMNS if res["red"].notna().any() else [c for c in RANK_COLUMNS if c != "red"]
