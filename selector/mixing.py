@@ -1015,8 +1015,8 @@ def _arrays(df: pd.DataFrame):
     return h, v, s, m, al
 
 
-def state_matrix(liquids: pd.DataFrame, temperature: float = 25.0, model=None) -> np.ndarray:
-    """(n, n) array of state strings for library-format rows (vectorised over all pairs)."""
+def _prepared(liquids: pd.DataFrame, temperature, model):
+    """Model, checked temperature and per-liquid arrays (HSP and volume at that temperature)."""
     mdl = _model(model)
     if len(liquids) == 0:
         raise SelectorError("no liquids selected")
@@ -1024,6 +1024,12 @@ def state_matrix(liquids: pd.DataFrame, temperature: float = 25.0, model=None) -
     h, v, s, m, al = _arrays(liquids)
     if t != 25.0:
         h, v = hsp_at(h, al, t), volume_at(v, al, t)
+    return mdl, t, h, v, s, m
+
+
+def state_matrix(liquids: pd.DataFrame, temperature: float = 25.0, model=None) -> np.ndarray:
+    """(n, n) array of state strings for library-format rows (vectorised over all pairs)."""
+    mdl, t, h, v, s, m = _prepared(liquids, temperature, model)
     a12, vr, n1, n2, chi, cc, pa, pb = _compute(
         h[:, None, :], h[None, :, :], s[:, None, :], s[None, :, :], v[:, None], v[None, :], 25.0, mdl)
     if t != 25.0:
@@ -1045,13 +1051,7 @@ def miscible_pairs(liquids: pd.DataFrame, temperature: float = 25.0, model=None)
     >>> miscible_pairs(sel).astype(int).tolist()   # acetone, hexane, water
     [[1, 1, 1], [1, 1, 0], [1, 0, 1]]
     """
-    mdl = _model(model)
-    if len(liquids) == 0:
-        raise SelectorError("no liquids selected")
-    t = _check_temperature_frame(temperature, liquids)
-    h, v, s, _, al = _arrays(liquids)
-    if t != 25.0:
-        h, v = hsp_at(h, al, t), volume_at(v, al, t)
+    mdl, t, h, v, s, _ = _prepared(liquids, temperature, model)
     a12 = mdl.interaction(h[:, None, :], h[None, :, :], s[:, None, :], s[None, :, :])
     e = mdl.entropy_volume(v, s)
     vr = np.minimum(e[:, None], e[None, :])
@@ -1076,8 +1076,6 @@ def _rows(liquids, library):
     recs = []
     for x in items:
         if isinstance(x, str):
-            from .library import locate_many  # noqa: F401
-
             recs.append(lib.iloc[locate(x, lib)])
         else:
             recs.append(pd.Series(_record(x, str(x.get("name", "user liquid")))))

@@ -644,7 +644,7 @@ def _profile(fit: _Fit, P, w, good, m, level, max_points=8000):
     step = max(fit.step / 3.0, (vol / max_points) ** (1 / 3))
     axes = [np.arange(lo[a], hi[a] + 0.5 * step, step) for a in range(3)]
     Gf = _clip(np.vstack([_grid(axes), fit.centre[None]]))
-    a_all, b_all, keep = [], [], []
+    a_all, b_all = [], []
     for s in range(0, len(Gf), 4000):
         Cc = Gf[s:s + 4000]
         q = _dist(Cc, P, m)
@@ -659,7 +659,6 @@ def _profile(fit: _Fit, P, w, good, m, level, max_points=8000):
 
 def _bootstrap(fit: _Fit, P, w, good, m, n_boot, rng, keep=150):
     """Stratified bootstrap refits, vectorised over samples. Returns (B, 4) unscaled spheres."""
-    n = len(P)
     gi = np.flatnonzero(good)
     bi = np.flatnonzero(~good)
     B = int(n_boot)

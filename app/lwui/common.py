@@ -7,7 +7,6 @@ from __future__ import annotations
 
 import importlib
 import importlib.util
-import math
 import os
 import threading
 import time
