@@ -26,34 +26,16 @@ import selector
 from selector.errors import InputTableError, SelectorError
 from selector.hansen import blend_hsp, hsp_at_temperature
 from selector.library import HSP, load_library
-from selector.spheres import SCALE, TIE, fit_sphere, parse_blend, read_tests
+from selector.spheres import TIE, fit_sphere, parse_blend, read_tests
+from sphere_cases import exhaustive, make_case, ra
 
 LIB = load_library()
 H = LIB[HSP].to_numpy(float)
 PARAMS = ["delta_d", "delta_p", "delta_h", "radius"]
 
 
-def _ra(h, c):
-    return np.sqrt((((np.asarray(h) - np.asarray(c)) * SCALE) ** 2).sum(-1))
-
-
-def _case(seed, n=40, noise=0.0):
-    """n random library liquids tested against a random true sphere (seeded)."""
-    r = np.random.default_rng(seed)
-    c = np.array([r.uniform(16, 20), r.uniform(3, 12), r.uniform(3, 12)])
-    R = r.uniform(6, 10)
-    d = _ra(H, c)
-    for _ in range(100):
-        idx = r.choice(len(LIB), n, replace=False)
-        g = d[idx] < R
-        if 3 <= g.sum() <= n - 3:
-            break
-    nf = int(round(noise * n))
-    if nf:
-        f = r.choice(n, nf, replace=False)
-        g[f] = ~g[f]
-    df = pd.DataFrame({"solvent": LIB["name"].iloc[idx].to_numpy(), "outcome": g})
-    return df, c, R
+_ra = ra
+_case = make_case
 
 
 # ----------------------------------------------------------------------------- recovery
@@ -115,19 +97,7 @@ def test_interval_shrinks_with_informative_tests():
 # ----------------------------------------------------------------------------- global optimum
 
 def _brute(tab, step=0.5, margin=2.5):
-    P = tab[HSP].to_numpy(float) * SCALE
-    good = tab["good"].to_numpy(bool)
-    lo = np.maximum(P[good].min(0) - margin, [10.0, 0.0, 0.0])
-    hi = P[good].max(0) + margin
-    axes = [np.arange(lo[a], hi[a] + step / 2, step) for a in range(3)]
-    C = np.stack(np.meshgrid(*axes, indexing="ij"), -1).reshape(-1, 3)
-    best = np.inf
-    for s in range(0, len(C), 3000):
-        d = np.sqrt(((C[s:s + 3000, None, :] - P[None]) ** 2).sum(-1))
-        R = d[:, :, None]
-        loss = np.where(good, np.maximum(d[:, None, :] - R, 0), np.maximum(R - d[:, None, :], 0))
-        best = min(best, float((loss.mean(-1) + TIE * R[..., 0]).min()))
-    return best
+    return exhaustive(tab, step=step, margin=margin)[0]
 
 
 @pytest.mark.parametrize("seed", [21, 22])
