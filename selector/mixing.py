@@ -42,6 +42,19 @@ Interaction energy density A12 (J/cm^3 = MPa) and chi = V_r A12 / (R T):
   (:mod:`selector.mixing_fit`, on ``parameters/miscibility_pairs.csv``; accuracy in
   ``parameters/miscibility_accuracy.md``).
 
+  Cross hydrogen bonds (:meth:`MixingModel.association`): when one liquid's strongest acceptor
+  site is stronger than the other's own (water with pyridine, amines, amides, DMSO), a contact
+  between them can form a hydrogen bond better than those it replaces. With a and b the
+  strongest donor H and acceptor site of each molecule (Kamlet-Taft strengths per site), the
+  gain is x = -(a1 - a2)(b1 - b2) >= 0, and::
+
+      chi = V_r A12 / (R T) - ln(1 + q (exp(E x / (R T)) - 1))      q = K0 (1000 / V_r) / z
+
+  the free energy of a contact that bonds in a share q of its orientations. E = 42.0 kJ/mol and
+  K0 = 0.0805 dm^3/mol come from Abraham's relation for 1:1 hydrogen-bond complexes,
+  log10 K = 7.354 a b - 1.094 (:data:`ASSOC_ENERGY`, :data:`ASSOC_K0`); z = 10 is the lattice
+  coordination number of UNIQUAC (:data:`LATTICE_Z`). Nothing in it is fitted.
+
 The pair splits when chi > chi_c = 0.5 (N1^-0.5 + N2^-0.5)^2 (Flory, Principles of Polymer
 Chemistry, 1953, ch. 13). V_r cancels out of the phase behaviour in volume fractions and is
 taken as the smaller V_i*. Away from 25 C the HSP follow the Hansen-Beerbower relations
@@ -95,7 +108,9 @@ class MixingModel:
     liquid's own molar volume; see the module docstring); ``aromatic_q``: induction factor q of
     aromatic liquids, the polar term is weighted by (q1 q2)^2 (1 = no induction correction);
     ``polyol_c``: a liquid with n > 1 alcohol O-H groups per molecule (glycols, glycerol) enters
-    the combinatorial entropy with the volume V (1 + c (n - 1)) (0 = no such correction).
+    the combinatorial entropy with the volume V (1 + c (n - 1)) (0 = no such correction);
+    ``assoc_z``: lattice coordination number of the cross hydrogen-bond term
+    :meth:`association` (0 = no such term).
     """
 
     name: str
@@ -107,6 +122,7 @@ class MixingModel:
     source: str = ""
     aromatic_q: float = 1.0
     polyol_c: float = 0.0
+    assoc_z: float = 0.0
 
     def split_ratio(self, sites):
         """sqrt((alpha + f) / (beta + f)) per liquid from (..., 2) (alpha, beta) arrays; 1 if no split."""
@@ -145,6 +161,42 @@ class MixingModel:
             hb = d[..., 2] ** 2
         return a + self.w_h * hb
 
+    def association(self, sites1, sites2, vr, t_c=25.0):
+        """Cross hydrogen-bond lowering of chi (dimensionless, >= 0) at t_c (C).
+
+        x = -(a1 - a2)(b1 - b2), clipped at 0, with a the strongest donor H and b the strongest
+        acceptor site of each liquid (Kamlet-Taft strengths per site, columns 4 and 5 of
+        :func:`site_strengths`): what a contact gains in donor x acceptor strength when the
+        liquids exchange partners (a1 b2 + a2 b1 in place of a1 b1 + a2 b2). Such a bond, of
+        energy E x (:data:`ASSOC_ENERGY`), forms in a share q = K0 (1000 / V_r) / z of the
+        orientations of a contact (:data:`ASSOC_K0`; V_r in cm^3/mol; z = ``assoc_z``), and
+        lowers chi by ln(1 + q (exp(E x / (R T)) - 1)).
+
+        >>> m = MixingModel("demo", assoc_z=10.0)
+        >>> water, pyridine, ether = [0.58, 0.47], [0.0, 0.64], [0.0, 0.45]
+        >>> round(float(m.association(water, pyridine, 43.4)), 3)
+        0.588
+        >>> float(m.association(water, ether, 43.4))       # ether: weaker acceptor than water
+        0.0
+        """
+        if not self.assoc_z:
+            return 0.0
+        s1 = np.nan_to_num(np.asarray(sites1, float), nan=0.0)
+        s2 = np.nan_to_num(np.asarray(sites2, float), nan=0.0)
+        k = 4 if s1.shape[-1] >= 6 else 0   # full site arrays, or bare (a, b) pairs
+        x = np.maximum(-(s1[..., k] - s2[..., k]) * (s1[..., k + 1] - s2[..., k + 1]), 0.0)
+        q = np.minimum(ASSOC_K0 * 1000.0 / (self.assoc_z * np.asarray(vr, float)), 1.0)
+        rt = R_GAS * (np.asarray(t_c, float) + 273.15)
+        return np.log1p(q * np.expm1(ASSOC_ENERGY * x / rt))
+
+    def chi(self, a12, vr, sites1=None, sites2=None, t_c=25.0):
+        """Flory-Huggins chi = V_r A12 / (R T) - :meth:`association` (V_r cm^3/mol, A12 J/cm^3)."""
+        t = np.asarray(t_c, float)
+        chi = vr * a12 / (R_GAS * (t + 273.15))
+        if self.assoc_z and sites1 is not None and sites2 is not None:
+            chi = chi - self.association(sites1, sites2, vr, t)
+        return chi
+
     def entropy_volume(self, v, sites=None):
         """Volume used for the combinatorial entropy, max(V (1 + c (n - 1)), v_min), cm^3/mol.
 
@@ -177,16 +229,32 @@ V_MIN = 43.4
 #: ring, which softens the polar mismatch. Set, not fitted.
 AROMATIC_Q = 0.9
 
+#: Cross hydrogen bonds, set from Abraham's relation for 1:1 hydrogen-bond complexes in
+#: tetrachloromethane at 25 C, log10 K = 7.354 a b - 1.094 with a, b the donor and acceptor
+#: strengths of the two sites and K in dm^3/mol (Abraham, Duce, Prior, Barratt, Morris & Taylor,
+#: J. Chem. Soc. Perkin Trans. 2 (1989) 1355; from memory). Its scales alpha2H / beta2H are
+#: close to, not equal to, the Kamlet-Taft strengths used here. Energy per unit of the
+#: strength gain x: E = 7.354 ln(10) R (298.15 K) (J/mol). Set, not fitted.
+ASSOC_ENERGY = 7.354 * math.log(10.0) * R_GAS * 298.15
+#: K at a b = 0 (dm^3/mol); a contact in a lattice of sites of V_r cm^3/mol sees a partner
+#: concentration 1000 / V_r mol/dm^3 shared among z contacts, so the bonding share of its
+#: orientations is q = K0 (1000 / V_r) / z. Set, not fitted.
+ASSOC_K0 = 10.0 ** -1.094
+#: Lattice coordination number z = 10, the standard value of UNIQUAC (Abrams & Prausnitz,
+#: AIChE J. 21 (1975) 116) and UNIFAC. Set, not fitted.
+LATTICE_Z = 10.0
+
 #: The plain Hansen Flory-Huggins form (Hansen's handbook, ch. 2).
 PLAIN = MixingModel("plain Hansen Flory-Huggins", 1.0, 0.25, 0.25, 0.0, 0.0,
                     "C. M. Hansen, Hansen Solubility Parameters, 2nd ed., 2007")
 
 #: Donor/acceptor-aware form; only w_p, w_h and polyol_c are fitted, on
 #: parameters/miscibility_pairs.csv by :func:`selector.mixing_fit.fit` (all pairs);
-#: :data:`ACID_FLOOR`, :data:`V_MIN` and :data:`AROMATIC_Q` are set.
+#: :data:`ACID_FLOOR`, :data:`V_MIN`, :data:`AROMATIC_Q` and the cross hydrogen-bond numbers
+#: (:data:`ASSOC_ENERGY`, :data:`ASSOC_K0`, :data:`LATTICE_Z`) are set.
 HBOND = MixingModel("donor/acceptor Flory-Huggins", 1.0, 0.2, 0.0975, ACID_FLOOR, V_MIN,
                     "this project, w_p, w_h and polyol_c fitted on parameters/miscibility_pairs.csv",
-                    AROMATIC_Q, 1.0)
+                    AROMATIC_Q, 1.0, LATTICE_Z)
 
 DEFAULT_MODEL = HBOND
 
@@ -265,31 +333,54 @@ def site_counts(smiles: str) -> tuple[float, float]:
     >>> site_counts("O"), site_counts("CC(C)=O"), site_counts("CCO")
     ((1.16, 0.47), (0.0, 0.48), (0.8, 0.7))
     """
+    return _sites(smiles)[:2]
+
+
+@functools.lru_cache(maxsize=4096)
+def site_maxima(smiles: str) -> tuple[float, float]:
+    """(a, b): the strongest donor H and the strongest acceptor site of one molecule.
+
+    Same classes and Kamlet-Taft strengths as :func:`site_counts`, per site instead of summed
+    (a per H atom, b per acceptor atom); 0 where a molecule has none, (nan, nan) for bad SMILES.
+
+    >>> site_maxima("O"), site_maxima("CCNCC"), site_maxima("OCCOCCCC")
+    ((0.58, 0.47), (0.05, 0.7), (0.8, 0.7))
+    """
+    return _sites(smiles)[2:]
+
+
+@functools.lru_cache(maxsize=4096)
+def _sites(smiles: str) -> tuple[float, float, float, float]:
+    """(alpha, beta, strongest donor H, strongest acceptor) of one molecule; see site_counts."""
     if not smiles:
-        return (math.nan, math.nan)
+        return (math.nan,) * 4
     from rdkit import Chem, RDLogger
 
     RDLogger.DisableLog("rdApp.*")
     mol = Chem.MolFromSmiles(smiles)
     if mol is None:
-        return (math.nan, math.nan)
+        return (math.nan,) * 4
     acc, don = _patterns()
-    beta = 0.0
+    beta = beta_max = 0.0
     seen: set[int] = set()
     for _, patt, w in acc:
         for match in mol.GetSubstructMatches(patt):
             if match[0] not in seen:
                 seen.add(match[0])
                 beta += w
-    alpha = 0.0
+                beta_max = max(beta_max, w)
+    alpha = alpha_max = 0.0
     seen = set()
     for _, patt, w in don:
         for match in mol.GetSubstructMatches(patt):
             i = match[0]
             if i not in seen:
                 seen.add(i)
-                alpha += w * mol.GetAtomWithIdx(i).GetTotalNumHs()
-    return (round(alpha, 6), round(beta, 6))
+                nh = mol.GetAtomWithIdx(i).GetTotalNumHs()
+                alpha += w * nh
+                if nh:
+                    alpha_max = max(alpha_max, w)
+    return (round(alpha, 6), round(beta, 6), alpha_max, beta_max)
 
 
 def site_densities(smiles, molar_volume) -> np.ndarray:
@@ -354,20 +445,23 @@ def is_aromatic(smiles: str) -> bool:
 
 
 def site_strengths(smiles) -> np.ndarray:
-    """(n, 4): Kamlet-Taft alpha and beta summed over the sites, aromatic (0/1), extra O-H groups.
+    """(n, 6): Kamlet-Taft alpha and beta summed over the sites, aromatic (0/1), extra O-H
+    groups, and the strongest donor H and acceptor site.
 
-    From :func:`site_counts`, :func:`is_aromatic` and :func:`extra_alcohol_groups`; liquids
-    without a usable SMILES get (0, 0, 0, 0), which makes the donor/acceptor split, the
-    induction factor and the polyol entropy neutral (the plain form).
+    From :func:`site_counts`, :func:`is_aromatic`, :func:`extra_alcohol_groups` and
+    :func:`site_maxima`; liquids without a usable SMILES get zeros, which makes the
+    donor/acceptor split, the induction factor, the polyol entropy and the cross hydrogen-bond
+    term neutral (the plain form).
 
     >>> site_strengths(["O", "CC(C)=O", "c1ccccc1", "OCCO", None]).tolist()
-    [[1.16, 0.47, 0.0, 0.0], [0.0, 0.48, 0.0, 0.0], [0.0, 0.0, 1.0, 0.0], [1.6, 1.4, 0.0, 1.0], [0.0, 0.0, 0.0, 0.0]]
+    [[1.16, 0.47, 0.0, 0.0, 0.58, 0.47], [0.0, 0.48, 0.0, 0.0, 0.0, 0.48], [0.0, 0.0, 1.0, 0.0, 0.0, 0.0], [1.6, 1.4, 0.0, 1.0, 0.8, 0.7], [0.0, 0.0, 0.0, 0.0, 0.0, 0.0]]
     """
     smi = [("" if s is None or (isinstance(s, float) and math.isnan(s)) else str(s)) for s in smiles]
-    counts = np.array([site_counts(s) for s in smi], dtype=float).reshape(-1, 2)
+    sites = np.array([_sites(s) for s in smi], dtype=float).reshape(-1, 4)
     arom = np.array([float(is_aromatic(s)) for s in smi]).reshape(-1, 1)
     extra = np.array([float(extra_alcohol_groups(s)) for s in smi]).reshape(-1, 1)
-    return np.hstack([np.nan_to_num(counts, nan=0.0), arom, extra])
+    sites = np.nan_to_num(sites, nan=0.0)
+    return np.hstack([sites[:, :2], arom, extra, sites[:, 2:]])
 
 
 # ---------------------------------------------------------------- Flory-Huggins core
@@ -703,7 +797,8 @@ class Miscibility:
 
     ``chi``: Flory-Huggins parameter per reference volume ``v_ref`` (cm^3/mol, the smaller
     molar volume); ``chi_critical``: its critical value; ``ucst_c``: upper critical solution
-    temperature in C (None when the model has none); ``binodal``: coexisting compositions (a
+    temperature in C (None when the model has none); ``lcst_c``: lower critical solution
+    temperature in C, where a gap opens on heating (None when the model has none); ``binodal``: coexisting compositions (a
     dict of phases with vol %, wt % and mole % of liquid ``a``, and the mutual solubilities), or
     None when miscible; ``spinodal``: (low, high) volume fractions of ``a`` or None;
     ``confidence``: "high", "medium" or "low"; ``notes``: list of plain-language remarks.
@@ -723,6 +818,7 @@ class Miscibility:
     v_ref: float = math.nan
     interaction_mpa: float = math.nan
     model: str = ""
+    lcst_c: float | None = None
 
     @property
     def miscible(self) -> bool:
@@ -730,7 +826,8 @@ class Miscibility:
 
     def as_dict(self) -> dict:
         d = {k: getattr(self, k) for k in ("a", "b", "temperature_c", "state", "chi", "chi_critical",
-                                           "ucst_c", "confidence", "v_ref", "interaction_mpa", "model")}
+                                           "ucst_c", "lcst_c", "confidence", "v_ref", "interaction_mpa",
+                                           "model")}
         d["spinodal"] = None if self.spinodal is None else list(self.spinodal)
         d["binodal"] = self.binodal
         d["notes"] = list(self.notes)
@@ -757,20 +854,19 @@ def volume_at(v, expansion, t_c):
     return np.asarray(v, float) * np.exp(al * (np.asarray(t_c, float) - 25.0))
 
 
-def _compute(h1, h2, s1, s2, v1, v2, t_c, model, al1=np.nan, al2=np.nan):
+def _compute(h1, h2, s1, s2, v1, v2, t_c, model, al1=np.nan, al2=np.nan, moved=False):
     """Vectorised core: interaction, chi, chi_c and the binodal for arrays of pairs at t_c (C).
 
-    HSP and molar volumes are moved to t_c (:func:`hsp_at`, :func:`volume_at`); the site
-    densities are kept at their 25 C values."""
-    if t_c != 25.0:
+    HSP and molar volumes are moved to t_c (:func:`hsp_at`, :func:`volume_at`) unless ``moved``
+    says they already are; the site strengths are kept at their 25 C values."""
+    if t_c != 25.0 and not moved:
         h1, h2 = hsp_at(h1, al1, t_c), hsp_at(h2, al2, t_c)
         v1, v2 = volume_at(v1, al1, t_c), volume_at(v2, al2, t_c)
     a12 = model.interaction(h1, h2, s1, s2)
     e1, e2 = model.entropy_volume(v1, s1), model.entropy_volume(v2, s2)
     vr = np.minimum(e1, e2)
     n1, n2 = e1 / vr, e2 / vr
-    T = t_c + 273.15
-    chi = vr * a12 / (R_GAS * T)
+    chi = model.chi(a12, vr, s1, s2, t_c)
     cc = critical_chi(n1, n2)
     pa, pb = binodal(chi, n1, n2)
     return a12, vr, n1, n2, chi, cc, pa, pb
@@ -783,8 +879,15 @@ def _polyol_factor(model, sites) -> float:
     return 1.0 + model.polyol_c * float(np.nan_to_num(s[..., 3], nan=0.0))
 
 
-def _ucst_scalar(h1, h2, s1, s2, v1, v2, model, al1, al2, lo=-150.0, hi=400.0) -> float:
-    """:func:`ucst` for one pair with plain floats (fast path of :func:`miscibility`)."""
+def _critical_scalar(h1, h2, s1, s2, v1, v2, model, al1, al2, lo=-150.0, hi=400.0):
+    """(UCST, LCST) in C for one pair with plain floats (fast path of :func:`miscibility`).
+
+    g(T) = chi(T) - chi_c(T) is scanned on [lo, hi] in 5 K steps and each sign change refined by
+    bisection. UCST: the highest T where the gap closes on heating (g from > 0 to < 0); +inf if
+    the gap is still open at ``hi``; NaN if no gap closes on heating. LCST: the lowest T where a
+    gap opens on heating (g from < 0 to > 0), which only the cross hydrogen-bond term can give;
+    NaN if none.
+    """
     al1 = float(al1) if math.isfinite(float(al1)) else DEFAULT_EXPANSION
     al2 = float(al2) if math.isfinite(float(al2)) else DEFAULT_EXPANSION
     k1 = (1.25 * al1, 0.5 * al1, 1.22e-3 + 0.5 * al1)
@@ -795,6 +898,11 @@ def _ucst_scalar(h1, h2, s1, s2, v1, v2, model, al1, al2, lo=-150.0, hi=400.0) -
     g1, g2 = _polyol_factor(model, s1), _polyol_factor(model, s2)
     h1 = [float(x) for x in h1]
     h2 = [float(x) for x in h2]
+    x = 0.0
+    if model.assoc_z:
+        a1, b1 = (float(np.nan_to_num(s1[k])) for k in (4, 5))
+        a2, b2 = (float(np.nan_to_num(s2[k])) for k in (4, 5))
+        x = max(-(a1 - a2) * (b1 - b2), 0.0) * ASSOC_ENERGY / R_GAS
 
     def f(t):
         dt = t - 25.0
@@ -808,19 +916,35 @@ def _ucst_scalar(h1, h2, s1, s2, v1, v2, model, al1, al2, lo=-150.0, hi=400.0) -
         e2 = max(v2 * math.exp(al2 * dt) * g2, model.v_min)
         vr = min(e1, e2)
         cc = 0.5 * ((e1 / vr) ** -0.5 + (e2 / vr) ** -0.5) ** 2
-        return vr * a / (R_GAS * (t + 273.15)) - cc
+        tk = t + 273.15
+        chi = vr * a / (R_GAS * tk)
+        if x:
+            q = min(ASSOC_K0 * 1000.0 / (model.assoc_z * vr), 1.0)
+            chi -= math.log1p(q * math.expm1(x / tk))
+        return chi - cc
 
-    if f(lo) < 0:
-        return math.nan
-    if f(hi) > 0:
-        return math.inf
-    for _ in range(50):
-        m = 0.5 * (lo + hi)
-        if f(m) < 0:
-            hi = m
-        else:
-            lo = m
-    return 0.5 * (lo + hi)
+    def root(a, b, fa):
+        for _ in range(40):
+            m = 0.5 * (a + b)
+            if (f(m) > 0) == (fa > 0):
+                a = m
+            else:
+                b = m
+        return 0.5 * (a + b)
+
+    n = int(round((hi - lo) / 5.0))
+    ts = [lo + (hi - lo) * i / n for i in range(n + 1)]
+    gs = [f(t) for t in ts]
+    ucst_c = lcst_c = math.nan
+    for i in range(n):
+        ga, gb = gs[i], gs[i + 1]
+        if ga > 0 >= gb:
+            ucst_c = root(ts[i], ts[i + 1], ga)        # keep the highest
+        elif ga <= 0 < gb and math.isnan(lcst_c):
+            lcst_c = root(ts[i], ts[i + 1], ga)        # keep the lowest
+    if gs[-1] > 0:
+        ucst_c = math.inf
+    return ucst_c, lcst_c
 
 
 def ucst(h1, h2, s1, s2, v1, v2, model, al1=np.nan, al2=np.nan, lo=-150.0, hi=400.0):
@@ -839,7 +963,7 @@ def ucst(h1, h2, s1, s2, v1, v2, model, al1=np.nan, al2=np.nan, lo=-150.0, hi=40
         e1 = model.entropy_volume(volume_at(v1, al1, t), s1)
         e2 = model.entropy_volume(volume_at(v2, al2, t), s2)
         vr = np.minimum(e1, e2)
-        return vr * a / (R_GAS * (t + 273.15)) - critical_chi(e1 / vr, e2 / vr)
+        return model.chi(a, vr, s1, s2, t) - critical_chi(e1 / vr, e2 / vr)
 
     a = np.full(shape, lo)
     b = np.full(shape, hi)
@@ -907,7 +1031,7 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     e1, e2 = float(mdl.entropy_volume(v1t, s[0])), float(mdl.entropy_volume(v2t, s[1]))
     vr = min(e1, e2)
     n1, n2 = e1 / vr, e2 / vr
-    chi = vr * a12 / (R_GAS * (t + 273.15))
+    chi = float(mdl.chi(a12, vr, s[0], s[1], t))
     cc = 0.5 * (n1 ** -0.5 + n2 ** -0.5) ** 2
     pa, pb = _binodal_scalar(chi, n1, n2)
     h1 = np.array([ra_["delta_d"], ra_["delta_p"], ra_["delta_h"]])
@@ -915,8 +1039,10 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     m1, m2 = ra_["molar_mass"], rb_["molar_mass"]
     state = str(_classify(np.array(pa), np.array(pb), v1t, v2t, m1, m2))
     notes = []
-    u = _ucst_scalar(h1, h2, s[0], s[1], v1, v2, mdl, al1, al2)
+    u, lc = _critical_scalar(h1, h2, s[0], s[1], v1, v2, mdl, al1, al2)
     ucst_c = u if math.isfinite(u) else None
+    bp_low = min((x for x in (ra_["boiling_point_c"], rb_["boiling_point_c"]) if math.isfinite(x)), default=math.inf)
+    lcst_c = lc if math.isfinite(lc) and lc < bp_low else None   # above a boiling point: moot
     spin = bino = None
     if math.isfinite(pa):
         lo, hi = spinodal(chi, n1, n2)
@@ -928,14 +1054,18 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
                          "on cooling")
         else:
             notes.append(f"model UCST {ucst_c:.0f} C: the gap narrows on heating and closes there")
-        bp = min(x for x in (ra_["boiling_point_c"], rb_["boiling_point_c"], math.inf) if math.isfinite(x))
+        bp = min((x for x in (ra_["boiling_point_c"], rb_["boiling_point_c"]) if math.isfinite(x)), default=math.inf)
         if math.isfinite(bp) and ucst_c > bp:
             notes.append("the UCST lies above a boiling point: at atmospheric pressure the gap "
                          "does not close before the mixture boils")
     elif math.isinf(u):
         notes.append("the gap stays open up to 400 C in this model")
-    else:
+    elif lcst_c is None:
         notes.append("no UCST in this model: one phase at all temperatures from -150 C up")
+    if lcst_c is not None:
+        where = "below" if lcst_c < t else "above"
+        notes.append(f"model LCST {lcst_c:.0f} C ({where} {t:g} C): cross hydrogen bonds hold the pair "
+                     "together when cold and let go on heating, so a gap opens above it")
     wa, wb = _is_water(ra_), _is_water(rb_)
     if (wa or wb) and ucst_c is not None:
         notes.append("with water the model UCST is only a rough hint (water-1-butanol: model about "
@@ -944,12 +1074,13 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     if lcst:
         notes.append("water with an amine, pyridine or glycol ether: such pairs can show lower "
                      "critical solution behaviour (a gap that opens on heating, e.g. water-"
-                     "triethylamine above about 19 C), which this model does not describe")
+                     "triethylamine above about 19 C); the model's cross hydrogen bonds weaken "
+                     "on heating but seldom enough to open such a gap")
     conf = _confidence(chi, cc, ra_, rb_, lcst, notes)
     notes.append("a model estimate: confirm with a small test mix, and read the safety data sheets "
                  "of both liquids first")
     return Miscibility(ra_["name"], rb_["name"], t, state, chi, cc, ucst_c, bino, spin,
-                       conf, notes, float(vr), a12, mdl.name)
+                       conf, notes, float(vr), a12, mdl.name, lcst_c)
 
 
 #: Confidence bands on |ln(chi / chi_c)|: above the first "high", above the second "medium".
@@ -1031,10 +1162,8 @@ def state_matrix(liquids: pd.DataFrame, temperature: float = 25.0, model=None) -
     """(n, n) array of state strings for library-format rows (vectorised over all pairs)."""
     mdl, t, h, v, s, m = _prepared(liquids, temperature, model)
     a12, vr, n1, n2, chi, cc, pa, pb = _compute(
-        h[:, None, :], h[None, :, :], s[:, None, :], s[None, :, :], v[:, None], v[None, :], 25.0, mdl)
-    if t != 25.0:
-        chi = chi * 298.15 / (t + 273.15)
-        pa, pb = binodal(chi, n1, n2)
+        h[:, None, :], h[None, :, :], s[:, None, :], s[None, :, :], v[:, None], v[None, :], t, mdl,
+        moved=True)
     st = _classify(pa, pb, v[:, None], v[None, :], m[:, None], m[None, :])
     np.fill_diagonal(st, "miscible")
     return st
@@ -1055,7 +1184,7 @@ def miscible_pairs(liquids: pd.DataFrame, temperature: float = 25.0, model=None)
     a12 = mdl.interaction(h[:, None, :], h[None, :, :], s[:, None, :], s[None, :, :])
     e = mdl.entropy_volume(v, s)
     vr = np.minimum(e[:, None], e[None, :])
-    chi = vr * a12 / (R_GAS * (t + 273.15))
+    chi = mdl.chi(a12, vr, s[:, None, :], s[None, :, :], t)
     cc = critical_chi(e[:, None] / vr, e[None, :] / vr)
     out = chi <= cc
     np.fill_diagonal(out, True)

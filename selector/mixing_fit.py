@@ -13,10 +13,14 @@ search (the score surface is a step function, so a gradient method is of no use)
   per extra O-H group).
 
 The Kamlet-Taft floor of the donor/acceptor split (:data:`selector.mixing.ACID_FLOOR`), the
-entropy volume floor (:data:`selector.mixing.V_MIN`) and the induction factor of aromatic
-liquids (:data:`selector.mixing.AROMATIC_Q`) are set from published values, not fitted: no number is fitted to water mixtures alone, so leaving water out of a fit still
-determines every fitted number. ``acid_floor``, ``v_min`` and ``aromatic_q`` may be passed to the functions
-below to measure how much the results depend on them (the report's sensitivity table).
+entropy volume floor (:data:`selector.mixing.V_MIN`), the induction factor of aromatic
+liquids (:data:`selector.mixing.AROMATIC_Q`) and the numbers of the cross hydrogen-bond term
+(:data:`selector.mixing.ASSOC_ENERGY`, :data:`selector.mixing.ASSOC_K0`,
+:data:`selector.mixing.LATTICE_Z`) are set from published values, not fitted: no number is
+fitted to water mixtures alone, so leaving water out of a fit still determines every fitted
+number. ``acid_floor``, ``v_min``, ``aromatic_q`` and ``assoc_z`` (0 switches the cross
+hydrogen-bond term off) may be passed to the functions below to measure how much the results
+depend on them (the report's ablation and sensitivity tables).
 
 Score of a grid point on the training pairs: fraction classified right (miscible or not at
 25 C), minus 0.001 x the mean distance |ln(chi/chi_c)| of the wrong ones from the boundary
@@ -124,8 +128,19 @@ def _hb(h1, h2, r1, r2):
     return (h1[..., 2] * r1 - h2[..., 2] * r2) * (h1[..., 2] / r1 - h2[..., 2] / r2)
 
 
+def _assoc(f: PairFeatures, vr, t, cols=None, assoc_z: float | None = None):
+    """Cross hydrogen-bond lowering of chi (:meth:`selector.mixing.MixingModel.association`)."""
+    from .mixing import LATTICE_Z, MixingModel
+
+    z = LATTICE_Z if assoc_z is None else float(assoc_z)
+    if not z:
+        return 0.0
+    s1, s2 = (f.s1, f.s2) if cols is None else (f.s1[cols], f.s2[cols])
+    return MixingModel("assoc", assoc_z=z).association(s1, s2, vr, t)
+
+
 def _log_ratio(G, f: PairFeatures, acid_floor: float, v_min: float, aromatic_q: float = 1.0,
-               t_c: float = 25.0):
+               t_c: float = 25.0, assoc_z: float | None = None):
     """ln(chi / chi_c) for every grid point (rows) and pair (columns) at t_c."""
     from .mixing import hsp_at
 
@@ -136,13 +151,13 @@ def _log_ratio(G, f: PairFeatures, acid_floor: float, v_min: float, aromatic_q: 
     e2 = np.maximum(f.v2[None, :] * (1.0 + G[:, 2, None] * f.s2[None, :, 3]), v_min)
     vr = np.minimum(e1, e2)
     cc = 0.5 * ((e1 / vr) ** -0.5 + (e2 / vr) ** -0.5) ** 2
-    chi = vr * a / (R_GAS * (t_c + 273.15))
+    chi = vr * a / (R_GAS * (t_c + 273.15)) - _assoc(f, vr, t_c, assoc_z=assoc_z)
     with np.errstate(divide="ignore", invalid="ignore"):
         return np.log(np.maximum(chi, 1e-12) / cc)
 
 
 def _ucst_grid(G, f: PairFeatures, cols, acid_floor: float, v_min: float,
-               aromatic_q: float = 1.0) -> np.ndarray:
+               aromatic_q: float = 1.0, assoc_z: float | None = None) -> np.ndarray:
     """Model UCST (C) per grid point for the pairs ``cols`` (vectorised bisection, -150..400 C)."""
     from .mixing import hsp_at, volume_at
 
@@ -164,7 +179,7 @@ def _ucst_grid(G, f: PairFeatures, cols, acid_floor: float, v_min: float,
         e2 = np.maximum(volume_at(f.v2[cols][None, :], f.al2[cols][None, :], t) * g2, v_min)
         vr = np.minimum(e1, e2)
         cc = 0.5 * ((e1 / vr) ** -0.5 + (e2 / vr) ** -0.5) ** 2
-        return vr * a / (R_GAS * (t + 273.15)) - cc
+        return vr * a / (R_GAS * (t + 273.15)) - _assoc(f, vr, t, cols, assoc_z) - cc
 
     f_lo = fval(lo)
     for _ in range(30):
@@ -179,19 +194,22 @@ class GridScores:
     """Per-grid-point, per-pair pieces of the score, computed once and reused by every fold."""
 
     def __init__(self, f: PairFeatures, grid=None, acid_floor: float | None = None,
-                 v_min: float | None = None, aromatic_q: float | None = None):
-        from .mixing import ACID_FLOOR, AROMATIC_Q, V_MIN
+                 v_min: float | None = None, aromatic_q: float | None = None,
+                 assoc_z: float | None = None):
+        from .mixing import ACID_FLOOR, AROMATIC_Q, LATTICE_Z, V_MIN
 
         self.f = f
         self.acid_floor = ACID_FLOOR if acid_floor is None else float(acid_floor)
         self.v_min = V_MIN if v_min is None else float(v_min)
         self.aromatic_q = AROMATIC_Q if aromatic_q is None else float(aromatic_q)
+        self.assoc_z = LATTICE_Z if assoc_z is None else float(assoc_z)
         self.G = _grid_array(grid)
-        lr = _log_ratio(self.G, f, self.acid_floor, self.v_min, self.aromatic_q)
+        lr = _log_ratio(self.G, f, self.acid_floor, self.v_min, self.aromatic_q, assoc_z=self.assoc_z)
         self.right = (lr <= 0) == f.miscible[None, :]
         self.penalty = np.where(self.right, 0.0, np.abs(lr))
         self.ucst_cols = np.flatnonzero(np.isfinite(f.ucst))
-        u = _ucst_grid(self.G, f, self.ucst_cols, self.acid_floor, self.v_min, self.aromatic_q)
+        u = _ucst_grid(self.G, f, self.ucst_cols, self.acid_floor, self.v_min, self.aromatic_q,
+                       self.assoc_z)
         self.ucst_err = np.minimum(np.abs(u - f.ucst[self.ucst_cols][None, :]) / 50.0, 1.0)
 
     def best(self, train: np.ndarray, allowed: np.ndarray | None = None) -> np.ndarray:
@@ -211,7 +229,7 @@ class GridScores:
 
 def fit(pairs: pd.DataFrame | None = None, library: pd.DataFrame | None = None, train=None,
         acid_floor: float | None = None, v_min: float | None = None,
-        aromatic_q: float | None = None):
+        aromatic_q: float | None = None, assoc_z: float | None = None):
     """Fit (w_p, w_h, polyol_c) on the reference pairs (all, or the ``train`` mask).
 
     ``acid_floor``, ``v_min``, ``aromatic_q``: the set numbers (default
@@ -221,9 +239,9 @@ def fit(pairs: pd.DataFrame | None = None, library: pd.DataFrame | None = None, 
     from .mixing import MixingModel
 
     f = features(pairs, library)
-    gs = GridScores(f, acid_floor=acid_floor, v_min=v_min, aromatic_q=aromatic_q)
+    gs = GridScores(f, acid_floor=acid_floor, v_min=v_min, aromatic_q=aromatic_q, assoc_z=assoc_z)
     train = np.ones(len(f.pairs), bool) if train is None else np.asarray(train, bool)
     wp, wh, pc = gs.best(train)
     return MixingModel("donor/acceptor Flory-Huggins", 1.0, float(wp), float(wh), gs.acid_floor,
                        gs.v_min, "fitted on parameters/miscibility_pairs.csv", gs.aromatic_q,
-                       float(pc))
+                       float(pc), gs.assoc_z)

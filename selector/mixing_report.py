@@ -12,8 +12,9 @@ or not; and, where the source gives it, the three-way state by the 1 wt % rule o
   fitted numbers (w_p, w_h, polyol_c) are refitted on the remaining pairs
   (:mod:`selector.mixing_fit`) and the held-out pairs are predicted. Each pair is held out
   twice (once per liquid); both predictions count. The set numbers (Kamlet-Taft floor, entropy
-  volume floor, aromatic induction factor) come from published values and are not refitted; a
-  sensitivity table shows how much the first two matter;
+  volume floor, aromatic induction factor, the three numbers of the cross hydrogen-bond term)
+  come from published values and are not refitted; sensitivity tables show how much they
+  matter;
 * the plain Hansen Flory-Huggins form (nothing fitted);
 * UNIFAC, original (Fredenslund, Jones & Prausnitz, AIChE J. 21 (1975) 1086; parameters as
   carried by ``thermo.unifac``, UFSG/UFIP) and Dortmund (Weidlich & Gmehling, Ind. Eng. Chem.
@@ -34,8 +35,8 @@ import numpy as np
 import pandas as pd
 
 from .library import PARAMETERS_DIR, load_library
-from .mixing import (HBOND, PLAIN, MixingModel, _arrays, _classify, _compute, mole_to_mass,
-                     ucst)
+from .mixing import (ASSOC_ENERGY, ASSOC_K0, HBOND, PLAIN, MixingModel, _arrays, _classify,
+                     _compute, mole_to_mass, ucst)
 from .mixing_fit import GridScores, features
 
 REPORT_MD = PARAMETERS_DIR / "miscibility_accuracy.md"
@@ -75,7 +76,7 @@ def leave_one_liquid_out(f, gs: GridScores):
         test = ((pairs["cas_a"] == c) | (pairs["cas_b"] == c)).to_numpy()
         wp, wh, pc = gs.best(~test)
         mdl = MixingModel("fold", 1.0, wp, wh, gs.acid_floor, gs.v_min, aromatic_q=gs.aromatic_q,
-                          polyol_c=pc)
+                          polyol_c=pc, assoc_z=gs.assoc_z)
         idx = np.flatnonzero(test)
         st = predict_states(mdl, f, idx)
         folds.append({"held_out": names[c], "pairs": int(test.sum()), "w_p": wp, "w_h": wh,
@@ -257,7 +258,9 @@ def build_report(with_unifac: bool = True) -> str:
               f"polyol_c = {HBOND.polyol_c:g} (a fit on all pairs now gives w_p = {fitted_all[0]:g}, "
               f"w_h = {fitted_all[1]:g}, polyol_c = {fitted_all[2]:g}); set, not fitted: "
               f"Kamlet-Taft floor f = {HBOND.acid_floor:g}, entropy volume floor V_min = {HBOND.v_min:g} cm3/mol, "
-              f"aromatic induction factor q = {HBOND.aromatic_q:g} "
+              f"aromatic induction factor q = {HBOND.aromatic_q:g}, cross hydrogen bonds from Abraham's "
+              f"relation (E = {ASSOC_ENERGY / 1000:.1f} kJ/mol per unit strength gain, K0 = {ASSOC_K0:.4f} dm3/mol) "
+              f"on a lattice of z = {HBOND.assoc_z:g} "
               "(sources in `selector/mixing.py`).", ""]
     byfold = lolo.groupby("held_out")["right"].agg(["mean", "count", "sum"])
     byfold["wrong"] = byfold["count"] - byfold["sum"]
@@ -271,14 +274,19 @@ def build_report(with_unifac: bool = True) -> str:
     lines += ["Ablation, leave-one-liquid-out miscible-or-not accuracy with parts of the model switched off "
               "(the fitted numbers refitted per fold):", "", "| variant | in-sample (refitted on all pairs) | leave-one-liquid-out |",
               "|---|---|---|"]
-    for label, fl, vm, aq in (("the model (donor/acceptor split, entropy floor, aromatic induction, polyol entropy)", None, None, None),
+    for label, fl, vm, aq in (("the model (donor/acceptor split, entropy floor, aromatic induction, polyol entropy, "
+                               "cross hydrogen bonds)", None, None, None),
                               ("without the donor/acceptor split (plain (dH1 - dH2)^2)", 0.0, None, None),
                               ("without the entropy floor (V_min = 0)", None, 0.0, None),
                               ("without the aromatic induction factor (q = 1)", None, None, 1.0),
                               ("without the polyol entropy (polyol_c = 0)", None, None, None),
+                              ("without the cross hydrogen-bond term (z = 0)", None, None, None),
                               ("none of these (w_p, w_h fitted on the plain form)", 0.0, 0.0, 1.0)):
-        g2 = gs if fl is None and vm is None and aq is None else GridScores(f, acid_floor=fl, v_min=vm,
-                                                                             aromatic_q=aq)
+        no_assoc = label.startswith("without the cross") or label.startswith("none")
+        if fl is None and vm is None and aq is None and not no_assoc:
+            g2 = gs
+        else:
+            g2 = GridScores(f, acid_floor=fl, v_min=vm, aromatic_q=aq, assoc_z=0.0 if no_assoc else None)
         no_polyol = label.startswith("without the polyol") or label.startswith("none")
         mask = (g2.G[:, 2] == 0) if no_polyol else None
         ins = float(g2.right[int(np.flatnonzero((g2.G == g2.best(np.ones(n, bool), mask)).all(1))[0])].mean())
@@ -299,6 +307,16 @@ def build_report(with_unifac: bool = True) -> str:
             cells.append(f"**{c}**" if g2 is gs else c)
         lines.append(f"| {fl:g} | " + " | ".join(cells) + " |")
     lines.append("")
+    zs = (6.0, 8.0, HBOND.assoc_z, 12.0)
+    cells = []
+    for z in zs:
+        g2 = gs if z == HBOND.assoc_z else GridScores(f, assoc_z=z)
+        c = _pct(lolo_binary(f, g2))
+        cells.append(f"**{c}**" if g2 is gs else c)
+    lines += ["Sensitivity to the lattice coordination number z of the cross hydrogen-bond term "
+              "(leave-one-liquid-out miscible-or-not, the fitted numbers refitted per fold):", "",
+              "| z | " + " | ".join(f"{z:g}" for z in zs) + " |", "|---|" + "---|" * len(zs),
+              "| leave-one-liquid-out | " + " | ".join(cells) + " |", ""]
     lines += ["Fold-to-fold spread of the refitted numbers (leave-one-liquid-out): "
               + ", ".join(f"{c} {folds[c].min():g}..{folds[c].max():g} (median {folds[c].median():g})"
                           for c in ("w_p", "w_h", "polyol_c")) + ".", ""]

@@ -44,6 +44,9 @@ def lib():
     ("water", "ethyl acetate", {"partially miscible"}),          # ~8 wt% / 3 wt% (Sorensen & Arlt 1979, from memory)
     ("dimethyl sulfoxide", "hexane", {"immiscible", "partially miscible"}),  # common practice: two layers
     ("ethanol", "hexane", {"miscible"}),                         # common practice
+    ("water", "pyridine", {"miscible"}),                         # common practice
+    ("water", "diethylamine", {"miscible"}),                     # common practice
+    ("water", "triethylamine", {"immiscible", "partially miscible"}),  # LCST ~18.7 C (Sorensen & Arlt 1979, from memory)
 ])
 def test_common_pairs_at_25c(a, b, expected):
     assert miscibility(a, b).state in expected
@@ -198,6 +201,12 @@ def test_user_liquid_without_structure():
     r = miscibility(me, "water")
     assert r.state == "immiscible"                     # a hydrocarbon-like oil: common practice
     assert any("SMILES" in n for n in r.notes)
+    # two user liquids without boiling points, with a gap that closes on heating (a model UCST):
+    # HSP of methanol and hexane from the published tables bundled in the library
+    polar = {"name": "my alcohol", "delta_d": 14.7, "delta_p": 12.3, "delta_h": 22.3, "molar_volume": 40.7}
+    oil = {"name": "my alkane", "delta_d": 14.9, "delta_p": 0.0, "delta_h": 0.0, "molar_volume": 131.6}
+    r = miscibility(polar, oil)
+    assert r.state != "miscible" and r.ucst_c is not None and r.ucst_c > 25.0
 
 
 def test_matrix_is_symmetric_and_agrees_with_pairs(lib):
@@ -348,8 +357,55 @@ def test_leave_one_liquid_out_accuracy():
 
     f = features()
     lolo, _ = leave_one_liquid_out(f, GridScores(f))
-    assert lolo["right"].mean() >= 0.90
-    assert lolo.loc[lolo.held_out == "water", "right"].mean() >= 0.85
+    # measured 94.0 % (parameters/miscibility_accuracy.md); fails on a loss of more than 1 point
+    assert lolo["right"].mean() >= 0.93
+    assert lolo.loc[lolo.held_out == "water", "right"].mean() >= 0.90
+
+
+def test_cross_hydrogen_bond_term_follows_abrahams_relation():
+    # Abraham, Duce, Prior, Barratt, Morris & Taylor, J. Chem. Soc. Perkin Trans. 2 (1989) 1355
+    # (from memory): 1:1 hydrogen-bond complexes in CCl4 at 25 C obey
+    # log10 K / (dm3/mol) = 7.354 a b - 1.094. A contact on a lattice of V_r cm3/mol sites with
+    # z = 10 neighbours (UNIQUAC's coordination number, Abrams & Prausnitz 1975) bonds with
+    # weight q exp(E x / RT) = K(x) (1000 / V_r) / z, which the term must reproduce at 25 C.
+    from selector.mixing import MixingModel
+
+    m = MixingModel("t", assoc_z=10.0)
+    for (a1, b1), (a2, b2), vr in [((0.58, 0.47), (0.0, 0.64), 43.4),    # water, pyridine
+                                   ((0.58, 0.47), (0.05, 0.70), 43.4),   # water, diethylamine
+                                   ((0.44, 0.0), (0.0, 0.48), 74.0)]:    # chloroform, acetone
+        x = -(a1 - a2) * (b1 - b2)
+        k_abraham = 10.0 ** (7.354 * x - 1.094)
+        expected = math.log1p(k_abraham * 1000.0 / vr / 10.0 - 10.0 ** -1.094 * 1000.0 / vr / 10.0)
+        got = float(m.association([a1, b1], [a2, b2], vr))
+        assert got == pytest.approx(expected, rel=1e-6)
+        assert float(m.association([a2, b2], [a1, b1], vr)) == pytest.approx(got, rel=1e-12)
+    # no gain, no term: water with an ether (weaker acceptor than water), two alkanes
+    assert float(m.association([0.58, 0.47], [0.0, 0.45], 43.4)) == 0.0
+    assert float(m.association([0.0, 0.0], [0.0, 0.0], 100.0)) == 0.0
+    # the bond weakens on heating
+    assert float(m.association([0.58, 0.47], [0.0, 0.64], 43.4, 80.0)) < float(
+        m.association([0.58, 0.47], [0.0, 0.64], 43.4, 25.0))
+
+
+def test_cross_hydrogen_bond_term_helps_held_out_pairs():
+    # Reference pairs (parameters/miscibility_pairs.csv): switching the term off (z = 0) must
+    # cost leave-one-liquid-out accuracy, and water-pyridine / water-diethylamine (miscible,
+    # common practice) are the pairs it exists for.
+    from selector.mixing_fit import GridScores, features
+    from selector.mixing_report import lolo_binary
+
+    f = features()
+    assert lolo_binary(f, GridScores(f)) > lolo_binary(f, GridScores(f, assoc_z=0.0)) + 0.01
+    off = _without_cross_term()
+    assert miscibility("water", "pyridine", model=off).state != "miscible"
+    assert miscibility("water", "pyridine").state == "miscible"
+
+
+def _without_cross_term():
+    import dataclasses
+
+    return dataclasses.replace(HBOND, assoc_z=0.0)
 
 
 # ---------------------------------------------------------------- bad input
