@@ -56,6 +56,8 @@ OUT_COLS = HSP_COLS + ["molar_volume"]
 DOMAIN_THRESHOLD = 0.3
 COVERAGE = 0.90
 ESTIMATED_SOURCE = "estimated from structure (likewise HSPEstimator)"
+#: Tag of the model design; calibration.json written for another design is not used.
+MODEL_TAG = "group-energy ridge stacked under extra-trees, v4"
 
 
 def _progress(msg: str) -> None:
@@ -126,9 +128,17 @@ class HSPEstimator:
     ``predict(smiles)`` returns an (n, 3) array; :meth:`predict_interval` adds the 90 %
     (``coverage``) prediction interval. Invalid SMILES raise :class:`SelectorError` listing them.
 
+    Model (two stages, see the module docstring): a group-energy ridge model
+    (:class:`selector.estimation_linear.GroupEnergyRidge`) whose out-of-fold predictions are
+    extra features, then one extra-trees regressor per component, fitted on sqrt(delta) where
+    ``sqrt_targets`` says so (the prediction is the square of the mean over trees).
+
     Parameters
     ----------
-    n_estimators, max_features, min_samples_leaf : ExtraTreesRegressor settings, per component.
+    n_estimators, min_samples_leaf : ExtraTreesRegressor settings.
+    max_features : float or 3 floats (dD, dP, dH), fraction of features tried per split.
+    sqrt_targets : 3 booleans, fit the trees of that component on the square root.
+    stack_linear : bool, add the group-energy ridge predictions as features.
     coverage : float, nominal coverage of the prediction intervals (default 0.9).
     calibration_folds : int, scaffold-grouped folds used inside :meth:`fit` to calibrate the
         intervals out-of-fold (0 = do not calibrate; intervals then need :attr:`factors_` set).
@@ -143,19 +153,22 @@ class HSPEstimator:
     0.8
     """
 
-    def __init__(self, n_estimators=150, max_features=0.15, min_samples_leaf=1, coverage=0.9,
+    def __init__(self, n_estimators=150, max_features=(0.15, 0.15, 0.3), min_samples_leaf=1,
+                 sqrt_targets=(False, True, True), stack_linear=True, coverage=0.9,
                  calibration_folds=5, random_state=0, n_jobs=None):
         self.n_estimators = n_estimators
         self.max_features = max_features
         self.min_samples_leaf = min_samples_leaf
+        self.sqrt_targets = sqrt_targets
+        self.stack_linear = stack_linear
         self.coverage = coverage
         self.calibration_folds = calibration_folds
         self.random_state = random_state
         self.n_jobs = n_jobs
 
     # scikit-learn protocol (written out so that sklearn is imported only when needed)
-    _PARAMS = ("n_estimators", "max_features", "min_samples_leaf", "coverage", "calibration_folds",
-               "random_state", "n_jobs")
+    _PARAMS = ("n_estimators", "max_features", "min_samples_leaf", "sqrt_targets", "stack_linear",
+               "coverage", "calibration_folds", "random_state", "n_jobs")
 
     def get_params(self, deep=True):
         return {k: getattr(self, k) for k in self._PARAMS}
@@ -164,7 +177,7 @@ class HSPEstimator:
         for k, v in params.items():
             if k not in self._PARAMS:
                 raise ValueError(f"invalid parameter {k!r} for HSPEstimator; valid: {', '.join(self._PARAMS)}")
-            setattr(self, k, v)
+            setattr(self, k, tuple(v) if isinstance(v, list) else v)
         return self
 
     def __repr__(self):
@@ -190,54 +203,85 @@ class HSPEstimator:
             raise InputTableError(what, bad)
         return mols
 
+    def _per_component(self, value, name):
+        if isinstance(value, (list, tuple, np.ndarray)):
+            if len(value) != 3:
+                raise SelectorError(f"{name} must be one value or three (dD, dP, dH), got {value!r}")
+            return list(value)
+        return [value] * 3
+
     def _check_params(self):
         if not (isinstance(self.n_estimators, (int, np.integer)) and self.n_estimators >= 2):
             raise SelectorError("n_estimators must be an integer >= 2 (the interval uses the spread of the trees)")
         if not (0.0 < float(self.coverage) < 1.0):
             raise SelectorError(f"coverage must be between 0 and 1, got {self.coverage!r}")
+        self._per_component(self.max_features, "max_features")
+        self._per_component(self.sqrt_targets, "sqrt_targets")
 
     def _new_tree_model(self, j):
         from sklearn.ensemble import ExtraTreesRegressor
 
         seed = None if self.random_state is None else int(self.random_state) + 17 * j
-        return ExtraTreesRegressor(n_estimators=int(self.n_estimators), max_features=self.max_features,
+        mf = self._per_component(self.max_features, "max_features")[j]
+        return ExtraTreesRegressor(n_estimators=int(self.n_estimators), max_features=mf,
                                    min_samples_leaf=self.min_samples_leaf, random_state=seed,
                                    n_jobs=self.n_jobs)
 
     @staticmethod
-    def _tree_stats(model, X):
+    def _per_tree(model, X):
         X32 = np.ascontiguousarray(X, dtype=np.float32)  # the dtype the fitted trees work in
         # tree_.predict skips sklearn's per-call input validation (X is validated once here)
         try:
-            per_tree = np.stack([t.tree_.predict(X32)[:, 0] for t in model.estimators_])
+            return np.stack([t.tree_.predict(X32)[:, 0] for t in model.estimators_])
         except (AttributeError, TypeError, ValueError, IndexError):  # other scikit-learn internals
-            per_tree = np.stack([t.predict(X) for t in model.estimators_])
-        return per_tree.mean(axis=0), per_tree.std(axis=0)
+            return np.stack([t.predict(X) for t in model.estimators_])
 
-    def _fit_models(self, X, Y):
+    def fit_state(self, X, counts, Y, groups):
+        """Fit both stages on a feature matrix, :func:`~selector.estimation_linear.fragment_counts`
+        and targets; returns the fitted state (used by :meth:`fit` and the cross-validation)."""
+        from .estimation_linear import GroupEnergyRidge, out_of_fold
+
+        lin = None
+        Xa = X
+        if self.stack_linear:
+            lin = GroupEnergyRidge().fit(counts, X, Y)
+            Xa = np.hstack([X, out_of_fold(counts, X, Y, groups, 5, (self.random_state or 0) + 1)])
+        sq = self._per_component(self.sqrt_targets, "sqrt_targets")
         models = []
         for j in range(3):
             m = self._new_tree_model(j)
-            m.fit(X, Y[:, j])
+            m.fit(Xa, np.sqrt(Y[:, j]) if sq[j] else Y[:, j])
             models.append(m)
-        return models
+        return lin, models
 
-    def _predict_X(self, X):
+    def predict_state(self, state, X, counts):
+        """``(pred, spread)``, (n, 3) each in MPa^0.5, of a state from :meth:`fit_state`."""
+        lin, models = state
+        Xa = X if lin is None else np.hstack([X, lin.predict(counts, X)])
+        sq = self._per_component(self.sqrt_targets, "sqrt_targets")
         pred = np.empty((len(X), 3))
         spread = np.empty((len(X), 3))
-        for j, m in enumerate(self.models_):
-            pred[:, j], spread[:, j] = self._tree_stats(m, X)
+        for j, m in enumerate(models):
+            t = self._per_tree(m, Xa)
+            if sq[j]:
+                pred[:, j] = np.square(t.mean(axis=0))
+                spread[:, j] = np.square(t).std(axis=0)
+            else:
+                pred[:, j] = t.mean(axis=0)
+                spread[:, j] = t.std(axis=0)
         return pred, spread
 
     # ------------------------------------------------------------------ public
     def fit(self, smiles, y, groups=None, features=None):
         """Fit on SMILES and an (n, 3) array of HSP in MPa^0.5.
 
-        ``groups`` (optional) are the cross-validation groups used to calibrate the intervals
-        (default: Murcko scaffolds, see :func:`scaffold_groups`); ``features`` is an optional
-        precomputed :func:`~selector.estimation_features.featurize` matrix for the same rows.
+        ``groups`` (optional) are the cross-validation groups used for the stacking features
+        and to calibrate the intervals (default: Murcko scaffolds, see
+        :func:`scaffold_groups`); ``features`` is an optional precomputed
+        :func:`~selector.estimation_features.featurize` matrix for the same rows.
         """
         from .estimation_features import featurize
+        from .estimation_linear import fragment_counts
 
         self._check_params()
         mols = self._mols(smiles, "training SMILES")
@@ -250,25 +294,32 @@ class HSPEstimator:
             raise SelectorError(f"need at least 10 training molecules, got {len(mols)}")
         X = featurize(mols) if features is None else np.asarray(features, float)
         X = np.nan_to_num(X)
-        self.models_ = self._fit_models(X, Y)
+        counts = fragment_counts(mols)
+        if groups is None:
+            groups = scaffold_groups(mols)
+        groups = np.asarray(groups)
+        self.models_ = self.fit_state(X, counts, Y, groups)
         self.n_features_in_ = X.shape[1]
         self.factors_ = None
         self.eps_ = None
         k = int(self.calibration_folds or 0)
         if k >= 2:
-            if groups is None:
-                groups = scaffold_groups(mols)
-            self.calibrate_(X, Y, groups, k)
+            self.calibrate_(X, Y, groups, k, counts)
         return self
 
-    def calibrate_(self, X, Y, groups, n_splits=5):
-        """Set the interval factors from out-of-fold residuals (grouped folds)."""
+    def calibrate_(self, X, Y, groups, n_splits=5, counts=None, mols=None):
+        """Set the interval factors from out-of-fold residuals (grouped folds); ``counts``
+        (or ``mols``) give the group counts of the rows for the stacking stage."""
+        from .estimation_linear import fragment_counts
+
+        if counts is None:
+            counts = fragment_counts(mols)
+        groups = np.asarray(groups)
         P = np.zeros_like(Y)
         S = np.zeros_like(Y)
         for tr, te in grouped_folds(groups, n_splits, self.random_state or 0):
-            models = self._fit_models(X[tr], Y[tr])
-            for j, m in enumerate(models):
-                P[te, j], S[te, j] = self._tree_stats(m, X[te])
+            st = self.fit_state(X[tr], [counts[i] for i in tr], Y[tr], groups[tr])
+            P[te], S[te] = self.predict_state(st, X[te], [counts[i] for i in te])
         self.oof_pred_, self.oof_spread_ = P, S
         self.eps_, self.factors_ = conformal_factors(Y, P, S, self.coverage)
         return self
@@ -277,14 +328,21 @@ class HSPEstimator:
         """(n, 3) array of estimated delta_d, delta_p, delta_h in MPa^0.5."""
         return self.predict_interval(smiles)[0]
 
-    def predict_interval(self, smiles=None, features=None):
-        """``(pred, low, high)``, each (n, 3) in MPa^0.5; low is clipped at 0."""
+    def predict_interval(self, smiles=None, features=None, mols=None):
+        """``(pred, low, high)``, each (n, 3) in MPa^0.5; low is clipped at 0. Give ``smiles``,
+        or RDKit ``mols`` (already vetted) with an optional precomputed ``features`` matrix."""
         from .estimation_features import featurize
+        from .estimation_linear import fragment_counts
 
         if not hasattr(self, "models_"):
             raise SelectorError("HSPEstimator is not fitted yet: call fit(smiles, y) first")
-        X = featurize(self._mols(smiles, "SMILES")) if features is None else features
-        pred, spread = self._predict_X(np.nan_to_num(np.asarray(X, float)))
+        if mols is None:
+            if smiles is None:
+                raise SelectorError("predict_interval needs the SMILES (or the molecules) to estimate")
+            mols = self._mols(smiles, "SMILES")
+        X = featurize(mols) if features is None else features
+        X = np.nan_to_num(np.asarray(X, float))
+        pred, spread = self.predict_state(self.models_, X, fragment_counts(mols))
         if self.factors_ is None:
             nan = np.full_like(pred, np.nan)
             return pred, nan, nan
@@ -485,12 +543,15 @@ class _Bundle:
             _progress(f"likewise: training the HSP estimator on {len(df)} published values "
                       "(first use in this session, about 10-20 s)...")
         X = training_features(df, mols)
+        if cal.get("model") != MODEL_TAG:
+            cal = {}
         params = cal.get("params", {})
         est = HSPEstimator(calibration_folds=0, n_jobs=-1)
         if params:
             est.set_params(**{k: v for k, v in params.items() if k in HSPEstimator._PARAMS and k != "n_jobs"})
             est.calibration_folds = 0
-        est.fit(df["smiles"].tolist(), df[HSP_COLS].to_numpy(float), features=X)
+        groups = scaffold_groups(mols, df["smiles"].tolist())
+        est.fit(df["smiles"].tolist(), df[HSP_COLS].to_numpy(float), groups=groups, features=X)
         sha_ok = cal.get("training_sha256") == _file_sha256(TRAINING_CSV)
         if cal.get("hsp_factors") and sha_ok:
             est.eps_, est.factors_ = cal["hsp_eps"], cal["hsp_factors"]
@@ -498,7 +559,7 @@ class _Bundle:
             if verbose:
                 _progress("likewise: calibration file missing or stale; calibrating the intervals "
                           "out-of-fold (slower)...")
-            est.calibrate_(np.nan_to_num(X), df[HSP_COLS].to_numpy(float), scaffold_groups(mols), 5)
+            est.calibrate_(np.nan_to_num(X), df[HSP_COLS].to_numpy(float), groups, 5, mols=mols)
         self.hsp = est
         vm, vv, _ = library_volume_table()
         self.volume = MolarVolumeModel().fit(vm, vv)
@@ -689,7 +750,7 @@ def estimate(smiles, library=None, names=None, progress=False, domain_threshold=
             if progress:
                 _progress_bar(min(start + chunk, len(emols)), len(emols))
         X = np.vstack(parts)
-        pred, low, high = b.hsp.predict_interval(features=X)
+        pred, low, high = b.hsp.predict_interval(features=X, mols=emols)
         vol, unseen = b.volume.predict_with_unseen(emols)
         lf = b.volume.log_factor_ if b.volume.log_factor_ is not None else np.nan
         sims = tanimoto(similarity_bits(emols), b.train_bits)

@@ -74,16 +74,24 @@ def _metrics(Y, P):
     return mae, rmse, r2
 
 
-def cross_validate(X, Y, groups, est: E.HSPEstimator, n_splits=5, seed=SEED):
-    """Out-of-fold predictions, tree spreads and fold index of each row."""
+def cross_validate(X, Y, groups, est: E.HSPEstimator, n_splits=5, seed=SEED, mols=None, counts=None):
+    """Out-of-fold predictions, tree spreads and fold index of each row. ``mols`` (or their
+    :func:`~selector.estimation_linear.fragment_counts`) feed the stacking stage; the stacking
+    features of each training part come from folds inside that part only."""
+    from .estimation_linear import fragment_counts
+
+    if counts is None:
+        if mols is None:
+            raise ValueError("cross_validate needs the molecules (mols=) or their fragment counts")
+        counts = fragment_counts(mols)
+    groups = np.asarray(groups)
     folds = E.grouped_folds(groups, n_splits, seed)
     P = np.zeros_like(Y)
     S = np.zeros_like(Y)
     fold_of = np.zeros(len(Y), dtype=int)
     for k, (tr, te) in enumerate(folds):
-        models = est._fit_models(X[tr], Y[tr])
-        for j, m in enumerate(models):
-            P[te, j], S[te, j] = est._tree_stats(m, X[te])
+        state = est.fit_state(X[tr], [counts[i] for i in tr], Y[tr], groups[tr])
+        P[te], S[te] = est.predict_state(state, X[te], [counts[i] for i in te])
         fold_of[te] = k
     return P, S, fold_of
 
@@ -162,7 +170,7 @@ def evaluate(quick=False, seed=SEED, with_baseline=True, log=print):
     if quick:
         est.set_params(n_estimators=30)
     log(f"{len(df)} training compounds, {len(set(groups))} CV groups, {X.shape[1]} features")
-    P, S, fold_of = cross_validate(X, Y, groups, est, 5, seed)
+    P, S, fold_of = cross_validate(X, Y, groups, est, 5, seed, mols=mols)
     mae, rmse, r2 = _metrics(Y, P)
     cov, width = cross_conformal_coverage(Y, P, S, fold_of, est.coverage)
     sim = nearest_similarity_oof(similarity_bits(mols), fold_of)
@@ -256,7 +264,8 @@ def main(argv=None) -> int:
         return 0
     cal = {
         "note": "Interval factors for selector.estimation, written by python -m selector.train_estimator",
-        "params": {k: v for k, v in res["params"].items() if k != "n_jobs"},
+        "params": {k: (list(v) if isinstance(v, tuple) else v) for k, v in res["params"].items() if k != "n_jobs"},
+        "model": E.MODEL_TAG,
         "hsp_eps": res["hsp_eps"], "hsp_factors": res["hsp_factors"],
         "volume_log_factor": res["volume_log_factor"], "domain_threshold": E.DOMAIN_THRESHOLD,
         "training_sha256": E._file_sha256(E.TRAINING_CSV), "seed": SEED,

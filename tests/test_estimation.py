@@ -125,11 +125,13 @@ def test_clone_params_and_determinism():
     est = E.HSPEstimator(n_estimators=8, calibration_folds=3, random_state=3)
     c = clone(est)
     assert c.get_params() == est.get_params() and not hasattr(c, "models_")
-    a = est.fit(smi, Y, features=X[sub]).predict_interval(features=X[new])
-    b = clone(est).fit(smi, Y, features=X[sub]).predict_interval(features=X[new])
+    newm = [mols[i] for i in new]
+    a = est.fit(smi, Y, features=X[sub]).predict_interval(features=X[new], mols=newm)
+    b = clone(est).fit(smi, Y, features=X[sub]).predict_interval(features=X[new], mols=newm)
     for u, v in zip(a, b):
         np.testing.assert_array_equal(u, v)       # same seed: identical results
-    other = clone(est).set_params(random_state=4).fit(smi, Y, features=X[sub]).predict_interval(features=X[new])
+    other = clone(est).set_params(random_state=4).fit(smi, Y, features=X[sub]).predict_interval(
+        features=X[new], mols=newm)
     assert not np.array_equal(a[0], other[0])     # another seed: other trees
     assert np.all(a[1] <= a[0]) and np.all(a[0] <= a[2])
     with pytest.raises(ValueError, match="invalid parameter"):
@@ -147,7 +149,7 @@ def reduced_cv():
     Y = df[E.HSP_COLS].to_numpy(float)
     groups = E.scaffold_groups(mols, df["smiles"].tolist())
     est = E.HSPEstimator(n_estimators=25, random_state=0, n_jobs=-1)
-    P, S, fold_of = cross_validate(X, Y, groups, est, 5, 0)
+    P, S, fold_of = cross_validate(X, Y, groups, est, 5, 0, mols=mols)
     cov, _ = cross_conformal_coverage(Y, P, S, fold_of, 0.9)
     return Y, P, cov
 

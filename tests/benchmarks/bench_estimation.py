@@ -70,7 +70,7 @@ def main(argv=None) -> int:
     groups = E.scaffold_groups(mols, df["smiles"].tolist())
     est = E.HSPEstimator(n_estimators=150 if full else 40, random_state=0, n_jobs=-1)
     t = time.perf_counter()
-    P, _, _ = cross_validate(X, Y, groups, est, 5, 0)
+    P, _, _ = cross_validate(X, Y, groups, est, 5, 0, mols=mols)
     tm = time.perf_counter() - t
     t = time.perf_counter()
     Pb = baseline_cv(X, Y, groups, feature_names(), 100 if full else 40, 0)
