@@ -475,7 +475,7 @@ def _feature_cache_path(sha: str) -> Path:
     from .estimation_features import MORGAN_BITS
     from .library import user_data_dir
 
-    tag = hashlib.sha256(f"{sha}|{rdkit.__version__}|{MORGAN_BITS}|v3".encode()).hexdigest()[:16]
+    tag = hashlib.sha256(f"{sha}|{rdkit.__version__}|{MORGAN_BITS}|v4".encode()).hexdigest()[:16]
     return user_data_dir() / "cache" / f"estimator_features_{tag}.npy"
 
 
