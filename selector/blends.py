@@ -203,7 +203,7 @@ def _miscibility(cand, temperature):
 
 def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, pool=2000,
                   min_gain=DEFAULT_MIN_GAIN, hazard_rank=None, resolution=0.5, ternary_pool=None,
-                  workers=None):
+                  workers=None, method="screened", ra_cap=None):
     """Core search on scaled candidate points ``X`` (n, 3) and scaled target ``t`` (3,).
 
     Returns a dict of arrays: ``idx`` (p, 3) candidate indices (-1 for unused slots), ``f`` (p, 3)
@@ -212,9 +212,12 @@ def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, p
     each set ordered by ``key``: Ra in steps of
     ``resolution`` (MPa^0.5), then the worst ``hazard_rank`` of the components (0-3, 4 for
     unclassified; optional (n,) array), then Ra. ``miscible``: optional (n, n) bool; pairs marked
-    False are never blended. Exact: a triple is skipped only when the distance of the target to its
-    plane already rules it out. ``workers``: threads for the ternary scan (default: up to
-    2; numpy releases the GIL in its array loops; the result does not depend on it).
+    False are never blended. Exact: a triple is skipped only when a lower bound on its Ra already
+    rules it out. ``method``: ``"screened"`` (default; :mod:`selector.blends_scan`: seeded pool,
+    row cuts along a direction, one matrix screen per row, plane + in-plane lower bound, one
+    thread) or ``"plane"`` (the plane-distance bound evaluated for every triple, ``workers``
+    threads, default up to 2); both keep the same pool keys. ``ra_cap`` (MPa^0.5, optional):
+    blends of three with Ra >= ra_cap are not kept (they rank after every one below it).
     """
     X = np.asarray(X, float)
     n = len(X)
@@ -256,8 +259,17 @@ def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, p
             import os
 
             workers = min(2, os.cpu_count() or 1)
-        parts.append(_ternary_search(Z, G, gd, B, hz, single, _check_min_fraction(min_fraction, 3),
-                                     min_gain, tp, res, key, workers=workers))
+        m3 = _check_min_fraction(min_fraction, 3)
+        if method == "screened":
+            from .blends_scan import ternary_screened
+
+            cap = np.inf if ra_cap is None else float(ra_cap)
+            parts.append(ternary_screened(Z, G, gd, B, hz, m3, min_gain, tp, res, key, ra_cap=cap))
+        elif method == "plane":
+            parts.append(_ternary_search(Z, G, gd, B, hz, single, m3, min_gain, tp, res, key,
+                                         workers=workers))
+        else:
+            raise SelectorError(f"unknown ternary search method {method!r}; use 'screened' or 'plane'")
     idx, f, rr, kk = (np.concatenate(x) for x in zip(*parts))
     return {"idx": idx, "f": f, "ra": rr, "key": kk}
 
@@ -574,6 +586,26 @@ def _pareto(ra, cost):
     return out
 
 
+def _display_cap(h, target, top, max_uses, resolution, use):
+    """Ra (MPa^0.5) from which no blend of three can be among the ``top`` rows shown.
+
+    Rows are shown in Ra steps of ``resolution``, single liquids first within a step, each liquid
+    in at most ``max_uses`` rows. If s single liquids lie in steps <= b, then before step b + 1
+    at least s u / (u + 3) rows are picked (u = ``max_uses``): a single is skipped only when its
+    liquid is used u times, and each picked row uses at most 3 liquids. So with
+    s >= top (u + 3) / u, nothing from step b + 1 on is shown. None when not applicable (no
+    ``top``, too few liquids, or ``use`` false, e.g. a cost front that needs the whole pool).
+    """
+    if not use or top is None:
+        return None
+    need = int(math.ceil(top * (max_uses + 3) / max_uses))
+    if len(h) < need:
+        return None
+    d = np.sort(np.asarray(_ra(h, target), float))[need - 1]
+    res = float(resolution)
+    return (math.floor(d / res) + 1) * res
+
+
 def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
                 temperature: float = 25.0, top: int | None = 20, library: pd.DataFrame | None = None,
                 max_uses: int = 3, min_gain: float = DEFAULT_MIN_GAIN, cost_per_litre=None,
@@ -625,7 +657,8 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
 
     hz = hazard_columns(cand)["hazard_rank"].to_numpy(float)
     res = search_arrays(h * SCALE, tgt.hsp * SCALE, max_components=kmax, min_fraction=m, miscible=mis,
-                        pool=pool, min_gain=gain, hazard_rank=hz, resolution=resolution)
+                        pool=pool, min_gain=gain, hazard_rank=hz, resolution=resolution,
+                        ra_cap=_display_cap(h, tgt.hsp, top, max_uses, resolution, cost is None))
     order = _display_order(res)
     pick = _diverse(order, res["idx"], max_uses, top)
     full = _table(tgt, cand, h, res["idx"], res["f"], res["ra"], t_c, cost)

@@ -96,6 +96,90 @@ def test_search_equals_exhaustive_enumeration():
         assert np.allclose(np.sort(two["ra"][two["idx"][:, 2] >= 0]), got, atol=1e-12)
 
 
+def _enumerated_pool(X, t, hz, m, gain, pool, res, cap=np.inf):
+    """Every triple solved one by one (closed form), kept if it beats its pairs by ``gain``,
+    ranked by the search's documented key: Ra step, worst hazard level, Ra."""
+    n = len(X)
+    B = {p: float(binary_fractions(X[p[0]], X[p[1]], t, m)[1]) for p in itertools.combinations(range(n), 2)}
+    rows = []
+    for i, j, k in itertools.combinations(range(n), 3):
+        d = float(ternary_fractions(X[i], X[j], X[k], t, m)[1])
+        if d < min(B[(i, j)], B[(i, k)], B[(j, k)]) - gain and d < cap:
+            b = np.floor(d / res)
+            rows.append((b * 10 + max(hz[i], hz[j], hz[k]) + min(d / res - b, 0.999), d, frozenset((i, j, k))))
+    rows.sort(key=lambda r: r[0])
+    return rows[:pool]
+
+
+@pytest.mark.parametrize("seed", range(5))
+def test_screened_search_equals_enumeration_with_hazard_levels(seed):
+    # random clouds (some targets outside the cloud, where the row cuts along a direction act),
+    # random hazard levels 0-4, Ra cap: the screened search keeps exactly the enumerated pool
+    rng = np.random.default_rng(100 + seed)
+    n = int(rng.integers(14, 26))
+    X = rng.normal(size=(n, 3)) * 6
+    t = rng.normal(size=3) * (2 if seed % 2 else 9)
+    hz = rng.integers(0, 5, n).astype(float)
+    cap = [np.inf, 6.0][seed % 2]
+    res = search_arrays(X, t, max_components=3, min_fraction=0.05, pool=30, ternary_pool=30, min_gain=0.1,
+                        hazard_rank=hz, ra_cap=None if np.isinf(cap) else cap)
+    tern = res["idx"][:, 2] >= 0
+    exp = _enumerated_pool(X, t, hz, 0.05, 0.1, 30, 0.5, cap)
+    assert np.allclose(res["key"][tern], [r[0] for r in exp], atol=1e-9)
+    assert np.allclose(res["ra"][tern], [r[1] for r in exp], atol=1e-9)
+    assert [frozenset(r) for r in res["idx"][tern]] == [r[2] for r in exp]
+    plane = search_arrays(X, t, max_components=3, min_fraction=0.05, pool=30, ternary_pool=30, min_gain=0.1,
+                          hazard_rank=hz, method="plane")
+    pt = plane["idx"][:, 2] >= 0
+    k = res["key"][tern]
+    assert np.allclose(np.sort(plane["key"][pt])[:len(k)], k, atol=1e-9)
+
+
+@pytest.mark.parametrize("target", [
+    (21.3, 5.8, 4.3),   # polystyrene, Hansen's handbook (from memory): high dD, few liquids beyond
+    (18.0, 10.0, 7.0),  # a polar point inside the library's cloud
+])
+def test_screened_search_same_pool_as_plane_method_on_full_library(target):
+    # the whole bundled library (823 liquids, ~92.6 million triples) with its CHEM21 hazard
+    # levels: the screened search and the per-triple plane scan keep the same pool
+    X = LIB[HSP].to_numpy(float) * np.array([2.0, 1.0, 1.0])
+    t = np.asarray(target) * np.array([2.0, 1.0, 1.0])
+    hz = hazard_columns(LIB)["hazard_rank"].to_numpy(float)
+    a = search_arrays(X, t, max_components=3, hazard_rank=hz)
+    b = search_arrays(X, t, max_components=3, hazard_rank=hz, method="plane")
+    ta, tb = a["idx"][:, 2] >= 0, b["idx"][:, 2] >= 0
+    assert ta.sum() == tb.sum() == 200
+    assert np.allclose(a["key"][ta], b["key"][tb], atol=1e-6)
+    # same triples wherever the key is not tied with another one
+    ka, kb = a["key"][ta], b["key"][tb]
+    sa = {frozenset(r): k for r, k in zip(a["idx"][ta], ka)}
+    sb = {frozenset(r): k for r, k in zip(b["idx"][tb], kb)}
+    lone = [r for r, k in sa.items() if np.sum(np.abs(ka - k) < 1e-6) == 1 and k < ka.max() - 1e-6]
+    assert len(lone) > 100
+    assert all(r in sb for r in lone)
+
+
+# NMP (HSP from the library, i.e. the published tables carried by `chemicals`) and the
+# polystyrene sphere (Hansen's handbook, from memory)
+@pytest.mark.parametrize("target", ["1-methyl-2-pyrrolidinone", PS])
+def test_find_blends_three_liquids_same_as_plane_method(target, monkeypatch):
+    # the display cap (no blend of three from an Ra step where it cannot be shown) changes
+    # nothing in the rows shown: compare with the uncapped per-triple scan
+    import selector.blends as sb
+
+    fast = find_blends(target, max_components=3, top=20)
+    orig = sb.search_arrays
+
+    def plane(*a, **k):
+        k.pop("ra_cap", None)
+        return orig(*a, **k, method="plane")
+
+    monkeypatch.setattr(sb, "search_arrays", plane)
+    slow = find_blends(target, max_components=3, top=20)
+    assert fast["components"].tolist() == slow["components"].tolist()
+    assert np.allclose(fast["ra"], slow["ra"], atol=1e-9)
+
+
 @pytest.fixture(scope="module")
 def blends_small():
     return find_blends(PS, include=SMALL, max_components=3, top=30, min_gain=0.0, max_uses=30)
