@@ -203,7 +203,7 @@ def _miscibility(cand, temperature):
 
 def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, pool=2000,
                   min_gain=DEFAULT_MIN_GAIN, hazard_rank=None, resolution=0.5, ternary_pool=None,
-                  workers=None, method="screened", ra_cap=None):
+                  workers=None, method="screened", ra_cap=None, display=None):
     """Core search on scaled candidate points ``X`` (n, 3) and scaled target ``t`` (3,).
 
     Returns a dict of arrays: ``idx`` (p, 3) candidate indices (-1 for unused slots), ``f`` (p, 3)
@@ -217,7 +217,9 @@ def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, p
     row cuts along a direction, one matrix screen per row, plane + in-plane lower bound, one
     thread) or ``"plane"`` (the plane-distance bound evaluated for every triple, ``workers``
     threads, default up to 2); both keep the same pool keys. ``ra_cap`` (MPa^0.5, optional):
-    blends of three with Ra >= ra_cap are not kept (they rank after every one below it).
+    blends of three with Ra >= ra_cap are not kept (they rank after every one below it);
+    ``"display"`` computes it with :func:`display_cap` for ``display = (top, max_uses)``
+    (method ``"plane"`` ignores the cap).
     """
     X = np.asarray(X, float)
     n = len(X)
@@ -263,7 +265,11 @@ def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, p
         if method == "screened":
             from .blends_scan import ternary_screened
 
-            cap = np.inf if ra_cap is None else float(ra_cap)
+            if isinstance(ra_cap, str) and ra_cap == "display":
+                cap = display_cap(parts, *display, res) if display is not None else None
+            else:
+                cap = ra_cap
+            cap = np.inf if cap is None else float(cap)
             parts.append(ternary_screened(Z, G, gd, B, hz, m3, min_gain, tp, res, key, ra_cap=cap))
         elif method == "plane":
             parts.append(_ternary_search(Z, G, gd, B, hz, single, m3, min_gain, tp, res, key,
@@ -586,24 +592,43 @@ def _pareto(ra, cost):
     return out
 
 
-def _display_cap(h, target, top, max_uses, resolution, use):
+def display_cap(parts, top, max_uses, resolution):
     """Ra (MPa^0.5) from which no blend of three can be among the ``top`` rows shown.
 
-    Rows are shown in Ra steps of ``resolution``, single liquids first within a step, each liquid
-    in at most ``max_uses`` rows. If s single liquids lie in steps <= b, then before step b + 1
-    at least s u / (u + 3) rows are picked (u = ``max_uses``): a single is skipped only when its
-    liquid is used u times, and each picked row uses at most 3 liquids. So with
-    s >= top (u + 3) / u, nothing from step b + 1 on is shown. None when not applicable (no
-    ``top``, too few liquids, or ``use`` false, e.g. a cost front that needs the whole pool).
+    Rows are shown in Ra steps of ``resolution``, fewer liquids first within a step, each liquid
+    in at most ``max_uses`` rows (:func:`find_blends`). Take single liquids and pairs in order of
+    Ra and keep those that share no liquid with one kept before (``parts``: the (idx, f, ra, key)
+    arrays of the singles and pairs). Before step b + 1 is reached, a kept row of a step <= b is
+    either shown or skipped because one of its liquids is used up; each row shown uses at most 3
+    liquids and a used-up liquid skips at most one kept row, so if N kept rows lie in steps <= b,
+    at least N u / (u + 3) rows are shown before step b + 1 (u = ``max_uses``). With
+    N >= top (u + 3) / u, nothing of step b + 1 or later is shown. None without ``top`` or with
+    too few rows.
+
+    >>> idx = np.array([[0, -1, -1], [1, -1, -1], [2, -1, -1], [3, -1, -1], [0, 1, -1]])
+    >>> parts = [(idx, None, np.array([0.3, 0.7, 1.2, 2.6, 0.2]), None)]
+    >>> display_cap(parts, 2, 3, 0.5)   # 4 disjoint rows needed, only 3: 0.2 (0+1), 1.2, 2.6 -> None
+    >>> display_cap(parts, 1, 3, 0.5)   # need 2: rows 0.2 (0+1) and 1.2 (2) -> step 2 -> 1.5
+    1.5
     """
-    if not use or top is None:
+    if top is None:
         return None
     need = int(math.ceil(top * (max_uses + 3) / max_uses))
-    if len(h) < need:
-        return None
-    d = np.sort(np.asarray(_ra(h, target), float))[need - 1]
-    res = float(resolution)
-    return (math.floor(d / res) + 1) * res
+    idx = np.concatenate([p[0] for p in parts])
+    rr = np.concatenate([p[2] for p in parts])
+    order = np.argsort(rr, kind="stable")
+    used: set[int] = set()
+    got = 0
+    for p in order:  # stops after ``need`` kept rows (a few dozen)
+        comps = [int(c) for c in idx[p] if c >= 0]
+        if any(c in used for c in comps):
+            continue
+        used.update(comps)
+        got += 1
+        if got >= need:
+            res = float(resolution)
+            return (math.floor(float(rr[p]) / res) + 1) * res
+    return None
 
 
 def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
@@ -658,7 +683,7 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     hz = hazard_columns(cand)["hazard_rank"].to_numpy(float)
     res = search_arrays(h * SCALE, tgt.hsp * SCALE, max_components=kmax, min_fraction=m, miscible=mis,
                         pool=pool, min_gain=gain, hazard_rank=hz, resolution=resolution,
-                        ra_cap=_display_cap(h, tgt.hsp, top, max_uses, resolution, cost is None))
+                        ra_cap="display" if cost is None else None, display=(top, max_uses))
     order = _display_order(res)
     pick = _diverse(order, res["idx"], max_uses, top)
     full = _table(tgt, cand, h, res["idx"], res["f"], res["ra"], t_c, cost)

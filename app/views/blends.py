@@ -41,16 +41,14 @@ def freeze(f: dict):
 filters, temp = common.filter_panel("bl")
 with st.form("bl_form"):
     c1, c2, c3 = st.columns(3)
-    ncomp = c1.radio("Liquids per blend (at most)", [2, 3], index=0, horizontal=True, key="bl_n",
-                     help="three-liquid designs search far more mixtures: narrow the filters first")
+    ncomp = c1.radio("Liquids per blend (at most)", [2, 3], index=1, horizontal=True, key="bl_n",
+                     help="a third liquid is proposed only where it brings the blend closer to the "
+                          "target than each of its pairs")
     minf = c2.number_input("Smallest share (volume fraction)", 0.01, 0.45, 0.05, 0.01, key="bl_min",
                            help="no component below this share")
     top = c3.number_input("Blends to show", 5, 100, 20, 5, key="bl_top")
     st.form_submit_button("Design blends", type="primary")
 
-if int(ncomp) == 3 and not filters:
-    st.info("Three-liquid designs over the whole library take several seconds; a boiling-point or "
-            "flash-point filter makes them much faster.")
 t = common.target()
 res = common.call(design, (t.delta_d, t.delta_p, t.delta_h, t.radius, t.name), int(ncomp), float(minf),
                   temp, int(top), freeze(filters))
