@@ -151,7 +151,8 @@ def test_define_target_rank_blend_and_download(page, server):
         _nav(pg, "Blend design")
         pg.get_by_role("button", name="Design blends").click()
         _settle(pg)
-        b = selector.find_blends(selector.Target(*PS[:3], PS[3], name="polystyrene"), max_components=2,
+        # three liquids at most: the page's default
+        b = selector.find_blends(selector.Target(*PS[:3], PS[3], name="polystyrene"), max_components=3,
                                  min_fraction=0.05, temperature=25.0, top=20)
         label = " + ".join(f"{f:.0%} {c}" for c, f in zip(b["components"].iloc[0], b["fractions"].iloc[0]))
         pg.locator("[data-testid='stTable']").first.get_by_text(label, exact=True).wait_for()

@@ -196,12 +196,20 @@ def call(fn, *args, **kwargs):
 _WARM_SMILES = "CC(C)(C)OC(=O)C1CCCCC1"
 
 
+#: When the background training started and ended (time.time(), s); read by the progress bar.
+WARMUP = {"started": None, "ready": None}
+#: Expected training time on 2 cores (s, measured; only used to scale the progress bar).
+WARMUP_EXPECTED_S = 15.0
+
+
 def _warm() -> None:
     time.sleep(3)  # let the first page render first
+    WARMUP["started"] = time.time()
     try:
         selector.estimate(_WARM_SMILES)
     except Exception:  # noqa: BLE001 - a failed warm-up only means the first estimate is slow
         pass
+    WARMUP["ready"] = time.time()
 
 
 @st.cache_resource(show_spinner=False)
@@ -219,11 +227,19 @@ def start_estimator_warmup() -> None:
 
 
 def wait_for_estimator() -> None:
+    """If the background training is still running, show a progress bar until it ends."""
     if os.environ.get("LIKEWISE_WARM_ESTIMATOR") == "1":
         th = _estimator_warmup()
         if th.is_alive():
-            with st.spinner("Preparing the structure estimator (trained once per start, 10-60 s)…"):
-                th.join()
+            bar = st.progress(0.0, text="Preparing the structure estimator (trained once per start)…")
+            while th.is_alive():
+                th.join(timeout=0.5)
+                t0 = WARMUP["started"]
+                done = 0.0 if t0 is None else time.time() - t0
+                frac = min(0.95, done / WARMUP_EXPECTED_S)
+                bar.progress(frac, text=f"Preparing the structure estimator (trained once per start): "
+                                        f"{done:.0f} s of about {WARMUP_EXPECTED_S:.0f} s…")
+            bar.empty()
 
 
 # ---------------------------------------------------------------- widgets
