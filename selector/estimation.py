@@ -2,10 +2,16 @@
 
 What it does
 ------------
-* **HSP** (delta_d, delta_p, delta_h, MPa^0.5): one extremely-randomised-trees regressor per
-  component (Geurts, Ernst, Wehenkel, Machine Learning 63 (2006) 3-42; scikit-learn's
-  ``ExtraTreesRegressor``) on RDKit features (:mod:`selector.estimation_features`), trained on
-  every organic compound of the three published HSP tables the project uses (``chemicals``
+* **HSP** (delta_d, delta_p, delta_h, MPa^0.5), two stages. (1) A group-energy ridge model
+  (:mod:`selector.estimation_linear`): HSP are square roots of cohesive energy densities, so
+  the extensive ``dD*V``, ``dP*V`` and ``dH**2*V`` (V the McGowan volume) are fitted as sums
+  over group counts and turned back into intensive values. (2) One extremely-randomised-trees
+  regressor per component (Geurts, Ernst, Wehenkel, Machine Learning 63 (2006) 3-42;
+  scikit-learn's ``ExtraTreesRegressor``) on RDKit features
+  (:mod:`selector.estimation_features`) plus the stage-1 predictions, made out-of-fold inside
+  the training set (stacked generalisation, Wolpert, Neural Networks 5 (1992) 241-259); dP and
+  dH trees are fitted on the square root. Trained on every organic compound of the three
+  published HSP tables the project uses (``chemicals``
   source keys ALSHERI_HANSEN - Alshehri et al., AIChE J. 68 (2022) e17469; MANUEL_RUBEN_2022 -
   Diaz de los Rios and Murcia Belmonte, SN Appl. Sci. 4 (2022) 185; WDR_SCHRIER - Schrier,
   Wolfram Data Repository (2020)), one value per compound as kept by
@@ -29,7 +35,7 @@ What it does
   from the library (``source`` = "library"), not estimated.
 
 Shipping: nothing is unpickled. The model is trained in the process on first use (about
-10-20 s, a progress line on stderr), the training features are cached as a plain ``.npy``
+10-15 s, a progress line on stderr), the training features are cached as a plain ``.npy``
 array (loaded with ``allow_pickle=False``) under the user's data folder.
 
 Estimated values are estimates: check them against a measurement before relying on them.

@@ -157,12 +157,14 @@ def reduced_cv():
 def test_scaffold_cv_accuracy_has_not_regressed(reduced_cv):
     Y, P, cov = reduced_cv
     mae = np.abs(P - Y).mean(axis=0)
-    # Margin: the issue's reference (untuned extra-trees on RDKit descriptors + Morgan counts in a
-    # scaffold split: 0.72 / 1.66 / 1.53 MPa^0.5) plus 0.15 MPa^0.5 for the reduced 25-tree model.
-    # The full model measures below the reference (see parameters/estimator_accuracy.md).
-    assert mae[0] <= 0.72 + 0.15
-    assert mae[1] <= 1.66 + 0.15
-    assert mae[2] <= 1.53 + 0.15
+    # Regression guard of the reduced model (25 trees; the full 150-tree model measures
+    # 0.57 / 1.62 / 1.33 MPa^0.5, parameters/estimator_accuracy.md). The reduced model measured
+    # 0.59 / 1.66 / 1.39 when these limits were set; margin 0.04 / 0.06 / 0.06 MPa^0.5 above that,
+    # so a regression of more than about 4 % fails. The limits also stay at or below the issue's
+    # untuned extra-trees reference (0.72 / 1.66 / 1.53) plus that margin.
+    assert mae[0] <= 0.59 + 0.04
+    assert mae[1] <= 1.66 + 0.06
+    assert mae[2] <= 1.39 + 0.06
     # and far better than knowing only the mean of the published table (common practice check)
     naive = np.abs(Y - Y.mean(axis=0)).mean(axis=0)
     assert np.all(mae < 0.6 * naive)
@@ -172,6 +174,35 @@ def test_intervals_cover_about_90_percent_out_of_fold(reduced_cv):
     _, _, cov = reduced_cv
     # the issue's requirement: 90 % intervals cover 85-95 % of held-out values
     assert np.all((cov >= 0.85) & (cov <= 0.95)), cov
+
+
+def test_group_energy_stage_on_alkanes_and_alcohols():
+    """The ridge stage alone (extensive energies on group counts, McGowan volume), fitted
+    without the test compounds: n-alkanes have no polar or hydrogen-bonding cohesion (dP = dH =
+    0 in the published tables, common practice), and alcohol dH falls with chain length as the
+    one OH group is diluted by CH2 volume (published values from chemicals.solubility)."""
+    from rdkit import Chem
+
+    from selector.estimation_linear import GroupEnergyRidge, fragment_counts
+
+    df, mols, X = training()
+    Y = df[E.HSP_COLS].to_numpy(float)
+    test = {"hexane": ("CCCCCC", "110-54-3"), "octane": ("CCCCCCCC", "111-65-9"),
+            "1-propanol": ("CCCO", "71-23-8"), "1-hexanol": ("CCCCCCO", "111-27-3")}
+    can = {Chem.CanonSmiles(s) for s, _ in test.values()}
+    keep = ~df["smiles"].isin(can).to_numpy()
+    assert keep.sum() == len(df) - len(test)
+    counts = fragment_counts(mols)
+    model = GroupEnergyRidge().fit([c for c, k in zip(counts, keep) if k], X[keep], Y[keep])
+    from selector.estimation_features import featurize
+
+    tm = [Chem.MolFromSmiles(s) for s, _ in test.values()]
+    pred = model.predict(fragment_counts(tm), featurize(tm))
+    truth = np.array([published_hsp(cas) for _, cas in test.values()])
+    assert np.all(pred[:2, 1:] < 1.5), pred[:2]                 # alkanes: dP, dH near zero
+    assert np.all(np.abs(pred[:, 0] - truth[:, 0]) < 1.0), (pred, truth)   # dD within 1 MPa^0.5
+    assert pred[2, 2] > pred[3, 2] + 2.0                         # propanol dH well above hexanol's
+    assert np.all(np.abs(pred[2:, 2] - truth[2:, 2]) < 2.5), (pred, truth)
 
 
 HELD_OUT = {  # CAS of common liquids, values checked against chemicals.solubility
