@@ -216,6 +216,11 @@ def ternary_screened(Z, G, gd, B, hz, m, min_gain, pool, res, key, ra_cap=np.inf
         nstrip = 1 if nu < 96 else 4
         edges = (nu * (1 - np.sqrt(1 - np.arange(nstrip + 1) / nstrip))).astype(int)
         edges[-1] = nu
+        # the direction cut per pair: m (a_j + a_k) < T_k - (1 - 2m) a_i (step 2 of the module doc)
+        aU = a_dir[U]
+        acut = None
+        if m > 0:
+            acut = (Tu - (1 - 2 * m) * a_dir[i]) / m + tiny / m - aU
         js, ks = [], []
         for r0, r1 in zip(edges[:-1], edges[1:]):
             if r1 <= r0:
@@ -223,7 +228,10 @@ def ternary_screened(Z, G, gd, B, hz, m, min_gain, pool, res, key, ra_cap=np.inf
             M = A[r0:r1] @ Bm[r0:].T
             np.abs(M, out=M)
             M -= err[r0:r1, None]
-            jj, kk = np.nonzero(M < 0)
+            C = M < 0
+            if acut is not None:
+                C &= aU[r0:r1, None] < acut[None, r0:]
+            jj, kk = np.nonzero(C)
             jj += r0
             kk += r0
             up = kk > jj

@@ -203,7 +203,7 @@ WARMUP_EXPECTED_S = 15.0
 
 
 def _warm() -> None:
-    time.sleep(3)  # let the first page render first
+    # starts with the first page (its run needs one core; the training takes the other)
     WARMUP["started"] = time.time()
     try:
         selector.estimate(_WARM_SMILES)
