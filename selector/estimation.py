@@ -159,7 +159,7 @@ class HSPEstimator:
     0.8
     """
 
-    def __init__(self, n_estimators=150, max_features=(0.15, 0.15, 0.3), min_samples_leaf=1,
+    def __init__(self, n_estimators=150, max_features=0.15, min_samples_leaf=1,
                  sqrt_targets=(False, True, True), stack_linear=True, coverage=0.9,
                  calibration_folds=5, random_state=0, n_jobs=None):
         self.n_estimators = n_estimators
