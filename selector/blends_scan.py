@@ -126,7 +126,7 @@ def ternary_screened(Z, G, gd, B, hz, m, min_gain, pool, res, key, ra_cap=np.inf
     hzi = np.asarray(hz).astype(int)
     Bthr0 = np.where(np.isfinite(B), B, -np.inf) - min_gain
     arr0 = {"Z": Z, "G": G, "gd": gd, "Bthr": Bthr0, "Hp": np.maximum.outer(hzi, hzi), "hzp": hzi}
-    inf5 = np.full(5, float(ra_cap))
+    cap5 = np.full(5, float(ra_cap))
 
     # 1. seed
     near = np.argsort(gd, kind="stable")
@@ -140,8 +140,8 @@ def ternary_screened(Z, G, gd, B, hz, m, min_gain, pool, res, key, ra_cap=np.inf
         a, b = np.triu_indices(len(S), 1)
         ii, jj, kk = np.repeat(S[a], len(S)), np.repeat(S[b], len(S)), np.tile(S, len(a))
         up = kk > jj
-        seed = _merge(None, _exact(arr0, ii[up], jj[up], kk[up], inf5, m, key), pool)
-    tau = inf5
+        seed = _merge(None, _exact(arr0, ii[up], jj[up], kk[up], cap5, m, key), pool)
+    tau = cap5
     if seed is not None and len(seed[2]) >= pool:
         tau = np.minimum(tau, _tau_table(seed[3][-1], res))
 
