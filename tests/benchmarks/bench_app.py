@@ -6,7 +6,11 @@ the same process, a naive baseline of the ranking interaction: the library re-re
 the hazard table rebuilt on every rerun (no st.cache_*), and Ra computed in a per-row Python
 loop - what the page would cost without caching and vectorisation.
 
-Run: ``python tests/benchmarks/bench_app.py`` (about a minute).
+Then the structure estimator's warm-up as a user meets it (``likewise app`` in chromium: a SMILES
+typed 20 s after the first page), beside the first estimate in a fresh process without it.
+
+Run: ``python tests/benchmarks/bench_app.py`` (about 2 minutes; ``--no-warmup`` skips the
+browser part).
 """
 from __future__ import annotations
 
