@@ -26,6 +26,28 @@ def app_command(port: int = 8501, entry: Path | None = None) -> list[str]:
             "--client.toolbarMode", "minimal"]
 
 
+def wait_until_serving(url: str, timeout: float = 60.0, proc=None, poll: float = 0.25) -> bool:
+    """Poll the Streamlit health endpoint ``url + "/_stcore/health"`` until it answers 200.
+
+    True once the server answers; False after ``timeout`` seconds or as soon as ``proc`` (an
+    optional ``subprocess.Popen`` of the server) has exited.
+    """
+    import time
+    import urllib.request
+
+    deadline = time.monotonic() + timeout
+    while True:
+        try:
+            with urllib.request.urlopen(url + "/_stcore/health", timeout=2) as r:
+                if r.status == 200:
+                    return True
+        except OSError:
+            pass
+        if (proc is not None and proc.poll() is not None) or time.monotonic() > deadline:
+            return False
+        time.sleep(poll)
+
+
 def cmd_app(a) -> int:
     import os
     import subprocess

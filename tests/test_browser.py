@@ -10,14 +10,12 @@ import io
 import os
 import socket
 import subprocess
-import time
-import urllib.request
 from pathlib import Path
 
 import pytest
 
 import selector
-from selector.cli_app import app_command
+from selector.cli_app import app_command, wait_until_serving
 
 pytestmark = pytest.mark.browser
 
@@ -59,18 +57,9 @@ def server(tmp_path_factory):
     with open(log, "w") as fh:
         proc = subprocess.Popen(app_command(port), env=env, stdout=fh, stderr=subprocess.STDOUT)
     url = f"http://127.0.0.1:{port}"
-    deadline = time.time() + 60
-    while True:
-        try:
-            with urllib.request.urlopen(url + "/_stcore/health", timeout=2) as r:
-                if r.status == 200:
-                    break
-        except OSError:
-            pass
-        if proc.poll() is not None or time.time() > deadline:
-            proc.kill()
-            pytest.fail("the app did not start:\n" + log.read_text()[-2000:])
-        time.sleep(0.3)
+    if not wait_until_serving(url, timeout=60, proc=proc):
+        proc.kill()
+        pytest.fail("the app did not start:\n" + log.read_text()[-2000:])
     yield url
     proc.terminate()
     try:

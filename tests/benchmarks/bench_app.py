@@ -94,7 +94,6 @@ def warmup_timeline(wait_s: float = 20.0) -> None:
     playwright is missing."""
     import socket
     import subprocess
-    import urllib.request
 
     chromium = "/usr/bin/chromium"
     try:
@@ -105,7 +104,7 @@ def warmup_timeline(wait_s: float = 20.0) -> None:
     if not os.path.exists(chromium):
         print("  (warm-up timeline skipped: chromium missing)")
         return
-    from selector.cli_app import app_command
+    from selector.cli_app import app_command, wait_until_serving
 
     with socket.socket() as so:
         so.bind(("127.0.0.1", 0))
@@ -115,15 +114,8 @@ def warmup_timeline(wait_s: float = 20.0) -> None:
     proc = subprocess.Popen(app_command(port), env=env, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
     url = f"http://127.0.0.1:{port}"
     try:
-        while True:
-            try:
-                with urllib.request.urlopen(url + "/_stcore/health", timeout=2) as r:
-                    if r.status == 200:
-                        break
-            except OSError:
-                time.sleep(0.2)
-            if time.perf_counter() - t0 > 60:
-                raise RuntimeError("the app did not start")
+        if not wait_until_serving(url, timeout=60, proc=proc, poll=0.2):
+            raise RuntimeError("the app did not start")
         with sync_playwright() as p:
             browser = p.chromium.launch(executable_path=chromium, args=[
                 "--headless", "--no-sandbox", "--disable-gpu", "--no-first-run",
