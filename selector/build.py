@@ -61,7 +61,7 @@ COLUMNS = [
     "antoine_tmin_c", "antoine_tmax_c", "hvap_kj_mol", "expansion_coeff", "viscosity_mpa_s",
     "critical_temperature_c", "exposure_limit", "exposure_limit_unit", "synonyms",
     "melting_point_source", "boiling_point_source", "volume_method", "vapour_pressure_method",
-    "flash_point_source", "exposure_limit_source",
+    "viscosity_method", "flash_point_source", "exposure_limit_source",
 ]
 
 
@@ -272,6 +272,7 @@ def liquid_record(cas: str) -> dict | None:
             "boiling_point_source": (chemicals.Tb_methods(cas) or [""])[0],
             "volume_method": vmethod or "",
             "vapour_pressure_method": c.VaporPressure.method or "",
+            "viscosity_method": (c.ViscosityLiquid.method or "") if c.mul is not None else "",
             "flash_point_source": (chemicals.safety.T_flash_methods(cas) or [""])[0]
             if c.Tflash is not None else "",
         }

@@ -846,7 +846,8 @@ def as_library_rows(df: pd.DataFrame, include_library=False) -> pd.DataFrame:
     rows = pd.DataFrame({c: np.nan for c in COLUMNS}, index=d.index)
     text = {"name", "cas", "smiles", "inchikey", "formula", "hsp_source", "hsp_sources_available",
             "synonyms", "melting_point_source", "boiling_point_source", "volume_method",
-            "vapour_pressure_method", "flash_point_source", "exposure_limit_source", "exposure_limit_unit"}
+            "vapour_pressure_method", "viscosity_method", "flash_point_source", "exposure_limit_source",
+            "exposure_limit_unit"}
     for c in text:
         rows[c] = ""
     rows["name"] = names.values

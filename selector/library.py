@@ -35,7 +35,7 @@ HSP = ["delta_d", "delta_p", "delta_h"]
 
 _TEXT_COLUMNS = ["name", "cas", "smiles", "inchikey", "formula", "hsp_source",
                  "hsp_sources_available", "synonyms", "melting_point_source",
-                 "boiling_point_source", "volume_method", "vapour_pressure_method",
+                 "boiling_point_source", "volume_method", "vapour_pressure_method", "viscosity_method",
                  "flash_point_source", "exposure_limit_source", "exposure_limit_unit", "origin"]
 
 #: Plausible ranges for user-entered values (MPa^0.5, cm^3/mol, C); outside them is an error.

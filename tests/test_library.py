@@ -126,6 +126,20 @@ def test_rebuild_sample_matches_committed(lib):
     assert (fresh["hsp_source"] == old["hsp_source"]).all()
 
 
+def test_viscosity_carries_its_method(lib):
+    # Every viscosity names the thermo ViscosityLiquid method it came from, so that
+    # corresponding-states estimates (LETSOU_STIEL) can be told from data-based correlations;
+    # checked against thermo itself for a few liquids (thermo's own method choice).
+    from thermo import Chemical
+
+    has = lib["viscosity_mpa_s"].notna()
+    assert (lib.loc[has, "viscosity_method"] != "").all()
+    assert (lib.loc[~has, "viscosity_method"] == "").all()
+    for cas in ("7732-18-5", "108-88-3", "872-50-4"):      # water, toluene, NMP
+        row = lib.loc[lib.cas == cas].iloc[0]
+        assert row["viscosity_method"] == Chemical(cas, T=298.15).ViscosityLiquid.method
+
+
 def test_vapour_pressure_against_thermo(lib):
     # Source: thermo's vapour-pressure correlation (the Antoine fit must reproduce it at 50 C).
     from thermo import Chemical
