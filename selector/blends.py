@@ -269,10 +269,16 @@ def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, p
 
             if isinstance(ra_cap, str) and ra_cap == "display":
                 cap = display_cap(parts, *display, res) if display is not None else None
+                trial = _display_trial(Z, G, gd, B, hz, m3, min_gain, tp, res, key, parts, display,
+                                       cap)
+                if trial is not None:
+                    parts.append(trial)
+                    cap = None
             else:
                 cap = ra_cap
-            cap = np.inf if cap is None else float(cap)
-            parts.append(ternary_screened(Z, G, gd, B, hz, m3, min_gain, tp, res, key, ra_cap=cap))
+            if cap is not None or len(parts) < 3:
+                cap = np.inf if cap is None else float(cap)
+                parts.append(ternary_screened(Z, G, gd, B, hz, m3, min_gain, tp, res, key, ra_cap=cap))
         elif method == "plane":
             parts.append(_ternary_search(Z, G, gd, B, hz, single, m3, min_gain, tp, res, key,
                                          workers=workers))
@@ -280,6 +286,38 @@ def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, p
             raise SelectorError(f"unknown ternary search method {method!r}; use 'screened' or 'plane'")
     idx, f, rr, kk = (np.concatenate(x) for x in zip(*parts))
     return {"idx": idx, "f": f, "ra": rr, "key": kk}
+
+
+def _display_trial(Z, G, gd, B, hz, m, min_gain, pool, res, key, parts, display, cap):
+    """Blends of three for the rows shown, from a tighter cap tried first; None if it cannot be
+    proved to give the same rows (then the caller searches with ``cap``, :func:`display_cap`).
+
+    The trial cap is the Ra step after the last row that singles and pairs alone would show.
+    Every blend of three left out by it has a larger Ra step than each row shown with it, so if
+    ``top`` rows are shown and all lie below the trial cap, the left-out blends come after them
+    in display order and cannot change them (the greedy pick of :func:`_diverse` only looks
+    back). Pays off where the safe cap of :func:`display_cap` is loose (targets near the edge of
+    the library's HSP range, where few liquids lie close).
+    """
+    from .blends_scan import ternary_screened
+
+    top, max_uses = display
+    if top is None:
+        return None
+    two = {k: np.concatenate(x) for k, x in zip(("idx", "f", "ra", "key"), zip(*parts))}
+    pick = _diverse(_display_order(two), two["idx"], max_uses, top)
+    if len(pick) < top:
+        return None
+    trial = (math.floor(float(two["ra"][pick[-1]]) / res) + 1) * res
+    if cap is not None and trial >= cap:
+        return None
+    third = ternary_screened(Z, G, gd, B, hz, m, min_gain, pool, res, key, ra_cap=trial)
+    allp = {k: np.concatenate(x) for k, x in zip(("idx", "f", "ra", "key"), zip(*parts, third))}
+    pick = _diverse(_display_order(allp), allp["idx"], max_uses, top)
+    steps = np.floor(allp["key"][pick] / 10.0)
+    if len(pick) < top or steps.max() >= round(trial / res):
+        return None
+    return third
 
 
 def _edge_gram(gcc, gbb, gaa, gbc, gac, gab, m):

@@ -180,6 +180,36 @@ def test_find_blends_three_liquids_same_as_plane_method(target, monkeypatch):
     assert np.allclose(fast["ra"], slow["ra"], atol=1e-9)
 
 
+@pytest.mark.parametrize("target", ["perfluorohexane"])
+def test_trial_cap_at_the_edge_of_the_library_changes_no_row(target, monkeypatch):
+    # Targets at the edge of the library's HSP range (HSP from the published tables bundled in
+    # the library): few liquids lie close, so the safe display cap is loose and the tighter
+    # trial cap is taken; the rows shown must be those of the uncapped search.
+    import selector.blends as sb
+
+    used = []
+    trial = sb._display_trial
+
+    def spy(*a, **k):
+        r = trial(*a, **k)
+        used.append(r is not None)
+        return r
+
+    monkeypatch.setattr(sb, "_display_trial", spy)
+    fast = find_blends(target, max_components=3, top=20)
+    assert used == [True]
+    orig = sb.search_arrays
+
+    def uncapped(*a, **k):
+        k["ra_cap"] = None
+        return orig(*a, **k)
+
+    monkeypatch.setattr(sb, "search_arrays", uncapped)
+    slow = find_blends(target, max_components=3, top=20)
+    assert fast["components"].tolist() == slow["components"].tolist()
+    assert np.allclose(fast["ra"], slow["ra"], atol=1e-9)
+
+
 @pytest.mark.parametrize("target", [PS, NITROCELLULOSE, (18.0, 12.3, 7.2, 6.0)])
 @pytest.mark.parametrize("top,max_uses", [(3, 3), (4, 2), (6, 3)])
 def test_display_cap_never_changes_the_rows_shown(target, top, max_uses, monkeypatch):
