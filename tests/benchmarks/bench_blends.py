@@ -1,6 +1,8 @@
 """Benchmark: exact blend search over the whole library versus slower exact paths and a naive optimiser.
 
-Run: ``python tests/benchmarks/bench_blends.py`` (about 2 minutes). Prints medians (s) of
+Run: ``python tests/benchmarks/bench_blends.py`` (about 2 minutes); ``--sweep`` times
+find_blends with three liquids for every library liquid and 120 random points as the target
+(about 6 minutes). Prints medians (s) of
 
 * the binary search over all pairs of the ~820 liquids (closed form, all pairs at once);
 * the ternary search over all ~92 million triples, side by side in the same process:
@@ -133,5 +135,44 @@ def main():
     t2, _ = timed(lambda: find_blends("water", max_components=2), 1)
     print(f"  {'water (library HSP), 1 run':30s} 3 liquids {t3:6.3f} s             2 liquids {t2:6.3f} s")
 
+def sweep(random_points: int = 120):
+    """find_blends with three liquids for every library liquid as the target, then for random
+    points in dD 12-23, dP 0-25, dH 0-30 MPa^0.5 (seed 11); beside it, for the ten slowest
+    library targets, the same call with only the safe display cap (no trial cap)."""
+    import selector.blends as sb
+
+    lib = selector.load_library()
+    find_blends("toluene", max_components=3)
+    ts = []
+    for nm in lib["name"]:
+        t0 = time.perf_counter()
+        find_blends(nm, max_components=3)
+        ts.append((time.perf_counter() - t0, nm))
+    a = np.array([x[0] for x in ts])
+    print(f"every library liquid as the target ({len(a)}): median {np.median(a):.2f} s, "
+          f"90 % under {np.percentile(a, 90):.2f} s, max {a.max():.2f} s, over 1 s: {(a > 1).sum()}")
+    trial = sb._display_trial
+    sb._display_trial = lambda *a, **k: None
+    try:
+        for t_new, nm in sorted(ts)[-10:]:
+            t0 = time.perf_counter()
+            find_blends(nm, max_components=3)
+            print(f"  {nm:40s} {t_new:5.2f} s; safe cap only {time.perf_counter() - t0:5.2f} s")
+    finally:
+        sb._display_trial = trial
+    rng = np.random.default_rng(11)
+    rt = []
+    for _ in range(random_points):
+        p = (float(rng.uniform(12, 23)), float(rng.uniform(0, 25)), float(rng.uniform(0, 30)))
+        t0 = time.perf_counter()
+        find_blends(p, max_components=3)
+        rt.append(time.perf_counter() - t0)
+    r = np.array(rt)
+    print(f"random points ({len(r)}): median {np.median(r):.2f} s, 90 % under {np.percentile(r, 90):.2f} s, "
+          f"max {r.max():.2f} s, over 1 s: {(r > 1).sum()}")
+
+
 if __name__ == "__main__":
-    main()
+    import sys
+
+    sweep() if "--sweep" in sys.argv[1:] else main()
