@@ -284,8 +284,12 @@ def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, p
                                          workers=workers))
         else:
             raise SelectorError(f"unknown ternary search method {method!r}; use 'screened' or 'plane'")
-    idx, f, rr, kk = (np.concatenate(x) for x in zip(*parts))
-    return {"idx": idx, "f": f, "ra": rr, "key": kk}
+    return _stacked(parts)
+
+
+def _stacked(parts) -> dict:
+    """The (idx, f, ra, key) arrays of several parts (singles, pairs, triples) stacked into one dict."""
+    return {k: np.concatenate(x) for k, x in zip(("idx", "f", "ra", "key"), zip(*parts))}
 
 
 def _display_trial(Z, G, gd, B, hz, m, min_gain, pool, res, key, parts, display, cap):
@@ -304,7 +308,7 @@ def _display_trial(Z, G, gd, B, hz, m, min_gain, pool, res, key, parts, display,
     top, max_uses = display
     if top is None:
         return None
-    two = {k: np.concatenate(x) for k, x in zip(("idx", "f", "ra", "key"), zip(*parts))}
+    two = _stacked(parts)
     pick = _diverse(_display_order(two), two["idx"], max_uses, top)
     if len(pick) < top:
         return None
@@ -312,7 +316,7 @@ def _display_trial(Z, G, gd, B, hz, m, min_gain, pool, res, key, parts, display,
     if cap is not None and trial >= cap:
         return None
     third = ternary_screened(Z, G, gd, B, hz, m, min_gain, pool, res, key, ra_cap=trial)
-    allp = {k: np.concatenate(x) for k, x in zip(("idx", "f", "ra", "key"), zip(*parts, third))}
+    allp = _stacked(parts + [third])
     pick = _diverse(_display_order(allp), allp["idx"], max_uses, top)
     steps = np.floor(allp["key"][pick] / 10.0)
     if len(pick) < top or steps.max() >= round(trial / res):

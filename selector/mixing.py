@@ -322,7 +322,6 @@ def _patterns():
     return acc, don
 
 
-@functools.lru_cache(maxsize=4096)
 def site_counts(smiles: str) -> tuple[float, float]:
     """(alpha, beta): summed hydrogen-bond donor and acceptor strengths of one molecule.
 
@@ -336,7 +335,6 @@ def site_counts(smiles: str) -> tuple[float, float]:
     return _sites(smiles)[:2]
 
 
-@functools.lru_cache(maxsize=4096)
 def site_maxima(smiles: str) -> tuple[float, float]:
     """(a, b): the strongest donor H and the strongest acceptor site of one molecule.
 
@@ -1054,8 +1052,7 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
                          "on cooling")
         else:
             notes.append(f"model UCST {ucst_c:.0f} C: the gap narrows on heating and closes there")
-        bp = min((x for x in (ra_["boiling_point_c"], rb_["boiling_point_c"]) if math.isfinite(x)), default=math.inf)
-        if math.isfinite(bp) and ucst_c > bp:
+        if math.isfinite(bp_low) and ucst_c > bp_low:
             notes.append("the UCST lies above a boiling point: at atmospheric pressure the gap "
                          "does not close before the mixture boils")
     elif math.isinf(u):
