@@ -2,16 +2,19 @@
 
 What it does
 ------------
-* **HSP** (delta_d, delta_p, delta_h, MPa^0.5), two stages. (1) A group-energy ridge model
+* **HSP** (delta_d, delta_p, delta_h, MPa^0.5), three stages. (1a) A group-energy ridge model
   (:mod:`selector.estimation_linear`): HSP are square roots of cohesive energy densities, so
   the extensive ``dD*V``, ``dP*V`` and ``dH**2*V`` (V the McGowan volume) are fitted as sums
-  over group counts and turned back into intensive values. (2) One extremely-randomised-trees
+  over group counts and turned back into intensive values. (1b) A kernel ridge model with a
+  Gaussian kernel on the standardised, log-scaled whole-molecule descriptors
+  (:class:`selector.estimation_linear.DescriptorKernelRidge`). (2) One extremely-randomised-trees
   regressor per component (Geurts, Ernst, Wehenkel, Machine Learning 63 (2006) 3-42;
   scikit-learn's ``ExtraTreesRegressor``) on RDKit features
   (:mod:`selector.estimation_features`) plus the stage-1 predictions, made out-of-fold inside
   the training set (stacked generalisation, Wolpert, Neural Networks 5 (1992) 241-259); dP and
-  dH trees are fitted on the square root, and the estimate is the 10 %-trimmed mean over the
-  trees. Trained on every organic compound of the three
+  dH trees are fitted on the square root, and the tree estimate is the 10 %-trimmed mean over
+  the trees. (3) The estimate is ``(1 - w) * trees + w * kernel ridge`` with ``w`` =
+  ``kernel_weight`` (0.2). Trained on every organic compound of the three
   published HSP tables the project uses (``chemicals``
   source keys ALSHERI_HANSEN - Alshehri et al., AIChE J. 68 (2022) e17469; MANUEL_RUBEN_2022 -
   Diaz de los Rios and Murcia Belmonte, SN Appl. Sci. 4 (2022) 185; WDR_SCHRIER - Schrier,
@@ -64,7 +67,7 @@ DOMAIN_THRESHOLD = 0.3
 COVERAGE = 0.90
 ESTIMATED_SOURCE = "estimated from structure (likewise HSPEstimator)"
 #: Tag of the model design; calibration.json written for another design is not used.
-MODEL_TAG = "group-energy ridge stacked under extra-trees, trimmed mean, v5"
+MODEL_TAG = "group-energy ridge + descriptor kernel ridge stacked under extra-trees, blended, v6"
 
 
 def _progress(msg: str) -> None:
@@ -135,10 +138,12 @@ class HSPEstimator:
     ``predict(smiles)`` returns an (n, 3) array; :meth:`predict_interval` adds the 90 %
     (``coverage``) prediction interval. Invalid SMILES raise :class:`SelectorError` listing them.
 
-    Model (two stages, see the module docstring): a group-energy ridge model
-    (:class:`selector.estimation_linear.GroupEnergyRidge`) whose out-of-fold predictions are
+    Model (see the module docstring): a group-energy ridge model
+    (:class:`selector.estimation_linear.GroupEnergyRidge`) and a descriptor kernel ridge model
+    (:class:`selector.estimation_linear.DescriptorKernelRidge`) whose out-of-fold predictions are
     extra features, then one extra-trees regressor per component, fitted on sqrt(delta) where
-    ``sqrt_targets`` says so (the prediction is the square of the trimmed mean over trees).
+    ``sqrt_targets`` says so (the tree prediction is the square of the trimmed mean over trees),
+    blended with the kernel ridge prediction.
 
     Parameters
     ----------
@@ -146,6 +151,9 @@ class HSPEstimator:
     max_features : float or 3 floats (dD, dP, dH), fraction of features tried per split.
     sqrt_targets : 3 booleans, fit the trees of that component on the square root.
     stack_linear : bool, add the group-energy ridge predictions as features.
+    stack_kernel : bool, add the descriptor kernel ridge predictions as features.
+    kernel_weight : float in [0, 1], weight of the kernel ridge prediction in the estimate
+        (0 = trees only); the interval scale stays the spread of the trees.
     trim : float in [0, 0.5), fraction of the trees cut at each end before averaging (trimmed
         mean, robust to a few trees that follow a noisy training value); the interval scale
         is the standard deviation over all trees.
@@ -163,14 +171,17 @@ class HSPEstimator:
     0.8
     """
 
-    def __init__(self, n_estimators=150, max_features=0.15, min_samples_leaf=1,
-                 sqrt_targets=(False, True, True), stack_linear=True, trim=0.1, coverage=0.9,
-                 calibration_folds=5, random_state=0, n_jobs=None):
+    def __init__(self, n_estimators=150, max_features=(0.15, 0.15, 0.3), min_samples_leaf=1,
+                 sqrt_targets=(False, True, True), stack_linear=True, stack_kernel=True,
+                 kernel_weight=0.2, trim=0.1, coverage=0.9, calibration_folds=5, random_state=0,
+                 n_jobs=None):
         self.n_estimators = n_estimators
         self.max_features = max_features
         self.min_samples_leaf = min_samples_leaf
         self.sqrt_targets = sqrt_targets
         self.stack_linear = stack_linear
+        self.stack_kernel = stack_kernel
+        self.kernel_weight = kernel_weight
         self.trim = trim
         self.coverage = coverage
         self.calibration_folds = calibration_folds
@@ -179,7 +190,7 @@ class HSPEstimator:
 
     # scikit-learn protocol (written out so that sklearn is imported only when needed)
     _PARAMS = ("n_estimators", "max_features", "min_samples_leaf", "sqrt_targets", "stack_linear",
-               "trim", "coverage", "calibration_folds", "random_state", "n_jobs")
+               "stack_kernel", "kernel_weight", "trim", "coverage", "calibration_folds", "random_state", "n_jobs")
 
     def get_params(self, deep=True):
         return {k: getattr(self, k) for k in self._PARAMS}
@@ -226,6 +237,8 @@ class HSPEstimator:
             raise SelectorError("n_estimators must be an integer >= 2 (the interval uses the spread of the trees)")
         if not (0.0 < float(self.coverage) < 1.0):
             raise SelectorError(f"coverage must be between 0 and 1, got {self.coverage!r}")
+        if not (0.0 <= float(self.kernel_weight) <= 1.0):
+            raise SelectorError(f"kernel_weight must be in [0, 1], got {self.kernel_weight!r}")
         if not (0.0 <= float(self.trim) < 0.5):
             raise SelectorError(f"trim must be in [0, 0.5), got {self.trim!r}")
         self._per_component(self.max_features, "max_features")
@@ -250,27 +263,43 @@ class HSPEstimator:
             return np.stack([t.predict(X) for t in model.estimators_])
 
     def fit_state(self, X, counts, Y, groups):
-        """Fit both stages on a feature matrix, :func:`~selector.estimation_linear.fragment_counts`
-        and targets; returns the fitted state (used by :meth:`fit` and the cross-validation)."""
-        from .estimation_linear import GroupEnergyRidge, out_of_fold
+        """Fit all stages on a feature matrix, :func:`~selector.estimation_linear.fragment_counts`
+        and targets; returns the fitted state (used by :meth:`fit` and the cross-validation).
+        The stacking features of the training rows are out-of-fold predictions with folds
+        inside these rows only (grouped by ``groups``)."""
+        from .estimation_linear import DescriptorKernelRidge, GroupEnergyRidge, kernel_out_of_fold, out_of_fold
 
-        lin = None
-        Xa = X
+        lin = kr = None
+        extra = []
+        seed = self.random_state or 0
         if self.stack_linear:
             lin = GroupEnergyRidge().fit(counts, X, Y)
-            Xa = np.hstack([X, out_of_fold(counts, X, Y, groups, 5, (self.random_state or 0) + 1)])
+            extra.append(out_of_fold(counts, X, Y, groups, 5, seed + 1))
+        if self.stack_kernel or float(self.kernel_weight) > 0:
+            kr = DescriptorKernelRidge().fit(X, Y)
+        if self.stack_kernel:
+            extra.append(kernel_out_of_fold(X, Y, groups, 5, seed + 2))
+        Xa = np.hstack([X] + extra) if extra else X
         sq = self._per_component(self.sqrt_targets, "sqrt_targets")
         models = []
         for j in range(3):
             m = self._new_tree_model(j)
             m.fit(Xa, np.sqrt(Y[:, j]) if sq[j] else Y[:, j])
             models.append(m)
-        return lin, models
+        return lin, kr, models
 
     def predict_state(self, state, X, counts):
-        """``(pred, spread)``, (n, 3) each in MPa^0.5, of a state from :meth:`fit_state`."""
-        lin, models = state
-        Xa = X if lin is None else np.hstack([X, lin.predict(counts, X)])
+        """``(pred, spread)``, (n, 3) each in MPa^0.5, of a state from :meth:`fit_state`: the
+        trimmed tree mean blended with the kernel ridge prediction (weight ``kernel_weight``);
+        the spread is that of the trees."""
+        lin, kr, models = state
+        extra = []
+        if lin is not None:
+            extra.append(lin.predict(counts, X))
+        k_pred = kr.predict(X) if kr is not None else None
+        if self.stack_kernel:
+            extra.append(k_pred)
+        Xa = np.hstack([X] + extra) if extra else X
         sq = self._per_component(self.sqrt_targets, "sqrt_targets")
         pred = np.empty((len(X), 3))
         spread = np.empty((len(X), 3))
@@ -284,6 +313,9 @@ class HSPEstimator:
             else:
                 pred[:, j] = centre
                 spread[:, j] = t.std(axis=0)
+        w = float(self.kernel_weight)
+        if w > 0:
+            pred = (1.0 - w) * pred + w * np.clip(k_pred, 0.0, None)
         return pred, spread
 
     # ------------------------------------------------------------------ public

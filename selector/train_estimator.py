@@ -6,8 +6,8 @@ Run ``python -m selector.train_estimator`` (fixed seed 0) to
    Bemis-Murcko scaffold (acyclic molecules grouped by canonical SMILES; identical molecules
    were already merged into one row), beside an untuned baseline (extra-trees, 100 trees, RDKit
    descriptors + Morgan counts only) on the same folds; the stacking features (group-energy
-   ridge predictions) of each training part come from folds inside that part only, so nothing
-   is fitted on a held-out fold;
+   ridge and descriptor kernel ridge predictions) of each training part come from folds inside
+   that part only, so nothing is fitted on a held-out fold;
 2. check the 90 % intervals out-of-fold (cross-conformal: the factor for a fold comes only from
    the out-of-fold residuals of the *other* folds);
 3. evaluate the molar-volume model the same way on the library liquids;
@@ -33,6 +33,7 @@ import numpy as np
 import pandas as pd
 
 from . import estimation as E
+from .estimation_linear import KERNEL_ALPHA, KERNEL_WIDTH
 
 SEED = 0
 REPORT_MD = E.ESTIMATOR_DIR.parent / "estimator_accuracy.md"
@@ -219,12 +220,15 @@ def report_markdown(res, quick=False) -> str:
     extra = (
         f"\n\nHSP: {res['n']} compounds from the three published tables, {res['n_groups']} scaffold groups, "
         f"5-fold group CV, seed {SEED}{' (quick run: 30 trees)' if quick else ''}. "
-        f"Model: group-energy ridge stage stacked out-of-fold under extra-trees "
-        f"({res['params']['n_estimators']} trees, features per split "
-        f"{'/'.join(str(v) for v in np.atleast_1d(res['params']['max_features']))}, sqrt targets for dP and dH, "
-        f"trimmed mean over the trees cutting {100 * res['params']['trim']:.0f} % at each end); "
-        "these few settings were chosen on this same cross-validation (no separate inner search), "
-        "so the figures are slightly optimistic. "
+        f"Model: group-energy ridge and descriptor kernel ridge stages stacked out-of-fold under "
+        f"extra-trees ({res['params']['n_estimators']} trees, features per split "
+        f"{'/'.join(str(v) for v in np.atleast_1d(res['params']['max_features']))} for dD/dP/dH, sqrt targets for dP and dH, "
+        f"trimmed mean over the trees cutting {100 * res['params']['trim']:.0f} % at each end), the estimate "
+        f"blending {100 * (1 - res['params']['kernel_weight']):.0f} % trees with "
+        f"{100 * res['params']['kernel_weight']:.0f} % kernel ridge (RBF width {KERNEL_WIDTH:g} x median squared "
+        f"distance, ridge {KERNEL_ALPHA:g}); "
+        "these few settings (blend weight, kernel width and ridge, features per split, trim) were chosen "
+        "on this same cross-validation (no separate inner search), so the figures are slightly optimistic. "
         f"In domain (nearest training molecule Tanimoto >= {E.DOMAIN_THRESHOLD}): "
         f"{100 * res['in_domain_fraction']:.0f} % of held-out rows, MAE "
         f"{' / '.join(f'{v:.2f}' for v in res['mae_in'])}; out of domain MAE "

@@ -158,14 +158,14 @@ def test_scaffold_cv_accuracy_has_not_regressed(reduced_cv):
     Y, P, cov = reduced_cv
     mae = np.abs(P - Y).mean(axis=0)
     # Regression guard of the reduced model (25 trees; the full 150-tree model measures
-    # 0.56 / 1.60 / 1.31 MPa^0.5, parameters/estimator_accuracy.md). The reduced model measured
-    # 0.58 / 1.64 / 1.34 when these limits were set (another tree seed moves them by <= 0.01);
-    # margin 0.04 / 0.06 / 0.06 MPa^0.5 above that, so a regression of more than about 4 % fails.
-    # The limits also stay below the issue's untuned extra-trees reference
-    # (0.72 / 1.66 / 1.53) plus that margin.
-    assert mae[0] <= 0.58 + 0.04
-    assert mae[1] <= 1.64 + 0.06
-    assert mae[2] <= 1.34 + 0.06
+    # 0.54 / 1.58 / 1.29 MPa^0.5, parameters/estimator_accuracy.md). The reduced model measured
+    # 0.56 / 1.63 / 1.30 when these limits were set (tree seed 1 instead of 0 gave
+    # 0.56 / 1.62 / 1.32); margin 0.04 / 0.06 / 0.06 MPa^0.5 above the seed-0 run, so a
+    # regression of more than about 4 % fails. The limits also stay below the issue's untuned
+    # extra-trees reference (0.72 / 1.66 / 1.53) plus that margin.
+    assert mae[0] <= 0.56 + 0.04
+    assert mae[1] <= 1.63 + 0.06
+    assert mae[2] <= 1.30 + 0.06
     # and far better than knowing only the mean of the published table (common practice check)
     naive = np.abs(Y - Y.mean(axis=0)).mean(axis=0)
     assert np.all(mae < 0.6 * naive)
@@ -204,6 +204,57 @@ def test_group_energy_stage_on_alkanes_and_alcohols():
     assert np.all(np.abs(pred[:, 0] - truth[:, 0]) < 1.0), (pred, truth)   # dD within 1 MPa^0.5
     assert pred[2, 2] > pred[3, 2] + 2.0                         # propanol dH well above hexanol's
     assert np.all(np.abs(pred[2:, 2] - truth[2:, 2]) < 2.5), (pred, truth)
+
+
+def test_kernel_ridge_stage_on_alkanes_and_alcohols():
+    """The kernel ridge stage alone, fitted without the test compounds: n-alkanes have no polar
+    or hydrogen-bonding cohesion (dP = dH = 0 in the published tables, common practice), and
+    alcohol dH falls with chain length (published values from chemicals.solubility)."""
+    from rdkit import Chem
+
+    from selector.estimation_features import featurize
+    from selector.estimation_linear import DescriptorKernelRidge
+
+    df, mols, X = training()
+    Y = df[E.HSP_COLS].to_numpy(float)
+    test = {"hexane": ("CCCCCC", "110-54-3"), "octane": ("CCCCCCCC", "111-65-9"),
+            "1-propanol": ("CCCO", "71-23-8"), "1-hexanol": ("CCCCCCO", "111-27-3")}
+    can = {Chem.CanonSmiles(s) for s, _ in test.values()}
+    keep = ~df["smiles"].isin(can).to_numpy()
+    assert keep.sum() == len(df) - len(test)
+    model = DescriptorKernelRidge().fit(X[keep], Y[keep])
+    pred = model.predict(np.nan_to_num(featurize([Chem.MolFromSmiles(s) for s, _ in test.values()])))
+    truth = np.array([published_hsp(cas) for _, cas in test.values()])
+    assert np.all(pred[:2, 1:] < 1.5), pred[:2]                 # alkanes: dP, dH near zero
+    assert np.all(np.abs(pred[:, 0] - truth[:, 0]) < 1.0), (pred, truth)   # dD within 1 MPa^0.5
+    assert pred[2, 2] > pred[3, 2] + 2.0                         # propanol dH well above hexanol's
+    assert np.all(np.abs(pred[2:, 2] - truth[2:, 2]) < 2.5), (pred, truth)
+
+
+def test_kernel_stacking_features_are_out_of_fold():
+    """A training row's kernel stacking feature must not see that row's own target: changing
+    the published values of one row leaves its out-of-fold prediction unchanged (and moves
+    the prediction of rows in other folds, so the check can fail)."""
+    from selector.estimation_linear import kernel_out_of_fold
+
+    df, mols, X = training()
+    Y = df[E.HSP_COLS].to_numpy(float)
+    groups = E.scaffold_groups(mols, df["smiles"].tolist())
+    base = kernel_out_of_fold(X, Y, groups, 5, 2)
+    i = int(np.flatnonzero(df["smiles"].to_numpy() == Chem_canon("CC(C)=O"))[0])   # acetone
+    Y2 = Y.copy()
+    Y2[i] += 10.0
+    moved = kernel_out_of_fold(X, Y2, groups, 5, 2)
+    np.testing.assert_allclose(moved[i], base[i], atol=1e-9)
+    assert np.abs(moved - base).max() > 1e-3
+    with pytest.raises(SelectorError, match="kernel_weight"):
+        E.HSPEstimator(kernel_weight=1.5).fit(df["smiles"][:20].tolist(), Y[:20])
+
+
+def Chem_canon(smiles):
+    from rdkit import Chem
+
+    return Chem.CanonSmiles(smiles)
 
 
 HELD_OUT = {  # CAS of common liquids, values checked against chemicals.solubility
