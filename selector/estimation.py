@@ -11,9 +11,11 @@ What it does
   regressor per component (Geurts, Ernst, Wehenkel, Machine Learning 63 (2006) 3-42;
   scikit-learn's ``ExtraTreesRegressor``) on RDKit features
   (:mod:`selector.estimation_features`) plus the stage-1 predictions, made out-of-fold inside
-  the training set (stacked generalisation, Wolpert, Neural Networks 5 (1992) 241-259); dP and
-  dH trees are fitted on the square root, and the tree estimate is the 10 %-trimmed mean over
-  the trees. (3) The estimate is ``(1 - w) * trees + w * kernel ridge`` with ``w`` =
+  the training set (stacked generalisation, Wolpert, Neural Networks 5 (1992) 241-259). The dP
+  and dH trees are fitted on extensive targets: since delta**2 * V is a molar cohesive energy E,
+  the target is ``u = sqrt(delta * sqrt(V_x / 100))`` = (E / 100)**(1/4), V_x the McGowan volume
+  standing in for the molar volume, and ``delta = u**2 / sqrt(V_x / 100)``; dD trees are fitted
+  on dD itself. The tree value is the 10 %-trimmed mean over the trees (of u). (3) The estimate is ``(1 - w) * trees + w * kernel ridge`` with ``w`` =
   ``kernel_weight`` (0.2). Trained on every organic compound of the three
   published HSP tables the project uses (``chemicals``
   source keys ALSHERI_HANSEN - Alshehri et al., AIChE J. 68 (2022) e17469; MANUEL_RUBEN_2022 -
@@ -67,7 +69,7 @@ DOMAIN_THRESHOLD = 0.3
 COVERAGE = 0.90
 ESTIMATED_SOURCE = "estimated from structure (likewise HSPEstimator)"
 #: Tag of the model design; calibration.json written for another design is not used.
-MODEL_TAG = "group-energy ridge + descriptor kernel ridge stacked under extra-trees, blended, v6"
+MODEL_TAG = "group-energy ridge + descriptor kernel ridge stacked under extra-trees on energy targets, blended, v7"
 
 
 def _progress(msg: str) -> None:
@@ -131,6 +133,13 @@ def grouped_folds(groups, n_splits=5, random_state=0):
 
 # --------------------------------------------------------------------------- HSP model
 
+@functools.lru_cache(maxsize=1)
+def _volume_column() -> int:
+    from .estimation_features import feature_names
+
+    return feature_names().index("mcgowan_volume")
+
+
 class HSPEstimator:
     """scikit-learn compatible estimator of (delta_d, delta_p, delta_h) in MPa^0.5 from SMILES.
 
@@ -141,15 +150,19 @@ class HSPEstimator:
     Model (see the module docstring): a group-energy ridge model
     (:class:`selector.estimation_linear.GroupEnergyRidge`) and a descriptor kernel ridge model
     (:class:`selector.estimation_linear.DescriptorKernelRidge`) whose out-of-fold predictions are
-    extra features, then one extra-trees regressor per component, fitted on sqrt(delta) where
-    ``sqrt_targets`` says so (the tree prediction is the square of the trimmed mean over trees),
-    blended with the kernel ridge prediction.
+    extra features, then one extra-trees regressor per component, fitted on
+    ``delta * sqrt(V_x / 100)`` where ``energy_targets`` says so and on the square root of that
+    where ``sqrt_targets`` says so (the tree prediction is the trimmed mean over trees mapped
+    back), blended with the kernel ridge prediction.
 
     Parameters
     ----------
     n_estimators, min_samples_leaf : ExtraTreesRegressor settings.
     max_features : float or 3 floats (dD, dP, dH), fraction of features tried per split.
     sqrt_targets : 3 booleans, fit the trees of that component on the square root.
+    energy_targets : 3 booleans, fit the trees of that component on ``delta * sqrt(V_x / 100)``
+        (the square root of a molar cohesive energy; V_x the McGowan volume, cm^3/mol) instead
+        of delta; applied before ``sqrt_targets``.
     stack_linear : bool, add the group-energy ridge predictions as features.
     stack_kernel : bool, add the descriptor kernel ridge predictions as features.
     kernel_weight : float in [0, 1], weight of the kernel ridge prediction in the estimate
@@ -171,14 +184,15 @@ class HSPEstimator:
     0.8
     """
 
-    def __init__(self, n_estimators=150, max_features=(0.15, 0.15, 0.3), min_samples_leaf=1,
-                 sqrt_targets=(False, True, True), stack_linear=True, stack_kernel=True,
+    def __init__(self, n_estimators=150, max_features=0.15, min_samples_leaf=1,
+                 sqrt_targets=(False, True, True), energy_targets=(False, True, True), stack_linear=True, stack_kernel=True,
                  kernel_weight=0.2, trim=0.1, coverage=0.9, calibration_folds=5, random_state=0,
                  n_jobs=None):
         self.n_estimators = n_estimators
         self.max_features = max_features
         self.min_samples_leaf = min_samples_leaf
         self.sqrt_targets = sqrt_targets
+        self.energy_targets = energy_targets
         self.stack_linear = stack_linear
         self.stack_kernel = stack_kernel
         self.kernel_weight = kernel_weight
@@ -189,7 +203,7 @@ class HSPEstimator:
         self.n_jobs = n_jobs
 
     # scikit-learn protocol (written out so that sklearn is imported only when needed)
-    _PARAMS = ("n_estimators", "max_features", "min_samples_leaf", "sqrt_targets", "stack_linear",
+    _PARAMS = ("n_estimators", "max_features", "min_samples_leaf", "sqrt_targets", "energy_targets", "stack_linear",
                "stack_kernel", "kernel_weight", "trim", "coverage", "calibration_folds", "random_state", "n_jobs")
 
     def get_params(self, deep=True):
@@ -243,6 +257,7 @@ class HSPEstimator:
             raise SelectorError(f"trim must be in [0, 0.5), got {self.trim!r}")
         self._per_component(self.max_features, "max_features")
         self._per_component(self.sqrt_targets, "sqrt_targets")
+        self._per_component(self.energy_targets, "energy_targets")
 
     def _new_tree_model(self, j):
         from sklearn.ensemble import ExtraTreesRegressor
@@ -281,12 +296,25 @@ class HSPEstimator:
             extra.append(kernel_out_of_fold(X, Y, groups, 5, seed + 2))
         Xa = np.hstack([X] + extra) if extra else X
         sq = self._per_component(self.sqrt_targets, "sqrt_targets")
+        T = Y * self._energy_scale(X)
         models = []
         for j in range(3):
             m = self._new_tree_model(j)
-            m.fit(Xa, np.sqrt(Y[:, j]) if sq[j] else Y[:, j])
+            m.fit(Xa, np.sqrt(T[:, j]) if sq[j] else T[:, j])
             models.append(m)
         return lin, kr, models
+
+    def _energy_scale(self, X):
+        """(n, 3) factors sqrt(V / 100 cm^3/mol) for the components fitted as square roots of
+        molar cohesive energies (``energy_targets``), 1 for the others; V the McGowan volume."""
+        from .estimation_features import feature_names
+
+        es = np.asarray(self._per_component(self.energy_targets, "energy_targets"), bool)
+        out = np.ones((len(X), 3))
+        if es.any():
+            v = np.maximum(np.asarray(X, float)[:, _volume_column()], 1.0)
+            out[:, es] = np.sqrt(v / 100.0)[:, None]
+        return out
 
     def predict_state(self, state, X, counts):
         """``(pred, spread)``, (n, 3) each in MPa^0.5, of a state from :meth:`fit_state`: the
@@ -303,6 +331,7 @@ class HSPEstimator:
         sq = self._per_component(self.sqrt_targets, "sqrt_targets")
         pred = np.empty((len(X), 3))
         spread = np.empty((len(X), 3))
+        scale = self._energy_scale(X)
         for j, m in enumerate(models):
             t = self._per_tree(m, Xa)
             k = int(float(self.trim) * len(t))
@@ -313,6 +342,8 @@ class HSPEstimator:
             else:
                 pred[:, j] = centre
                 spread[:, j] = t.std(axis=0)
+        pred /= scale
+        spread /= scale
         w = float(self.kernel_weight)
         if w > 0:
             pred = (1.0 - w) * pred + w * np.clip(k_pred, 0.0, None)

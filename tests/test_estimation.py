@@ -158,14 +158,14 @@ def test_scaffold_cv_accuracy_has_not_regressed(reduced_cv):
     Y, P, cov = reduced_cv
     mae = np.abs(P - Y).mean(axis=0)
     # Regression guard of the reduced model (25 trees; the full 150-tree model measures
-    # 0.54 / 1.58 / 1.29 MPa^0.5, parameters/estimator_accuracy.md). The reduced model measured
-    # 0.56 / 1.63 / 1.30 when these limits were set (tree seed 1 instead of 0 gave
-    # 0.56 / 1.62 / 1.32); margin 0.04 / 0.06 / 0.06 MPa^0.5 above the seed-0 run, so a
+    # 0.54 / 1.53 / 1.28 MPa^0.5, parameters/estimator_accuracy.md). The reduced model measured
+    # 0.56 / 1.58 / 1.32 when these limits were set (tree seed 1 instead of 0 gave
+    # 0.56 / 1.56 / 1.31); margin 0.04 / 0.06 / 0.06 MPa^0.5 above the seed-0 run, so a
     # regression of more than about 4 % fails. The limits also stay below the issue's untuned
     # extra-trees reference (0.72 / 1.66 / 1.53) plus that margin.
     assert mae[0] <= 0.56 + 0.04
-    assert mae[1] <= 1.63 + 0.06
-    assert mae[2] <= 1.30 + 0.06
+    assert mae[1] <= 1.58 + 0.06
+    assert mae[2] <= 1.32 + 0.06
     # and far better than knowing only the mean of the published table (common practice check)
     naive = np.abs(Y - Y.mean(axis=0)).mean(axis=0)
     assert np.all(mae < 0.6 * naive)
@@ -249,6 +249,20 @@ def test_kernel_stacking_features_are_out_of_fold():
     assert np.abs(moved - base).max() > 1e-3
     with pytest.raises(SelectorError, match="kernel_weight"):
         E.HSPEstimator(kernel_weight=1.5).fit(df["smiles"][:20].tolist(), Y[:20])
+
+
+def test_energy_targets_scale_by_the_mcgowan_volume():
+    """The dP and dH trees learn delta * sqrt(V_x / 100): for n-hexane the McGowan volume is
+    V_x = 0.954 (100 cm^3/mol) (Abraham and McGowan, Chromatographia 23 (1987) 243; from
+    memory), so the factor is sqrt(0.954) for dP and dH and 1 for dD (energy_targets default)."""
+    from rdkit import Chem
+
+    from selector.estimation_features import featurize
+
+    f = E.HSPEstimator()._energy_scale(featurize([Chem.MolFromSmiles("CCCCCC")]))[0]
+    np.testing.assert_allclose(f, [1.0, np.sqrt(0.954), np.sqrt(0.954)], atol=0.005)
+    f_off = E.HSPEstimator(energy_targets=False)._energy_scale(featurize([Chem.MolFromSmiles("CCCCCC")]))
+    np.testing.assert_array_equal(f_off, np.ones((1, 3)))
 
 
 def Chem_canon(smiles):
