@@ -41,7 +41,7 @@ What it does
   from the library (``source`` = "library"), not estimated.
 
 Shipping: nothing is unpickled. The model is trained in the process on first use (about
-10-15 s, a progress line on stderr), the training features are cached as a plain ``.npy``
+10-20 s, a progress line on stderr), the training features are cached as a plain ``.npy``
 array (loaded with ``allow_pickle=False``) under the user's data folder.
 
 Estimated values are estimates: check them against a measurement before relying on them.
