@@ -7,7 +7,7 @@ import math
 from .cli_common import CAUTION, add_filter_args, add_output_args, emit, filters_from_args, library_from_args
 
 PAIR_COLUMNS = ["a", "b", "temperature_c", "state", "chi", "chi_critical", "ucst_c", "lcst_c", "confidence",
-                "a_in_b_vol_pct", "a_in_b_wt_pct", "a_in_b_mol_pct", "b_in_a_vol_pct", "b_in_a_wt_pct",
+                "p_miscible", "a_in_b_vol_pct", "a_in_b_wt_pct", "a_in_b_mol_pct", "b_in_a_vol_pct", "b_in_a_wt_pct",
                 "b_in_a_mol_pct", "spinodal_low", "spinodal_high", "v_ref", "interaction_mpa", "model", "notes"]
 
 SHORT = {"miscible": "mix", "partially miscible": "part", "immiscible": "no"}
@@ -15,7 +15,7 @@ SHORT = {"miscible": "mix", "partially miscible": "part", "immiscible": "no"}
 
 def _pair_row(r) -> dict:
     d = {k: getattr(r, k) for k in ("a", "b", "temperature_c", "state", "chi", "chi_critical", "ucst_c",
-                                    "lcst_c", "confidence", "v_ref", "interaction_mpa", "model")}
+                                    "lcst_c", "confidence", "p_miscible", "v_ref", "interaction_mpa", "model")}
     for side in ("a_in_b", "b_in_a"):
         for unit in ("vol_pct", "wt_pct", "mol_pct"):
             d[f"{side}_{unit}"] = r.binodal[side][unit] if r.binodal else None
@@ -39,6 +39,9 @@ def cmd_mix(a) -> int:
         emit(pd.DataFrame([_pair_row(r)]), a, PAIR_COLUMNS)
         return 0
     print(f"{r.a} + {r.b} at {r.temperature_c:g} C: {r.state.upper()} (confidence {r.confidence})")
+    if math.isfinite(r.p_miscible):
+        print(f"  probability of one phase in all proportions: {100 * r.p_miscible:.0f} % "
+              "(logistic fit on the reference pairs at 25 C)")
     print(f"  chi {r.chi:.3f} (per {r.v_ref:.1f} cm3/mol), critical chi {r.chi_critical:.3f}; "
           f"model: {r.model}")
     print(f"  UCST: {_fmt(r.ucst_c, 1) + ' C' if r.ucst_c is not None else 'none in this model'}")

