@@ -176,18 +176,21 @@ class DescriptorKernelRidge:
         self.width = width
         self.alpha = alpha
 
-    def _z(self, X):
+    @staticmethod
+    def _logged(X):
+        """The kernel's columns of ``X``, mapped by sign(x) log(1 + |x|)."""
         Z = np.asarray(X, float)[:, _kernel_columns()]
-        Z = np.sign(Z) * np.log1p(np.abs(Z))
-        return (Z[:, self.keep_] - self.mu_) / self.sd_
+        return np.sign(Z) * np.log1p(np.abs(Z))
+
+    def _z(self, X):
+        return (self._logged(X)[:, self.keep_] - self.mu_) / self.sd_
 
     @staticmethod
     def _sqdist(A, B):
         return np.maximum((A * A).sum(1)[:, None] + (B * B).sum(1)[None, :] - 2.0 * A @ B.T, 0.0)
 
     def fit(self, X, Y):
-        Z = np.asarray(X, float)[:, _kernel_columns()]
-        Z = np.sign(Z) * np.log1p(np.abs(Z))
+        Z = self._logged(X)
         sd = Z.std(axis=0)
         self.keep_ = sd > 1e-9
         self.mu_ = Z[:, self.keep_].mean(axis=0)

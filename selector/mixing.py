@@ -148,6 +148,17 @@ class MixingModel:
         p = 0.5 * (1.0 - np.tanh(0.5 * lr / self.tau))    # logistic, overflow-free
         return float(p) if np.ndim(p) == 0 else p
 
+    def keesom_factor(self, t_c):
+        """(298.15 K / T)^keesom, the temperature factor of the polar term (see :meth:`interaction`);
+        1 when ``keesom`` is 0. Works on floats and arrays of t_c (C).
+
+        >>> round(float(MixingModel("demo", keesom=1.0).keesom_factor(75.0)), 4)
+        0.8564
+        """
+        if not self.keesom:
+            return 1.0
+        return (T_REF / (np.asarray(t_c, float) + 273.15)) ** self.keesom
+
     def split_ratio(self, sites):
         """sqrt((alpha + f) / (beta + f)) per liquid from (..., 2) (alpha, beta) arrays; 1 if no split."""
         s = np.asarray(sites, float)[..., :2]
@@ -182,7 +193,7 @@ class MixingModel:
         if self.aromatic_q != 1.0 and sites1 is not None and sites2 is not None:
             wp = wp * (self.induction(sites1) * self.induction(sites2)) ** 2
         if self.keesom:
-            wp = wp * (T_REF / (np.asarray(t_c, float) + 273.15)) ** self.keesom
+            wp = wp * self.keesom_factor(t_c)
         a = self.w_d * d[..., 0] ** 2 + wp * d[..., 1] ** 2
         if self.acid_floor and sites1 is not None and sites2 is not None:
             r1, r2 = self.split_ratio(sites1), self.split_ratio(sites2)
@@ -945,8 +956,7 @@ def _critical_scalar(h1, h2, s1, s2, v1, v2, model, al1, al2, lo=-150.0, hi=400.
         d1 = h1[1] * math.exp(-k1[1] * dt) - h2[1] * math.exp(-k2[1] * dt)
         x1 = h1[2] * math.exp(-k1[2] * dt)
         x2 = h2[2] * math.exp(-k2[2] * dt)
-        kf = (T_REF / (t + 273.15)) ** model.keesom if model.keesom else 1.0
-        a = (model.w_d * d0 * d0 + wp * kf * d1 * d1
+        a = (model.w_d * d0 * d0 + wp * float(model.keesom_factor(t)) * d1 * d1
              + model.w_h * (x1 * r1 - x2 * r2) * (x1 / r1 - x2 / r2))
         e1 = max(v1 * math.exp(al1 * dt) * g1, model.v_min)
         e2 = max(v2 * math.exp(al2 * dt) * g2, model.v_min)

@@ -129,12 +129,11 @@ def _polar_factor(f: PairFeatures, aromatic_q: float):
     return (m.induction(f.s1) * m.induction(f.s2)) ** 2
 
 
-def _keesom(t_c, keesom: float | None = None):
-    """(298.15 K / T)^n, the Keesom factor of the polar term (:meth:`MixingModel.interaction`)."""
-    from .mixing import HBOND, T_REF
+def _keesom(t_c):
+    """The Keesom factor of the bundled model's polar term at t_c (:meth:`MixingModel.keesom_factor`)."""
+    from .mixing import HBOND
 
-    n = HBOND.keesom if keesom is None else float(keesom)
-    return (T_REF / (np.asarray(t_c, float) + 273.15)) ** n if n else 1.0
+    return HBOND.keesom_factor(t_c)
 
 
 def _a12(G, d2, hb, pf):
@@ -233,6 +232,7 @@ class GridScores:
         u = _ucst_grid(self.G, f, self.ucst_cols, self.acid_floor, self.v_min, self.aromatic_q,
                        self.assoc_z)
         self.ucst_err = np.minimum(np.abs(u - f.ucst[self.ucst_cols][None, :]) / 50.0, 1.0)
+        self._loss_cache = None
 
     def scores(self, train: np.ndarray, objective: str = "likelihood") -> tuple[np.ndarray, np.ndarray]:
         """(score, tau) per grid point on the ``train`` pairs.
@@ -260,7 +260,7 @@ class GridScores:
     def _losses(self):
         """Per-pair logistic losses (tau, grid, pair) and their sums over all pairs (cached once,
         so each leave-one-out fold only subtracts its held-out pairs)."""
-        if getattr(self, "_loss_cache", None) is None:
+        if self._loss_cache is None:
             loss = np.stack([np.logaddexp(0.0, -self.margin / t) for t in TAU_GRID]).astype(np.float32)
             self._loss_cache = (loss, loss.sum(-1, dtype=float))
         return self._loss_cache

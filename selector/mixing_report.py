@@ -294,7 +294,7 @@ def build_report(with_unifac: bool = True) -> str:
             g2 = GridScores(f, acid_floor=fl, v_min=vm, aromatic_q=aq, assoc_z=0.0 if no_assoc else None)
         no_polyol = label.startswith("without the polyol") or label.startswith("none")
         mask = (g2.G[:, 2] == 0) if no_polyol else None
-        ins = float(g2.right[int(np.flatnonzero((g2.G == g2.best(np.ones(n, bool), mask)).all(1))[0])].mean())
+        ins = float(g2.right[g2.best_index(np.ones(n, bool), mask)[0]].mean())
         lines.append(f"| {label} | {_pct(ins)} | {_pct(lolo_binary(f, g2, mask))} |")
     k_acc, _ = gs.best_index(np.ones(n, bool), objective="accuracy")
     lines.append(f"| the model, fitted by the fraction right (the fit used until 2026-12) in place of the likelihood | "
