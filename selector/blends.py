@@ -765,12 +765,25 @@ def relative_evaporation_rate(library: pd.DataFrame, temperature: float = 25.0) 
     return p / p_ref
 
 
-def _blend_properties(cand, idx, f, temperature):
-    """Blend viscosity (mPa s) and initial RER estimates for proposals (volume fractions)."""
+def _matchable_viscosity(table) -> np.ndarray:
+    """Viscosities (mPa s) fit to judge a match: corresponding-states estimates
+    (:data:`~selector.library.UNRELIABLE_VISCOSITY_METHODS`) count as unknown."""
+    from .library import UNRELIABLE_VISCOSITY_METHODS
+
+    eta = table["viscosity_mpa_s"].to_numpy(float)
+    if "viscosity_method" not in table.columns:
+        return eta
+    bad = table["viscosity_method"].astype(str).isin(UNRELIABLE_VISCOSITY_METHODS).to_numpy()
+    return np.where(bad, np.nan, eta)
+
+
+def _blend_properties(cand, idx, f, temperature, eta=None):
+    """Blend viscosity (mPa s) and initial RER estimates for proposals (volume fractions);
+    ``eta`` replaces the candidates' viscosities when given."""
     used = idx >= 0
     safe = np.where(used, idx, 0)
     fr = np.where(used, f, 0.0)
-    eta = cand["viscosity_mpa_s"].to_numpy(float)
+    eta = cand["viscosity_mpa_s"].to_numpy(float) if eta is None else np.asarray(eta, float)
     rer = relative_evaporation_rate(cand, temperature)
     with np.errstate(invalid="ignore", divide="ignore"):
         # ln(eta) mixed by volume fraction (Arrhenius rule without interaction term)
@@ -797,7 +810,8 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     with distance = RED to ``solute``'s sphere, else Ra to the target / 8 MPa^0.5, and mismatch
     the mean, over the properties known for both, of |Delta bp| / 50 C, |ln(RER ratio)| / ln 3 and
     |ln(viscosity ratio)| / ln 3 (each 1 at a 50 C or three-fold difference; this project's own
-    weighting). RER: :func:`relative_evaporation_rate`; blend RER = volume-weighted mean, blend
+    weighting; a viscosity from a corresponding-states estimate such as Letsou-Stiel, typically
+    off by a factor of 1.8 at 25 C, counts as unknown there). RER: :func:`relative_evaporation_rate`; blend RER = volume-weighted mean, blend
     viscosity by the volume-weighted log rule, blend boiling point taken as the mean of the
     boiling range (rough estimates). Columns as in :func:`find_blends` plus ``boiling_point_c``,
     ``evaporation_rate``, ``viscosity_mpa_s``, ``mismatch``, ``score``, ``role``.
@@ -853,6 +867,7 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     tab["boiling_point_c"] = 0.5 * (tab["bp_low_c"] + tab["bp_high_c"])
     tab["evaporation_rate"] = rer
     tab["viscosity_mpa_s"] = visc
+    match_visc = _blend_properties(cand, res["idx"], res["f"], t_c, _matchable_viscosity(cand))[0]
     hr = hazard_columns(cand)["hazard_rank"].to_numpy(float)
     used = res["idx"] >= 0
     tab["hazard_rank"] = np.where(used, hr[np.where(used, res["idx"], 0)], -np.inf).max(1)
@@ -866,12 +881,15 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     xtab["boiling_point_c"] = float(x["boiling_point_c"].iloc[0])
     xtab["evaporation_rate"] = xe
     xtab["viscosity_mpa_s"] = xv
+    x_match_visc = _blend_properties(x, np.array([[0, -1, -1]]), np.array([[1.0, 0, 0]]), t_c,
+                                     _matchable_viscosity(x))[0]
     xtab["hazard_rank"] = float(xr)
     parts = []
-    for col, scale, logp in (("boiling_point_c", 50.0, False), ("evaporation_rate", math.log(3), True),
-                             ("viscosity_mpa_s", math.log(3), True)):
-        a = tab[col].to_numpy(float)
-        b = float(xtab[col].iloc[0])
+    for a, b, scale, logp in ((tab["boiling_point_c"], xtab["boiling_point_c"], 50.0, False),
+                              (tab["evaporation_rate"], xtab["evaporation_rate"], math.log(3), True),
+                              (match_visc, x_match_visc, math.log(3), True)):
+        a = np.asarray(a, float)
+        b = float(np.asarray(b, float)[0])
         with np.errstate(invalid="ignore", divide="ignore"):
             d = np.abs(np.log(a / b)) if logp else np.abs(a - b)
         parts.append(d / scale)

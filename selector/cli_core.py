@@ -14,7 +14,7 @@ SHOW_FIELDS = ["name", "cas", "smiles", "formula", "molar_mass", "delta_d", "del
                "vapour_pressure_kpa", "hvap_kj_mol", "expansion_coeff", "viscosity_mpa_s",
                "exposure_limit", "exposure_limit_unit", "exposure_limit_source", "synonyms",
                "melting_point_source", "boiling_point_source", "volume_method",
-               "vapour_pressure_method", "viscosity_method", "flash_point_source", "origin"]
+               "vapour_pressure_method", "viscosity_method", "viscosity_estimated", "flash_point_source", "origin"]
 
 
 def target_from_text(text: str, radius: float | None = None, library=None):
