@@ -386,6 +386,26 @@ def test_substitutes_are_strictly_safer(nmp_subs):
         assert col in s.columns
 
 
+def test_substitute_viscosity_match_ignores_corresponding_states_estimates(nmp_subs):
+    # NMP's library viscosity is a Letsou-Stiel estimate (no data-based correlation in thermo):
+    # shown, but not used to judge the match, so changing it changes no score. Toluene's comes
+    # from a data-based correlation and does count. (Rule documented in parameters/README.md.)
+    lib = LIB.copy()
+    nmp = lib["cas"] == "872-50-4"
+    assert lib.loc[nmp, "viscosity_method"].iloc[0] == "LETSOU_STIEL"
+    lib.loc[nmp, "viscosity_mpa_s"] = 5.0
+    s = substitutes("NMP", top=10, library=lib)
+    assert s["viscosity_mpa_s"].iloc[0] == pytest.approx(5.0)
+    np.testing.assert_allclose(s["score"].to_numpy(), nmp_subs["score"].to_numpy())
+    base = substitutes("toluene", top=5, max_components=1)
+    lib2 = LIB.copy()
+    tol = lib2["cas"] == "108-88-3"
+    assert not lib2.loc[tol, "viscosity_estimated"].iloc[0]
+    lib2.loc[tol, "viscosity_mpa_s"] *= 3.0
+    moved = substitutes("toluene", top=5, max_components=1, library=lib2)
+    assert not np.allclose(moved["mismatch"].iloc[1:].to_numpy(), base["mismatch"].iloc[1:].to_numpy())
+
+
 def test_substitutes_for_a_solute_sphere():
     s = substitutes("toluene", solute=PS, top=5, max_components=1)
     assert s["role"].iloc[0] == "replaced"
