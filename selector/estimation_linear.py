@@ -122,17 +122,27 @@ class GroupEnergyRidge:
                                 np.sqrt(np.clip(t[:, 2], 0, None) / V)])
 
 
+def _out_of_fold(fit_predict, n, groups, n_splits, random_state):
+    """(n, 3) out-of-fold predictions: ``fit_predict(train_index, test_index)`` per fold of
+    :func:`selector.estimation.grouped_folds`."""
+    from .estimation import grouped_folds
+
+    out = np.zeros((n, 3))
+    for tr, te in grouped_folds(groups, n_splits, random_state):
+        out[te] = fit_predict(tr, te)
+    return out
+
+
 def out_of_fold(counts, X, Y, groups, n_splits=5, random_state=1, alpha=ALPHA):
     """Out-of-fold :class:`GroupEnergyRidge` predictions (n, 3) with folds grouped by
     ``groups`` (the stacking features of the training rows)."""
-    from .estimation import grouped_folds
+    X, Y = np.asarray(X, float), np.asarray(Y, float)
 
-    X = np.asarray(X, float)
-    out = np.zeros((len(counts), 3))
-    for tr, te in grouped_folds(groups, n_splits, random_state):
-        m = GroupEnergyRidge(alpha).fit([counts[i] for i in tr], X[tr], np.asarray(Y)[tr])
-        out[te] = m.predict([counts[i] for i in te], X[te])
-    return out
+    def fit_predict(tr, te):
+        m = GroupEnergyRidge(alpha).fit([counts[i] for i in tr], X[tr], Y[tr])
+        return m.predict([counts[i] for i in te], X[te])
+
+    return _out_of_fold(fit_predict, len(counts), groups, n_splits, random_state)
 
 
 # --------------------------------------------------------------------------- kernel ridge stage
@@ -212,11 +222,6 @@ class DescriptorKernelRidge:
 
 def kernel_out_of_fold(X, Y, groups, n_splits=5, random_state=2, width=KERNEL_WIDTH, alpha=KERNEL_ALPHA):
     """Out-of-fold :class:`DescriptorKernelRidge` predictions (n, 3), folds grouped by ``groups``."""
-    from .estimation import grouped_folds
-
-    X = np.asarray(X, float)
-    Y = np.asarray(Y, float)
-    out = np.zeros((len(X), 3))
-    for tr, te in grouped_folds(groups, n_splits, random_state):
-        out[te] = DescriptorKernelRidge(width, alpha).fit(X[tr], Y[tr]).predict(X[te])
-    return out
+    X, Y = np.asarray(X, float), np.asarray(Y, float)
+    return _out_of_fold(lambda tr, te: DescriptorKernelRidge(width, alpha).fit(X[tr], Y[tr]).predict(X[te]),
+                        len(X), groups, n_splits, random_state)
