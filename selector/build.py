@@ -61,7 +61,7 @@ COLUMNS = [
     "antoine_tmin_c", "antoine_tmax_c", "hvap_kj_mol", "expansion_coeff", "viscosity_mpa_s",
     "viscosity_estimated", "critical_temperature_c", "exposure_limit", "exposure_limit_unit", "synonyms",
     "melting_point_source", "boiling_point_source", "volume_method", "vapour_pressure_method",
-    "viscosity_method", "flash_point_source", "exposure_limit_source",
+    "viscosity_method", "flash_point_source", "exposure_limit_source", "reactive_reason",
 ]
 
 
@@ -363,6 +363,9 @@ def build(cas_subset: list[str] | None = None, processes: int = 2) -> pd.DataFra
     # Names must be unique for look-up: disambiguate rare clashes with the CAS number.
     dup = df["name"].str.lower().duplicated(keep=False)
     df.loc[dup, "name"] = df.loc[dup, "name"] + " (" + df.loc[dup, "cas"] + ")"
+    from .cautions import reactive_reasons
+
+    df["reactive_reason"] = reactive_reasons(df.drop(columns=["reactive_reason", "origin"], errors="ignore"))
     df = df[COLUMNS].sort_values("name", key=lambda s: s.str.lower()).reset_index(drop=True)
     return df
 

@@ -7,7 +7,8 @@ import json
 from .cli_common import add_filter_args, add_output_args, emit, filters_from_args, library_from_args
 
 RANK_COLUMNS = ["rank", "name", "cas", "delta_d", "delta_p", "delta_h", "ra", "red", "polarity_match",
-                "score", "molar_volume", "boiling_point_c", "flash_point_c", "hsp_source", "sources_disagree"]
+                "score", "molar_volume", "boiling_point_c", "flash_point_c", "hazard_class", "hsp_source",
+                "sources_disagree"]
 SHOW_FIELDS = ["name", "cas", "smiles", "formula", "molar_mass", "delta_d", "delta_p", "delta_h",
                "hsp_source", "hsp_sources_available", "hsp_spread", "sources_disagree", "molar_volume",
                "density", "melting_point_c", "boiling_point_c", "flash_point_c", "autoignition_c",
@@ -22,27 +23,63 @@ def target_from_text(text: str, radius: float | None = None, library=None):
 
     'dD,dP,dH[,R0]' (MPa^0.5) -> tuple; anything else is a liquid name, CAS or SMILES, returned
     as is, or as a :class:`~selector.targets.Target` at that liquid's point with ``radius`` as R0.
+    Text that starts like numbers but is not 3 or 4 of them, and a SMILES that is not in the
+    library, get a message that says what to do.
     """
+    from .errors import SelectorError
+
     parts = [p.strip() for p in text.split(",")]
-    if len(parts) in (3, 4):
+    nums = []
+    for p in parts:
         try:
-            nums = tuple(float(p) for p in parts)
+            nums.append(float(p))
         except ValueError:
             nums = None
-        if nums is not None:
-            if radius is not None:
-                if len(nums) == 4:
-                    raise ValueError("R0 given twice: in the target and with --radius")
-                nums = nums + (radius,)
-            return nums
+            break
+    first_is_number = bool(parts) and _is_number(parts[0])
+    if nums is None and first_is_number and len(parts) > 1:
+        raise SelectorError(f"target {text!r}: expected numbers 'dD,dP,dH' or 'dD,dP,dH,R0' in MPa^0.5")
+    if nums is not None:
+        if len(nums) not in (3, 4):
+            raise SelectorError(f"target {text!r}: expected 'dD,dP,dH' or 'dD,dP,dH,R0' in MPa^0.5, "
+                                f"got {len(nums)} number{'s' if len(nums) != 1 else ''}")
+        nums = tuple(nums)
+        if radius is not None:
+            if len(nums) == 4:
+                raise SelectorError("R0 given twice: in the target and with --radius")
+            nums = nums + (radius,)
+        from .targets import as_target
+
+        as_target(nums)   # range and sign checks, with their messages
+        return nums
+    from .library import find_liquid, load_library
+
+    lib = load_library() if library is None else library
+    try:
+        row = find_liquid(text, lib)
+    except SelectorError as err:
+        from rdkit import Chem, RDLogger
+
+        RDLogger.DisableLog("rdApp.*")
+        if Chem.MolFromSmiles(text) is not None and any(ch in text for ch in "=#()[]1cC"):
+            raise SelectorError(f"unknown liquid {text!r}: it reads as a SMILES that is not in the library; "
+                                f"estimate its HSP with  likewise guess '{text}' --save-mine my_liquids.csv  "
+                                "and then add --mine my_liquids.csv") from None
+        raise
     if radius is None:
         return text
-    from .library import find_liquid
     from .targets import Target
 
-    row = find_liquid(text, library)
     return Target(float(row.delta_d), float(row.delta_p), float(row.delta_h), radius,
                   name=str(row["name"]), source="library point with given R0")
+
+
+def _is_number(s: str) -> bool:
+    try:
+        float(s)
+    except ValueError:
+        return False
+    return True
 
 
 def cmd_rank(a) -> int:
@@ -54,9 +91,28 @@ def cmd_rank(a) -> int:
     tgt = res.attrs["target"]
     cols = RANK_COLUMNS if res["red"].notna().any() else [c for c in RANK_COLUMNS if c != "red"]
     header = (f"Target {tgt.describe()} at {a.at:g} C; {len(res)} candidates; "
-              "score = distance + polarity weight x (1 - polarity match), lower is better")
-    emit(res.head(a.top), a, cols, caution=True, header=header)
+              "score = distance + polarity weight x (1 - polarity match), lower is better; "
+              "hazard class: CHEM21 (unclassified = no hazard data here, not safe)"
+              + _reagent_note(res))
+    emit(_with_hazard_class(res, lib).head(a.top), a, cols, caution=True, header=header)
     return 0
+
+
+def _with_hazard_class(res, lib):
+    """``res`` with the CHEM21 ``hazard_class`` of each liquid (looked up by CAS in ``lib``)."""
+    from .hazards import hazard_columns
+
+    hz = hazard_columns(lib)
+    cls = dict(zip(lib["cas"].astype(str), hz["hazard_class"]))
+    out = res.copy()
+    out["hazard_class"] = out["cas"].astype(str).map(cls).fillna("unclassified")
+    return out
+
+
+def _reagent_note(res) -> str:
+    n = res.attrs.get("reagents_left_out", 0)
+    return (f"\n{n} reagents (reactive, explosive or very toxic liquids) are left out; "
+            "--include-reactive lists them" if n else "")
 
 
 def cmd_show(a) -> int:
@@ -120,8 +176,19 @@ def cmd_demo(a) -> int:
     print()
     header = (f"Thinners for {r['name']} (dD {r['delta_d']}, dP {r['delta_p']}, dH {r['delta_h']}, "
               f"R0 {r['radius']} MPa^0.5), boiling point {f['boiling_point_c'][0]:g}-{f['boiling_point_c'][1]:g} C, "
-              f"flash point >= {f['min_flash_point_c']:g} C:")
-    emit(res.head(a.top), a, RANK_COLUMNS, caution=True, header=header)
+              f"flash point >= {f['min_flash_point_c']:g} C; hazard class: CHEM21 (unclassified = no "
+              "hazard data here, not safe; the scenario wants a better class than its current thinner):"
+              + _reagent_note(res))
+    from .library import load_library
+
+    shown = _with_hazard_class(res, load_library())
+    emit(shown.head(a.top), a, RANK_COLUMNS, caution=True, header=header)
+    if a.format == "table":
+        better = shown[(shown["hazard_class"] == "recommended") & (shown["red"] < 1)].head(5)
+        if len(better):
+            print("\nInside the sphere with a better CHEM21 class than toluene (problematic): "
+                  + ", ".join(f"{n} (RED {r:.2f})" for n, r in zip(better["name"], better["red"]))
+                  + ". A shortlist for test mixes, not an endorsement: read each safety data sheet.")
     return 0
 
 

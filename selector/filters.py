@@ -6,15 +6,19 @@ Keyword arguments (all optional):
 * ``exclude``: list of names/CAS - these are never candidates;
 * ``boiling_point_c=(low, high)``: boiling-point window in C (either end may be None);
 * ``min_flash_point_c``: minimum flash point in C. A liquid without flash-point data does not
-  pass: missing data is not evidence that a liquid will not burn;
+  pass (missing data is not evidence that a liquid will not burn) unless it is known not to
+  be flammable (:func:`selector.cautions.not_flammable`: water, dichloromethane, chloroform,
+  ...), which passes any minimum;
 * ``max_molar_volume``: cm^3/mol;
 * ``consistent_sources_only``: drop liquids whose published HSP sources disagree by more than
   1 MPa^0.5;
 * ``flash_point_c=(low, high)``: flash-point window in C (liquids without flash-point data do
-  not pass);
+  not pass; a non-flammable liquid passes a window without an upper end);
 * ``max_hazard_class``: worst CHEM21 class allowed (``"recommended"``, ``"problematic"``,
   ``"hazardous"``, ``"highly hazardous"``; see :mod:`selector.hazards`). Unclassified liquids
-  (no hazard data) do not pass.
+  (no hazard data) do not pass;
+* ``include_reactive``: also offer reagents that are not solvents - reactive, explosive or very
+  toxic at low exposure (:mod:`selector.cautions`). Default False: they are never candidates.
 
 At a temperature other than 25 C, liquids that are not liquid there (melting point above it or
 boiling point below it) are dropped too.
@@ -30,7 +34,7 @@ from .errors import SelectorError
 from .library import locate_many
 
 FILTER_KEYS = ("include", "exclude", "boiling_point_c", "min_flash_point_c", "max_molar_volume",
-               "consistent_sources_only", "flash_point_c", "max_hazard_class")
+               "consistent_sources_only", "flash_point_c", "max_hazard_class", "include_reactive")
 
 
 def _as_list(v, what):
@@ -78,7 +82,8 @@ def check_filter_keys(filters: dict, extra: tuple[str, ...] = ()) -> None:
 
 def filter_mask(library: pd.DataFrame, *, temperature: float = 25.0, include=None, exclude=None,
                 boiling_point_c=None, min_flash_point_c=None, max_molar_volume=None,
-                consistent_sources_only=False, flash_point_c=None, max_hazard_class=None) -> np.ndarray:
+                consistent_sources_only=False, flash_point_c=None, max_hazard_class=None,
+                include_reactive=False) -> np.ndarray:
     """Boolean mask over ``library`` rows that pass every filter (see module doc)."""
     n = len(library)
     mask = np.ones(n, dtype=bool)
@@ -107,7 +112,7 @@ def filter_mask(library: pd.DataFrame, *, temperature: float = 25.0, include=Non
             raise SelectorError("min_flash_point_c must not be NaN")
         fp = library["flash_point_c"].to_numpy(float)
         with np.errstate(invalid="ignore"):
-            mask &= fp >= f
+            mask &= (fp >= f) | _not_flammable(library)
     if max_molar_volume is not None:
         try:
             v = float(max_molar_volume)
@@ -123,12 +128,17 @@ def filter_mask(library: pd.DataFrame, *, temperature: float = 25.0, include=Non
         flo, fhi = _window(flash_point_c, "flash_point_c")
         fp = library["flash_point_c"].to_numpy(float)
         with np.errstate(invalid="ignore"):
-            mask &= np.isfinite(fp) & (fp >= (-np.inf if flo is None else flo)) & (fp <= (np.inf if fhi is None else fhi))
+            inside = np.isfinite(fp) & (fp >= (-np.inf if flo is None else flo)) & (fp <= (np.inf if fhi is None else fhi))
+        mask &= inside | (_not_flammable(library) if fhi is None else False)
     if max_hazard_class is not None:
         from .hazards import class_rank, hazard_columns
 
         with np.errstate(invalid="ignore"):
             mask &= hazard_columns(library)["hazard_rank"].to_numpy(float) <= class_rank(max_hazard_class)
+    if not include_reactive:
+        from .cautions import reactive_reasons
+
+        mask &= reactive_reasons(library) == ""
     if "kind" in library.columns:  # the user's solutes are targets, never candidate liquids
         mask &= library["kind"].astype(str).str.lower().to_numpy() != "solute"
     t = float(temperature)
@@ -137,6 +147,23 @@ def filter_mask(library: pd.DataFrame, *, temperature: float = 25.0, include=Non
         with np.errstate(invalid="ignore"):
             mask &= ~(mp > t) & ~(bp < t)
     return mask
+
+
+def _not_flammable(library):
+    from .cautions import not_flammable
+
+    return not_flammable(library)
+
+
+def left_out_reactive(library: pd.DataFrame, **filters) -> int:
+    """How many liquids pass ``filters`` only when reagents are allowed (``include_reactive``);
+    for the notes under a result."""
+    if filters.get("include_reactive"):
+        return 0
+    f = dict(filters, include_reactive=True)
+    from .cautions import reactive_reasons
+
+    return int((filter_mask(library, **f) & (reactive_reasons(library) != "")).sum())
 
 
 def check_temperature(temperature) -> float:

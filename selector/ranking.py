@@ -83,7 +83,9 @@ def rank(target, *, temperature: float = 25.0, library: pd.DataFrame | None = No
     :class:`~selector.targets.Target` or a fitted sphere. ``temperature`` in C. Filters: see
     :mod:`selector.filters`. Returns the library columns plus ``ra`` (MPa^0.5), ``red`` (NaN
     without R0), ``polarity_match`` (0..1), ``score`` (lower is better; see module doc) and
-    ``rank`` (1 = best). Invalid targets or filters raise ``ValueError`` naming the problem.
+    ``rank`` (1 = best); ``attrs["reagents_left_out"]`` counts the reagents (reactive,
+    explosive or very toxic liquids, :mod:`selector.cautions`) that the filters would have let
+    through had ``include_reactive=True`` been given. Invalid targets or filters raise ``ValueError`` naming the problem.
 
     >>> top = rank((21.3, 5.8, 4.3, 12.7)).head(3)
     >>> bool((top["red"] < 1).all())
@@ -130,6 +132,9 @@ def rank(target, *, temperature: float = 25.0, library: pd.DataFrame | None = No
     out.insert(0, "rank", np.arange(1, len(out) + 1))
     out.attrs["target"] = tgt
     out.attrs["temperature"] = t_c
+    from .filters import left_out_reactive
+
+    out.attrs["reagents_left_out"] = left_out_reactive(lib, temperature=t_c, **filters)
     if top is not None:
         out = out.head(int(top))
     return out

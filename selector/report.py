@@ -202,7 +202,7 @@ def build_report(title: str, *, target=None, inputs: dict | None = None,
             parts += ["## Inputs", "", _md_table(["Input", "Value"], input_rows), ""]
         if table is not None:
             h, r = _table_cells(table, columns)
-            parts += ["## Recommendation", "", _md_table(h, r), ""]
+            parts += ["## Ranked candidates (a shortlist for tests, not an endorsement)", "", _md_table(h, r), ""]
         if caut is not None:
             h, r = _table_cells(caut, caut_cols)
             parts += ["## Safety notes per liquid", "", _md_table(h, r), ""]
@@ -228,7 +228,7 @@ def build_report(title: str, *, target=None, inputs: dict | None = None,
         parts += ["<h2>Inputs</h2>", _html_table(["Input", "Value"], input_rows)]
     if table is not None:
         h, r = _table_cells(table, columns)
-        parts += ["<h2>Recommendation</h2>", _html_table(h, r)]
+        parts += ["<h2>Ranked candidates (a shortlist for tests, not an endorsement)</h2>", _html_table(h, r)]
     if caut is not None:
         h, r = _table_cells(caut, caut_cols)
         parts += ["<h2>Safety notes per liquid</h2>", _html_table(h, r)]

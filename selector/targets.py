@@ -21,6 +21,14 @@ from .errors import SelectorError
 from .library import locate, load_library
 
 
+#: Upper bounds (MPa^0.5) for a target's HSP: above every liquid and polymer in the published
+#: tables (water: dH 42.3; the tables' largest dD is about 28), so larger numbers are unit or
+#: typing errors.
+TARGET_MAX = {"delta_d": 30.0, "delta_p": 40.0, "delta_h": 50.0}
+#: Upper bound (MPa^0.5) for a sphere radius R0 (published polymer spheres stay below ~25).
+R0_MAX = 40.0
+
+
 @dataclass(frozen=True)
 class Target:
     """A Hansen point (MPa^0.5) with an optional interaction radius R0 (MPa^0.5)."""
@@ -44,12 +52,20 @@ class Target:
                 raise SelectorError(f"{k} must not be negative (got {float(v):g} MPa^0.5)")
         if float(self.delta_d) <= 0:
             raise SelectorError("delta_d must be positive: every liquid has dispersion forces")
+        for k, hi in TARGET_MAX.items():
+            if float(getattr(self, k)) > hi:
+                raise SelectorError(f"{k} = {float(getattr(self, k)):g} MPa^0.5 is beyond any known liquid or "
+                                    f"polymer (at most {hi:g}); check the units: MPa^0.5 (values in Pa^0.5 are "
+                                    "1000 times larger)")
         if self.radius is not None:
             r = self.radius
             if isinstance(r, bool) or not isinstance(r, (int, float, np.floating, np.integer)):
                 raise SelectorError(f"R0 must be a number of MPa^0.5, got {r!r}")
             if not math.isfinite(float(r)) or float(r) <= 0:
                 raise SelectorError(f"R0 must be a positive finite number (got {r!r} MPa^0.5)")
+            if float(r) > R0_MAX:
+                raise SelectorError(f"R0 = {float(r):g} MPa^0.5 is larger than any published sphere "
+                                    f"(at most {R0_MAX:g}); check the value")
 
     @property
     def hsp(self) -> np.ndarray:
@@ -61,7 +77,8 @@ class Target:
         return self.radius is not None
 
     def describe(self) -> str:
-        s = f"{self.name}: dD {self.delta_d:.1f}, dP {self.delta_p:.1f}, dH {self.delta_h:.1f} MPa^0.5"
+        s = "" if self.name == "target" else f"{self.name}: "
+        s += f"dD {self.delta_d:.1f}, dP {self.delta_p:.1f}, dH {self.delta_h:.1f} MPa^0.5"
         if self.radius is not None:
             s += f", R0 {self.radius:.1f}"
         return s

@@ -115,7 +115,10 @@ def test_liquid_without_data_is_unclassified_not_safe():
     # the hazard filter never lets an unclassified liquid through
     m = filter_mask(lib, max_hazard_class="highly hazardous")
     assert not (m & missing.to_numpy()).any()
-    assert m.sum() == (~missing).sum()
+    from selector.cautions import reactive_reasons
+
+    assert m.sum() == (~missing & (reactive_reasons(lib) == "")).sum()   # reagents never pass by default
+    assert filter_mask(lib, max_hazard_class="highly hazardous", include_reactive=True).sum() == (~missing).sum()
 
 
 def test_hazard_filter_orders_classes():

@@ -281,14 +281,19 @@ def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool
         fp = c4.number_input("Minimum flash point (°C)", value=None if d.get("min_flash_point_c") is None else float(d["min_flash_point_c"]),
                              step=5.0,
                              key=f"{prefix}_fp", placeholder="no limit",
-                             help="liquids without flash-point data are dropped when set")
-        c5, c6, c7 = st.columns([1, 2, 1])
+                             help="liquids without flash-point data are dropped when set, except "
+                                  "those known not to burn (water, dichloromethane, chloroform, ...)")
+        c5, c6, c7, c8 = st.columns([1, 2, 1, 1])
         mv = c5.number_input("Max molar volume (cm³/mol)", value=None, min_value=1.0, step=10.0,
                              key=f"{prefix}_mv", placeholder="no limit")
         exc = c6.multiselect("Never propose", liquid_names(), default=d.get("exclude", []),
                              key=f"{prefix}_exc")
         agreed = c7.checkbox("Agreed sources only", value=False, key=f"{prefix}_agreed",
                              help="drop liquids whose published HSP differ by more than 1 MPa^0.5")
+        reactive = c8.checkbox("Include reagents", value=False, key=f"{prefix}_reactive",
+                               help="also propose reactive, explosive or very toxic liquids that are "
+                                    "reagents rather than solvents (acid chlorides, isocyanates, "
+                                    "epoxides, benzene, ...); off by default")
     f: dict = {}
     if lo > -150.0 or hi < 600.0:
         f["boiling_point_c"] = (lo if lo > -150.0 else None, hi if hi < 600.0 else None)
@@ -300,6 +305,8 @@ def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool
         f["exclude"] = exc
     if agreed:
         f["consistent_sources_only"] = True
+    if reactive:
+        f["include_reactive"] = True
     return f, float(t)
 
 
@@ -395,7 +402,8 @@ def filters_as_inputs(filters: dict, temperature: float) -> dict:
     out = {"temperature (C)": temperature}
     names = {"boiling_point_c": "boiling-point window (C)", "min_flash_point_c": "minimum flash point (C)",
              "max_molar_volume": "maximum molar volume (cm3/mol)", "exclude": "never propose",
-             "include": "only these", "consistent_sources_only": "agreed HSP sources only"}
+             "include": "only these", "consistent_sources_only": "agreed HSP sources only",
+             "include_reactive": "reagents (reactive, very toxic) included"}
     for k, v in filters.items():
         if k == "boiling_point_c":
             v = f"{'-' if v[0] is None else f'{v[0]:g}'} to {'-' if v[1] is None else f'{v[1]:g}'}"

@@ -24,6 +24,7 @@ if res is None:
     st.stop()
 
 tgt = res.attrs["target"]
+left_out = res.attrs.get("reagents_left_out", 0)
 res.attrs = {}
 res = common.with_hazards(res)
 has_r = tgt.radius is not None
@@ -34,6 +35,10 @@ if has_r:
     m2.metric("Inside the sphere (RED < 1)", inside)
 m3.metric("Best match", res["name"].iloc[0])
 
+if left_out:
+    st.caption(f"{left_out} reagents (reactive, explosive or very toxic liquids such as acid chlorides, "
+               "isocyanates, epoxides, benzene) are left out; tick *Include reagents* in the filters "
+               "to see them.")
 cols = [c for c in common.RANK_COLUMNS if c in res.columns and (has_r or c != "red")]
 st.subheader("Top five")
 common.readable_top(res, ["rank", "name", "red" if has_r else "ra", "score", "boiling_point_c",

@@ -1,0 +1,177 @@
+"""Liquids that are reagents, not solvents: reactive, explosive or very toxic at low exposure.
+
+The library holds every compound of the published HSP tables that is liquid at 25 C, and that
+includes acid chlorides, isocyanates, aziridines, nitrate esters, hydrazines and similar
+reagents. Their HSP are real, but nobody should be handed one as a thinner or a substitute.
+:func:`reactive_reason` gives a short reason for such a liquid ("" for an ordinary solvent);
+:func:`selector.filters.filter_mask` leaves them out of every candidate list unless
+``include_reactive=True`` is given (``--include-reactive`` on the command line). They can still
+be looked up, shown, used as a target and checked for miscibility.
+
+What counts (common practice: reagent classes that a solvent selection guide would not list,
+because they react with water, air, skin or the solute, are explosive, or are alkylating
+agents):
+
+* functional groups, by RDKit SMARTS (:data:`REACTIVE_GROUPS`);
+* inorganic liquids (no carbon) other than water (bromine, nitric acid, hydrazine, hydrogen
+  peroxide, thionyl chloride, ...);
+* an occupational exposure limit (8-h TWA, from the library's ``chemicals`` value) below
+  1 ppm for a liquid volatile enough for the limit to matter (vapour pressure >= 0.01 kPa at
+  25 C): benzene, 2-methoxyethanol, acrolein, chloropicrin and the like. (Low-volatility
+  liquids whose limit is set in mg/m3 - phthalates - convert to small ppm values without
+  being a vapour hazard, hence the volatility condition.)
+
+This is a screen, not a hazard assessment: a liquid without a reason can still be dangerous.
+Read the supplier's safety data sheet before any use.
+
+>>> reactive_reason("CC(=O)Cl")
+'acyl halide (reacts violently with water, corrosive)'
+>>> reactive_reason("CCOC(C)=O")
+''
+>>> reactive_reason("c1ccccc1", exposure_limit_ppm=0.5, vapour_pressure_kpa=12.7)
+'exposure limit 0.5 ppm (very toxic at low exposure)'
+"""
+from __future__ import annotations
+
+import functools
+import math
+
+import numpy as np
+import pandas as pd
+
+#: Reagent groups: (name, RDKit SMARTS, why). Common practice (see module docstring).
+REACTIVE_GROUPS = (
+    ("isocyanate", "[NX2]=C=O", "sensitiser, reacts with water"),
+    ("isothiocyanate", "[NX2]=C=S", "lachrymator, sensitiser"),
+    ("acyl halide", "[CX3](=O)[F,Cl,Br,I]", "reacts violently with water, corrosive"),
+    ("sulfur oxyhalide", "[SX3,SX4](=O)[F,Cl,Br,I]", "reacts violently with water, corrosive"),
+    ("P, Si or B halide", "[P,Si,B][F,Cl,Br,I]", "reacts violently with water, corrosive"),
+    ("anhydride", "[CX3](=O)O[CX3](=O)", "acylating agent, reacts with water and alcohols"),
+    ("aziridine", "C1CN1", "alkylating agent, carcinogen"),
+    ("epoxide", "C1OC1", "alkylating agent"),
+    ("dialkyl sulfate", "[#6]OS(=O)(=O)O[#6]", "alkylating agent, very toxic"),
+    ("alpha-halo ether", "[Cl,Br,I][CX4][OX2][#6]", "alkylating agent, carcinogen"),
+    ("propargyl halide", "[F,Cl,Br,I][CX4]C#C", "shock-sensitive, alkylating"),
+    ("haloalkyne", "[Cl,Br,I]C#C", "explosive"),
+    ("nitrate or nitrite ester", "[#6]O[$([N+](=O)[O-]),$(N=O)]", "explosive"),
+    ("azide or diazo", "[#6,#7]=[N+]=[N-]", "explosive"),
+    ("peroxide", "[OX2][OX2]", "explosive, oxidiser"),
+    ("hydrazine", "[NX3;!a][NX3;!a]", "very toxic, carcinogen, reducing agent"),
+    ("isonitrile", "[C-]#[N+]", "very toxic"),
+    ("acyl cyanide or cyanohydrin", "[$(C(=O)C#N),$(N#C[CX4][OX2H])]", "releases hydrogen cyanide"),
+    ("thiol", "[SX2H]", "stench, toxic"),
+)
+
+#: Exposure limits (ppm, 8-h TWA) below this mark a volatile liquid as very toxic.
+EXPOSURE_LIMIT_PPM = 1.0
+#: ... provided its vapour pressure at 25 C (kPa) is at least this.
+VOLATILE_KPA = 0.01
+
+
+@functools.lru_cache(maxsize=1)
+def _patterns():
+    from rdkit import Chem
+
+    return [(name, Chem.MolFromSmarts(sma), why) for name, sma, why in REACTIVE_GROUPS]
+
+
+@functools.lru_cache(maxsize=8192)
+def _structure_reason(smiles: str) -> str:
+    if not smiles:
+        return ""
+    from rdkit import Chem, RDLogger
+
+    RDLogger.DisableLog("rdApp.*")
+    mol = Chem.MolFromSmiles(smiles)
+    if mol is None:
+        return ""
+    symbols = {a.GetSymbol() for a in mol.GetAtoms()}
+    if "C" not in symbols:
+        if symbols <= {"O", "H"} and mol.GetNumAtoms() == 1:
+            return ""  # water
+        return "inorganic reagent"
+    for name, patt, why in _patterns():
+        if mol.HasSubstructMatch(patt):
+            return f"{name} ({why})"
+    nitro = Chem.MolFromSmarts("[N+](=O)[O-]")
+    if len(mol.GetSubstructMatches(nitro)) >= 2:
+        return "polynitro compound (explosive)"
+    return ""
+
+
+def reactive_reason(smiles: str, exposure_limit_ppm: float = math.nan,
+                    vapour_pressure_kpa: float = math.nan) -> str:
+    """Why a liquid is a reagent rather than a solvent ("" if no reason is known).
+
+    ``smiles``: the structure; ``exposure_limit_ppm``: 8-h TWA in ppm (NaN if unknown);
+    ``vapour_pressure_kpa``: at 25 C (NaN if unknown; then the exposure rule applies).
+    """
+    row = pd.DataFrame({"smiles": [str(smiles or "")], "exposure_limit": [exposure_limit_ppm],
+                        "exposure_limit_unit": ["ppm"], "vapour_pressure_kpa": [vapour_pressure_kpa]})
+    return str(reactive_reasons(row)[0])
+
+
+_STRUCT_CACHE: dict = {}
+
+
+def reactive_reasons(library: pd.DataFrame) -> np.ndarray:
+    """:func:`reactive_reason` for every row of ``library`` (object array of str, "" = none).
+
+    Rows of the bundled library carry theirs in the ``reactive_reason`` column (written by
+    :mod:`selector.build`); the others (the user's liquids, estimated molecules) are worked out
+    here: the structural part once per distinct set of SMILES (found again by a vectorised hash
+    of the SMILES), the exposure rule vectorised."""
+    n = len(library)
+    out = np.full(n, "", dtype=object)
+    todo = np.ones(n, dtype=bool)
+    if "reactive_reason" in library.columns and "origin" in library.columns:
+        done = (library["origin"].astype(str) == "library").to_numpy()
+        out[done] = library["reactive_reason"].fillna("").astype(str).to_numpy(object)[done]
+        todo = ~done
+    if not todo.any():
+        return out
+    sub = library.loc[todo]
+    m = len(sub)
+    smi = sub["smiles"].fillna("").astype(str) if "smiles" in sub else pd.Series([""] * m, index=sub.index)
+    key = (m, int(pd.util.hash_pandas_object(smi, index=False).to_numpy().sum()))
+    struct = _STRUCT_CACHE.get(key)
+    if struct is None:
+        struct = np.array([_structure_reason(x) for x in smi], dtype=object)
+        if len(_STRUCT_CACHE) > 16:
+            _STRUCT_CACHE.clear()
+        _STRUCT_CACHE[key] = struct
+    el = _exposure_ppm(sub)
+    vp = sub["vapour_pressure_kpa"].to_numpy(float) if "vapour_pressure_kpa" in sub else np.full(m, np.nan)
+    with np.errstate(invalid="ignore"):
+        toxic = np.isfinite(el) & (el < EXPOSURE_LIMIT_PPM) & ~(vp < VOLATILE_KPA) & (struct == "")
+    res = struct.copy()
+    for i in np.flatnonzero(toxic):   # the few flagged rows only
+        res[i] = f"exposure limit {el[i]:g} ppm (very toxic at low exposure)"
+    out[todo] = res
+    return out
+
+
+def _exposure_ppm(library: pd.DataFrame) -> np.ndarray:
+    n = len(library)
+    if "exposure_limit" not in library:
+        return np.full(n, np.nan)
+    el = pd.to_numeric(library["exposure_limit"], errors="coerce").to_numpy(float)
+    if "exposure_limit_unit" in library:
+        ppm = library["exposure_limit_unit"].fillna("").astype(str).str.strip().str.lower().to_numpy() == "ppm"
+        el = np.where(ppm, el, np.nan)
+    return el
+
+
+def not_flammable(library: pd.DataFrame) -> np.ndarray:
+    """True where the liquid has no flash point in the library and ``parameters/hazards.csv``
+    marks it as not flammable (water, dichloromethane, chloroform, carbon tetrachloride, ...;
+    from memory there, to be confirmed with the safety data sheet). Matched by CAS number."""
+    from .hazards import _statement_table
+
+    st = _statement_table().drop_duplicates("cas").set_index("cas")
+    idx = st.index.get_indexer(library["cas"].astype(str).to_numpy())
+    nf = np.zeros(len(library), dtype=bool)
+    known = idx >= 0
+    nf[known] = st["not_flammable"].to_numpy(bool)[idx[known]]
+    fp = library["flash_point_c"].to_numpy(float) if "flash_point_c" in library else np.full(len(library), np.nan)
+    return nf & ~np.isfinite(fp)
