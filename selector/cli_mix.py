@@ -28,6 +28,13 @@ def _fmt(x, nd=2):
     return "-" if x is None or (isinstance(x, float) and not math.isfinite(x)) else f"{x:.{nd}f}"
 
 
+def _pct(x):
+    """A model percentage to two significant figures (the model is not better than that)."""
+    if x is None or (isinstance(x, float) and not math.isfinite(x)):
+        return "-"
+    return f"{float(f'{x:.2g}'):g}"
+
+
 def cmd_mix(a) -> int:
     import pandas as pd
 
@@ -50,10 +57,10 @@ def cmd_mix(a) -> int:
     if r.binodal:
         ab, ba = r.binodal["a_in_b"], r.binodal["b_in_a"]
         print("  coexisting phases (binodal, equal chemical potentials):")
-        print(f"    {r.a} in the {r.b}-rich phase: {_fmt(ab['vol_pct'])} vol %, {_fmt(ab['wt_pct'])} wt %, "
-              f"{_fmt(ab['mol_pct'])} mol %")
-        print(f"    {r.b} in the {r.a}-rich phase: {_fmt(ba['vol_pct'])} vol %, {_fmt(ba['wt_pct'])} wt %, "
-              f"{_fmt(ba['mol_pct'])} mol %")
+        print(f"    {r.a} in the {r.b}-rich phase: {_pct(ab['vol_pct'])} vol %, {_pct(ab['wt_pct'])} wt %, "
+              f"{_pct(ab['mol_pct'])} mol %")
+        print(f"    {r.b} in the {r.a}-rich phase: {_pct(ba['vol_pct'])} vol %, {_pct(ba['wt_pct'])} wt %, "
+              f"{_pct(ba['mol_pct'])} mol %")
         lo, hi = r.spinodal
         print(f"  spinodal (volume fraction of {r.a}): {lo:.4f} .. {hi:.4f}")
     for n in r.notes:
