@@ -48,6 +48,18 @@ def wait_until_serving(url: str, timeout: float = 60.0, proc=None, poll: float =
         time.sleep(poll)
 
 
+def port_is_free(port: int, host: str = "127.0.0.1") -> bool:
+    """True when nothing listens on ``host:port`` and it can be bound (a short-lived test bind)."""
+    import socket
+
+    with socket.socket(socket.AF_INET, socket.SOCK_STREAM) as s:
+        try:
+            s.bind((host, int(port)))
+        except OSError:
+            return False
+    return True
+
+
 def cmd_app(a) -> int:
     import os
     import subprocess
@@ -61,6 +73,9 @@ def cmd_app(a) -> int:
     if a.print_command:
         print(" ".join(cmd))
         return 0
+    if not port_is_free(a.port):
+        raise SelectorError(f"port {a.port} on 127.0.0.1 is in use (another likewise app or server?); "
+                            f"stop it or choose another port, e.g. likewise app --port {a.port + 1}")
     print(f"likewise app: serving on http://127.0.0.1:{a.port} (local only; Ctrl+C stops it)",
           file=sys.stderr)
     try:

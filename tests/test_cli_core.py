@@ -101,3 +101,21 @@ def test_rank_hazard_and_flash_filters(capsys):
     assert recs and all(r["flash_point_c"] >= 23 for r in recs)
     # every proposed liquid is "recommended" by the CHEM21 scoring in selector.hazards
     assert all(selector.hazard(r["name"]).hazard_class == "recommended" for r in recs)
+
+
+def test_app_refuses_a_busy_port(capsys):
+    # A port something already listens on gets a one-line message, not Streamlit's own error
+    # after a misleading "serving on" line.
+    import socket
+
+    from selector.cli_app import port_is_free
+
+    with socket.socket(socket.AF_INET, socket.SOCK_STREAM) as s:
+        s.bind(("127.0.0.1", 0))
+        s.listen(1)
+        port = s.getsockname()[1]
+        assert not port_is_free(port)
+        assert main(["app", "--port", str(port)]) == 2
+        err = capsys.readouterr().err
+        assert f"port {port}" in err and "in use" in err and "serving" not in err
+    assert port_is_free(port)
