@@ -736,6 +736,9 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
         par = _pareto(full["ra"].to_numpy(), full["cost_per_litre"].to_numpy())
         out["pareto"] = par[pick]
         out.attrs["pareto"] = full.loc[par].reset_index(drop=True)
+    from .hazards import component_notes
+
+    out["hazard_notes"] = component_notes(out["components"], cand)
     out.attrs.update(target=tgt, temperature=t_c, caution=CAUTION, min_fraction=m,
                      miscibility="selector.mixing.miscible_pairs" if mis is not None else "not checked",
                      candidates=len(cand))
@@ -909,6 +912,9 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     xtab["score"] = xd
     xtab["role"] = "replaced"
     out = pd.concat([xtab, out], ignore_index=True)
+    from .hazards import component_notes
+
+    out["hazard_notes"] = component_notes(out["components"], pd.concat([x, cand]).drop_duplicates("name"))
     out.attrs.update(target=tg, temperature=t_c, caution=CAUTION, replaced=xname,
                      regulatory_note=str(hz_all["regulatory_note"].iloc[pos]))
     return out

@@ -7,9 +7,9 @@ from .cli_common import add_filter_args, add_output_args, emit, filters_from_arg
 
 BLEND_COLUMNS = ["blend", "n_components", "delta_d", "delta_p", "delta_h", "ra", "red", "non_solvent_pair",
                  "hazard_class", "bp_low_c", "bp_high_c", "lowest_flash_point_c", "lowest_flash_component",
-                 "cost_per_litre", "pareto"]
+                 "cost_per_litre", "pareto", "hazard_notes"]
 REPLACE_COLUMNS = ["role", "blend", "ra", "red", "hazard_class", "boiling_point_c", "evaporation_rate",
-                   "viscosity_mpa_s", "lowest_flash_point_c", "mismatch", "score"]
+                   "viscosity_mpa_s", "lowest_flash_point_c", "mismatch", "score", "hazard_notes"]
 CLASS_CHOICES = ["recommended", "problematic", "hazardous", "highly-hazardous"]
 
 

@@ -83,6 +83,47 @@ HIGHLY_HAZARDOUS_CAS = frozenset({"71-43-2", "56-23-5", "67-66-3", "107-06-2", "
 WATER_CAS = "7732-18-5"
 
 
+#: Short plain-language flags for the GHS hazard statements a formulator must not miss
+#: (statement texts of the GHS, UN 2019 rev. 8, condensed).
+STATEMENT_FLAGS = (
+    ("fatal on exposure", ("H300", "H310", "H330")),
+    ("toxic", ("H301", "H311", "H331")),
+    ("corrosive", ("H314",)),
+    ("serious eye damage", ("H318",)),
+    ("carcinogen, mutagen or reprotoxic", ("H340", "H350", "H360")),
+    ("suspected carcinogen, mutagen or reprotoxic", ("H341", "H351", "H361")),
+    ("organ damage", ("H370", "H372")),
+    ("sensitiser", ("H317", "H334")),
+    ("extremely or highly flammable", ("H224", "H225")),
+    ("peroxide former", ("EUH019",)),
+)
+
+
+def statement_flags(statements) -> str:
+    """Comma-separated flags (:data:`STATEMENT_FLAGS`) for a set of GHS statements ("" if none).
+
+    >>> statement_flags(("H226", "H302", "H311", "H314", "H331"))   # morpholine-like
+    'toxic, corrosive'
+    >>> statement_flags(("H225", "H319", "H336"))
+    'extremely or highly flammable'
+    """
+    codes = {_code(c) for c in statements}
+    return ", ".join(flag for flag, hs in STATEMENT_FLAGS if codes & set(hs))
+
+
+def component_notes(components, library) -> list[str]:
+    """For each tuple of liquid names, "name: flags; ..." for the components that carry any
+    :func:`statement_flags` (hazard statements of ``parameters/hazards.csv``), plus
+    "name: no hazard data" for unclassified ones."""
+    hz = hazard_columns(library)
+    names = library["name"].astype(str).to_numpy()
+    known = (hz["hazard_class"] != UNCLASSIFIED).to_numpy()
+    flags = {}
+    for n, st, k in zip(names, hz["h_statements"].to_numpy(), known):
+        flags[n] = statement_flags(parse_statements(st)) if k else "no hazard data"
+    return ["; ".join(f"{c}: {flags[c]}" for c in comp if flags.get(c)) for comp in components]
+
+
 def _code(s: str) -> str:
     s = s.strip().upper()
     return s if s.startswith("EUH") else s[:4]

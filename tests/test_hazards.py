@@ -192,3 +192,25 @@ def test_bad_input():
     # sulfolane has statements but is a solid at 25 C, so it is not in the liquid library
     with pytest.raises(SelectorError, match="not in the liquid library"):
         selector.hazard("sulfolane")
+
+
+def test_blend_and_substitute_rows_carry_component_hazard_notes():
+    # The flags follow the GHS statement meanings (UN GHS rev. 8: H314 skin corrosion, H301/H311/
+    # H331 acute toxicity cat. 3, H350 carcinogenicity cat. 1), applied to each component's
+    # statements in parameters/hazards.csv.
+    from selector.hazards import component_notes, statement_flags
+
+    assert statement_flags(("H314",)) == "corrosive"
+    assert statement_flags(("H301", "H350")) == "toxic, carcinogen, mutagen or reprotoxic"
+    assert statement_flags(("H360FD",)) == "carcinogen, mutagen or reprotoxic"
+    assert statement_flags(("H315", "H319")) == ""
+    lib = selector.load_library()
+    st = hazard_statements().set_index("name")
+    notes = component_notes([("morpholine", "anisole")], lib)[0]
+    assert notes == "morpholine: " + statement_flags(st.loc["morpholine", "statements"])
+    unc = lib.loc[~lib["cas"].isin(st["cas"]), "name"].iloc[0]
+    assert component_notes([(unc,)], lib) == [f"{unc}: no hazard data"]
+    b = selector.find_blends((17.9, 6.1, 6.4, 8.6), max_components=2, top=6)
+    assert list(b["hazard_notes"]) == component_notes(b["components"], lib)
+    s = selector.substitutes("toluene", top=4, max_components=1)
+    assert s["hazard_notes"].iloc[0].startswith("toluene: ")
