@@ -7,9 +7,11 @@ import selector
 from lwui import common, plots
 
 st.title("Will they mix?")
-st.caption("Flory-Huggins with Hansen parameters: chi = V_r Ra² / (4RT); a pair splits into two "
-           "liquid phases when chi exceeds chi_c. Known to be rough for water and strongly "
-           "hydrogen-bonded pairs: read the confidence and test before you rely on it.")
+st.caption("Flory-Huggins with Hansen parameters: chi = V_r A12 / (RT), where the default donor/acceptor "
+           "model weights the dD, dP and hydrogen-bond differences (fitted on published pairs) and credits "
+           "cross hydrogen bonds; the plain model uses A12 = Ra² / 4. A pair splits into two liquid phases "
+           "when chi exceeds chi_c. Rough for water and strongly hydrogen-bonded pairs: read the confidence "
+           "and test before you rely on it.")
 mod = common.capability("mixing")
 if mod is None:
     st.stop()
