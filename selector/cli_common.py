@@ -6,6 +6,7 @@ Every subcommand module ``selector/cli_*.py`` defines ``register(subparsers)`` a
 from __future__ import annotations
 
 import argparse
+import os
 import sys
 from pathlib import Path
 
@@ -67,25 +68,141 @@ def filters_from_args(a) -> dict:
     return f
 
 
+#: Options and positionals whose value is a file the command reads (checked before any work).
+INPUT_FILE_OPTIONS = ("mine", "prices", "tests")
+#: Commands whose --top bounds a search (blends), not only the rows shown: a file output keeps
+#: their --top default instead of receiving every row.
+SEARCH_TOP_COMMANDS = ("blend", "replace")
+EMPTY_MESSAGE = "no liquids match the conditions given (try fewer or wider filters)"
+
+
+def _label(dest: str) -> str:
+    return (f"the {dest.upper()} argument" if dest in ("tests", "smiles", "target", "liquids")
+            else "--" + dest.replace("_", "-"))
+
+
+def _same_file(a, b) -> bool:
+    try:
+        return os.path.samefile(a, b)
+    except (OSError, ValueError, TypeError):
+        return False
+
+
+def check_file_args(a) -> None:
+    """Vet the files named on the command line before any work is done.
+
+    Input files (:data:`INPUT_FILE_OPTIONS`) must exist. ``--output``/``-o`` must not be any
+    file the command reads (every argument value that names an existing file counts), must not
+    replace an existing file without ``--overwrite``, and never a read-only file, a folder or a
+    file in a missing folder. ``--save-mine`` (merged into on purpose) gets the last three
+    checks. Raises :class:`~selector.errors.SelectorError` (one line; exit code 2).
+    """
+    from .errors import SelectorError
+    from .io import check_output_path
+
+    args = vars(a)
+    for dest in INPUT_FILE_OPTIONS:
+        v = args.get(dest)
+        if isinstance(v, str) and v:
+            p = Path(v)
+            if not p.exists():
+                raise SelectorError(f"file not found: {p}")
+            if p.is_dir():
+                raise SelectorError(f"{p} is a folder, not a CSV file ({_label(dest)})")
+    out = args.get("output")
+    if out:
+        for dest, v in args.items():
+            if dest in ("output", "func") or dest.startswith("_"):
+                continue
+            for item in (v if isinstance(v, (list, tuple)) else [v]):
+                if isinstance(item, str) and item and os.path.isfile(item) and _same_file(item, out):
+                    raise SelectorError(f"{out} is also an input of this command ({_label(dest)} {item}); "
+                                        "write the output to another file")
+        has_flag = "overwrite" in args
+        check_output_path(out, overwrite=bool(args.get("overwrite")), make_parents=False,
+                          option="--overwrite" if has_flag else None)
+    mine_out = args.get("save_mine")
+    if mine_out:
+        check_output_path(mine_out, overwrite=True, make_parents=False)
+
+
 def library_from_args(a):
+    """The library with ``--mine`` merged; first vets the command's files (:func:`check_file_args`),
+    so a bad ``-o`` is refused before a long computation."""
     from .library import load_library
 
+    check_file_args(a)
     return load_library(getattr(a, "mine", None))
 
 
+def _top_count(text: str) -> int:
+    try:
+        n = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"expects a whole number of rows, 1 or more; got {text!r}") from None
+    if n < 1:
+        raise argparse.ArgumentTypeError(f"must be 1 or more, got {n} (leave --top out for the default)")
+    return n
+
+
+class _TopAction(argparse.Action):
+    """``--top N``: stores N and notes that it was given (a file output then keeps it)."""
+
+    def __call__(self, parser, namespace, values, option_string=None):
+        setattr(namespace, self.dest, values)
+        namespace._top_given = True
+
+
+class _OutputAction(argparse.Action):
+    """``-o FILE``: stores FILE; unless ``--top`` is given, a file receives every row."""
+
+    def __init__(self, option_strings, dest, all_rows=False, **kw):
+        self.all_rows = all_rows
+        super().__init__(option_strings, dest, **kw)
+
+    def __call__(self, parser, namespace, values, option_string=None):
+        setattr(namespace, self.dest, values)
+        if self.all_rows and not getattr(namespace, "_top_given", False):
+            namespace.top = None
+
+
 def add_output_args(p: argparse.ArgumentParser, default_top: int | None = 20) -> None:
+    """``--format``, ``-o/--output``, ``--overwrite`` and (unless ``default_top`` is None)
+    ``--top N`` (N >= 1). ``default_top=0`` means every row by default. A file written with
+    ``-o`` gets every row unless ``--top`` is given (except for :data:`SEARCH_TOP_COMMANDS`)."""
+    command = p.prog.split()[-1] if p.prog else ""
+    all_rows = default_top not in (None, 0) and command not in SEARCH_TOP_COMMANDS
     g = p.add_argument_group("output")
     g.add_argument("--format", choices=["table", "csv", "json"], default="table",
                    help="table (default, for reading), csv or json (for other programs)")
-    g.add_argument("--output", "-o", metavar="FILE", help="write to FILE (atomically) instead of the screen")
-    if default_top is not None:
-        g.add_argument("--top", type=int, default=default_top, metavar="N", help=f"rows to show (default {default_top})")
+    g.add_argument("--output", "-o", metavar="FILE", action=_OutputAction, all_rows=all_rows,
+                   help="write to FILE (atomically) instead of the screen; FILE must not exist "
+                   "(see --overwrite), its folder must")
+    g.add_argument("--overwrite", action="store_true",
+                   help="let -o replace an existing file (never an input file or a read-only one)")
+    if default_top is None:
+        return
+    if default_top == 0:
+        help_ = "rows to show (default: all)"
+    elif all_rows:
+        help_ = f"rows to show (default {default_top}; a file written with -o gets all rows unless --top is given)"
+    else:
+        help_ = f"rows to show (default {default_top}, also with -o)"
+    g.add_argument("--top", type=_top_count, action=_TopAction, default=default_top or None,
+                   metavar="N", help=help_)
 
 
-def emit(df, a, columns=None, caution: bool = False, header: str | None = None) -> None:
-    """Print or write a result table in the chosen format."""
+def emit(df, a, columns=None, caution: bool = False, header: str | None = None,
+         empty: str = EMPTY_MESSAGE) -> None:
+    """Print or write a result table in the chosen format.
+
+    An empty table prints ``empty`` (one line) instead of an empty grid. ``-o`` is vetted by
+    :func:`check_file_args` and written atomically.
+    """
     from .io import to_csv_text, to_json_text, write_atomic
 
+    out = getattr(a, "output", None)
+    check_file_args(a)
     if columns is not None:
         df = df[[c for c in columns if c in df.columns]]
     fmt = getattr(a, "format", "table")
@@ -93,6 +210,8 @@ def emit(df, a, columns=None, caution: bool = False, header: str | None = None) 
         text = to_csv_text(df)
     elif fmt == "json":
         text = to_json_text(df)
+    elif len(df) == 0:
+        text = (header + "\n" if header else "") + empty + "\n"
     else:
         import pandas as pd
 
@@ -104,9 +223,14 @@ def emit(df, a, columns=None, caution: bool = False, header: str | None = None) 
         if caution:
             text += "\n\n" + CAUTION
         text += "\n"
-    out = getattr(a, "output", None)
+    if len(df) == 0 and (fmt != "table" or out):
+        print(empty, file=sys.stderr)
     if out:
-        write_atomic(Path(out), text)
-        print(f"wrote {len(df)} rows to {out}", file=sys.stderr)
+        write_atomic(Path(out), text, make_parents=False)
+        note = ""
+        top = getattr(a, "top", None)
+        if top and not getattr(a, "_top_given", False) and len(df) >= top:
+            note = f" (the --top default of {top}; give --top N for more)"
+        print(f"wrote {len(df)} rows to {out}{note}", file=sys.stderr)
     else:
         sys.stdout.write(text if text.endswith("\n") else text + "\n")

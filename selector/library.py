@@ -251,24 +251,37 @@ def locate_many(queries, library: pd.DataFrame | None = None, what: str = "liqui
 
 # ---------------------------------------------------------------- user liquids
 
+#: Header spellings accepted for the user-liquid table (case-insensitive; a trailing unit in
+#: brackets such as "dD (MPa½)" is ignored; see :func:`selector.io.rename_aliases`).
+USER_COLUMN_ALIASES = {
+    "name": ("liquid", "solvent", "liquid name", "solvent name"),
+    "delta_d": ("dd", "δd", "δ_d", "deltad", "delta d", "d_d", "hsp_d"),
+    "delta_p": ("dp", "δp", "δ_p", "deltap", "delta p", "d_p", "hsp_p"),
+    "delta_h": ("dh", "δh", "δ_h", "deltah", "delta h", "d_h", "hsp_h"),
+    "molar_volume": ("v", "vm", "mvol", "molar volume", "molarvolume", "molar_vol"),
+    "boiling_point_c": ("bp", "b_p", "tb", "boiling point", "boiling_point"),
+    "flash_point_c": ("fp", "f_p", "flash point", "flash_point"),
+    "melting_point_c": ("mp", "m_p", "tm", "melting point", "melting_point"),
+    "radius": ("r0", "ro", "r_0"),
+    "cas": ("cas number", "cas no", "cas_no", "casrn", "cas rn", "cas_rn"),
+    "smiles": ("smile",),
+}
+
+
 def _as_frame(table) -> pd.DataFrame:
+    """A user table as a DataFrame: a DataFrame (copied), a CSV path, CSV bytes or an open file.
+
+    Files go through :func:`selector.io.read_user_csv` (UTF-8 or Windows-1252; comma, semicolon
+    or tab; decimal commas in semicolon files) and get canonical headers
+    (:data:`USER_COLUMN_ALIASES`: ``dD`` -> ``delta_d``...), so a merge into a file with other
+    header spellings keeps its rows."""
+    from .io import read_user_csv, rename_aliases
+
     if isinstance(table, pd.DataFrame):
         return table.copy()
-    if isinstance(table, (str, Path)):
-        p = Path(table)
-        if not p.exists():
-            raise SelectorError(f"file not found: {p}")
-        try:
-            return _read_table(p)
-        except (pd.errors.ParserError, UnicodeDecodeError, pd.errors.EmptyDataError) as e:
-            raise SelectorError(f"{p.name} is not a readable CSV file: {str(e).splitlines()[0]}")
-    if isinstance(table, (bytes, io.IOBase)):
-        data = table if isinstance(table, bytes) else table.read()
-        try:
-            return pd.read_csv(io.BytesIO(data) if isinstance(data, bytes) else io.StringIO(data),
-                               keep_default_na=False, na_values=[""], dtype={"cas": str})
-        except (pd.errors.ParserError, UnicodeDecodeError, pd.errors.EmptyDataError) as e:
-            raise SelectorError(f"not a readable CSV file: {str(e).splitlines()[0]}")
+    if isinstance(table, (str, Path, bytes, bytearray, io.IOBase)) or hasattr(table, "getvalue"):
+        df = read_user_csv(table, keep_default_na=False, na_values=[""], dtype={"cas": str})
+        return rename_aliases(df, USER_COLUMN_ALIASES, "user liquids")
     raise SelectorError("a table must be a CSV path or a pandas DataFrame")
 
 
@@ -277,17 +290,21 @@ def validate_user_table(table, library: pd.DataFrame | None = None) -> pd.DataFr
 
     Required columns: ``name, delta_d, delta_p, delta_h`` (MPa^0.5). Optional: ``molar_volume``
     (cm^3/mol), ``cas``, ``smiles``, ``boiling_point_c``, ``flash_point_c``, ``melting_point_c``,
-    ``radius`` (R0, for solutes), ``kind`` ("liquid" or "solute"), ``note``. Values must be
+    ``radius`` (R0, for solutes), ``kind`` ("liquid" or "solute"), ``note``. Headers are matched
+    case-insensitively with the spellings of :data:`USER_COLUMN_ALIASES` (``dD``, ``δD``, ``V``,
+    ``bp``, ``R0``...). Values must be
     numbers within :data:`RANGES`; names must be unique. All problems are reported together in an
     :class:`~selector.errors.InputTableError`.
     """
-    df = _as_frame(table)
-    df.columns = [str(c).strip().lower() for c in df.columns]
+    from .io import rename_aliases
+
+    df = rename_aliases(_as_frame(table), USER_COLUMN_ALIASES, "user liquids")
     problems: list[str] = []
     missing = [c for c in ["name", *HSP] if c not in df.columns]
     if missing:
         raise InputTableError("user liquids", [f"missing column(s): {', '.join(missing)} "
-                                               "(need name, delta_d, delta_p, delta_h in MPa^0.5)"])
+                                               "(need name, dD, dP, dH in MPa^0.5; delta_d, delta_p, "
+                                               "delta_h are accepted too)"])
     if len(df) == 0:
         raise InputTableError("user liquids", ["the table has no rows"])
     df["name"] = df["name"].astype(str).str.strip()

@@ -62,7 +62,6 @@ supplier's safety data sheet and follow local regulation before handling any sol
 """
 from __future__ import annotations
 
-import csv
 import io
 import math
 import re
@@ -108,27 +107,35 @@ _CUBE /= np.linalg.norm(_CUBE, axis=1, keepdims=True)
 
 # ============================================================================ reading tests
 
+#: Header spellings accepted in a lab-test table (case-insensitive; a trailing unit in brackets
+#: is ignored; see :func:`selector.io.rename_aliases`).
+TEST_COLUMN_ALIASES = {
+    "solvent": ("liquid", "name", "solvent name", "liquid name"),
+    "delta_d": ("dd", "δd", "δ_d", "deltad", "delta d", "d_d"),
+    "delta_p": ("dp", "δp", "δ_p", "deltap", "delta p", "d_p"),
+    "delta_h": ("dh", "δh", "δ_h", "deltah", "delta h", "d_h"),
+    "temperature": ("temp", "temperature_c", "t_c"),
+}
+
+
+def normalise_test_columns(df: pd.DataFrame) -> pd.DataFrame:
+    """``df`` with lab-test headers in canonical lower-case form (``dD`` -> ``delta_d``, ``Liquid``
+    -> ``solvent``...; :data:`TEST_COLUMN_ALIASES`)."""
+    from .io import rename_aliases
+
+    return rename_aliases(df, TEST_COLUMN_ALIASES, "lab tests")
+
+
 def _frame(source) -> pd.DataFrame:
     if isinstance(source, pd.DataFrame):
         return source.copy()
-    if isinstance(source, (str, Path)):
-        p = Path(source)
-        if not p.exists():
-            raise SelectorError(f"file not found: {p}")
-        if p.is_dir():
-            raise SelectorError(f"{p} is a folder, not a CSV file of lab tests")
-        try:
-            text = p.read_text(encoding="utf-8-sig")
-            rows = list(csv.reader(io.StringIO(text)))
-            width = len(rows[0]) if rows else 0
-            ragged = [f"row {i + 1} has {len(r)} fields, the header has {width}"
-                      for i, r in enumerate(rows[1:], start=1) if r and len(r) != width]
-            if ragged:
-                raise InputTableError(f"{p.name}", ragged[:20])
-            return pd.read_csv(io.StringIO(text), keep_default_na=False, na_values=[""], dtype=str,
-                               index_col=False)
-        except (pd.errors.ParserError, UnicodeDecodeError, pd.errors.EmptyDataError, csv.Error) as e:
-            raise SelectorError(f"{p.name} is not a readable CSV file: {str(e).splitlines()[0]}") from None
+    if isinstance(source, (str, Path, bytes, bytearray, io.IOBase)) or hasattr(source, "getvalue"):
+        from .io import read_user_csv
+
+        if isinstance(source, (str, Path)) and Path(source).is_dir():
+            raise SelectorError(f"{source} is a folder, not a CSV file of lab tests")
+        return read_user_csv(source, strict_rows=True, keep_default_na=False, na_values=[""], dtype=str,
+                             index_col=False)
     raise SelectorError("lab tests must be a pandas DataFrame or the path of a CSV file")
 
 
@@ -207,7 +214,10 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
                threshold: float | None = None, scale=None, temperature: float = 25.0) -> pd.DataFrame:
     """Read and validate a table of lab tests; every problem is reported at once.
 
-    ``source``: a DataFrame or a CSV path. Columns (case-insensitive):
+    ``source``: a DataFrame, a CSV path or CSV bytes (UTF-8 or Windows-1252; comma, semicolon or
+    tab separated; decimal commas in semicolon files: :func:`selector.io.read_user_csv`).
+    Columns (case-insensitive; ``dD``/``δD``, ``liquid``, ``temp``... accepted, see
+    :data:`TEST_COLUMN_ALIASES`):
 
     * ``solvent`` - library name, synonym or CAS, or a blend ``"a [60] & b [40]"``; or
       ``delta_d, delta_p, delta_h`` (MPa^0.5) for a liquid of your own (``solvent`` then only
@@ -228,8 +238,7 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
     :class:`~selector.errors.InputTableError` listing every problem.
     """
     lib = load_library() if library is None else library
-    df = _frame(source)
-    df.columns = [str(c).strip().lower() for c in df.columns]
+    df = normalise_test_columns(_frame(source))
     problems: list[str] = []
     notes: list[str] = []
     if len(df) == 0:

@@ -11,7 +11,8 @@ path = user_liquids_file()
 st.caption(f"Saved in `{path}` (set LIKEWISE_HOME to use another folder). Entries with the name or CAS "
            "of a library liquid replace it in your rankings; the bundled library is never changed. "
            "Required: name, dD, dP, dH (MPa½). Optional: molar volume (cm³/mol), CAS, SMILES, boiling "
-           "and flash point (°C), R0 for a solute.")
+           "and flash point (°C), R0 for a solute. CSV imports may use comma, semicolon or tab, UTF-8 or "
+           "Windows encoding, and headers such as dD or delta_d, V or molar_volume, bp or boiling_point_c.")
 
 COLUMNS = ["name", "kind", "cas", "smiles", "delta_d", "delta_p", "delta_h", "molar_volume", "boiling_point_c",
            "flash_point_c", "radius", "note"]
@@ -25,7 +26,12 @@ def _saved() -> pd.DataFrame:
             return validate_user_table(path)
         except (ValueError, KeyError) as e:
             common.show_error(f"The saved file could not be read (it is left untouched): {e}")
-            return pd.read_csv(path, dtype=str, keep_default_na=False)
+            from selector.io import read_user_csv
+
+            try:
+                return read_user_csv(path, dtype=str, keep_default_na=False)
+            except ValueError:
+                return pd.DataFrame({c: pd.Series(dtype=object) for c in COLUMNS})
     return pd.DataFrame({c: pd.Series(dtype=object if c in TEXT else float)
                          for c in COLUMNS})
 

@@ -47,9 +47,15 @@ elif src == "Upload a CSV":
     base = None
     if up is not None:
         try:
-            base = pd.read_csv(up)
-            if len(base) == 0 or "solvent" not in [c.strip().lower() for c in base.columns]:
-                raise ValueError("the file needs a 'solvent' column and at least one row")
+            from selector.io import read_user_csv
+            from selector.spheres import normalise_test_columns
+
+            # UTF-8 or Windows-1252, comma/semicolon/tab, decimal commas; dD/δD... headers accepted
+            base = normalise_test_columns(read_user_csv(up))
+            has_numbers = all(c in base.columns for c in ("delta_d", "delta_p", "delta_h"))
+            if len(base) == 0 or ("solvent" not in base.columns and not has_numbers):
+                raise ValueError("the file needs a 'solvent' column (or dD, dP, dH columns) and at least "
+                                 f"one row; columns found: {', '.join(map(str, base.columns))}")
         except (ValueError, pd.errors.ParserError, UnicodeDecodeError) as e:
             common.show_error(f"Could not read {up.name}: {str(e).splitlines()[0]}")
             base = None
