@@ -25,16 +25,11 @@ def _label(df):
 
 
 def _prices(path):
-    import pandas as pd
-
     from .errors import SelectorError
+    from .io import read_user_csv
 
-    try:
-        t = pd.read_csv(path)
-    except FileNotFoundError:
-        raise
-    except Exception as e:  # malformed CSV
-        raise SelectorError(f"cannot read the price list {path}: {e}") from None
+    # UTF-8 or Windows-1252, comma/semicolon/tab, decimal commas; "file not found: PATH"
+    t = read_user_csv(path, what=f"the price list {path}")
     cols = {c.strip().lower(): c for c in t.columns}
     if "name" not in cols or "cost_per_litre" not in cols:
         raise SelectorError(f"the price list {path} needs columns name, cost_per_litre")

@@ -31,6 +31,8 @@ def register(sub) -> None:
     g.add_argument("--format", choices=["table", "csv", "json"], default="table",
                    help="table (default), csv or json")
     g.add_argument("--output", "-o", metavar="FILE", help="write to FILE (atomically) instead of the screen")
+    g.add_argument("--overwrite", action="store_true",
+                   help="let -o replace an existing file (never the input batch or a read-only one)")
     p.set_defaults(func=cmd_guess)
 
 
@@ -90,5 +92,5 @@ def _save_mine(res, path) -> None:
     validate_user_table(table)  # refuse to write a table the other commands could not read
     from .io import to_csv_text
 
-    write_atomic(path, to_csv_text(table))
+    write_atomic(path, to_csv_text(table), make_parents=False)
     print(f"saved {len(new)} estimated row(s) to {path}", file=sys.stderr)

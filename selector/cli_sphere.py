@@ -48,6 +48,8 @@ def register(sub) -> None:
     o.add_argument("--part", choices=["sphere", "misfits", "next", "tests"], default="sphere",
                    help="which table --format csv writes (default sphere)")
     o.add_argument("--output", "-o", metavar="FILE", help="write to FILE (atomically) instead of the screen")
+    o.add_argument("--overwrite", action="store_true",
+                   help="let -o replace an existing file (never the lab-test file or a read-only one)")
     p.set_defaults(func=cmd_sphere)
 
 
@@ -135,7 +137,7 @@ def cmd_sphere(a) -> int:
         lines += ["", CAUTION]
         text = "\n".join(lines) + "\n"
     if a.output:
-        write_atomic(Path(a.output), text)
+        write_atomic(Path(a.output), text, make_parents=False)
         print(f"wrote {a.output}", file=sys.stderr)
     else:
         sys.stdout.write(text)

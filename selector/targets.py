@@ -52,20 +52,12 @@ class Target:
                 raise SelectorError(f"{k} must not be negative (got {float(v):g} MPa^0.5)")
         if float(self.delta_d) <= 0:
             raise SelectorError("delta_d must be positive: every liquid has dispersion forces")
-        for k, hi in TARGET_MAX.items():
-            if float(getattr(self, k)) > hi:
-                raise SelectorError(f"{k} = {float(getattr(self, k)):g} MPa^0.5 is beyond any known liquid or "
-                                    f"polymer (at most {hi:g}); check the units: MPa^0.5 (values in Pa^0.5 are "
-                                    "1000 times larger)")
         if self.radius is not None:
             r = self.radius
             if isinstance(r, bool) or not isinstance(r, (int, float, np.floating, np.integer)):
                 raise SelectorError(f"R0 must be a number of MPa^0.5, got {r!r}")
             if not math.isfinite(float(r)) or float(r) <= 0:
                 raise SelectorError(f"R0 must be a positive finite number (got {r!r} MPa^0.5)")
-            if float(r) > R0_MAX:
-                raise SelectorError(f"R0 = {float(r):g} MPa^0.5 is larger than any published sphere "
-                                    f"(at most {R0_MAX:g}); check the value")
 
     @property
     def hsp(self) -> np.ndarray:
@@ -82,6 +74,20 @@ class Target:
         if self.radius is not None:
             s += f", R0 {self.radius:.1f}"
         return s
+
+
+def _check_given(t: Target) -> Target:
+    """Plausibility bounds for HSP typed in by a user (:data:`TARGET_MAX`, :data:`R0_MAX`);
+    fitted spheres are not held to them."""
+    for k, hi in TARGET_MAX.items():
+        if float(getattr(t, k)) > hi:
+            raise SelectorError(f"{k} = {float(getattr(t, k)):g} MPa^0.5 is beyond any known liquid or "
+                                f"polymer (at most {hi:g}); check the units: MPa^0.5 (values in Pa^0.5 are "
+                                "1000 times larger)")
+    if t.radius is not None and float(t.radius) > R0_MAX:
+        raise SelectorError(f"R0 = {float(t.radius):g} MPa^0.5 is larger than any published sphere "
+                            f"(at most {R0_MAX:g}); check the value")
+    return t
 
 
 def _num(v, what):
@@ -112,14 +118,14 @@ def as_target(target, library: pd.DataFrame | None = None, name: str | None = No
             raise SelectorError("a target tuple is (delta_d, delta_p, delta_h) or "
                                 f"(delta_d, delta_p, delta_h, R0); got {len(vals)} values")
         nums = [_num(v, k) for v, k in zip(vals, ["delta_d", "delta_p", "delta_h", "R0"])]
-        return Target(*nums[:3], nums[3] if len(nums) == 4 else None, name=name or "target")
+        return _check_given(Target(*nums[:3], nums[3] if len(nums) == 4 else None, name=name or "target"))
     if isinstance(target, (dict, pd.Series)):
         get = target.get
         r = get("radius", get("R0", get("r0")))
         r = None if r is None or (isinstance(r, float) and math.isnan(r)) else _num(r, "R0")
-        return Target(_num(get("delta_d"), "delta_d"), _num(get("delta_p"), "delta_p"),
-                      _num(get("delta_h"), "delta_h"), r,
-                      name=str(get("name", name or "target")), source=str(get("source", "given")))
+        return _check_given(Target(_num(get("delta_d"), "delta_d"), _num(get("delta_p"), "delta_p"),
+                                   _num(get("delta_h"), "delta_h"), r,
+                                   name=str(get("name", name or "target")), source=str(get("source", "given"))))
     if all(hasattr(target, k) for k in ("delta_d", "delta_p", "delta_h")):
         r = getattr(target, "radius", None)
         return Target(_num(target.delta_d, "delta_d"), _num(target.delta_p, "delta_p"),

@@ -456,7 +456,7 @@ def test_cli_prices_and_bad_price_file(tmp_path, capsys):
     assert all("pareto" in r and r["cost_per_litre"] is not None for r in recs)
     bad = tmp_path / "bad.csv"
     bad.write_text("liquid;price\ntoluene;2\n")
-    assert main(["blend", "21.3,5.8,4.3,12.7", "--prices", str(bad), "-o", str(out)]) == 2
+    assert main(["blend", "21.3,5.8,4.3,12.7", "--prices", str(bad), "-o", str(out), "--overwrite"]) == 2
     assert "cost_per_litre" in capsys.readouterr().err
     assert json.loads(out.read_text()) == recs  # the earlier output file is untouched
 

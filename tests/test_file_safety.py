@@ -369,3 +369,26 @@ def test_app_sphere_upload_reads_semicolon_cp1252(app, lab_file):
     fit = selector.fit_sphere(lab_file, bootstrap=0)
     s = fit.spheres[0]
     assert [m.value for m in app.metric][:4] == [f"{v:.1f}" for v in (s.delta_d, s.delta_p, s.delta_h, s.radius)]
+
+
+# ------------------------------------------------------------------ sphere / guess --overwrite, prices
+
+def test_sphere_overwrite_flag(lab_file, tmp_path, capsys):
+    p = tmp_path / "fit.csv"
+    p.write_text("old\n")
+    rc, _, err = run(["sphere", str(lab_file), "--format", "csv", "-o", str(p), "--bootstrap", "0", "--next", "0"],
+                     capsys)
+    assert rc == 2 and "use --overwrite" in err and p.read_text() == "old\n"
+    rc, _, _ = run(["sphere", str(lab_file), "--format", "csv", "-o", str(p), "--bootstrap", "0", "--next", "0",
+                    "--overwrite"], capsys)
+    fit = selector.fit_sphere(lab_file, bootstrap=0)
+    assert rc == 0 and pd.read_csv(p)["radius"].iloc[0] == pytest.approx(fit.spheres[0].radius)
+
+
+def test_excel_price_list(tmp_path, capsys):
+    # invented prices, semicolons and decimal commas in Windows-1252
+    p = tmp_path / "prices.csv"
+    p.write_bytes("name;cost_per_litre\ntoluene;3,5\nethanol;2,25\n".encode("cp1252"))
+    from selector.cli_blend import _prices
+
+    assert _prices(str(p)) == {"toluene": 3.5, "ethanol": 2.25}

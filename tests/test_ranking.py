@@ -123,3 +123,18 @@ def test_bad_targets(bad, msg):
 def test_bad_filters(kw, msg):
     with pytest.raises(SelectorError, match=msg):
         selector.rank(PS, **kw)
+
+
+def test_typed_targets_beyond_any_liquid_are_refused():
+    # Common practice: HSP of liquids and polymers stay below dD 30, dP 40, dH 50 MPa^0.5 (water
+    # has the largest dH, 42.3, in the published tables); bigger numbers are unit slips (the
+    # chemicals tables store Pa^0.5, 1000x larger). Fitted spheres are not held to the bounds.
+    from selector.errors import SelectorError
+    from selector.targets import Target
+
+    with pytest.raises(SelectorError, match="Pa\\^0.5 are 1000 times larger"):
+        selector.rank((17900.0, 6100.0, 6400.0))
+    with pytest.raises(SelectorError, match="R0 = 99"):
+        selector.rank((17.9, 6.1, 6.4, 99.0))
+    assert Target(31.0, 5.0, 5.0, 45.0, name="fitted sphere").delta_d == 31.0
+    assert len(selector.rank((29.9, 39.9, 49.9), top=3)) == 3
