@@ -20,7 +20,7 @@ def add_filter_args(p: argparse.ArgumentParser) -> None:
     g.add_argument("--without", metavar="NAMES", help="comma-separated liquids never to propose")
     g.add_argument("--bp", metavar="LOW:HIGH", help="boiling-point window in C, e.g. 80:180 or 100:")
     g.add_argument("--min-flash", type=float, metavar="C", help="minimum flash point in C "
-                   "(liquids without flash-point data are dropped)")
+                   "(liquids without flash-point data are dropped, except those known not to burn)")
     g.add_argument("--flash", metavar="LOW:HIGH", help="flash-point window in C, e.g. 23:100 or 40: "
                    "(liquids without flash-point data are dropped)")
     g.add_argument("--max-class", choices=["recommended", "problematic", "hazardous", "highly-hazardous"],
@@ -28,6 +28,9 @@ def add_filter_args(p: argparse.ArgumentParser) -> None:
     g.add_argument("--max-volume", type=float, metavar="CM3", help="maximum molar volume, cm3/mol")
     g.add_argument("--agreed-only", action="store_true",
                    help="only liquids whose published HSP sources agree within 1 MPa^0.5")
+    g.add_argument("--include-reactive", action="store_true",
+                   help="also propose reagents that are not solvents: reactive, explosive or very toxic "
+                   "liquids (acid chlorides, isocyanates, epoxides, benzene, ...); left out by default")
     g.add_argument("--mine", metavar="CSV", help="CSV of your own liquids merged over the library")
 
 
@@ -65,6 +68,8 @@ def filters_from_args(a) -> dict:
         f["max_molar_volume"] = a.max_volume
     if getattr(a, "agreed_only", False):
         f["consistent_sources_only"] = True
+    if getattr(a, "include_reactive", False):
+        f["include_reactive"] = True
     return f
 
 

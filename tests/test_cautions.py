@@ -82,3 +82,16 @@ def test_non_flammable_liquids_pass_flash_point_minimum():
     # a window with an upper end is a statement about burning liquids: non-flammable ones fail
     assert not filter_mask(LIB, flash_point_c=(23, 60))[water]
     assert filter_mask(LIB, flash_point_c=(23, None))[water]
+
+
+def test_cli_include_reactive(capsys):
+    from selector.cli import main
+
+    assert main(["rank", "21.3,5.8,4.3,12.7", "--format", "json"]) == 0
+    n_default = len(__import__("json").loads(capsys.readouterr().out))
+    assert main(["rank", "21.3,5.8,4.3,12.7", "--format", "json", "--include-reactive", "--top", "1000"]) == 0
+    rows = __import__("json").loads(capsys.readouterr().out)
+    assert len(rows) == len(LIB)
+    assert n_default == 20
+    assert main(["rank", "21.3,5.8,4.3,12.7"]) == 0
+    assert f"{int((reactive_reasons(LIB) != '').sum())} reagents" in capsys.readouterr().out
