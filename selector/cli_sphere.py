@@ -134,6 +134,7 @@ def cmd_sphere(a) -> int:
             lines.append("Worth testing next (p_inside: share of plausible spheres that contain it):")
             with pd.option_context("display.width", 200, "display.float_format", "{:.2f}".format):
                 lines.append(nxt[[c for c in NEXT_COLUMNS if c in nxt.columns]].to_string(index=False))
+            lines += [f"- {n}" for n in nxt.attrs.get("notes", [])]
         lines += ["", CAUTION]
         text = "\n".join(lines) + "\n"
     if a.output:

@@ -822,7 +822,9 @@ class SphereFit:
         hazardous and highly hazardous), then RED nearer 1, then smaller molar volume. ``shelf``: a
         list of names/CAS to choose from; other keyword filters as :mod:`selector.filters`.
         Returns name, cas, HSP, ``red`` (to the nearest fitted sphere), ``p_inside``, ``information``,
-        boiling and flash point (C) and ``hazard_class``. Check the safety data sheet of every
+        boiling and flash point (C) and ``hazard_class``; ``attrs["notes"]`` says which shelf
+        liquids were left out and why (tested already, a reagent, outside the filters) and when
+        no candidate would tell the plausible spheres apart. Check the safety data sheet of every
         suggested liquid before testing it.
         """
         from .filters import check_filter_keys, check_temperature, filter_mask
@@ -873,7 +875,39 @@ class SphereFit:
         order = np.lexsort((out["molar_volume"].to_numpy(float), np.abs(red_main - 1.0), hrank,
                             -np.round(info, 2)))
         out = out.iloc[order].head(n).reset_index(drop=True)
+        notes = []
+        if shelf is not None:
+            notes += _shelf_notes(lib, filters["include"], tested, mask, t, filters)
+        if len(out) and float(out["information"].max()) < 0.01:
+            notes.append("every plausible sphere agrees on these liquids (information near 0): a test "
+                         "of any of them adds little; widen the shelf or the filters")
+        out.attrs["notes"] = notes
         return out
+
+
+def _shelf_notes(lib, shelf, tested, mask, t, filters) -> list[str]:
+    """Why shelf liquids are missing from the suggestions: tested already, a reagent, or
+    filtered out."""
+    from .cautions import reactive_reasons
+    from .filters import filter_mask
+    from .library import locate_many
+
+    idx = locate_many(shelf, lib, "shelf")
+    done = set(int(i) for i in tested)
+    reasons = reactive_reasons(lib)
+    loose = filter_mask(lib, temperature=t, **dict(filters, include_reactive=True))
+    out = []
+    names = lib["name"].astype(str).to_numpy()
+    already = [names[i] for i in idx if int(i) in done]
+    if already:
+        out.append("already tested, so not suggested: " + ", ".join(already))
+    reag = [f"{names[i]} ({reasons[i]})" for i in idx if int(i) not in done and reasons[i] and not mask[i]]
+    if reag and not filters.get("include_reactive"):
+        out.append("reagents left out (--include-reactive to allow): " + ", ".join(reag))
+    other = [names[i] for i in idx if int(i) not in done and not loose[i]]
+    if other:
+        out.append("outside the filters: " + ", ".join(other))
+    return out
 
 
 def _warnings(fit_c, R, P, good, tests, notes, level_msgs):

@@ -177,6 +177,14 @@ def test_suggest_tests(ps_fit):
     shelf = ["acetone", "ethyl acetate", "toluene", "butyl acetate", "pyridine"]
     s = ps_fit.suggest_tests(10, shelf=shelf)
     assert set(s["name"]) <= set(shelf) - {"toluene"} and len(s) == 4
+    # the shelf liquids left out are named with the reason (toluene was tested; acetyl chloride
+    # is a reagent, selector.cautions; diethyl ether (bp 35 C) fails the boiling-point window)
+    s2 = ps_fit.suggest_tests(10, shelf=shelf + ["acetyl chloride", "diethyl ether"], boiling_point_c=(50, None))
+    notes = " | ".join(s2.attrs["notes"])
+    assert "already tested, so not suggested: toluene" in notes
+    assert "acetyl chloride (acyl halide" in notes
+    assert "outside the filters: " in notes and "diethyl ether" in notes.split("outside the filters: ")[1]
+    assert "acetyl chloride" not in set(s2["name"]) and "diethyl ether" not in set(s2["name"])
     f = ps_fit.suggest_tests(5, min_flash_point_c=40)
     assert np.all(f["flash_point_c"] >= 40)
     with pytest.raises(SelectorError):

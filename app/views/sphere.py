@@ -125,6 +125,8 @@ st.caption("Liquids whose result would tell the most about the sphere's edge.")
 nxt = common.call(res.suggest_tests, 5)
 if nxt is not None:
     st.dataframe(nxt, hide_index=True, width="stretch", column_config=common.COLUMN_CONFIG)
+    for note in nxt.attrs.get("notes", []):
+        st.caption(note)
     lib = common.library()
     if "name" in getattr(nxt, "columns", []):
         common.cautions(lib.loc[lib["name"].isin(nxt["name"])], title="Safety notes for the suggested tests")
