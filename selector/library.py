@@ -348,10 +348,47 @@ def validate_user_table(table, library: pd.DataFrame | None = None) -> pd.DataFr
     return df
 
 
+#: Columns a user entry never takes from the library entry it replaces (its own HSP and origin).
+_NOT_FILLED = {"name", "delta_d", "delta_p", "delta_h", "hsp_source", "hsp_sources_available", "hsp_spread",
+               "sources_disagree", "origin", "radius", "kind"}
+
+
 def merge_user_liquids(library: pd.DataFrame, table) -> pd.DataFrame:
-    """Library with the user's validated entries merged over it (same name or CAS: replaced)."""
+    """Library with the user's validated entries merged over it (same name or CAS: replaced).
+
+    A user entry that replaces a library liquid keeps the library's values for every property
+    it leaves empty (CAS, SMILES, boiling and flash point, vapour pressure, hazard data, ...);
+    only its own HSP (and whatever else it gives) replace the library's. The columns taken over
+    are listed in its ``filled_from_library`` column."""
     user = validate_user_table(table)
     user = user.copy()
+    lib_name = pd.Series(np.arange(len(library)), index=library["name"].astype(str).str.lower())
+    lib_name = lib_name[~lib_name.index.duplicated()]
+    lib_cas = pd.Series(np.arange(len(library)), index=library["cas"].astype(str))
+    lib_cas = lib_cas[~lib_cas.index.duplicated() & (lib_cas.index != "")]
+    pos = user["name"].astype(str).str.lower().map(lib_name)
+    if "cas" in user.columns:
+        pos = pos.fillna(user["cas"].astype(str).map(lib_cas))
+    matched = pos.notna().to_numpy()
+    filled = [[] for _ in range(len(user))]
+    if matched.any():
+        src = library.iloc[pos[matched].astype(int).to_numpy()].reset_index(drop=True)
+        rows = np.flatnonzero(matched)
+        for c in library.columns:
+            if c in _NOT_FILLED:
+                continue
+            if c not in user.columns:
+                user[c] = np.nan if c not in _TEXT_COLUMNS else ""
+            cur = user[c].iloc[rows]
+            empty = (cur.isna() | (cur.astype(str).str.strip() == "")).to_numpy()
+            take = empty & ~(src[c].isna() | (src[c].astype(str).str.strip() == "")).to_numpy()
+            if take.any():
+                new = user[c].to_numpy(object).copy()
+                new[rows[take]] = src[c].to_numpy(object)[take]
+                user[c] = pd.Series(new, index=user.index).infer_objects()
+                for i in rows[take]:
+                    filled[i].append(c)
+    user["filled_from_library"] = [", ".join(f) for f in filled]
     user["origin"] = "user"
     for c in library.columns:
         if c not in user.columns:

@@ -320,3 +320,22 @@ def test_densities_are_physical(lib):
     rho = lib["molar_mass"] / lib["molar_volume"]
     assert rho.between(0.6, 3.2).all(), lib.loc[~rho.between(0.6, 3.2), "name"].tolist()
     assert lib["molar_volume_estimated"].sum() < 0.8 * len(lib)
+
+
+def test_user_entry_replacing_a_library_liquid_keeps_its_properties():
+    # A user row named like a library liquid (any case) brings its own HSP but keeps the
+    # library's boiling point, flash point, CAS (hence hazard data) where it leaves them empty.
+    lib = selector.load_library()
+    ref = lib.loc[lib["cas"] == "108-88-3"].iloc[0]
+    user = pd.DataFrame({"name": ["Toluene", "shop thinner (invented)"], "delta_d": [18.1, 17.0],
+                         "delta_p": [1.5, 5.0], "delta_h": [2.1, 6.0], "boiling_point_c": [111.0, 150.0]})
+    m = selector.library.merge_user_liquids(lib, user)
+    assert len(m) == len(lib) + 1
+    row = m.loc[m["name"] == "Toluene"].iloc[0]
+    assert (row["delta_d"], row["delta_p"], row["delta_h"]) == (18.1, 1.5, 2.1)
+    assert row["boiling_point_c"] == 111.0                     # the user's own value wins
+    assert row["cas"] == "108-88-3" and row["flash_point_c"] == ref["flash_point_c"]
+    assert "flash_point_c" in row["filled_from_library"] and "boiling_point_c" not in row["filled_from_library"]
+    assert row["origin"] == "user"
+    new = m.loc[m["name"] == "shop thinner (invented)"].iloc[0]
+    assert new["filled_from_library"] == "" and np.isnan(new["flash_point_c"])
