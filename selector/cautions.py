@@ -162,16 +162,18 @@ def _exposure_ppm(library: pd.DataFrame) -> np.ndarray:
     return el
 
 
+@functools.lru_cache(maxsize=1)
+def _not_flammable_cas() -> pd.Index:
+    from .hazards import _statement_table
+
+    st = _statement_table()
+    return pd.Index(st.loc[st["not_flammable"], "cas"].astype(str).unique())
+
+
 def not_flammable(library: pd.DataFrame) -> np.ndarray:
     """True where the liquid has no flash point in the library and ``parameters/hazards.csv``
     marks it as not flammable (water, dichloromethane, chloroform, carbon tetrachloride, ...;
     from memory there, to be confirmed with the safety data sheet). Matched by CAS number."""
-    from .hazards import _statement_table
-
-    st = _statement_table().drop_duplicates("cas").set_index("cas")
-    idx = st.index.get_indexer(library["cas"].astype(str).to_numpy())
-    nf = np.zeros(len(library), dtype=bool)
-    known = idx >= 0
-    nf[known] = st["not_flammable"].to_numpy(bool)[idx[known]]
+    nf = library["cas"].astype(str).isin(_not_flammable_cas()).to_numpy()
     fp = library["flash_point_c"].to_numpy(float) if "flash_point_c" in library else np.full(len(library), np.nan)
     return nf & ~np.isfinite(fp)

@@ -80,11 +80,28 @@ def check_filter_keys(filters: dict, extra: tuple[str, ...] = ()) -> None:
                             f"{', '.join(FILTER_KEYS + tuple(extra))}")
 
 
-def filter_mask(library: pd.DataFrame, *, temperature: float = 25.0, include=None, exclude=None,
-                boiling_point_c=None, min_flash_point_c=None, max_molar_volume=None,
-                consistent_sources_only=False, flash_point_c=None, max_hazard_class=None,
-                include_reactive=False) -> np.ndarray:
+def filter_mask(library: pd.DataFrame, **filters) -> np.ndarray:
     """Boolean mask over ``library`` rows that pass every filter (see module doc)."""
+    return masks_and_reagents(library, **filters)[0]
+
+
+def masks_and_reagents(library: pd.DataFrame, **filters) -> tuple[np.ndarray, int]:
+    """``(mask, left_out)``: the :func:`filter_mask` and how many liquids pass every other filter
+    but are left out as reagents (0 with ``include_reactive=True``)."""
+    include_reactive = bool(filters.pop("include_reactive", False))
+    loose = _mask(library, **filters)
+    if include_reactive:
+        return loose, 0
+    from .cautions import reactive_reasons
+
+    reagent = reactive_reasons(library) != ""
+    return loose & ~reagent, int((loose & reagent).sum())
+
+
+def _mask(library: pd.DataFrame, *, temperature: float = 25.0, include=None, exclude=None,
+                boiling_point_c=None, min_flash_point_c=None, max_molar_volume=None,
+                consistent_sources_only=False, flash_point_c=None, max_hazard_class=None) -> np.ndarray:
+    """Mask of every filter except the reagent screen."""
     n = len(library)
     mask = np.ones(n, dtype=bool)
     inc = _as_list(include, "include")
@@ -135,10 +152,6 @@ def filter_mask(library: pd.DataFrame, *, temperature: float = 25.0, include=Non
 
         with np.errstate(invalid="ignore"):
             mask &= hazard_columns(library)["hazard_rank"].to_numpy(float) <= class_rank(max_hazard_class)
-    if not include_reactive:
-        from .cautions import reactive_reasons
-
-        mask &= reactive_reasons(library) == ""
     if "kind" in library.columns:  # the user's solutes are targets, never candidate liquids
         mask &= library["kind"].astype(str).str.lower().to_numpy() != "solute"
     t = float(temperature)
@@ -153,17 +166,6 @@ def _not_flammable(library):
     from .cautions import not_flammable
 
     return not_flammable(library)
-
-
-def left_out_reactive(library: pd.DataFrame, **filters) -> int:
-    """How many liquids pass ``filters`` only when reagents are allowed (``include_reactive``);
-    for the notes under a result."""
-    if filters.get("include_reactive"):
-        return 0
-    f = dict(filters, include_reactive=True)
-    from .cautions import reactive_reasons
-
-    return int((filter_mask(library, **f) & (reactive_reasons(library) != "")).sum())
 
 
 def check_temperature(temperature) -> float:

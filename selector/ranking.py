@@ -29,7 +29,7 @@ import numpy as np
 import pandas as pd
 
 from .errors import SelectorError
-from .filters import check_filter_keys, check_temperature, filter_mask
+from .filters import check_filter_keys, check_temperature, filter_mask, masks_and_reagents
 from .hansen import energy_fractions, hsp_at_temperature, ra as _ra
 from .library import HSP, load_library
 from .targets import Target, as_target
@@ -101,7 +101,7 @@ def rank(target, *, temperature: float = 25.0, library: pd.DataFrame | None = No
         raise SelectorError("polarity_weight must be a finite number >= 0")
     lib = load_library() if library is None else library
     tgt = resolve_target(target, lib, t_c)
-    mask = filter_mask(lib, temperature=t_c, **filters)
+    mask, left_out = masks_and_reagents(lib, temperature=t_c, **filters)
     if isinstance(target, str):
         mask &= lib["name"].to_numpy() != tgt.name  # a liquid is not its own candidate
     cand = lib.loc[mask]
@@ -132,9 +132,7 @@ def rank(target, *, temperature: float = 25.0, library: pd.DataFrame | None = No
     out.insert(0, "rank", np.arange(1, len(out) + 1))
     out.attrs["target"] = tgt
     out.attrs["temperature"] = t_c
-    from .filters import left_out_reactive
-
-    out.attrs["reagents_left_out"] = left_out_reactive(lib, temperature=t_c, **filters)
+    out.attrs["reagents_left_out"] = left_out
     if top is not None:
         out = out.head(int(top))
     return out

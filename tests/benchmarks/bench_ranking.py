@@ -31,7 +31,11 @@ def median_time(fn, repeat=15):
 
 
 def naive_rank(lib, target, bp=(80, 220), min_flash=20, exclude=("toluene",)):
-    """Per-row Python loop: filter, Ra, RED, polarity match, sort."""
+    """Per-row Python loop: filter (reagents out, non-flammable liquids pass the flash minimum),
+    Ra, RED, polarity match, sort."""
+    from selector.cautions import _not_flammable_cas
+
+    nonflam = set(_not_flammable_cas())
     d0, p0, h0, r0 = target
     t2 = d0 * d0 + p0 * p0 + h0 * h0
     e0 = (d0 * d0 / t2, p0 * p0 / t2, h0 * h0 / t2)
@@ -39,7 +43,9 @@ def naive_rank(lib, target, bp=(80, 220), min_flash=20, exclude=("toluene",)):
     for r in lib.to_dict(orient="records"):
         if r["name"] in exclude or not (bp[0] <= r["boiling_point_c"] <= bp[1]):
             continue
-        if not (r["flash_point_c"] >= min_flash):
+        if isinstance(r["reactive_reason"], str) and r["reactive_reason"]:
+            continue
+        if not (r["flash_point_c"] >= min_flash or (r["cas"] in nonflam and math.isnan(r["flash_point_c"]))):
             continue
         dd, dp, dh = r["delta_d"], r["delta_p"], r["delta_h"]
         ra_ = math.sqrt(4 * (dd - d0) ** 2 + (dp - p0) ** 2 + (dh - h0) ** 2)
