@@ -46,7 +46,7 @@ import numpy as np
 import pandas as pd
 
 from .errors import SelectorError
-from .filters import check_filter_keys, check_temperature, filter_mask
+from .filters import check_filter_keys, check_temperature, filter_mask, masks_and_reagents
 from .hansen import ra as _ra
 from .library import load_library, locate, locate_many, vapour_pressure_kpa
 from .targets import Target
@@ -511,7 +511,7 @@ def _target_and_candidates(target, library, temperature, filters, costs=None):
     t_c = check_temperature(temperature)
     lib = load_library() if library is None else library
     tgt = resolve_target(target, lib, t_c)
-    mask = filter_mask(lib, temperature=t_c, **filters)
+    mask, left_out = masks_and_reagents(lib, temperature=t_c, **filters)
     if isinstance(target, str):
         mask &= lib["name"].to_numpy() != tgt.name
     cost = None
@@ -521,8 +521,11 @@ def _target_and_candidates(target, library, temperature, filters, costs=None):
         cost = cost_full[mask]
     cand = lib.loc[mask].reset_index(drop=True)
     if len(cand) == 0:
-        raise SelectorError("no liquid passes the filters; widen the boiling-point or flash-point "
-                            "window, allow a worse hazard class or shorten the exclude list")
+        raise SelectorError("no liquid passes the filters"
+                            + (f" ({left_out} reagents left out: include_reactive / --include-reactive "
+                               "allows them)" if left_out else "")
+                            + "; widen the boiling-point or flash-point window, allow a worse hazard class "
+                            "or shorten the exclude list")
     h = corrected_hsp(cand, t_c)
     return tgt, cand, h, t_c, cost
 

@@ -15,9 +15,10 @@ agents):
 * functional groups, by RDKit SMARTS (:data:`REACTIVE_GROUPS`);
 * inorganic liquids (no carbon) other than water (bromine, nitric acid, hydrazine, hydrogen
   peroxide, thionyl chloride, ...);
+* a "fatal" acute-toxicity statement (H300, H310, H330) in ``parameters/hazards.csv``;
 * an occupational exposure limit (8-h TWA, from the library's ``chemicals`` value) below
   1 ppm for a liquid volatile enough for the limit to matter (vapour pressure >= 0.01 kPa at
-  25 C): benzene, 2-methoxyethanol, acrolein, chloropicrin and the like. (Low-volatility
+  25 C): benzene, 2-methoxyethanol, chloropicrin and the like. (Low-volatility
   liquids whose limit is set in mg/m3 - phthalates - convert to small ppm values without
   being a vapour hazard, hence the volatility condition.)
 
@@ -34,6 +35,7 @@ Read the supplier's safety data sheet before any use.
 from __future__ import annotations
 
 import functools
+import hashlib
 import math
 
 import numpy as np
@@ -60,7 +62,15 @@ REACTIVE_GROUPS = (
     ("isonitrile", "[C-]#[N+]", "very toxic"),
     ("acyl cyanide or cyanohydrin", "[$(C(=O)C#N),$(N#C[CX4][OX2H])]", "releases hydrogen cyanide"),
     ("thiol", "[SX2H]", "stench, toxic"),
+    ("hydrogen cyanide", "[CH1]#N", "very toxic"),
+    ("unsaturated aldehyde", "[C;!$(C-a)]=[C;!$(C-a)][CH1]=O", "lachrymator, very toxic"),
+    ("allylic or benzylic halide", "[Cl,Br,I][CX4;!$(C([Cl,Br,I])([Cl,Br,I]))][$(C=C),$(c)]",
+     "alkylating agent, lachrymator"),
 )
+
+#: GHS statements that make a liquid a reagent wherever ``parameters/hazards.csv`` lists them:
+#: fatal if swallowed, in contact with skin or inhaled (acute toxicity categories 1-2).
+FATAL_STATEMENTS = ("H300", "H310", "H330")
 
 #: Exposure limits (ppm, 8-h TWA) below this mark a volatile liquid as very toxic.
 EXPOSURE_LIMIT_PPM = 1.0
@@ -128,12 +138,18 @@ def reactive_reasons(library: pd.DataFrame) -> np.ndarray:
         done = (library["origin"].astype(str) == "library").to_numpy()
         out[done] = library["reactive_reason"].fillna("").astype(str).to_numpy(object)[done]
         todo = ~done
-    if not todo.any():
-        return out
-    sub = library.loc[todo]
+    if todo.any():
+        out[todo] = _computed(library.loc[todo])
+    fatal = _fatal(library) & (out == "")
+    out[fatal] = "fatal on exposure (H300/H310/H330)"
+    return out
+
+
+def _computed(sub: pd.DataFrame) -> np.ndarray:
+    """Structural and exposure reasons for rows without a precomputed one."""
     m = len(sub)
     smi = sub["smiles"].fillna("").astype(str) if "smiles" in sub else pd.Series([""] * m, index=sub.index)
-    key = (m, int(pd.util.hash_pandas_object(smi, index=False).to_numpy().sum()))
+    key = hashlib.sha1(pd.util.hash_pandas_object(smi, index=False).to_numpy().tobytes()).hexdigest()
     struct = _STRUCT_CACHE.get(key)
     if struct is None:
         struct = np.array([_structure_reason(x) for x in smi], dtype=object)
@@ -147,8 +163,39 @@ def reactive_reasons(library: pd.DataFrame) -> np.ndarray:
     res = struct.copy()
     for i in np.flatnonzero(toxic):   # the few flagged rows only
         res[i] = f"exposure limit {el[i]:g} ppm (very toxic at low exposure)"
-    out[todo] = res
-    return out
+    return res
+
+
+def row_reason(row) -> str:
+    """:func:`reactive_reasons` for one library row (a Series or dict), without building a frame
+    for rows of the bundled library."""
+    get = row.get
+    cas = str(get("cas", "") or "")
+    if str(get("origin", "")) == "library":
+        why = get("reactive_reason", "")
+        why = "" if why is None or (isinstance(why, float) and math.isnan(why)) else str(why)
+    else:
+        unit = str(get("exposure_limit_unit", "") or "").strip().lower()
+        el = get("exposure_limit", math.nan) if unit == "ppm" else math.nan
+        why = reactive_reason(get("smiles", "") or "", el, get("vapour_pressure_kpa", math.nan))
+    if not why and cas and cas in _fatal_cas():
+        why = "fatal on exposure (H300/H310/H330)"
+    return why
+
+
+@functools.lru_cache(maxsize=1)
+def _fatal_cas() -> pd.Index:
+    from .hazards import _statement_table
+
+    st = _statement_table()
+    hit = st["statements"].map(lambda t: any(c[:4] in FATAL_STATEMENTS for c in t))
+    return pd.Index(st.loc[hit, "cas"].astype(str).unique())
+
+
+def _fatal(library: pd.DataFrame) -> np.ndarray:
+    if "cas" not in library.columns:
+        return np.zeros(len(library), dtype=bool)
+    return library["cas"].astype(str).isin(_fatal_cas()).to_numpy()
 
 
 def _exposure_ppm(library: pd.DataFrame) -> np.ndarray:
@@ -174,6 +221,8 @@ def not_flammable(library: pd.DataFrame) -> np.ndarray:
     """True where the liquid has no flash point in the library and ``parameters/hazards.csv``
     marks it as not flammable (water, dichloromethane, chloroform, carbon tetrachloride, ...;
     from memory there, to be confirmed with the safety data sheet). Matched by CAS number."""
+    if "cas" not in library.columns:
+        return np.zeros(len(library), dtype=bool)
     nf = library["cas"].astype(str).isin(_not_flammable_cas()).to_numpy()
     fp = library["flash_point_c"].to_numpy(float) if "flash_point_c" in library else np.full(len(library), np.nan)
     return nf & ~np.isfinite(fp)

@@ -22,7 +22,8 @@ def add_filter_args(p: argparse.ArgumentParser) -> None:
     g.add_argument("--min-flash", type=float, metavar="C", help="minimum flash point in C "
                    "(liquids without flash-point data are dropped, except those known not to burn)")
     g.add_argument("--flash", metavar="LOW:HIGH", help="flash-point window in C, e.g. 23:100 or 40: "
-                   "(liquids without flash-point data are dropped)")
+                   "(liquids without flash-point data are dropped; with no upper end, liquids known "
+                   "not to burn pass)")
     g.add_argument("--max-class", choices=["recommended", "problematic", "hazardous", "highly-hazardous"],
                    help="worst CHEM21 hazard class allowed for every liquid (unclassified liquids are dropped)")
     g.add_argument("--max-volume", type=float, metavar="CM3", help="maximum molar volume, cm3/mol")

@@ -15,7 +15,8 @@ SHOW_FIELDS = ["name", "cas", "smiles", "formula", "molar_mass", "delta_d", "del
                "vapour_pressure_kpa", "hvap_kj_mol", "expansion_coeff", "viscosity_mpa_s",
                "exposure_limit", "exposure_limit_unit", "exposure_limit_source", "synonyms",
                "melting_point_source", "boiling_point_source", "volume_method",
-               "vapour_pressure_method", "viscosity_method", "viscosity_estimated", "flash_point_source", "origin"]
+               "vapour_pressure_method", "viscosity_method", "viscosity_estimated", "flash_point_source", "origin",
+               "reactive_reason"]
 
 
 def target_from_text(text: str, radius: float | None = None, library=None):
@@ -23,22 +24,15 @@ def target_from_text(text: str, radius: float | None = None, library=None):
 
     'dD,dP,dH[,R0]' (MPa^0.5) -> tuple; anything else is a liquid name, CAS or SMILES, returned
     as is, or as a :class:`~selector.targets.Target` at that liquid's point with ``radius`` as R0.
-    Text that starts like numbers but is not 3 or 4 of them, and a SMILES that is not in the
-    library, get a message that says what to do.
+    A name is looked up first when the text is not all numbers (``1,4-dioxane``); numbers that
+    are not 3 or 4 of them, and a SMILES that is not in the library, get a message that says what
+    to do.
     """
     from .errors import SelectorError
+    from .library import find_liquid, load_library
 
     parts = [p.strip() for p in text.split(",")]
-    nums = []
-    for p in parts:
-        try:
-            nums.append(float(p))
-        except ValueError:
-            nums = None
-            break
-    first_is_number = bool(parts) and _is_number(parts[0])
-    if nums is None and first_is_number and len(parts) > 1:
-        raise SelectorError(f"target {text!r}: expected numbers 'dD,dP,dH' or 'dD,dP,dH,R0' in MPa^0.5")
+    nums = [float(p) for p in parts] if all(_is_number(p) for p in parts) else None
     if nums is not None:
         if len(nums) not in (3, 4):
             raise SelectorError(f"target {text!r}: expected 'dD,dP,dH' or 'dD,dP,dH,R0' in MPa^0.5, "
@@ -52,12 +46,13 @@ def target_from_text(text: str, radius: float | None = None, library=None):
 
         as_target(nums)   # range and sign checks, with their messages
         return nums
-    from .library import find_liquid, load_library
-
     lib = load_library() if library is None else library
     try:
-        row = find_liquid(text, lib)
+        row = find_liquid(text, lib)   # names such as 1,4-dioxane contain commas and digits
     except SelectorError as err:
+        if len(parts) > 1 and _is_number(parts[0]):
+            raise SelectorError(f"{err}; as numbers, a target is 'dD,dP,dH' or 'dD,dP,dH,R0' in "
+                                "MPa^0.5") from None
         from rdkit import Chem, RDLogger
 
         RDLogger.DisableLog("rdApp.*")
@@ -94,7 +89,10 @@ def cmd_rank(a) -> int:
               "score = distance + polarity weight x (1 - polarity match), lower is better; "
               "hazard class: CHEM21 (unclassified = no hazard data here, not safe)"
               + _reagent_note(res))
-    emit(_with_hazard_class(res, lib).head(a.top), a, cols, caution=True, header=header)
+    shown = _with_hazard_class(res, lib)
+    if (shown["reagent"] != "").any():
+        cols = cols + ["reagent"]
+    emit(shown.head(a.top), a, cols, caution=True, header=header)
     return 0
 
 
@@ -104,8 +102,11 @@ def _with_hazard_class(res, lib):
 
     hz = hazard_columns(lib)
     cls = dict(zip(lib["cas"].astype(str), hz["hazard_class"]))
+    from .cautions import reactive_reasons
+
     out = res.copy()
     out["hazard_class"] = out["cas"].astype(str).map(cls).fillna("unclassified")
+    out["reagent"] = reactive_reasons(out)
     return out
 
 
@@ -120,8 +121,14 @@ def cmd_show(a) -> int:
 
     from .library import find_liquid
 
+    from .cautions import reactive_reasons
+
     lib = library_from_args(a)
     rows = [find_liquid(q, lib) for q in a.liquids]
+    why = reactive_reasons(pd.DataFrame(rows))
+    rows = [r.copy() for r in rows]
+    for r, w in zip(rows, why):
+        r["reactive_reason"] = w
     if a.format == "table":
         for r in rows:
             for f in SHOW_FIELDS:
@@ -143,14 +150,17 @@ def cmd_list(a) -> int:
     from .library import _key
 
     lib = library_from_args(a)
-    m = filter_mask(lib, **filters_from_args(a))
+    m = filter_mask(lib, **dict(filters_from_args(a), include_reactive=True))  # browsing: everything
     if a.search:
         k = _key(a.search)
         hay = (lib["name"] + "|" + lib["synonyms"].astype(str) + "|" + lib["cas"]).map(_key)
         m &= hay.str.contains(k, regex=False).to_numpy()
     out = lib.loc[m].sort_values("name")
+    from .cautions import reactive_reasons
+
+    out = out.assign(reagent=reactive_reasons(out))
     cols = ["name", "cas", "delta_d", "delta_p", "delta_h", "molar_volume", "boiling_point_c",
-            "flash_point_c", "hsp_source", "sources_disagree"]
+            "flash_point_c", "hsp_source", "sources_disagree", "reagent"]
     emit(out.head(a.top) if a.top else out, a, cols, header=f"{int(np.sum(m))} liquids match")
     return 0
 
@@ -181,14 +191,21 @@ def cmd_demo(a) -> int:
               + _reagent_note(res))
     from .library import load_library
 
-    shown = _with_hazard_class(res, load_library())
-    emit(shown.head(a.top), a, RANK_COLUMNS, caution=True, header=header)
-    if a.format == "table":
-        better = shown[(shown["hazard_class"] == "recommended") & (shown["red"] < 1)].head(5)
-        if len(better):
-            print("\nInside the sphere with a better CHEM21 class than toluene (problematic): "
-                  + ", ".join(f"{n} (RED {r:.2f})" for n, r in zip(better["name"], better["red"]))
+    lib = load_library()
+    shown = _with_hazard_class(res, lib)
+    from .hazards import HAZARD_CLASSES, hazard
+
+    cur = sc.get("current_solvent", "toluene")
+    cur_cls = hazard(cur, lib).hazard_class
+    better = shown[(shown["red"] < 1) & shown["hazard_class"].isin(
+        HAZARD_CLASSES[:HAZARD_CLASSES.index(cur_cls)] if cur_cls in HAZARD_CLASSES else [])].head(5)
+    footer = ""
+    if len(better):
+        footer = (f"Inside the sphere with a better CHEM21 class than {cur} ({cur_cls}): "
+                  + ", ".join(f"{n} (RED {r:.2f}, {c})" for n, r, c in
+                              zip(better["name"], better["red"], better["hazard_class"]))
                   + ". A shortlist for test mixes, not an endorsement: read each safety data sheet.")
+    emit(shown.head(a.top), a, RANK_COLUMNS, caution=True, header=header + ("\n" + footer if footer else ""))
     return 0
 
 

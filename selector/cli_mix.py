@@ -91,7 +91,8 @@ def cmd_grid(a) -> int:
         if not flt and not a.all:
             raise ValueError("name the liquids (e.g. water,ethanol,hexane), or use --all or a filter "
                              "such as --only/--bp to pick them")
-        df = lib.loc[filter_mask(lib, temperature=a.at, **flt)]
+        # checking miscibility proposes nothing: reagents stay in the grid (selector.cautions)
+        df = lib.loc[filter_mask(lib, temperature=a.at, **dict(flt, include_reactive=True))]
     m = miscibility_matrix(df, temperature=a.at, library=lib, model=a.model)
     if a.long:
         import numpy as np

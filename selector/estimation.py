@@ -581,7 +581,7 @@ def training_features(df=None, mols=None, use_cache=True) -> np.ndarray:
             buf = io.BytesIO()
             np.save(buf, X, allow_pickle=False)
             write_atomic(path, buf.getvalue())
-        except OSError:
+        except (OSError, SelectorError):   # a cache that cannot be written is only slower
             pass
     return X
 

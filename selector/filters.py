@@ -18,7 +18,8 @@ Keyword arguments (all optional):
   ``"hazardous"``, ``"highly hazardous"``; see :mod:`selector.hazards`). Unclassified liquids
   (no hazard data) do not pass;
 * ``include_reactive``: also offer reagents that are not solvents - reactive, explosive or very
-  toxic at low exposure (:mod:`selector.cautions`). Default False: they are never candidates.
+  toxic at low exposure (:mod:`selector.cautions`). Default False: they are never candidates,
+  except the liquids named in ``include`` (named on purpose).
 
 At a temperature other than 25 C, liquids that are not liquid there (melting point above it or
 boiling point below it) are dropped too.
@@ -90,7 +91,7 @@ def masks_and_reagents(library: pd.DataFrame, **filters) -> tuple[np.ndarray, in
     but are left out as reagents (0 with ``include_reactive=True``)."""
     include_reactive = bool(filters.pop("include_reactive", False))
     loose = _mask(library, **filters)
-    if include_reactive:
+    if include_reactive or filters.get("include") is not None:   # liquids named on purpose pass
         return loose, 0
     from .cautions import reactive_reasons
 

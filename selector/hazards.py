@@ -113,14 +113,21 @@ def statement_flags(statements) -> str:
 
 def component_notes(components, library) -> list[str]:
     """For each tuple of liquid names, "name: flags; ..." for the components that carry any
-    :func:`statement_flags` (hazard statements of ``parameters/hazards.csv``), plus
-    "name: no hazard data" for unclassified ones."""
-    hz = hazard_columns(library)
-    names = library["name"].astype(str).to_numpy()
-    known = (hz["hazard_class"] != UNCLASSIFIED).to_numpy()
+    :func:`statement_flags` (hazard statements of ``parameters/hazards.csv``), a reagent reason
+    (:mod:`selector.cautions`), or "no hazard data" for unclassified ones. Worked out once per
+    distinct component name."""
+    from .cautions import reactive_reasons
+
+    wanted = sorted({c for comp in components for c in comp})
+    if not wanted:
+        return ["" for _ in components]
+    sub = library.loc[library["name"].astype(str).isin(wanted)].drop_duplicates("name")
+    hz = hazard_columns(sub)
+    why = reactive_reasons(sub)
     flags = {}
-    for n, st, k in zip(names, hz["h_statements"].to_numpy(), known):
-        flags[n] = statement_flags(parse_statements(st)) if k else "no hazard data"
+    for n, st_, cls, w in zip(sub["name"].astype(str), hz["h_statements"], hz["hazard_class"], why):
+        f = statement_flags(parse_statements(st_)) if cls != UNCLASSIFIED else "no hazard data"
+        flags[n] = ", ".join(x for x in (w and f"REAGENT: {w}", f) if x)
     return ["; ".join(f"{c}: {flags[c]}" for c in comp if flags.get(c)) for comp in components]
 
 
@@ -346,7 +353,10 @@ def hazard_columns(library: pd.DataFrame | None = None) -> pd.DataFrame:
         return _bundled_table().copy()
     if "origin" in library and (library["origin"] == "library").all() and len(library) == len(_bundled_table()):
         t = _bundled_table()
-        if (t.index == library.index).all():
+        from .library import _bundled
+
+        if (t.index == library.index).all() and (
+                _bundled()["cas"].to_numpy() == library["cas"].to_numpy()).all():
             return t.copy()
     return hazard_table(library)
 

@@ -768,6 +768,9 @@ def _record(row, name) -> dict:
     if rec["smiles"] and math.isnan(site_counts(rec["smiles"])[0]):
         raise SelectorError(f"{name}: {rec['smiles']!r} is not a valid SMILES string")
     rec["sources_disagree"] = str(get("sources_disagree", False)).lower() == "true"
+    from .cautions import row_reason
+
+    rec["reactive_reason"] = row_reason(row)
     return rec
 
 
@@ -1111,6 +1114,11 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
         where = "below" if lcst_c < t else "above"
         notes.append(f"model LCST {lcst_c:.0f} C ({where} {t:g} C): cross hydrogen bonds hold the pair "
                      "together when cold and let go on heating, so a gap opens above it")
+    for r in (ra_, rb_):
+        if r.get("reactive_reason"):
+            notes.insert(0, f"{r['name']} is a reagent, not a solvent ({r['reactive_reason']}): it may react "
+                         "with the other liquid instead of mixing, which this model cannot tell; read its "
+                         "safety data sheet before any contact")
     wa, wb = _is_water(ra_), _is_water(rb_)
     if (wa or wb) and ucst_c is not None:
         notes.append("with water the model UCST is only a rough hint (water-1-butanol: model about "

@@ -842,11 +842,17 @@ class SphereFit:
             filters = dict(filters)
             filters["include"] = list(shelf) if not isinstance(shelf, str) else [shelf]
         mask = filter_mask(lib, temperature=t, **filters)
+        if not filters.get("include_reactive"):   # a shelf is a stock list: its reagents stay out
+            from .cautions import reactive_reasons
+
+            mask &= reactive_reasons(lib) == ""
         tested = self.tests["liquid_index"].to_numpy(int)
         tested = tested[tested >= 0]
         mask[tested] = False
         if not mask.any():
-            raise SelectorError("no untested liquid passes the filters / shelf list")
+            why = _shelf_notes(lib, filters["include"], tested, mask, t, filters) if shelf is not None else []
+            raise SelectorError("no untested liquid passes the filters / shelf list"
+                                + (": " + "; ".join(why) if why else ""))
         cand = lib.loc[mask]
         from .ranking import corrected_hsp
 
@@ -901,7 +907,7 @@ def _shelf_notes(lib, shelf, tested, mask, t, filters) -> list[str]:
     already = [names[i] for i in idx if int(i) in done]
     if already:
         out.append("already tested, so not suggested: " + ", ".join(already))
-    reag = [f"{names[i]} ({reasons[i]})" for i in idx if int(i) not in done and reasons[i] and not mask[i]]
+    reag = [f"{names[i]} ({reasons[i]})" for i in idx if int(i) not in done and reasons[i] and loose[i]]
     if reag and not filters.get("include_reactive"):
         out.append("reagents left out (--include-reactive to allow): " + ", ".join(reag))
     other = [names[i] for i in idx if int(i) not in done and not loose[i]]

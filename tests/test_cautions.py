@@ -20,6 +20,10 @@ def _reason(name):
     ("nitroglycerin", "nitrate"), ("hydrazine", "inorganic"), ("bis(chloromethyl) ether", "halo ether"),
     ("2-methylaziridine", "aziridine"), ("epichlorohydrin", "epoxide"), ("thionyl chloride", "inorganic"),
     ("dimethyl sulfate", "sulfate"), ("3-bromopropyne", "propargyl"), ("1,2-ethanedithiol", "thiol"),
+    ("hydrogen cyanide", "hydrogen cyanide"), ("acrolein", "unsaturated aldehyde"),
+    ("allyl chloride", "allylic"), ("benzyl chloride", "benzylic"),
+    # hazards.csv lists H310 H330 (fatal) for 1,1,2,2-tetrachloroethane (from memory there)
+    ("1,1,2,2-tetrachloroethane", "fatal on exposure"),
 ])
 def test_reagents_are_flagged(name, kind):
     assert kind in _reason(name)
@@ -33,7 +37,8 @@ def test_very_low_exposure_limit_is_flagged():
 
 @pytest.mark.parametrize("name", ["toluene", "acetone", "ethanol", "ethyl acetate", "NMP", "DMSO", "water",
                                   "hexane", "dibutyl phthalate", "nitromethane", "butyl acrylate",
-                                  "propylene carbonate", "dichloromethane"])
+                                  "propylene carbonate", "dichloromethane", "cinnamaldehyde", "benzaldehyde",
+                                  "chlorobenzene", "pyridine"])
 def test_ordinary_solvents_are_not_flagged(name):
     # Common practice: all of these are used as solvents (dibutyl phthalate has a low ppm limit
     # but hardly any vapour, so the exposure rule does not apply).
@@ -52,8 +57,11 @@ def test_reagents_never_candidates_unless_asked():
     assert len(some) == len(every) - flagged.sum()
     keep = every[~every["name"].isin(LIB.loc[flagged, "name"])]["name"].tolist()
     assert some["name"].tolist() == keep
-    # a reagent can still be a target and be looked up
-    assert selector.rank("acetyl chloride").iloc[0]["name"] != "acetyl chloride"
+    # a reagent can still be a target, and a liquid named in include is not screened
+    r = selector.rank("acetyl chloride", top=3)
+    assert r.attrs["target"].name == "acetyl chloride" and len(r) == 3
+    named = selector.rank(target, include=["acetyl chloride", "ethanol"])
+    assert set(named["name"]) == {"acetyl chloride", "ethanol"}
 
 
 def test_single_smiles_helper_matches_the_table():
@@ -95,3 +103,44 @@ def test_cli_include_reactive(capsys):
     assert n_default == 20
     assert main(["rank", "21.3,5.8,4.3,12.7"]) == 0
     assert f"{int((reactive_reasons(LIB) != '').sum())} reagents" in capsys.readouterr().out
+
+
+def test_user_rows_cache_follows_row_order_and_missing_columns():
+    # The structural screen of user rows is cached by their SMILES in order: reordering the
+    # rows must reorder the reasons (a stale key once hid the reagent).
+    import pandas as pd
+
+    a = pd.DataFrame({"smiles": ["CC(=O)Cl", "CCO"], "origin": ["user", "user"]})
+    b = pd.DataFrame({"smiles": ["CCO", "CC(=O)Cl"], "origin": ["user", "user"]})
+    ra, rb = reactive_reasons(a), reactive_reasons(b)
+    assert ra[0].startswith("acyl halide") and ra[1] == ""
+    assert rb[0] == "" and rb[1].startswith("acyl halide")
+    # a table without cas / flash columns: no crash, nothing non-flammable
+    bare = LIB[["name", "smiles", "delta_d", "delta_p", "delta_h", "molar_volume", "boiling_point_c",
+                "flash_point_c"]].copy()
+    assert not not_flammable(bare).any()
+    assert len(selector.rank((18.0, 5.0, 5.0), library=bare, min_flash_point_c=20, top=5)) == 5
+
+
+def test_browsing_and_mixing_keep_reagents(capsys):
+    from selector.cli import main
+    from selector.mixing import miscibility
+
+    assert main(["list", "--search", "acetyl chloride"]) == 0
+    out = capsys.readouterr().out
+    assert "acetyl chloride" in out and "acyl halide" in out
+    m = miscibility("water", "acetyl chloride")
+    assert "reagent, not a solvent" in m.notes[0]
+    assert not any("reagent" in n for n in miscibility("water", "ethanol").notes)
+    assert main(["mix-grid", "--only", "acetyl chloride,water,ethanol", "--format", "json"]) == 0
+    assert "acetyl chloride" in capsys.readouterr().out
+
+
+def test_cli_targets_with_locants_are_names(capsys):
+    # Names such as 1,4-dioxane contain commas and digits; they are liquids, not numbers.
+    from selector.cli import main
+
+    assert main(["rank", "1,4-dioxane", "--top", "2"]) == 0
+    assert "Target 1,4-dioxane" in capsys.readouterr().out
+    assert main(["rank", "18,3"]) == 2
+    assert "got 2 numbers" in capsys.readouterr().err

@@ -214,3 +214,14 @@ def test_blend_and_substitute_rows_carry_component_hazard_notes():
     assert list(b["hazard_notes"]) == component_notes(b["components"], lib)
     s = selector.substitutes("toluene", top=4, max_components=1)
     assert s["hazard_notes"].iloc[0].startswith("toluene: ")
+
+
+def test_hazard_columns_follow_a_reordered_library():
+    # The cached table of the bundled library must not be reused for the same liquids in
+    # another order (water is recommended; a stale cache once gave it another row's class).
+    lib = selector.load_library()
+    rev = lib.sort_values("name", ascending=False).reset_index(drop=True)
+    hz = hazard_columns(rev)
+    assert hz.loc[(rev["name"] == "water").to_numpy(), "hazard_class"].iloc[0] == "recommended"
+    assert (hz["hazard_class"].to_numpy() ==
+            hazard_columns(lib).set_index(lib["name"]).loc[rev["name"], "hazard_class"].to_numpy()).all()
