@@ -129,6 +129,10 @@ def check_file_args(a) -> None:
                           option="--overwrite" if has_flag else None)
     mine_out = args.get("save_mine")
     if mine_out:
+        if out and (_same_file(mine_out, out) if os.path.exists(out) and os.path.exists(mine_out)
+                    else os.path.abspath(mine_out) == os.path.abspath(out)):
+            raise SelectorError(f"--save-mine and -o name the same file ({out}): the table of estimates and "
+                                "your liquids file must be two files")
         check_output_path(mine_out, overwrite=True, make_parents=False)
 
 

@@ -39,10 +39,11 @@ def register(sub) -> None:
 def cmd_guess(a) -> int:
     from pathlib import Path
 
-    from .cli_common import emit
+    from .cli_common import check_file_args, emit
     from .errors import SelectorError
     from .estimation import _looks_like_path, estimate
 
+    check_file_args(a)   # refuse a bad -o / --save-mine before the model trains
     batch = _looks_like_path(a.smiles)
     names = [a.name] if (a.name and not batch) else None
     res = estimate(a.smiles, names=names, progress=batch)

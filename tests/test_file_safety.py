@@ -392,3 +392,18 @@ def test_excel_price_list(tmp_path, capsys):
     from selector.cli_blend import _prices
 
     assert _prices(str(p)) == {"toluene": 3.5, "ethanol": 2.25}
+
+
+def test_guess_refuses_same_file_for_output_and_save_mine_before_training(tmp_path, capsys):
+    # -o and --save-mine naming one (not yet existing) file used to write the estimates and then
+    # read them back as "my liquids"; both are refused up front now, before any model training.
+    import time
+
+    from selector.cli import main
+
+    f = tmp_path / "both.csv"
+    t = time.perf_counter()
+    assert main(["guess", "CCO", "-o", str(f), "--save-mine", str(f)]) == 2
+    assert time.perf_counter() - t < 5.0          # refused before the estimator trains (~10 s)
+    assert "same file" in capsys.readouterr().err
+    assert not f.exists()
