@@ -61,10 +61,15 @@ RANGES = {
 _CAS_RE = re.compile(r"^\d{2,7}-\d{2}-\d$")
 
 
+def default_user_data_dir() -> Path:
+    """The user data folder when ``LIKEWISE_HOME`` is not set: ``~/.local/share/likewise``."""
+    return Path.home() / ".local" / "share" / "likewise"
+
+
 def user_data_dir() -> Path:
     """Folder for the user's own liquids: ``$LIKEWISE_HOME`` or ``~/.local/share/likewise``."""
-    env = os.environ.get("LIKEWISE_HOME")
-    return Path(env) if env else Path.home() / ".local" / "share" / "likewise"
+    env = os.environ.get("LIKEWISE_HOME", "").strip()
+    return Path(env).expanduser() if env else default_user_data_dir()
 
 
 def user_liquids_file() -> Path:
@@ -285,6 +290,13 @@ def _as_frame(table) -> pd.DataFrame:
     raise SelectorError("a table must be a CSV path or a pandas DataFrame")
 
 
+def _text(col: pd.Series) -> pd.Series:
+    """A text column with blanks (NaN, None, whitespace) as "" and surrounding spaces removed.
+
+    ``fillna`` comes first: with pandas 3 ``astype(str)`` keeps NaN as a missing value."""
+    return col.astype(object).where(col.notna(), "").astype(str).str.strip()
+
+
 def validate_user_table(table, library: pd.DataFrame | None = None) -> pd.DataFrame:
     """Check a table of the user's own liquids and return it cleaned.
 
@@ -307,11 +319,13 @@ def validate_user_table(table, library: pd.DataFrame | None = None) -> pd.DataFr
                                                "delta_h are accepted too)"])
     if len(df) == 0:
         raise InputTableError("user liquids", ["the table has no rows"])
-    df["name"] = df["name"].astype(str).str.strip()
+    # fillna before astype(str): pandas 3 keeps NaN through astype(str) (a blank cell stays a float)
+    df["name"] = _text(df["name"])
     for i, n in enumerate(df["name"]):
-        if not n or n.lower() == "nan":
-            problems.append(f"row {i + 2}: empty name")
-    dups = df["name"].str.lower()[df["name"].str.lower().duplicated()]
+        if not n:
+            problems.append(f"row {i + 2}: name is empty")
+    low = df["name"].str.lower()
+    dups = low[low.duplicated() & (low != "")]
     for n in sorted(set(dups)):
         problems.append(f"name {n!r} appears more than once")
     for col, (lo, hi) in RANGES.items():
@@ -334,12 +348,12 @@ def validate_user_table(table, library: pd.DataFrame | None = None) -> pd.DataFr
                                 f"{lo:g}..{hi:g} {unit}")
         df[col] = vals
     if "kind" in df.columns:
-        df["kind"] = df["kind"].fillna("liquid").astype(str).str.strip().str.lower().replace("", "liquid")
+        df["kind"] = _text(df["kind"]).str.lower().replace("", "liquid")
         for i, k in enumerate(df["kind"]):
             if k not in ("liquid", "solute"):
                 problems.append(f"row {i + 2} ({df['name'].iloc[i]}): kind {k!r} must be 'liquid' or 'solute'")
     if "cas" in df.columns:
-        df["cas"] = df["cas"].fillna("").astype(str).str.strip()
+        df["cas"] = _text(df["cas"])
         for i, c in enumerate(df["cas"]):
             if c and not _CAS_RE.match(c):
                 problems.append(f"row {i + 2} ({df['name'].iloc[i]}): {c!r} is not a CAS number")
@@ -352,43 +366,94 @@ def validate_user_table(table, library: pd.DataFrame | None = None) -> pd.DataFr
 _NOT_FILLED = {"name", "delta_d", "delta_p", "delta_h", "hsp_source", "hsp_sources_available", "hsp_spread",
                "sources_disagree", "origin", "radius", "kind"}
 
+#: Columns that describe another column's value (its source, method, unit, or values derived from
+#: it): they are taken from the library only together with that value, never on their own, so a
+#: user's boiling point is not labelled with the library's source and a user's molar volume does
+#: not sit beside the library's density. ``antoine_*`` go with the vapour pressure because
+#: :func:`vapour_pressure_kpa` prefers the Antoine fit over the 25 C value.
+COMPANIONS = {
+    "boiling_point_c": ("boiling_point_source",),
+    "melting_point_c": ("melting_point_source",),
+    "molar_volume": ("volume_method", "molar_volume_estimated", "density"),
+    "vapour_pressure_kpa": ("vapour_pressure_method", "antoine_a", "antoine_b", "antoine_c",
+                           "antoine_tmin_c", "antoine_tmax_c"),
+    "viscosity_mpa_s": ("viscosity_method", "viscosity_estimated"),
+    "flash_point_c": ("flash_point_source",),
+    "exposure_limit": ("exposure_limit_unit", "exposure_limit_source"),
+}
+_COMPANION_OF = {c: main for main, cs in COMPANIONS.items() for c in cs}
+
+
+def _blank(values: pd.Series) -> np.ndarray:
+    """True where a cell is missing or only whitespace."""
+    return (values.isna() | (values.astype(object).where(values.notna(), "").astype(str).str.strip() == "")).to_numpy()
+
+
+def _library_matches(library: pd.DataFrame, user: pd.DataFrame) -> np.ndarray:
+    """Position in ``library`` of the liquid each user row replaces (-1: none).
+
+    A row replaces the library liquid with its name (any case) or, failing that, its CAS. A row
+    whose name and CAS are those of two different library liquids is refused: it would drop both
+    and mix their properties (one's boiling point, the other's CAS and hence hazard data)."""
+    lib_name = pd.Series(np.arange(len(library)), index=_text(library["name"]).str.lower().to_numpy())
+    lib_name = lib_name[~lib_name.index.duplicated()]
+    lib_cas = pd.Series(np.arange(len(library)), index=_text(library["cas"]).to_numpy())
+    lib_cas = lib_cas[~lib_cas.index.duplicated() & (lib_cas.index != "")]
+    by_name = user["name"].str.lower().map(lib_name)
+    by_cas = user["cas"].map(lib_cas) if "cas" in user.columns else pd.Series(np.nan, index=user.index)
+    clash = (by_name.notna() & by_cas.notna() & (by_name != by_cas)).to_numpy()
+    if clash.any():
+        problems = []
+        for i in np.flatnonzero(clash):
+            a = library.iloc[int(by_name.iloc[i])]
+            b = library.iloc[int(by_cas.iloc[i])]
+            problems.append(f"row {i + 2} ({user['name'].iloc[i]}): the name is library liquid {a['name']!r} "
+                            f"(CAS {a['cas']}) but CAS {user['cas'].iloc[i]} is library liquid {b['name']!r}; "
+                            "a row can replace only one library liquid - correct the CAS, leave it empty, "
+                            "or give the row a name of its own")
+        raise InputTableError("user liquids", problems)
+    return by_name.fillna(by_cas).fillna(-1).astype(int).to_numpy()
+
 
 def merge_user_liquids(library: pd.DataFrame, table) -> pd.DataFrame:
     """Library with the user's validated entries merged over it (same name or CAS: replaced).
 
     A user entry that replaces a library liquid keeps the library's values for every property
     it leaves empty (CAS, SMILES, boiling and flash point, vapour pressure, hazard data, ...);
-    only its own HSP (and whatever else it gives) replace the library's. The columns taken over
-    are listed in its ``filled_from_library`` column."""
-    user = validate_user_table(table)
-    user = user.copy()
-    lib_name = pd.Series(np.arange(len(library)), index=library["name"].astype(str).str.lower())
-    lib_name = lib_name[~lib_name.index.duplicated()]
-    lib_cas = pd.Series(np.arange(len(library)), index=library["cas"].astype(str))
-    lib_cas = lib_cas[~lib_cas.index.duplicated() & (lib_cas.index != "")]
-    pos = user["name"].astype(str).str.lower().map(lib_name)
-    if "cas" in user.columns:
-        pos = pos.fillna(user["cas"].astype(str).map(lib_cas))
-    matched = pos.notna().to_numpy()
+    only its own HSP (and whatever else it gives) replace the library's. A source, method or
+    unit column (:data:`COMPANIONS`) is taken only when the value it describes is taken, so a
+    user's own boiling point keeps an empty ``boiling_point_source``. The columns taken over are
+    listed in its ``filled_from_library`` column. A row whose name and CAS belong to two
+    different library liquids raises :class:`~selector.errors.InputTableError`."""
+    user = validate_user_table(table).copy()
+    for c in _TEXT_COLUMNS:
+        if c in user.columns:
+            user[c] = _text(user[c])
+    pos = _library_matches(library, user)
+    matched = pos >= 0
     filled = [[] for _ in range(len(user))]
     if matched.any():
-        src = library.iloc[pos[matched].astype(int).to_numpy()].reset_index(drop=True)
+        src = library.iloc[pos[matched]].reset_index(drop=True)
         rows = np.flatnonzero(matched)
-        for c in library.columns:
-            if c in _NOT_FILLED:
-                continue
+        took: dict[str, np.ndarray] = {}
+        # main values first, so each companion knows whether its value came from the library
+        cols = [c for c in library.columns if c not in _NOT_FILLED]
+        cols.sort(key=lambda c: c in _COMPANION_OF)
+        for c in cols:
             if c not in user.columns:
-                user[c] = np.nan if c not in _TEXT_COLUMNS else ""
-            cur = user[c].iloc[rows]
-            empty = (cur.isna() | (cur.astype(str).str.strip() == "")).to_numpy()
-            take = empty & ~(src[c].isna() | (src[c].astype(str).str.strip() == "")).to_numpy()
+                user[c] = "" if c in _TEXT_COLUMNS else np.nan
+            take = _blank(user[c].iloc[rows]) & ~_blank(src[c])
+            if c in _COMPANION_OF:
+                take &= took.get(_COMPANION_OF[c], np.zeros(len(rows), dtype=bool))
+            took[c] = take
             if take.any():
                 new = user[c].to_numpy(object).copy()
                 new[rows[take]] = src[c].to_numpy(object)[take]
                 user[c] = pd.Series(new, index=user.index).infer_objects()
                 for i in rows[take]:
                     filled[i].append(c)
-    user["filled_from_library"] = [", ".join(f) for f in filled]
+    order = {c: k for k, c in enumerate(library.columns)}
+    user["filled_from_library"] = [", ".join(sorted(f, key=order.get)) for f in filled]
     user["origin"] = "user"
     for c in library.columns:
         if c not in user.columns:
@@ -396,27 +461,73 @@ def merge_user_liquids(library: pd.DataFrame, table) -> pd.DataFrame:
     user["sources_disagree"] = False
     for c in ESTIMATE_FLAGS:
         if c in user.columns:
-            user[c] = user[c].astype(str).str.lower() == "true"
-    user["hsp_source"] = np.where(user.get("hsp_source", "").astype(str) != "",
-                                  user.get("hsp_source", ""), "user")
-    lk = library["name"].str.lower()
-    drop = lk.isin(user["name"].str.lower())
-    ucas = set(c for c in user["cas"].astype(str) if c)
-    drop |= library["cas"].isin(ucas)
+            user[c] = user[c].astype(object).where(user[c].notna(), "").astype(str).str.lower() == "true"
+    hs = user["hsp_source"] if "hsp_source" in user.columns else pd.Series("", index=user.index)
+    user["hsp_source"] = np.where(hs != "", hs, "user")
+    drop = _text(library["name"]).str.lower().isin(user["name"].str.lower())
+    ucas = set(c for c in user["cas"] if c)
+    drop |= _text(library["cas"]).isin(ucas)
     extra = [c for c in user.columns if c not in library.columns]
     out = pd.concat([library.loc[~drop], user[list(library.columns) + extra]], ignore_index=True)
     return out
 
 
-def save_user_liquids(table, path=None) -> Path:
+def file_fingerprint(path) -> str | None:
+    """SHA-256 of a file's bytes (None if it does not exist), to tell whether it changed between
+    reading and writing it (see ``unchanged_since`` of :func:`save_user_liquids`)."""
+    import hashlib
+
+    p = Path(path)
+    try:
+        return hashlib.sha256(p.read_bytes()).hexdigest()
+    except FileNotFoundError:
+        return None
+    except OSError as e:
+        return f"unreadable ({e.strerror or type(e).__name__})"
+
+
+def backup_file(path) -> Path:
+    """Copy ``path`` to the first free ``<name>.bak``, ``<name>.2.bak``, ... beside it (written
+    atomically) and return the copy's path; an existing backup is never replaced."""
+    from .io import write_atomic
+
+    p = Path(path)
+    try:
+        data = p.read_bytes()
+    except OSError as e:
+        raise SelectorError(f"cannot back up {p}: {e.strerror or e}") from None
+    k = 1
+    while True:
+        bak = p.with_name(f"{p.name}.bak" if k == 1 else f"{p.name}.{k}.bak")
+        if not bak.exists():
+            return write_atomic(bak, data, make_parents=False)
+        k += 1
+
+
+def save_user_liquids(table, path=None, *, unchanged_since=...) -> Path:
     """Validate and write the user's liquids atomically to ``path`` (default
     :func:`user_liquids_file`). A table that fails validation is not written, so the previous
-    file is never lost."""
+    file is never lost.
+
+    Only the default user data folder (:func:`default_user_data_dir`) is created when missing;
+    any other missing folder (a mistyped ``LIKEWISE_HOME``, say) is refused. ``unchanged_since``:
+    the :func:`file_fingerprint` taken when the file was read (None: it did not exist); if the
+    file is different now (another program wrote to it meanwhile) nothing is written."""
     from .io import write_atomic
 
     df = validate_user_table(table)
-    p = Path(path) if path is not None else user_liquids_file()
-    return write_atomic(p, df.to_csv(index=False, lineterminator="\n"))
+    p = Path(path).expanduser() if path is not None else user_liquids_file()
+    if unchanged_since is not ... and file_fingerprint(p) != unchanged_since:
+        raise SelectorError(f"the file changed since you opened it; reload first, then make your changes "
+                            f"again ({p} was written by another program or window meanwhile; nothing was "
+                            "written)")
+    folder = p.parent
+    default = p.parent.absolute() == default_user_data_dir().absolute()
+    if not folder.is_dir() and not default:
+        env = os.environ.get("LIKEWISE_HOME", "").strip()
+        hint = " (set by LIKEWISE_HOME: check its spelling)" if env and folder == user_data_dir() else ""
+        raise SelectorError(f"folder {folder} does not exist{hint}; create it first (nothing was written)")
+    return write_atomic(p, df.to_csv(index=False, lineterminator="\n"), make_parents=default)
 
 
 # ---------------------------------------------------------------- properties

@@ -276,6 +276,7 @@ def test_user_table_missing_columns_and_malformed(tmp_path):
 
 
 def test_save_user_liquids_is_atomic_and_keeps_old_file_on_bad_input(tmp_path):
+    (tmp_path / "store").mkdir()
     p = tmp_path / "store" / "mine.csv"
     good = pd.DataFrame({"name": ["x (invented)"], "delta_d": [17.0], "delta_p": [3.0], "delta_h": [4.0]})
     selector.save_user_liquids(good, p)
@@ -339,3 +340,130 @@ def test_user_entry_replacing_a_library_liquid_keeps_its_properties():
     assert row["origin"] == "user"
     new = m.loc[m["name"] == "shop thinner (invented)"].iloc[0]
     assert new["filled_from_library"] == "" and np.isnan(new["flash_point_c"])
+
+
+# ---------------------------------------------------------------- blank cells, merge clashes, companions
+
+def test_blank_name_is_reported_with_the_other_problems(tmp_path):
+    # pandas 3 keeps NaN through astype(str); a blank name cell must be a problem, not a traceback
+    p = tmp_path / "blank.csv"
+    p.write_text("name,delta_d,delta_p,delta_h\n,16,5,6\n ,16,5,6\nok (invented),16,-3,6\n")
+    with pytest.raises(InputTableError) as e:
+        load_library(p)
+    assert e.value.problems == ["row 2: name is empty", "row 3: name is empty",
+                                "row 4 (ok (invented)): delta_p = -3 is outside 0..40 MPa^0.5"]
+    df = pd.DataFrame({"name": [None, float("nan")], "delta_d": [16.0, 16.0], "delta_p": [5.0, 5.0],
+                       "delta_h": [6.0, 6.0]})
+    with pytest.raises(InputTableError) as e:
+        selector.library.validate_user_table(df)
+    assert e.value.problems == ["row 2: name is empty", "row 3: name is empty"]   # blanks are no duplicates
+
+
+def test_blank_text_cells_in_a_dataframe_become_empty_text():
+    user = pd.DataFrame({"name": ["a (invented)", "b (invented)"], "kind": [np.nan, "Solute"],
+                         "cas": [np.nan, " "], "hsp_source": [np.nan, "my lab"], "smiles": [None, "CCO"],
+                         "delta_d": [16.0, 17.0], "delta_p": [5.0, 6.0], "delta_h": [6.0, 7.0],
+                         "radius": [np.nan, 8.0]})
+    v = selector.library.validate_user_table(user)
+    assert list(v["kind"]) == ["liquid", "solute"] and list(v["cas"]) == ["", ""]
+    m = selector.library.merge_user_liquids(load_library(), user)
+    rows = m.iloc[-2:]
+    assert list(rows["hsp_source"]) == ["user", "my lab"]
+    assert list(rows["smiles"]) == ["", "CCO"] and list(rows["cas"]) == ["", ""]
+
+
+def test_user_row_naming_one_library_liquid_and_giving_the_cas_of_another_is_refused(lib):
+    # 64-17-5 is ethanol's CAS (common practice); the name is toluene's
+    user = pd.DataFrame({"name": ["toluene", "shop thinner (invented)"], "cas": ["64-17-5", ""],
+                         "delta_d": [18.0, 17.0], "delta_p": [1.4, 5.0], "delta_h": [2.0, 6.0]})
+    with pytest.raises(InputTableError) as e:
+        selector.library.merge_user_liquids(lib, user)
+    assert len(e.value.problems) == 1
+    msg = e.value.problems[0]
+    assert msg.startswith("row 2 (toluene):")
+    assert "'toluene' (CAS 108-88-3)" in msg and "64-17-5 is library liquid 'ethanol'" in msg
+    # name and CAS of the same liquid, or a CAS alone, replace exactly that one liquid
+    ok = user.assign(cas=["108-88-3", "64-17-5"])
+    m = selector.library.merge_user_liquids(lib, ok)
+    assert len(m) == len(lib)
+    assert not (m["origin"].eq("library") & m["cas"].isin(["108-88-3", "64-17-5"])).any()
+    eth = m.loc[m["name"] == "shop thinner (invented)"].iloc[0]
+    ref = lib.loc[lib["cas"] == "64-17-5"].iloc[0]
+    assert eth["boiling_point_c"] == ref["boiling_point_c"] and eth["smiles"] == ref["smiles"]
+
+
+def test_companion_columns_follow_their_value(lib):
+    ref = lib.loc[lib["cas"] == "108-88-3"].iloc[0]
+    # Toluene at 20 C, from memory: viscosity 0.59 mPa s, vapour pressure 2.9 kPa, density 0.867
+    # g/cm3 (V = 92.14 / 0.867 = 106.3 cm3/mol); its own boiling point 110.6 C and flash point 4 C
+    # (from memory); exposure limit 20 ppm (ACGIH TLV, from memory).
+    given = {"boiling_point_c": 110.6, "molar_volume": 106.3, "vapour_pressure_kpa": 2.9,
+             "viscosity_mpa_s": 0.59, "flash_point_c": 4.0, "exposure_limit": 20.0, "melting_point_c": -95.0}
+    user = pd.DataFrame({"name": ["Toluene"], "delta_d": [18.0], "delta_p": [1.4], "delta_h": [2.0],
+                         **{k: [v] for k, v in given.items()}})
+    m = selector.library.merge_user_liquids(lib, user)
+    row = m.loc[m["name"] == "Toluene"].iloc[0]
+    filled = row["filled_from_library"].split(", ")
+    for c, v in given.items():
+        assert row[c] == v and c not in filled
+    for c in ("boiling_point_source", "melting_point_source", "volume_method", "vapour_pressure_method",
+              "viscosity_method", "flash_point_source", "exposure_limit_unit", "exposure_limit_source"):
+        assert row[c] == "" and c not in filled, c
+    for c in ("density", "antoine_a", "antoine_b", "antoine_c", "antoine_tmin_c", "antoine_tmax_c"):
+        assert np.isnan(row[c]) and c not in filled, c
+    assert not row["molar_volume_estimated"] and not row["viscosity_estimated"]
+    # the vapour pressure at 25 C is the user's, not the library's Antoine fit
+    assert selector.library.vapour_pressure_kpa(m.loc[m["name"] == "Toluene"], 25.0)[0] == 2.9
+    # independent properties still come from the library
+    assert row["cas"] == "108-88-3" and row["autoignition_c"] == ref["autoignition_c"]
+    assert {"cas", "smiles", "autoignition_c", "hvap_kj_mol"} <= set(filled)
+
+    # a row that gives none of them takes each value with its companions, and lists them all
+    bare = selector.library.merge_user_liquids(lib, user[["name", "delta_d", "delta_p", "delta_h"]])
+    row = bare.loc[bare["name"] == "Toluene"].iloc[0]
+    filled = set(row["filled_from_library"].split(", "))
+    for main, comps in selector.library.COMPANIONS.items():
+        for c in (main, *comps):
+            if pd.notna(ref[c]) and str(ref[c]) != "":
+                assert row[c] == ref[c] and c in filled, c
+    assert row["boiling_point_source"] == ref["boiling_point_source"] != ""
+
+
+def test_save_user_liquids_creates_only_the_default_folder(tmp_path, monkeypatch):
+    good = pd.DataFrame({"name": ["x (invented)"], "delta_d": [17.0], "delta_p": [3.0], "delta_h": [4.0]})
+    monkeypatch.setenv("HOME", str(tmp_path / "home"))
+    monkeypatch.setenv("LIKEWISE_HOME", str(tmp_path / "typo"))
+    with pytest.raises(SelectorError, match=r"typo does not exist \(set by LIKEWISE_HOME"):
+        selector.save_user_liquids(good)
+    with pytest.raises(SelectorError, match="does not exist"):
+        selector.save_user_liquids(good, tmp_path / "nowhere" / "mine.csv")
+    assert not (tmp_path / "typo").exists() and not (tmp_path / "nowhere").exists()
+    monkeypatch.delenv("LIKEWISE_HOME")
+    p = selector.save_user_liquids(good)
+    assert p == tmp_path / "home" / ".local" / "share" / "likewise" / "my_liquids.csv"
+    assert list(pd.read_csv(p)["name"]) == ["x (invented)"]
+
+
+def test_save_user_liquids_refuses_a_file_changed_since_it_was_read(tmp_path):
+    from selector.library import backup_file, file_fingerprint
+
+    p = tmp_path / "mine.csv"
+    assert file_fingerprint(p) is None
+    good = pd.DataFrame({"name": ["x (invented)"], "delta_d": [17.0], "delta_p": [3.0], "delta_h": [4.0]})
+    with pytest.raises(SelectorError, match="changed since you opened it"):
+        selector.save_user_liquids(good, p, unchanged_since="0" * 64)
+    assert not p.exists()
+    selector.save_user_liquids(good, p, unchanged_since=None)   # no file when it was "opened"
+    stamp = file_fingerprint(p)
+    with p.open("a") as fh:
+        fh.write("added meanwhile (invented),16.0,4.0,4.0\n")
+    after = p.read_bytes()
+    with pytest.raises(SelectorError, match="the file changed since you opened it; reload first"):
+        selector.save_user_liquids(good, p, unchanged_since=stamp)
+    assert p.read_bytes() == after
+    selector.save_user_liquids(good, p, unchanged_since=file_fingerprint(p))
+    assert list(pd.read_csv(p)["name"]) == ["x (invented)"]
+    # backups never replace an older backup
+    b1, b2 = backup_file(p), backup_file(p)
+    assert (b1.name, b2.name) == ("mine.csv.bak", "mine.csv.2.bak")
+    assert b1.read_bytes() == b2.read_bytes() == p.read_bytes()

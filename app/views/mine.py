@@ -4,7 +4,8 @@ import streamlit as st
 
 from lwui import common
 from selector.io import to_csv_text
-from selector.library import save_user_liquids, user_liquids_file, validate_user_table
+from selector.library import (backup_file, file_fingerprint, save_user_liquids, user_liquids_file,
+                              validate_user_table)
 
 st.title("My liquids")
 path = user_liquids_file()
@@ -18,26 +19,41 @@ COLUMNS = ["name", "kind", "cas", "smiles", "delta_d", "delta_p", "delta_h", "mo
            "flash_point_c", "radius", "note"]
 TEXT = ("name", "kind", "cas", "smiles", "note")
 KEY = "mine_table"
+STAMP = "mine_stamp"        # fingerprint of the file when it was read (None: there was no file)
+UNREADABLE = "mine_unreadable"  # the file could not be read or validated: back it up before saving
 
 
-def _saved() -> pd.DataFrame:
-    if path.exists():
-        try:
-            return validate_user_table(path)
-        except (ValueError, KeyError) as e:
-            common.show_error(f"The saved file could not be read (it is left untouched): {e}")
-            from selector.io import read_user_csv
-
-            try:
-                return read_user_csv(path, dtype=str, keep_default_na=False)
-            except ValueError:
-                return pd.DataFrame({c: pd.Series(dtype=object) for c in COLUMNS})
-    return pd.DataFrame({c: pd.Series(dtype=object if c in TEXT else float)
-                         for c in COLUMNS})
+def _empty() -> pd.DataFrame:
+    return pd.DataFrame({c: pd.Series(dtype=object if c in TEXT else float) for c in COLUMNS})
 
 
-if KEY not in st.session_state:
-    st.session_state[KEY] = _saved()
+def _load() -> None:
+    """Read the saved file into the session, with its fingerprint (to notice later writes by
+    another program, e.g. ``likewise guess --save-mine``) and whether it could be read."""
+    st.session_state[STAMP] = file_fingerprint(path)
+    st.session_state[UNREADABLE] = False
+    if not path.exists():
+        st.session_state[KEY] = _empty()
+        return
+    try:
+        st.session_state[KEY] = validate_user_table(path)
+        return
+    except (ValueError, KeyError) as e:
+        st.session_state[UNREADABLE] = True
+        common.show_error(f"The saved file could not be read (it is left untouched): {e}")
+    from selector.io import read_user_csv
+
+    try:
+        st.session_state[KEY] = read_user_csv(path, dtype=str, keep_default_na=False)
+    except (ValueError, KeyError, OSError):
+        st.session_state[KEY] = _empty()
+
+
+if KEY not in st.session_state or STAMP not in st.session_state:
+    _load()
+if st.session_state.get(UNREADABLE):
+    st.warning(f"`{path}` could not be read when this page loaded it; the table shows what could be "
+               "recovered (perhaps nothing). Saving first copies the old file to a `.bak` file beside it.")
 if st.session_state.get("mine_msg"):
     st.success(st.session_state.pop("mine_msg"))
 st.caption("Add a row with the + at the bottom of the table; select rows and press the bin to delete. "
@@ -64,20 +80,30 @@ c1, c2, c3 = st.columns(3)
 if c1.button("Save my liquids", type="primary", key="mine_save"):
     if len(rows) == 0:
         st.error("Nothing to save: the table is empty (the saved file is left as it was).")
+    elif file_fingerprint(path) != st.session_state[STAMP]:
+        st.error(f"Not saved: the file changed since you opened it; reload first (*Discard edits and "
+                 f"reload*). Another program, such as `likewise guess --save-mine`, or another window wrote "
+                 f"to {path} meanwhile; use *Export (CSV)* first to keep a copy of your edits.")
     else:
+        bak = None
         try:
-            save_user_liquids(rows, path)
+            if st.session_state[UNREADABLE] and path.exists():
+                validate_user_table(rows)  # no backup for a table that would not be saved anyway
+                bak = backup_file(path)
+            save_user_liquids(rows, path, unchanged_since=st.session_state[STAMP])
         except (ValueError, KeyError) as e:
-            common.show_error(f"Not saved - the file on disk is unchanged. {e}")
+            kept = f" (the old file was copied to {bak})" if bak else ""
+            common.show_error(f"Not saved - the file on disk is unchanged{kept}. {e}")
         else:
-            st.session_state[KEY] = validate_user_table(path)
+            _load()
             st.session_state.pop("mine_editor", None)
-            st.session_state["mine_msg"] = f"Saved {len(rows)} liquid(s) to {path}."
+            st.session_state["mine_msg"] = (f"Saved {len(rows)} liquid(s) to {path}."
+                                            + (f" The old, unreadable file was kept as {bak}." if bak else ""))
             st.rerun()
 c2.download_button("Export (CSV)", to_csv_text(rows), file_name="my_liquids.csv", mime="text/csv",
                    key="mine_export", on_click="ignore")
-if c3.button("Discard edits", key="mine_reload"):
-    st.session_state[KEY] = _saved()
+if c3.button("Discard edits and reload", key="mine_reload"):
+    _load()
     st.session_state.pop("mine_editor", None)
     st.rerun()
 
@@ -91,7 +117,7 @@ if up is not None:
     else:
         st.dataframe(new, hide_index=True, width="stretch")
         if st.button(f"Add these {len(new)} liquid(s) to the table", key="mine_add"):
-            keep = rows.loc[~rows["name"].astype(str).str.lower().isin(new["name"].str.lower())]
+            keep = rows.loc[~rows["name"].fillna("").astype(str).str.lower().isin(new["name"].str.lower())]
             st.session_state[KEY] = pd.concat([keep, new], ignore_index=True)
             st.session_state.pop("mine_editor", None)
             st.info("Added to the table - press *Save my liquids* to keep them.")
@@ -101,9 +127,10 @@ solutes = rows.loc[common.user_solute_mask(rows) & (pd.to_numeric(rows["radius"]
     if "radius" in rows else rows.iloc[:0]
 if len(solutes):
     st.subheader("Use a solute of yours as the target")
-    pick = st.selectbox("Solute (kind = solute, with R0)", list(solutes["name"].astype(str)), key="mine_sol")
+    names = solutes["name"].fillna("").astype(str)  # pandas 3: astype(str) alone keeps NaN
+    pick = st.selectbox("Solute (kind = solute, with R0)", list(names), key="mine_sol")
     if st.button("Use as target", key="mine_use"):
-        r = solutes.loc[solutes["name"].astype(str) == pick].iloc[0]
+        r = solutes.loc[names == pick].iloc[0]
         try:
             from selector.targets import Target
 

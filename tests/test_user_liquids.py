@@ -1,0 +1,120 @@
+"""The user's own liquids file: blank cells from the command line, and the app's "My liquids" page
+never losing rows written meanwhile by another program, an unreadable file, or a mistyped folder.
+
+All liquids here are invented (labelled so); nothing is checked against an outside value.
+"""
+from __future__ import annotations
+
+from pathlib import Path
+
+import pandas as pd
+import pytest
+
+from selector.cli import main
+
+ROOT = Path(__file__).resolve().parent.parent
+ENTRY = str(ROOT / "app" / "likewise_app.py")
+
+AppTest = pytest.importorskip("streamlit.testing.v1").AppTest
+
+IMPORT_CSV = (b"name,kind,delta_d,delta_p,delta_h,molar_volume,radius\n"
+              b"resin thinner X (invented),liquid,17.1,3.2,5.5,120,\n"
+              b"my resin (invented),solute,18.5,7.0,6.0,,7.0\n")
+
+
+def test_cli_blank_name_is_a_message_not_a_traceback(tmp_path, capsys):
+    p = tmp_path / "f.csv"
+    p.write_text("name,delta_d,delta_p,delta_h\n,16,5,6\n")
+    rc = main(["rank", "toluene", "--mine", str(p)])
+    err = capsys.readouterr().err
+    assert rc == 2
+    assert "user liquids: 1 problem(s)" in err and "row 2: name is empty" in err
+    assert "Traceback" not in err
+
+
+# ---------------------------------------------------------------- the My liquids page
+
+def open_page(home: Path, monkeypatch):
+    monkeypatch.setenv("LIKEWISE_HOME", str(home))
+    at = AppTest.from_file(ENTRY, default_timeout=60)
+    at.run()
+    at.switch_page("views/mine.py").run()
+    assert not at.exception, [e.value for e in at.exception]
+    return at
+
+
+def errors(at):
+    return [e.value for e in at.error]
+
+
+def import_rows(at, data=IMPORT_CSV):
+    at.file_uploader(key="mine_up").upload("mine.csv", data, "text/csv").run()
+    assert not errors(at)
+    at.button(key="mine_add").click().run()
+    assert not at.exception
+
+
+def test_save_refuses_a_file_changed_since_it_was_opened(tmp_path, monkeypatch):
+    f = tmp_path / "my_liquids.csv"
+    f.write_text("name,delta_d,delta_p,delta_h\nkeep me (invented),16.0,4.0,4.0\n", encoding="utf-8")
+    at = open_page(tmp_path, monkeypatch)
+    # another program (as `likewise guess --save-mine` does) adds a row while the page is open
+    with f.open("a", encoding="utf-8") as fh:
+        fh.write("added meanwhile (invented),17.0,5.0,5.0\n")
+    written = f.read_bytes()
+    import_rows(at)
+    at.button(key="mine_save").click().run()
+    assert any("the file changed since you opened it; reload first" in e for e in errors(at))
+    assert f.read_bytes() == written
+    # after a reload the page has both rows and saving works again
+    at.button(key="mine_reload").click().run()
+    assert list(at.session_state["mine_table"]["name"]) == ["keep me (invented)", "added meanwhile (invented)"]
+    import_rows(at)
+    at.button(key="mine_save").click().run()
+    assert not errors(at)
+    assert list(pd.read_csv(f)["name"]) == ["keep me (invented)", "added meanwhile (invented)",
+                                            "resin thinner X (invented)", "my resin (invented)"]
+    assert any("Saved 4 liquid(s)" in s.value for s in at.success)
+    # the page's fingerprint follows its own save: a second save is not refused
+    at.button(key="mine_save").click().run()
+    assert not errors(at)
+
+
+def test_unreadable_file_is_kept_as_a_backup_before_it_is_replaced(tmp_path, monkeypatch):
+    f = tmp_path / "my_liquids.csv"
+    junk = b"\x00\xff\xfe binary junk \x00\n\x01,\x02\n\"unterminated"
+    f.write_bytes(junk)
+    at = open_page(tmp_path, monkeypatch)
+    assert any("could not be read" in e for e in errors(at))
+    assert any(".bak" in w.value for w in at.warning)
+    assert len(at.session_state["mine_table"]) == 0
+    import_rows(at)
+    at.button(key="mine_save").click().run()
+    assert not errors(at)
+    bak = tmp_path / "my_liquids.csv.bak"
+    assert bak.read_bytes() == junk
+    assert list(pd.read_csv(f)["name"]) == ["resin thinner X (invented)", "my resin (invented)"]
+    assert any(str(bak) in s.value for s in at.success)
+
+
+def test_invalid_file_saved_unchanged_is_refused_without_a_backup(tmp_path, monkeypatch):
+    # a readable file with a bad value (dP below 0) is shown as it is; saving it as it is fails
+    # validation, so the file stays and no backup is made
+    f = tmp_path / "my_liquids.csv"
+    f.write_text("name,delta_d,delta_p,delta_h\nbad row (invented),16,-3,4\n", encoding="utf-8")
+    before = f.read_bytes()
+    at = open_page(tmp_path, monkeypatch)
+    assert list(at.session_state["mine_table"]["name"]) == ["bad row (invented)"]
+    at.button(key="mine_save").click().run()
+    assert any("Not saved - the file on disk is unchanged" in e and "delta_p = -3" in e for e in errors(at))
+    assert f.read_bytes() == before
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["my_liquids.csv"]
+
+
+def test_mistyped_likewise_home_is_not_created(tmp_path, monkeypatch):
+    typo = tmp_path / "likewsie"
+    at = open_page(typo, monkeypatch)
+    import_rows(at)
+    at.button(key="mine_save").click().run()
+    assert any(f"{typo} does not exist (set by LIKEWISE_HOME" in e for e in errors(at))
+    assert not typo.exists()
