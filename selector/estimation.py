@@ -572,7 +572,10 @@ def training_features(df=None, mols=None, use_cache=True) -> np.ndarray:
         except (OSError, ValueError):
             pass
     X = featurize(mols)
-    if use_cache:
+    from .library import default_user_data_dir, user_data_dir
+
+    home = user_data_dir()
+    if use_cache and (home.exists() or home == default_user_data_dir()):   # never create a mistyped LIKEWISE_HOME
         try:
             import io
 
