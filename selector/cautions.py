@@ -41,6 +41,8 @@ import math
 import numpy as np
 import pandas as pd
 
+from .hazards import STATEMENT_FLAGS
+
 #: Reagent groups: (name, RDKit SMARTS, why). Common practice (see module docstring).
 REACTIVE_GROUPS = (
     ("isocyanate", "[NX2]=C=O", "sensitiser, reacts with water"),
@@ -70,7 +72,8 @@ REACTIVE_GROUPS = (
 
 #: GHS statements that make a liquid a reagent wherever ``parameters/hazards.csv`` lists them:
 #: fatal if swallowed, in contact with skin or inhaled (acute toxicity categories 1-2).
-FATAL_STATEMENTS = ("H300", "H310", "H330")
+FATAL_STATEMENTS = dict(STATEMENT_FLAGS)["fatal on exposure"]
+FATAL_REASON = f"fatal on exposure ({'/'.join(FATAL_STATEMENTS)})"
 
 #: Exposure limits (ppm, 8-h TWA) below this mark a volatile liquid as very toxic.
 EXPOSURE_LIMIT_PPM = 1.0
@@ -141,7 +144,7 @@ def reactive_reasons(library: pd.DataFrame) -> np.ndarray:
     if todo.any():
         out[todo] = _computed(library.loc[todo])
     fatal = _fatal(library) & (out == "")
-    out[fatal] = "fatal on exposure (H300/H310/H330)"
+    out[fatal] = FATAL_REASON
     return out
 
 
@@ -179,7 +182,7 @@ def row_reason(row) -> str:
         el = get("exposure_limit", math.nan) if unit == "ppm" else math.nan
         why = reactive_reason(get("smiles", "") or "", el, get("vapour_pressure_kpa", math.nan))
     if not why and cas and cas in _fatal_cas():
-        why = "fatal on exposure (H300/H310/H330)"
+        why = FATAL_REASON
     return why
 
 

@@ -97,15 +97,17 @@ def cmd_rank(a) -> int:
 
 
 def _with_hazard_class(res, lib):
-    """``res`` with the CHEM21 ``hazard_class`` of each liquid (looked up by CAS in ``lib``)."""
-    from .hazards import hazard_columns
+    """``res`` with the CHEM21 ``hazard_class`` of each liquid (looked up by CAS in ``lib``) and
+    its ``reagent`` reason (:func:`selector.cautions.reactive_reasons`)."""
+    import pandas as pd
 
-    hz = hazard_columns(lib)
-    cls = dict(zip(lib["cas"].astype(str), hz["hazard_class"]))
     from .cautions import reactive_reasons
+    from .hazards import UNCLASSIFIED, hazard_columns
 
+    cls = pd.Series(hazard_columns(lib)["hazard_class"].to_numpy(), index=lib["cas"].astype(str))
+    cls = cls[~cls.index.duplicated()]
     out = res.copy()
-    out["hazard_class"] = out["cas"].astype(str).map(cls).fillna("unclassified")
+    out["hazard_class"] = out["cas"].astype(str).map(cls).fillna(UNCLASSIFIED)
     out["reagent"] = reactive_reasons(out)
     return out
 
@@ -119,9 +121,8 @@ def _reagent_note(res) -> str:
 def cmd_show(a) -> int:
     import pandas as pd
 
-    from .library import find_liquid
-
     from .cautions import reactive_reasons
+    from .library import find_liquid
 
     lib = library_from_args(a)
     rows = [find_liquid(q, lib) for q in a.liquids]
@@ -155,9 +156,9 @@ def cmd_list(a) -> int:
         k = _key(a.search)
         hay = (lib["name"] + "|" + lib["synonyms"].astype(str) + "|" + lib["cas"]).map(_key)
         m &= hay.str.contains(k, regex=False).to_numpy()
-    out = lib.loc[m].sort_values("name")
     from .cautions import reactive_reasons
 
+    out = lib.loc[m].sort_values("name")
     out = out.assign(reagent=reactive_reasons(out))
     cols = ["name", "cas", "delta_d", "delta_p", "delta_h", "molar_volume", "boiling_point_c",
             "flash_point_c", "hsp_source", "sources_disagree", "reagent"]

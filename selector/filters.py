@@ -31,6 +31,7 @@ import math
 import numpy as np
 import pandas as pd
 
+from .cautions import not_flammable, reactive_reasons
 from .errors import SelectorError
 from .library import locate_many
 
@@ -93,8 +94,6 @@ def masks_and_reagents(library: pd.DataFrame, **filters) -> tuple[np.ndarray, in
     loose = _mask(library, **filters)
     if include_reactive or filters.get("include") is not None:   # liquids named on purpose pass
         return loose, 0
-    from .cautions import reactive_reasons
-
     reagent = reactive_reasons(library) != ""
     return loose & ~reagent, int((loose & reagent).sum())
 
@@ -130,7 +129,7 @@ def _mask(library: pd.DataFrame, *, temperature: float = 25.0, include=None, exc
             raise SelectorError("min_flash_point_c must not be NaN")
         fp = library["flash_point_c"].to_numpy(float)
         with np.errstate(invalid="ignore"):
-            mask &= (fp >= f) | _not_flammable(library)
+            mask &= (fp >= f) | not_flammable(library)
     if max_molar_volume is not None:
         try:
             v = float(max_molar_volume)
@@ -147,7 +146,7 @@ def _mask(library: pd.DataFrame, *, temperature: float = 25.0, include=None, exc
         fp = library["flash_point_c"].to_numpy(float)
         with np.errstate(invalid="ignore"):
             inside = np.isfinite(fp) & (fp >= (-np.inf if flo is None else flo)) & (fp <= (np.inf if fhi is None else fhi))
-        mask &= inside | (_not_flammable(library) if fhi is None else False)
+        mask &= inside | (not_flammable(library) if fhi is None else False)
     if max_hazard_class is not None:
         from .hazards import class_rank, hazard_columns
 
@@ -161,12 +160,6 @@ def _mask(library: pd.DataFrame, *, temperature: float = 25.0, include=None, exc
         with np.errstate(invalid="ignore"):
             mask &= ~(mp > t) & ~(bp < t)
     return mask
-
-
-def _not_flammable(library):
-    from .cautions import not_flammable
-
-    return not_flammable(library)
 
 
 def check_temperature(temperature) -> float:

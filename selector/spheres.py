@@ -838,19 +838,19 @@ class SphereFit:
         if n < 1:
             raise SelectorError("n must be at least 1")
         lib = self.library if self.library is not None else load_library()
-        if shelf is not None:
-            filters = dict(filters)
-            filters["include"] = list(shelf) if not isinstance(shelf, str) else [shelf]
         mask = filter_mask(lib, temperature=t, **filters)
-        if not filters.get("include_reactive"):   # a shelf is a stock list: its reagents stay out
-            from .cautions import reactive_reasons
+        if shelf is not None:   # a stock list, not liquids named on purpose: the reagent screen applies
+            from .library import locate_many
 
-            mask &= reactive_reasons(lib) == ""
+            shelf = list(shelf) if not isinstance(shelf, str) else [shelf]
+            on_shelf = np.zeros(len(lib), dtype=bool)
+            on_shelf[locate_many(shelf, lib, "shelf")] = True
+            mask &= on_shelf
         tested = self.tests["liquid_index"].to_numpy(int)
         tested = tested[tested >= 0]
         mask[tested] = False
         if not mask.any():
-            why = _shelf_notes(lib, filters["include"], tested, mask, t, filters) if shelf is not None else []
+            why = _shelf_notes(lib, shelf, tested, t, filters) if shelf is not None else []
             raise SelectorError("no untested liquid passes the filters / shelf list"
                                 + (": " + "; ".join(why) if why else ""))
         cand = lib.loc[mask]
@@ -883,7 +883,7 @@ class SphereFit:
         out = out.iloc[order].head(n).reset_index(drop=True)
         notes = []
         if shelf is not None:
-            notes += _shelf_notes(lib, filters["include"], tested, mask, t, filters)
+            notes += _shelf_notes(lib, shelf, tested, t, filters)
         if len(out) and float(out["information"].max()) < 0.01:
             notes.append("every plausible sphere agrees on these liquids (information near 0): a test "
                          "of any of them adds little; widen the shelf or the filters")
@@ -891,7 +891,7 @@ class SphereFit:
         return out
 
 
-def _shelf_notes(lib, shelf, tested, mask, t, filters) -> list[str]:
+def _shelf_notes(lib, shelf, tested, t, filters) -> list[str]:
     """Why shelf liquids are missing from the suggestions: tested already, a reagent, or
     filtered out."""
     from .cautions import reactive_reasons
