@@ -541,6 +541,13 @@ def _costs(costs, lib):
         raise SelectorError("cost_per_litre must be a non-empty mapping of liquid name -> cost per litre")
     names = list(costs)
     pos = locate_many(names, lib, "cost list")
+    lib_names = lib["name"].astype(str).to_numpy()
+    seen: dict[int, str] = {}
+    for p, nm in zip(pos, names):
+        if int(p) in seen:
+            raise SelectorError(f"the cost list prices {lib_names[p]} twice ({seen[int(p)]!r} and {nm!r}); "
+                                "keep one price per liquid")
+        seen[int(p)] = str(nm)
     out = np.full(len(lib), np.nan)
     for p, nm in zip(pos, names):
         v = costs[nm]
@@ -552,6 +559,22 @@ def _costs(costs, lib):
             raise SelectorError(f"cost of {nm!r} must be a finite number >= 0, got {v!r}")
         out[p] = v
     return out
+
+
+def cost_name_notes(costs, library: pd.DataFrame | None = None) -> list[str]:
+    """For a cost list, one note per name that was matched to a library liquid of another name
+    (a synonym such as "xylene" -> o-xylene), so that the user sees which liquid carries the
+    price."""
+    from .library import _key
+
+    lib = load_library() if library is None else library
+    names = list(costs["name"]) if isinstance(costs, pd.DataFrame) else list(costs)
+    if not names:
+        return []
+    pos = locate_many(names, lib, "cost list")
+    lib_names = lib["name"].astype(str).to_numpy()
+    return [f"price of {nm!r} used for {lib_names[p]}" for nm, p in zip(names, pos)
+            if _key(nm) != _key(lib_names[p])]
 
 
 def _flash_for_blends(cand):
@@ -745,6 +768,8 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     out.attrs.update(target=tgt, temperature=t_c, caution=CAUTION, min_fraction=m,
                      miscibility="selector.mixing.miscible_pairs" if mis is not None else "not checked",
                      candidates=len(cand))
+    if cost_per_litre is not None:
+        out.attrs["price_notes"] = cost_name_notes(cost_per_litre, library)
     return out
 
 

@@ -139,7 +139,7 @@ def reactive_reasons(library: pd.DataFrame) -> np.ndarray:
     todo = np.ones(n, dtype=bool)
     if "reactive_reason" in library.columns and "origin" in library.columns:
         done = (library["origin"].astype(str) == "library").to_numpy()
-        out[done] = library["reactive_reason"].fillna("").astype(str).to_numpy(object)[done]
+        out[done] = library["reactive_reason"].astype("string").fillna("").astype(str).to_numpy(object)[done]
         todo = ~done
     if todo.any():
         out[todo] = _computed(library.loc[todo])

@@ -54,6 +54,8 @@ def cmd_blend(a) -> int:
     header = (f"Blends for {tgt.describe()} at {a.at:g} C; {res.attrs['candidates']} candidate liquids; "
               f"smallest share {a.min_share:g}; every pair miscible "
               f"({res.attrs['miscibility']}). Hazard class = worst component (CHEM21).")
+    if res.attrs.get("price_notes"):
+        header += "\nPrices matched by synonym: " + "; ".join(res.attrs["price_notes"])
     cols = [c for c in BLEND_COLUMNS if c != "red" or res["red"].notna().any()]
     emit(_label(res), a, cols + (["components", "fractions"] if a.format != "table" else []),
          caution=True, header=header)

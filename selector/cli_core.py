@@ -97,17 +97,13 @@ def cmd_rank(a) -> int:
 
 
 def _with_hazard_class(res, lib):
-    """``res`` with the CHEM21 ``hazard_class`` of each liquid (looked up by CAS in ``lib``) and
-    its ``reagent`` reason (:func:`selector.cautions.reactive_reasons`)."""
-    import pandas as pd
-
+    """``res`` with the CHEM21 ``hazard_class`` of each liquid
+    (:func:`selector.hazards.attach_hazards`) and its ``reagent`` reason
+    (:func:`selector.cautions.reactive_reasons`)."""
     from .cautions import reactive_reasons
-    from .hazards import UNCLASSIFIED, hazard_columns
+    from .hazards import attach_hazards
 
-    cls = pd.Series(hazard_columns(lib)["hazard_class"].to_numpy(), index=lib["cas"].astype(str))
-    cls = cls[~cls.index.duplicated()]
-    out = res.copy()
-    out["hazard_class"] = out["cas"].astype(str).map(cls).fillna(UNCLASSIFIED)
+    out = attach_hazards(res, lib)
     out["reagent"] = reactive_reasons(out)
     return out
 

@@ -358,7 +358,78 @@ def hazard_columns(library: pd.DataFrame | None = None) -> pd.DataFrame:
         if (t.index == library.index).all() and (
                 _bundled()["cas"].to_numpy() == library["cas"].to_numpy()).all():
             return t.copy()
-    return hazard_table(library)
+    key = _content_key(library)
+    hit = _TABLE_CACHE.get(key)
+    if hit is None:
+        hit = hazard_table(library)
+        _TABLE_CACHE[key] = hit
+        while len(_TABLE_CACHE) > 8:
+            _TABLE_CACHE.pop(next(iter(_TABLE_CACHE)))
+    return hit.copy()
+
+
+# hazard tables of other libraries (e.g. with the user's own liquids), keyed by the columns the
+# table is computed from, so a repeated ranking does not recompute them
+_TABLE_CACHE: dict = {}
+
+
+def _content_key(lib: pd.DataFrame) -> str:
+    import hashlib
+
+    h = hashlib.sha1()
+    h.update("\x1f".join(lib["cas"].astype(str)).encode())
+    h.update(repr(list(lib.index)).encode() if not isinstance(lib.index, pd.RangeIndex)
+             else repr((lib.index.start, lib.index.stop, lib.index.step)).encode())
+    for c in ("boiling_point_c", "flash_point_c", "autoignition_c"):
+        if c in lib:
+            h.update(c.encode())
+            h.update(np.ascontiguousarray(lib[c].to_numpy(float)).tobytes())
+    return h.hexdigest()
+
+
+def _cas_keys(frame: pd.DataFrame) -> pd.Series:
+    if "cas" not in frame:
+        return pd.Series("", index=frame.index, dtype=object)
+    cas = frame["cas"].astype("string").fillna("").str.strip()
+    return cas.mask(cas.str.lower().isin(["nan", "none", "<na>"]), "").astype(object)
+
+
+def attach_hazards(df: pd.DataFrame, library: pd.DataFrame | None = None,
+                   columns=("hazard_class",), table: pd.DataFrame | None = None) -> pd.DataFrame:
+    """``df`` (rows naming liquids of ``library``) with hazard columns joined in.
+
+    Rows are matched to ``library`` by CAS number, and by name where a row has no CAS or one the
+    library does not know (user liquids may have none). A row that matches nothing gets
+    ``"unclassified"`` (not "safe": no hazard data here). Columns already in ``df`` are kept.
+    ``table`` is :func:`hazard_columns` of ``library`` when the caller has it cached. Used by the
+    command line and the web front end alike.
+
+    >>> lib = load_library()
+    >>> r = attach_hazards(lib.loc[lib["name"].isin(["toluene", "ethyl acetate"]), ["name", "cas"]])
+    >>> sorted(zip(r["name"], r["hazard_class"]))
+    [('ethyl acetate', 'recommended'), ('toluene', 'problematic')]
+    """
+    lib = load_library() if library is None else library
+    t = hazard_columns(lib) if table is None else table
+    lib_cas = _cas_keys(lib).to_numpy()
+    lib_names = lib["name"].astype(str).map(_key).to_numpy()
+    out = df.copy()
+    want_cas = _cas_keys(out)
+    want_names = out["name"].astype(str).map(_key) if "name" in out else None
+    for c in columns:
+        if c in out or c not in t:
+            continue
+        vals = t[c].to_numpy()
+        by_cas = pd.Series(vals, index=lib_cas)
+        by_cas = by_cas[(by_cas.index != "") & ~by_cas.index.duplicated()]
+        got = want_cas.map(by_cas)
+        if want_names is not None:
+            by_name = pd.Series(vals, index=lib_names)
+            got = got.where(got.notna(), want_names.map(by_name[~by_name.index.duplicated()]))
+        out[c] = got.to_numpy()
+    if "hazard_class" in out:
+        out["hazard_class"] = out["hazard_class"].fillna(UNCLASSIFIED)
+    return out
 
 
 def class_rank(name: str) -> int:

@@ -357,6 +357,10 @@ def validate_user_table(table, library: pd.DataFrame | None = None) -> pd.DataFr
         for i, c in enumerate(df["cas"]):
             if c and not _CAS_RE.match(c):
                 problems.append(f"row {i + 2} ({df['name'].iloc[i]}): {c!r} is not a CAS number")
+        cas = df["cas"]
+        for c in sorted(set(cas[cas.duplicated() & (cas != "")])):
+            rows = ", ".join(str(i + 2) for i in np.flatnonzero(cas.to_numpy() == c))
+            problems.append(f"CAS {c} appears in more than one row (rows {rows})")
     if problems:
         raise InputTableError("user liquids", problems)
     return df
@@ -412,7 +416,18 @@ def _library_matches(library: pd.DataFrame, user: pd.DataFrame) -> np.ndarray:
                             "a row can replace only one library liquid - correct the CAS, leave it empty, "
                             "or give the row a name of its own")
         raise InputTableError("user liquids", problems)
-    return by_name.fillna(by_cas).fillna(-1).astype(int).to_numpy()
+    pos = by_name.fillna(by_cas).fillna(-1).astype(int).to_numpy()
+    taken = pd.Series(pos)[pos >= 0]
+    twice = taken[taken.duplicated(keep=False)]
+    if len(twice):
+        problems = []
+        for p, rows in twice.groupby(twice.values):
+            lines = ", ".join(f"row {i + 2} ({user['name'].iloc[i]})" for i in rows.index)
+            problems.append(f"{lines} {'both' if len(rows) == 2 else 'all'} replace library liquid {library['name'].iloc[p]!r} "
+                            f"(CAS {library['cas'].iloc[p]}), by name or CAS; keep one of them, or give "
+                            "the others a name of their own and no CAS")
+        raise InputTableError("user liquids", problems)
+    return pos
 
 
 def merge_user_liquids(library: pd.DataFrame, table) -> pd.DataFrame:

@@ -329,6 +329,17 @@ def test_cost_pareto_front():
         find_blends(PS, cost_per_litre={"toluene": -1})
 
 
+def test_prices_matched_by_synonym_are_named_and_double_prices_refused():
+    # "xylene" is a synonym of o-xylene in the library (names from chemicals); the prices are
+    # arbitrary numbers, not check values
+    prices = {"xylene": 2.0, "acetone": 1.5, "ethyl acetate": 1.8}
+    res = find_blends(PS, cost_per_litre=prices, max_components=2, top=10, min_gain=0.0)
+    assert res.attrs["price_notes"] == ["price of 'xylene' used for o-xylene"]
+    assert "o-xylene" in {c for cs in res["components"] for c in cs}
+    with pytest.raises(SelectorError, match="prices o-xylene twice"):
+        find_blends(PS, cost_per_litre={"xylene": 2.0, "o-xylene": 2.5, "acetone": 1.5})
+
+
 def test_full_library_ternary_search():
     res = find_blends((18.0, 10.0, 7.0, 5.0), max_components=3, top=20)
     assert len(res) == 20

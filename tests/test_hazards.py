@@ -225,3 +225,20 @@ def test_hazard_columns_follow_a_reordered_library():
     assert hz.loc[(rev["name"] == "water").to_numpy(), "hazard_class"].iloc[0] == "recommended"
     assert (hz["hazard_class"].to_numpy() ==
             hazard_columns(lib).set_index(lib["name"]).loc[rev["name"], "hazard_class"].to_numpy()).all()
+
+
+def test_attach_hazards_joins_by_cas_then_name():
+    # The join used by both the command line and the web front end: CAS first, name where a row
+    # has no CAS, "unclassified" (not "safe") for a liquid without hazard data. Classes of toluene
+    # and ethyl acetate: CHEM21 guide, as in PUBLISHED above (from memory).
+    from selector.hazards import attach_hazards
+
+    rows = pd.DataFrame({"name": ["my thinner", "Ethyl Acetate", "unknown blend"],
+                         "cas": ["108-88-3", "", None]})  # 108-88-3 is toluene's CAS
+    out = attach_hazards(rows, columns=("hazard_class", "h_statements"))
+    assert out["hazard_class"].tolist() == ["problematic", "recommended", "unclassified"]
+    assert "H225" in out["h_statements"].iloc[0]  # toluene: highly flammable (common practice)
+    assert pd.isna(out["h_statements"].iloc[2])
+    # a column the caller already has is kept as it is
+    kept = attach_hazards(rows.assign(hazard_class="mine"))
+    assert kept["hazard_class"].tolist() == ["mine"] * 3

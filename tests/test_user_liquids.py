@@ -32,6 +32,31 @@ def test_cli_blank_name_is_a_message_not_a_traceback(tmp_path, capsys):
     assert "Traceback" not in err
 
 
+def _rows(**cols):
+    base = {"delta_d": [17.0, 17.5], "delta_p": [2.0, 2.5], "delta_h": [3.0, 3.5]}
+    return pd.DataFrame({**cols, **base})
+
+
+def test_two_rows_replacing_one_library_liquid_are_refused():
+    # 108-88-3 is toluene's CAS (chemicals); one row names it, the other gives its CAS
+    from selector.errors import InputTableError
+    from selector.library import load_library, merge_user_liquids
+
+    with pytest.raises(InputTableError) as e:
+        merge_user_liquids(load_library(), _rows(name=["toluene", "thinner B (invented)"],
+                                                 cas=["", "108-88-3"]))
+    msg = str(e.value)
+    assert "row 2 (toluene), row 3 (thinner B (invented)) both replace library liquid 'toluene'" in msg
+
+
+def test_duplicate_cas_in_user_rows_is_refused():
+    from selector.errors import InputTableError
+    from selector.library import validate_user_table
+
+    with pytest.raises(InputTableError, match=r"CAS 50-00-0 appears in more than one row \(rows 2, 3\)"):
+        validate_user_table(_rows(name=["a (invented)", "b (invented)"], cas=["50-00-0", "50-00-0"]))
+
+
 # ---------------------------------------------------------------- the My liquids page
 
 def open_page(home: Path, monkeypatch):

@@ -322,34 +322,21 @@ def _hazards_cached(path: str | None, mtime: float):
         lib = _library_cached(path, mtime)
     except ERRORS:
         lib = _library_cached(None, 0.0)
-    t = hz.hazard_columns(lib)
-    t.index = lib["name"].astype(str).to_numpy()
-    return t[~t.index.duplicated()]
-
-
-def hazard_frame() -> pd.DataFrame | None:
-    """CHEM21 hazard columns (from :func:`selector.hazards.hazard_columns`) indexed by liquid name."""
-    try:
-        importlib.import_module("selector.hazards")
-    except ModuleNotFoundError:
-        return None
-    return _hazards_cached(*_lib_key())
+    return lib, hz.hazard_columns(lib)
 
 
 def with_hazards(df: pd.DataFrame) -> pd.DataFrame:
-    """``df`` with ``hazard_class`` and ``h_statements`` joined by liquid name ("unclassified" if unknown)."""
-    out = df.copy()
-    hz = hazard_frame()
-    names = out["name"].astype(str)
-    if hz is None:
+    """``df`` with ``hazard_class`` and ``h_statements`` (:func:`selector.hazards.attach_hazards`,
+    matched by CAS, or by name where a row has none; "unclassified" if unknown)."""
+    try:
+        hz = importlib.import_module("selector.hazards")
+    except ModuleNotFoundError:
+        out = df.copy()
         if "hazard_class" not in out:
             out["hazard_class"] = "unclassified"
         return out
-    for c in ("hazard_class", "h_statements"):
-        if c in hz and c not in out:
-            out[c] = hz[c].reindex(names).to_numpy()
-    out["hazard_class"] = out["hazard_class"].fillna("unclassified")
-    return out
+    lib, t = _hazards_cached(*_lib_key())
+    return hz.attach_hazards(df, lib, columns=("hazard_class", "h_statements"), table=t)
 
 
 def cautions(liquids: pd.DataFrame, *, title: str = "Safety notes for the liquids shown") -> pd.DataFrame:
