@@ -808,22 +808,26 @@ def _matchable_viscosity(table) -> np.ndarray:
     return np.where(bad, np.nan, eta)
 
 
-def _blend_properties(cand, idx, f, temperature, eta=None):
-    """Blend viscosity (mPa s) and initial RER estimates for proposals (volume fractions);
-    ``eta`` replaces the candidates' viscosities when given."""
+def _blend_viscosity(idx, f, eta):
+    """Blend viscosity (mPa s) of proposals (volume fractions) from the candidates' viscosities
+    ``eta``: ln(eta) mixed by volume fraction (Arrhenius rule without interaction term); NaN
+    where a component's viscosity is unknown."""
     used = idx >= 0
     safe = np.where(used, idx, 0)
     fr = np.where(used, f, 0.0)
-    eta = cand["viscosity_mpa_s"].to_numpy(float) if eta is None else np.asarray(eta, float)
-    rer = relative_evaporation_rate(cand, temperature)
+    eta = np.asarray(eta, float)
     with np.errstate(invalid="ignore", divide="ignore"):
-        # ln(eta) mixed by volume fraction (Arrhenius rule without interaction term)
-        le = np.where(used, np.log(eta[safe]), 0.0)
-        visc = np.exp((fr * le).sum(1))
-        r = (fr * np.where(used, rer[safe], 0.0)).sum(1)
-    bad_v = (used & ~np.isfinite(eta[safe])).any(1)
-    bad_r = (used & ~np.isfinite(rer[safe])).any(1)
-    return np.where(bad_v, np.nan, visc), np.where(bad_r, np.nan, r)
+        visc = np.exp((fr * np.where(used, np.log(eta[safe]), 0.0)).sum(1))
+    return np.where((used & ~np.isfinite(eta[safe])).any(1), np.nan, visc)
+
+
+def _blend_rer(idx, f, rer):
+    """Initial relative evaporation rate of proposals: volume-weighted mean of the candidates'
+    ``rer``; NaN where a component's is unknown."""
+    used = idx >= 0
+    safe = np.where(used, idx, 0)
+    r = (np.where(used, f, 0.0) * np.where(used, rer[safe], 0.0)).sum(1)
+    return np.where((used & ~np.isfinite(rer[safe])).any(1), np.nan, r)
 
 
 def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: float = 0.05,
@@ -894,11 +898,10 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
                         min_fraction=_check_min_fraction(min_fraction, max(k, 2)), miscible=mis,
                         pool=max(2000, pool_top))
     tab = _table(tg, cand, h, res["idx"], res["f"], res["ra"], t_c)
-    visc, rer = _blend_properties(cand, res["idx"], res["f"], t_c)
     tab["boiling_point_c"] = 0.5 * (tab["bp_low_c"] + tab["bp_high_c"])
-    tab["evaporation_rate"] = rer
-    tab["viscosity_mpa_s"] = visc
-    match_visc = _blend_properties(cand, res["idx"], res["f"], t_c, _matchable_viscosity(cand))[0]
+    tab["evaporation_rate"] = _blend_rer(res["idx"], res["f"], relative_evaporation_rate(cand, t_c))
+    tab["viscosity_mpa_s"] = _blend_viscosity(res["idx"], res["f"], cand["viscosity_mpa_s"].to_numpy(float))
+    match_visc = _blend_viscosity(res["idx"], res["f"], _matchable_viscosity(cand))
     hr = hazard_columns(cand)["hazard_rank"].to_numpy(float)
     used = res["idx"] >= 0
     tab["hazard_rank"] = np.where(used, hr[np.where(used, res["idx"], 0)], -np.inf).max(1)
@@ -908,12 +911,11 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     xh = corrected_hsp(x, t_c)
     xtab = _table(tg, x, xh, np.array([[0, -1, -1]]), np.array([[1.0, 0, 0]]),
                   np.array([float(_ra(xh[0], tg.hsp))]), t_c)
-    xv, xe = _blend_properties(x, np.array([[0, -1, -1]]), np.array([[1.0, 0, 0]]), t_c)
+    one_i, one_f = np.array([[0, -1, -1]]), np.array([[1.0, 0, 0]])
     xtab["boiling_point_c"] = float(x["boiling_point_c"].iloc[0])
-    xtab["evaporation_rate"] = xe
-    xtab["viscosity_mpa_s"] = xv
-    x_match_visc = _blend_properties(x, np.array([[0, -1, -1]]), np.array([[1.0, 0, 0]]), t_c,
-                                     _matchable_viscosity(x))[0]
+    xtab["evaporation_rate"] = _blend_rer(one_i, one_f, relative_evaporation_rate(x, t_c))
+    xtab["viscosity_mpa_s"] = _blend_viscosity(one_i, one_f, x["viscosity_mpa_s"].to_numpy(float))
+    x_match_visc = _blend_viscosity(one_i, one_f, _matchable_viscosity(x))
     xtab["hazard_rank"] = float(xr)
     parts = []
     for a, b, scale, logp in ((tab["boiling_point_c"], xtab["boiling_point_c"], 50.0, False),

@@ -340,6 +340,31 @@ def liquid_record(cas: str) -> dict | None:
     return rec
 
 
+NAMES_CSV = PARAMETERS_DIR / "names.csv"
+
+
+def apply_names(df: pd.DataFrame) -> pd.DataFrame:
+    """Replace the few names in ``chemicals`` that read badly (index-style "1-propanol, 2-chloro-",
+    abbreviations, a German spelling) by the plain names in ``parameters/names.csv``; the old name
+    stays a synonym, so it is still found."""
+    if not NAMES_CSV.exists() or df.empty:
+        return df
+    fix = pd.read_csv(NAMES_CSV, dtype=str).set_index("cas")["name"]
+    df = df.copy()
+    hit = df["cas"].isin(fix.index).to_numpy()
+    for i in np.flatnonzero(hit):
+        old, new = str(df["name"].iloc[i]), fix[df["cas"].iloc[i]]
+        if old == new:
+            continue
+        syn = [x for x in str(df["synonyms"].iloc[i] if pd.notna(df["synonyms"].iloc[i]) else "").split("|")
+               if x and x.lower() != new.lower()]
+        if old.lower() not in [x.lower() for x in syn]:
+            syn.insert(0, old)
+        df.iloc[i, df.columns.get_loc("name")] = new
+        df.iloc[i, df.columns.get_loc("synonyms")] = "|".join(syn)
+    return df
+
+
 def build(cas_subset: list[str] | None = None, processes: int = 2) -> pd.DataFrame:
     """Build the library table (all liquids at 25 C with HSP, or only ``cas_subset``)."""
     hsp = merged_hsp()
@@ -359,7 +384,7 @@ def build(cas_subset: list[str] | None = None, processes: int = 2) -> pd.DataFra
         rec.update({k: h[k] for k in ("delta_d", "delta_p", "delta_h", "hsp_source",
                                       "hsp_sources_available", "hsp_spread", "sources_disagree")})
         rows.append(rec)
-    df = pd.DataFrame(rows)
+    df = apply_names(pd.DataFrame(rows))
     # Names must be unique for look-up: disambiguate rare clashes with the CAS number.
     dup = df["name"].str.lower().duplicated(keep=False)
     df.loc[dup, "name"] = df.loc[dup, "name"] + " (" + df.loc[dup, "cas"] + ")"

@@ -64,9 +64,18 @@ def refresh_training_data(path: Path = E.TRAINING_CSV) -> pd.DataFrame:
                      "hsp_source": r.hsp_source, "hsp_sources_available": r.hsp_sources_available,
                      "hsp_spread": r.hsp_spread})
     df = pd.DataFrame(rows)
+    df["name"] = _plain_names(df)
     write_atomic(path, df.to_csv(index=False))
     print(f"wrote {len(df)} compounds to {path}", file=sys.stderr)
     return df
+
+
+def _plain_names(df: pd.DataFrame) -> pd.Series:
+    """Names with the overrides of ``parameters/names.csv`` (the library's plain names)."""
+    from .build import NAMES_CSV
+
+    fix = pd.read_csv(NAMES_CSV, dtype=str).set_index("cas")["name"]
+    return df["cas"].map(fix).fillna(df["name"])
 
 
 def _metrics(Y, P):

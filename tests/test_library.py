@@ -122,7 +122,10 @@ def test_rebuild_sample_matches_committed(lib):
               "vapour_pressure_kpa", "molar_mass", "flash_point_c"]:
         np.testing.assert_allclose(fresh[c].to_numpy(float), old[c].to_numpy(float), rtol=1e-4,
                                    equal_nan=True, err_msg=c)
-    assert (fresh["name"] == old["name"]).all()
+    # a name made unique with its CAS number in the full library has no twin in the sample
+    plain = r" \(\d+-\d+-\d\)$"
+    assert (fresh["name"].str.replace(plain, "", regex=True)
+            == old["name"].str.replace(plain, "", regex=True)).all()
     assert (fresh["hsp_source"] == old["hsp_source"]).all()
 
 
