@@ -162,6 +162,39 @@ def _num(x, scale=1.0, offset=0.0, digits=6):
     return round(v * scale + offset, digits)
 
 
+def _sig(v: float, n: int) -> float:
+    """``v`` rounded to ``n`` significant figures (NaN stays NaN)."""
+    if not math.isfinite(v) or v == 0:
+        return v
+    return round(v, n - 1 - int(math.floor(math.log10(abs(v)))))
+
+
+def merge_flash_points(df: pd.DataFrame) -> pd.DataFrame:
+    """Fill and check the flash points from ``chemicals`` with those of ``parameters/hazards.csv``.
+
+    Where only the hazard table has a flash point it is used; where both have one and the hazard
+    table's is lower by more than 1 C, the lower value is kept (a flash-point limit must not pass a
+    liquid on the higher of two published values) and ``flash_point_source`` names both."""
+    from .hazards import hazard_statements
+
+    st = hazard_statements().drop_duplicates("cas").set_index("cas")["csv_flash_point_c"]
+    df = df.copy()
+    csv = df["cas"].map(st).to_numpy(float)
+    lib = df["flash_point_c"].to_numpy(float)
+    src = df["flash_point_source"].fillna("").astype(str).to_numpy(object)
+    fill = ~np.isfinite(lib) & np.isfinite(csv)
+    lower = np.isfinite(lib) & np.isfinite(csv) & (csv < lib - 1.0)
+    new_src = src.copy()
+    new_src[fill] = "parameters/hazards.csv (from memory; confirm with the safety data sheet)"
+    for i in np.flatnonzero(lower):
+        new_src[i] = (f"lower of parameters/hazards.csv {csv[i]:g} C (from memory) and {src[i] or 'chemicals'} "
+                      f"{lib[i]:g} C")
+    out = np.where(fill | lower, csv, lib)
+    df["flash_point_c"] = out
+    df["flash_point_source"] = new_src
+    return df
+
+
 #: thermo liquid-volume methods that rest on measured data for the compound itself.
 DATA_VOLUME_METHODS = {"HEOS_FIT", "DIPPR_PERRY_8E", "VDI_PPDS", "VDI_TABULAR", "COOLPROP",
                        "CRC_INORG_L", "CRC_INORG_L_CONST", "Fit 2023", "HTCOSTALDFIT", "MMSNM0FIT",
@@ -237,32 +270,47 @@ def _volume(c):
 ESTIMATED_VISCOSITY_METHODS = frozenset({"LETSOU_STIEL", "PRZEDZIECKI_SRIDHAR", "JOBACK"})
 
 
+#: Plausible liquid viscosities at 25 C, Pa s (0.1 mPa s, below diethyl ether's 0.22, to 100 Pa s,
+#: above castor oil's ~0.7 Pa s; common practice): a value outside is an artefact and is dropped.
+VISCOSITY_RANGE_PA_S = (1e-4, 100.0)
+
+
 def _viscosity(c):
     """Liquid viscosity (Pa s) at 25 C, method, estimated flag.
 
     Rule: thermo's default method when it rests on data for the compound; otherwise Joback's
     group-contribution estimate (Joback and Reid, Chem. Eng. Comm. 57 (1987) 233, as carried by
-    thermo), and only where thermo cannot apply it the Letsou-Stiel corresponding-states
-    estimate (AIChE J. 19 (1973) 409) that thermo would pick. Letsou-Stiel is a high-temperature
-    method: on the 183 library liquids that have a data-based correlation and both estimates it
+    thermo); otherwise no value. The Letsou-Stiel corresponding-states estimate (AIChE J. 19
+    (1973) 409) that thermo would pick there is not used - it is a high-temperature method: on the 183 library liquids that have a data-based correlation and both estimates it
     is off by a median factor of 1.82 at 25 C and low (median ratio 0.55; 54 % within a factor
     of 2), where Joback is off by a median factor of 1.20 (median ratio 0.96; 91 % within a
     factor of 2); ``tests/test_library.py`` re-measures this on 20-odd common liquids.
     """
     vl = c.ViscosityLiquid
     method = vl.method
-    if method is None or c.mul is None:
+    if method is None:
         return None, "", False
-    if method not in ESTIMATED_VISCOSITY_METHODS:
-        return c.mul, method, False
-    if "JOBACK" in vl.all_methods:
+
+    def at25(m):
+        # the method's own value at 25 C: Chemical.mul can return a value off by orders of
+        # magnitude (mesitylene 8e5 mPa s) where the same method gives 0.75 mPa s
         try:
-            v = vl.calculate(T25, "JOBACK")
-        except Exception:  # noqa: BLE001 - Joback groups missing for this structure
-            v = None
-        if v is not None and math.isfinite(v) and v > 0:
+            v = vl.calculate(T25, m)
+        except Exception:  # noqa: BLE001 - e.g. Joback groups missing for this structure
+            return None
+        ok = v is not None and math.isfinite(v) and VISCOSITY_RANGE_PA_S[0] <= v <= VISCOSITY_RANGE_PA_S[1]
+        return v if ok else None
+
+    if method not in ESTIMATED_VISCOSITY_METHODS:
+        v = at25(method)
+        return (v, method, False) if v is not None else (None, "", False)
+    if "JOBACK" in vl.all_methods:
+        v = at25("JOBACK")
+        if v is not None:
             return v, "JOBACK", True
-    return c.mul, method, True
+    # no data and no Joback estimate: a corresponding-states value (Letsou-Stiel) is not kept - at
+    # 25 C it is off by a median factor of 1.8 and biased low (docstring), i.e. not worth showing
+    return None, "", False
 
 
 def liquid_record(cas: str) -> dict | None:
@@ -293,7 +341,7 @@ def liquid_record(cas: str) -> dict | None:
             "molar_volume_estimated": bool(vest),
             "melting_point_c": _num(tm, offset=-273.15, digits=2),
             "boiling_point_c": _num(tb, offset=-273.15, digits=2),
-            "flash_point_c": _num(c.Tflash, offset=-273.15, digits=2),
+            "flash_point_c": _num(c.Tflash, offset=-273.15, digits=1),
             "autoignition_c": _num(c.Tautoignition, offset=-273.15, digits=2),
             "vapour_pressure_kpa": _num(c.Psat, 1e-3, digits=5),
             "hvap_kj_mol": _num(c.Hvapm, 1e-3, digits=4),
@@ -313,7 +361,7 @@ def liquid_record(cas: str) -> dict | None:
         }
         twa = chemicals.safety.TWA(cas)
         if twa:
-            rec["exposure_limit"] = _num(twa[0])
+            rec["exposure_limit"] = _sig(_num(twa[0]), 3)  # converted limits carry spurious digits
             rec["exposure_limit_unit"] = twa[1]
             rec["exposure_limit_source"] = (chemicals.safety.TWA_methods(cas) or [""])[0]
         else:
@@ -384,7 +432,7 @@ def build(cas_subset: list[str] | None = None, processes: int = 2) -> pd.DataFra
         rec.update({k: h[k] for k in ("delta_d", "delta_p", "delta_h", "hsp_source",
                                       "hsp_sources_available", "hsp_spread", "sources_disagree")})
         rows.append(rec)
-    df = apply_names(pd.DataFrame(rows))
+    df = merge_flash_points(apply_names(pd.DataFrame(rows)))
     # Names must be unique for look-up: disambiguate rare clashes with the CAS number.
     dup = df["name"].str.lower().duplicated(keep=False)
     df.loc[dup, "name"] = df.loc[dup, "name"] + " (" + df.loc[dup, "cas"] + ")"

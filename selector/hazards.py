@@ -300,7 +300,10 @@ def hazard_table(library: pd.DataFrame | None = None) -> pd.DataFrame:
     rows = st.iloc[idx[known]]
     stm = rows["statements"].tolist()
     fp = lib_fp[known].copy()
-    basis = np.where(np.isfinite(fp), "library (chemicals)", "")
+    lib_src = (lib["flash_point_source"].astype("string").fillna("").astype(str).to_numpy(object)[known]
+               if "flash_point_source" in lib else np.full(int(known.sum()), "", dtype=object))
+    basis = np.where(np.isfinite(fp), "library: " + np.where(lib_src == "", "chemicals", lib_src).astype(object),
+                     "").astype(object)
     csv_fp = rows["csv_flash_point_c"].to_numpy(float)
     nf = rows["not_flammable"].to_numpy(bool)
     use_csv = ~np.isfinite(fp) & np.isfinite(csv_fp)

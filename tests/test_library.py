@@ -470,3 +470,39 @@ def test_save_user_liquids_refuses_a_file_changed_since_it_was_read(tmp_path):
     b1, b2 = backup_file(p), backup_file(p)
     assert (b1.name, b2.name) == ("mine.csv.bak", "mine.csv.2.bak")
     assert b1.read_bytes() == b2.read_bytes() == p.read_bytes()
+
+
+def test_flash_point_is_the_lower_of_two_sources(lib):
+    # parameters/hazards.csv (flash points from memory) against chemicals.safety: a flash-point
+    # limit must not pass a liquid on the higher of two values (common practice: design on the
+    # lower published value).
+    from selector.filters import filter_mask
+    from selector.hazards import hazard_statements
+
+    st = hazard_statements().drop_duplicates("cas").set_index("cas")["csv_flash_point_c"]
+    csv = lib["cas"].map(st).to_numpy(float)
+    both = np.isfinite(csv) & np.isfinite(lib["flash_point_c"].to_numpy(float))
+    assert (lib["flash_point_c"].to_numpy(float)[both] <= csv[both] + 1.0).all()
+    assert np.isfinite(lib["flash_point_c"].to_numpy(float)[np.isfinite(csv)]).all()
+    el = lib["name"] == "ethyl lactate"
+    # ethyl lactate: about 46 C closed cup (from memory); chemicals (Serat DIPPR) gives 57.8 C
+    assert lib.loc[el, "flash_point_c"].iloc[0] == pytest.approx(46.0)
+    assert "lower of" in lib.loc[el, "flash_point_source"].iloc[0]
+    assert not filter_mask(lib, min_flash_point_c=50)[el.to_numpy()].any()
+    pgme = (lib["name"] == "1-methoxy-2-propanol").to_numpy()
+    # PGME: 32 C (from memory); chemicals has none, so without the fill it failed every minimum
+    assert filter_mask(lib, min_flash_point_c=23)[pgme].all()
+
+
+def test_viscosities_are_plausible(lib):
+    # Every kept viscosity lies between 0.1 mPa s and 100 Pa s (common practice: diethyl ether is
+    # about 0.22 mPa s, castor oil about 700 mPa s). Mesitylene against thermo's VDI PPDS
+    # correlation at 25 C (thermo's Chemical.mul once gave 8e5 mPa s for it).
+    from thermo import Chemical
+
+    v = lib["viscosity_mpa_s"].dropna().to_numpy(float)
+    assert ((v >= 0.1) & (v <= 1e5)).all()
+    assert not lib["viscosity_method"].isin(["LETSOU_STIEL", "PRZEDZIECKI_SRIDHAR"]).any()
+    mes = lib.loc[lib["cas"] == "108-67-8", "viscosity_mpa_s"].iloc[0]
+    ref = Chemical("108-67-8", T=298.15).ViscosityLiquid.calculate(298.15, "VDI_PPDS") * 1e3
+    assert mes == pytest.approx(ref, rel=1e-3)
