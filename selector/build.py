@@ -61,7 +61,7 @@ COLUMNS = [
     "antoine_tmin_c", "antoine_tmax_c", "hvap_kj_mol", "expansion_coeff", "viscosity_mpa_s",
     "viscosity_estimated", "critical_temperature_c", "exposure_limit", "exposure_limit_unit", "synonyms",
     "melting_point_source", "boiling_point_source", "volume_method", "vapour_pressure_method",
-    "viscosity_method", "flash_point_source", "exposure_limit_source", "reactive_reason",
+    "viscosity_method", "flash_point_source", "exposure_limit_source", "reactive_reason", "data_note",
 ]
 
 
@@ -236,33 +236,55 @@ def girolami_volume(smiles: str) -> float | None:
 def _volume(c):
     """Molar volume (m3/mol) at 25 C, expansion coefficient (1/K), method, estimated flag.
 
-    Rule: thermo's default method when it rests on data for the compound; otherwise the
-    COSTALD corresponding-states estimate (Hankinson and Thomson, AIChE J. 25 (1979) 653), the
-    most accurate of thermo's predictive methods for organic liquids, marked as estimated.
-    Corresponding-states estimates fail when the compound's critical constants are themselves
-    poor estimates; when the estimate differs by more than 25 % from Girolami's method
-    (:func:`girolami_volume`), Girolami's value is kept instead (method ``GIROLAMI_1994``) and the
-    expansion coefficient is left missing. (On the 232 liquids with data-based volumes COSTALD
-    has a median error of 2.0 % and Girolami 3.9 %; the 25 % rule changes none of them.)
+    Rule: thermo's default method when it rests on data for the compound. Otherwise the median
+    of three estimates: COSTALD (Hankinson and Thomson, AIChE J. 25 (1979) 653), thermo's
+    MMSNM0 (modified SNM0 corresponding-states method of Mchaweh, Moshfeghian et al.) and
+    Girolami's structure-based method (:func:`girolami_volume`), reported under the method that
+    gave the median (the expansion coefficient is left missing when that is Girolami's). With
+    fewer than three, COSTALD, else MMSNM0, else Girolami. When the value taken is not within
+    -20 % / +25 % of Girolami's, both corresponding-states estimates are off together (bad
+    critical constants; methylhydrazine 0.51 g/cm3) and Girolami's value is used. Corresponding-states estimates fail
+    when the compound's critical constants are themselves poor estimates, which is common for
+    the polyfunctional liquids without data: on 232 library liquids with data-based volumes
+    COSTALD alone has a median error of 2.0 %, MMSNM0 2.6 %, Girolami 3.9 % and the median
+    of the three 2.0 %, but on twelve common oxygenated solvents without data (ethyl lactate,
+    hexylene glycol, triethanolamine, ...; handbook densities from memory) COSTALD alone is off by
+    a median 15 % and the median of the three by 3.9 %.
     """
     vl = c.VolumeLiquid
     method = vl.method
     estimated = method not in DATA_VOLUME_METHODS
-    if estimated and "HTCOSTALD" in vl.all_methods:
-        method = "HTCOSTALD"
-    try:
-        v = vl.calculate(T25, method)
-        vp, vm = vl.calculate(T25 + 1.0, method), vl.calculate(T25 - 1.0, method)
-        alpha = (vp - vm) / (2.0 * v)
-    except Exception:  # noqa: BLE001
-        v, alpha = None, None
-    if estimated:
-        g = girolami_volume(c.smiles or "")
-        if g is not None and (v is None or not (0.75 <= v * 1e6 / g <= 1.25)):
-            return g * 1e-6, None, "GIROLAMI_1994", True
-    if v is None:
-        return None, None, method or "", estimated
-    return v, alpha, method, estimated
+
+    def at25(m):
+        try:
+            v = vl.calculate(T25, m)
+            vp, vm = vl.calculate(T25 + 1.0, m), vl.calculate(T25 - 1.0, m)
+        except Exception:  # noqa: BLE001
+            return None
+        if v is None or not math.isfinite(v) or v <= 0:
+            return None
+        return v, (vp - vm) / (2.0 * v)
+
+    if not estimated:
+        got = at25(method)
+        return (got[0], got[1], method, False) if got else (None, None, method or "", False)
+    # no data: the median of two corresponding-states estimates and Girolami's structure-based one
+    cands = [(m, *got) for m in ("HTCOSTALD", "MMSNM0") if m in vl.all_methods and (got := at25(m))]
+    g = girolami_volume(c.smiles or "")
+    if g is not None:
+        cands.append(("GIROLAMI_1994", g * 1e-6, None))
+    if not cands:
+        got = at25(method) if method else None
+        return (got[0], got[1], method, True) if got else (None, None, method or "", True)
+    if len(cands) == 3:
+        cands.sort(key=lambda t: t[1])
+        m, v, alpha = cands[1]
+    else:
+        m, v, alpha = cands[0]
+    if g is not None and not (0.8 <= v * 1e6 / g <= 1.25):
+        # both corresponding-states estimates off together (bad critical constants): structure wins
+        m, v, alpha = "GIROLAMI_1994", g * 1e-6, None
+    return v, alpha, m, True
 
 
 #: thermo ViscosityLiquid methods that predict from structure or critical constants rather than
@@ -313,6 +335,99 @@ def _viscosity(c):
     return None, "", False
 
 
+#: Two boiling points (K) that differ by no more than this agree (the check below).
+TB_AGREE_K = 10.0
+
+
+def _vp_boiling_point(vp, method, tc=None):
+    """Temperature (K) at which ``vp``'s correlation ``method`` gives 101.325 kPa, or None."""
+    from scipy.optimize import brentq
+
+    hi = 0.999 * tc if tc else 1000.0
+    try:
+        return float(brentq(lambda t: vp.calculate(t, method) - 101325.0, 120.0, hi))
+    except Exception:  # noqa: BLE001 - no root in range, or the method fails there
+        return None
+
+
+def boiling_point_and_vapour_pressure(cas: str, c) -> tuple[float | None, str, str | None, str]:
+    """Normal boiling point (K) and its source, vapour-pressure method, and a data note.
+
+    ``chemicals`` lists several published boiling points per compound, and a few of the first
+    ones are values at reduced pressure or plain errors (N-methylpyrrolidine 206 C where the other
+    three sources give 79-81 C); thermo's vapour-pressure correlations can be off too
+    (triacetin's Landolt correlation boils at 93 C). The check: every measured boiling point (not
+    Joback's estimate) is scored by how many of the other measured values and of the boiling
+    points implied by the vapour-pressure correlations (the one anchored on Tb itself excluded)
+    lie within 10 C of it; the first-listed value is kept unless another scores higher. The
+    vapour-pressure method is thermo's default if its boiling point agrees with the kept one
+    within 10 C, else the first of thermo's other methods that does. Where none does, the
+    default is kept and the note says the two disagree."""
+    import chemicals
+
+    methods = [m for m in (chemicals.Tb_methods(cas) or []) if m != "JOBACK"]
+    measured = []
+    for m in methods:
+        try:
+            v = chemicals.Tb(cas, method=m)
+        except Exception:  # noqa: BLE001
+            v = None
+        if v:
+            measured.append((m, float(v)))
+    vp = c.VaporPressure
+    default = vp.method if vp is not None else None
+    have = set(getattr(vp, "all_methods", []) or [])
+    # thermo's own ranking: correlations of data first, corresponding-states estimates after
+    ranked = [m for m in type(vp).ranked_methods if m in have] if vp is not None else []
+    order = [m for m in ([default] + [m for m in ranked if m != default]) if m and m != "BOILING_CRITICAL"]
+    implied = {m: _vp_boiling_point(vp, m, c.Tc) for m in order}
+    pool = [v for _, v in measured] + [v for v in implied.values() if v]
+    first = chemicals.Tb(cas)
+    first_src = (chemicals.Tb_methods(cas) or [""])[0]
+    if first is None:
+        return None, "", default, ""
+
+    def support(t):
+        return sum(abs(x - t) <= TB_AGREE_K for x in pool)
+
+    tb, src = float(first), first_src
+    for m, v in measured:
+        if support(v) > support(tb):
+            tb, src = v, m
+    note = ""
+    if src != first_src:
+        note = (f"boiling point {first - 273.15:.1f} C ({first_src}) disagrees with the other sources; "
+                f"{tb - 273.15:.1f} C ({src}) kept")
+    def p_at_tb(m):
+        try:
+            v = vp.calculate(tb, m)
+        except Exception:  # noqa: BLE001
+            return None
+        return v if v is not None and math.isfinite(v) and v > 0 else None
+
+    def agrees(m):
+        # 101.325 kPa within a factor 1.5 at the boiling point, about +/- 10 C
+        p = p_at_tb(m)
+        return p is not None and 101325.0 / 1.5 <= p <= 101325.0 * 1.5
+
+    if default is None or p_at_tb(default) is None:
+        return tb, src, default, note  # the default cannot be checked at the boiling point: kept
+    agree = [default] if agrees(default) else [m for m in order if agrees(m)]
+    method = agree[0] if agree else default
+    if not agree:
+        d = implied.get(default)
+        note = "; ".join(x for x in [note, (
+            f"vapour pressure ({default}) boils at {d - 273.15:.0f} C, not {tb - 273.15:.1f} C: "
+            "boiling point or vapour pressure is wrong, treat both as uncertain" if d else
+            f"vapour pressure ({default}) cannot be checked against the boiling point")] if x)
+    elif method != default:
+        note = "; ".join(x for x in [note, f"vapour pressure from {method} (thermo's default {default} "
+                                           f"boils at {implied[default] - 273.15:.0f} C)"
+                                           if implied.get(default) else
+                                           f"vapour pressure from {method}"] if x)
+    return tb, src, method, note
+
+
 def liquid_record(cas: str) -> dict | None:
     """Property record of one compound at 25 C from ``thermo``, or None when not a liquid at 25 C."""
     import chemicals
@@ -327,6 +442,13 @@ def liquid_record(cas: str) -> dict | None:
             c = Chemical(cas, T=T25, P=101325.0)
         except Exception:  # noqa: BLE001 - not in thermo's identifier database: cannot build a record
             return None
+        tb_checked, tb_src, vp_method, data_note = boiling_point_and_vapour_pressure(cas, c)
+        if tb_checked is not None and not (tm < T25 < tb_checked):
+            return None
+        tb = tb_checked if tb_checked is not None else tb
+        if vp_method and c.VaporPressure is not None and vp_method != c.VaporPressure.method:
+            c.VaporPressure.method = vp_method
+        psat = c.Psat  # thermo's value at 25 C with the checked method
         vm, alpha, vmethod, vest = _volume(c)
         mu, mu_method, mu_est = _viscosity(c)
         rec = {
@@ -343,7 +465,7 @@ def liquid_record(cas: str) -> dict | None:
             "boiling_point_c": _num(tb, offset=-273.15, digits=2),
             "flash_point_c": _num(c.Tflash, offset=-273.15, digits=1),
             "autoignition_c": _num(c.Tautoignition, offset=-273.15, digits=2),
-            "vapour_pressure_kpa": _num(c.Psat, 1e-3, digits=5),
+            "vapour_pressure_kpa": _num(psat, 1e-3, digits=5),
             "hvap_kj_mol": _num(c.Hvapm, 1e-3, digits=4),
             # constant-density correlations report ~0: that is no measurement, keep it missing
             "expansion_coeff": _num(alpha, digits=7) if (alpha or 0) > 1e-6 else np.nan,
@@ -352,9 +474,10 @@ def liquid_record(cas: str) -> dict | None:
             "critical_temperature_c": _num(c.Tc, offset=-273.15, digits=2),
             "synonyms": _clean_synonyms(c.name, c.synonyms, cas),
             "melting_point_source": (chemicals.Tm_methods(cas) or [""])[0],
-            "boiling_point_source": (chemicals.Tb_methods(cas) or [""])[0],
+            "boiling_point_source": tb_src,
             "volume_method": vmethod or "",
-            "vapour_pressure_method": c.VaporPressure.method or "",
+            "vapour_pressure_method": (c.VaporPressure.method or "") if psat is not None else "",
+            "data_note": data_note,
             "viscosity_method": mu_method,
             "flash_point_source": (chemicals.safety.T_flash_methods(cas) or [""])[0]
             if c.Tflash is not None else "",
@@ -369,7 +492,7 @@ def liquid_record(cas: str) -> dict | None:
             rec["exposure_limit_unit"] = ""
             rec["exposure_limit_source"] = ""
         ant = None
-        if c.VaporPressure is not None and c.Psat is not None:
+        if c.VaporPressure is not None and psat is not None:
             tmin = max(tm + 1.0, tb - 100.0, 200.0)
             tmax = tb + 10.0
             if c.Tc:

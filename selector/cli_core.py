@@ -16,7 +16,7 @@ SHOW_FIELDS = ["name", "cas", "smiles", "formula", "molar_mass", "delta_d", "del
                "exposure_limit", "exposure_limit_unit", "exposure_limit_source", "synonyms",
                "melting_point_source", "boiling_point_source", "volume_method",
                "vapour_pressure_method", "viscosity_method", "viscosity_estimated", "flash_point_source", "origin",
-               "reactive_reason"]
+               "reactive_reason", "data_note"]
 
 
 def target_from_text(text: str, radius: float | None = None, library=None):
@@ -92,8 +92,22 @@ def cmd_rank(a) -> int:
     shown = _with_hazard_class(res, lib)
     if (shown["reagent"] != "").any():
         cols = cols + ["reagent"]
-    emit(shown.head(a.top), a, cols, caution=True, header=header)
+    emit(shown.head(a.top), a, cols, caution=True, header=header + data_note_line(shown.head(a.top)))
     return 0
+
+
+def data_note_line(rows) -> str:
+    """A header line naming the liquids of ``rows`` whose library data carry a ``data_note``
+    (boiling point or vapour pressure in doubt), or ""."""
+    if "data_note" not in rows:
+        return ""
+    has = rows["data_note"].astype("string").fillna("").str.strip() != ""
+    if not has.any():
+        return ""
+    names = rows.loc[has.to_numpy(), "name"].astype(str).tolist()
+    more = f" and {len(names) - 6} more" if len(names) > 6 else ""
+    return ("\nData in doubt (boiling point or vapour pressure; `likewise show NAME` says which): "
+            + ", ".join(names[:6]) + more)
 
 
 def _with_hazard_class(res, lib):

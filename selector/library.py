@@ -36,7 +36,8 @@ HSP = ["delta_d", "delta_p", "delta_h"]
 _TEXT_COLUMNS = ["name", "cas", "smiles", "inchikey", "formula", "hsp_source",
                  "hsp_sources_available", "synonyms", "melting_point_source",
                  "boiling_point_source", "volume_method", "vapour_pressure_method", "viscosity_method",
-                 "flash_point_source", "exposure_limit_source", "exposure_limit_unit", "origin"]
+                 "flash_point_source", "exposure_limit_source", "exposure_limit_unit", "origin",
+                 "data_note"]
 
 #: True/false columns that mark a value as estimated rather than measured.
 ESTIMATE_FLAGS = ("molar_volume_estimated", "viscosity_estimated")
@@ -376,7 +377,7 @@ _NOT_FILLED = {"name", "delta_d", "delta_p", "delta_h", "hsp_source", "hsp_sourc
 #: not sit beside the library's density. ``antoine_*`` go with the vapour pressure because
 #: :func:`vapour_pressure_kpa` prefers the Antoine fit over the 25 C value.
 COMPANIONS = {
-    "boiling_point_c": ("boiling_point_source",),
+    "boiling_point_c": ("boiling_point_source", "data_note"),
     "melting_point_c": ("melting_point_source",),
     "molar_volume": ("volume_method", "molar_volume_estimated", "density"),
     "vapour_pressure_kpa": ("vapour_pressure_method", "antoine_a", "antoine_b", "antoine_c",

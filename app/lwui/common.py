@@ -28,7 +28,7 @@ ERRORS = (SelectorError, ValueError, KeyError, TypeError, FileNotFoundError)
 RANK_COLUMNS = ["rank", "name", "cas", "delta_d", "delta_p", "delta_h", "ra", "red",
                 "polarity_match", "score", "molar_volume", "boiling_point_c", "flash_point_c",
                 "hazard_class", "exposure_limit", "exposure_limit_unit", "hsp_source", "sources_disagree",
-                "origin"]
+                "origin", "data_note"]
 
 COLUMN_CONFIG = {
     "rank": st.column_config.NumberColumn("Rank", format="%d", width="small"),
@@ -48,6 +48,8 @@ COLUMN_CONFIG = {
     "exposure_limit": st.column_config.NumberColumn("Exposure limit", format="%.4g"),
     "exposure_limit_unit": st.column_config.TextColumn("unit"),
     "hsp_source": st.column_config.TextColumn("HSP source"),
+    "data_note": st.column_config.TextColumn("Data note", help="Boiling point or vapour pressure in "
+                                             "doubt: the published values disagree"),
     "sources_disagree": st.column_config.CheckboxColumn("Sources disagree",
                                                         help="published HSP differ by > 1 MPa^0.5"),
     "ra_to_target": st.column_config.NumberColumn("Ra", format="%.2f"),
