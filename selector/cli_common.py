@@ -202,6 +202,51 @@ def add_output_args(p: argparse.ArgumentParser, default_top: int | None = 20) ->
                    metavar="N", help=help_)
 
 
+def _fmt(spec):
+    def f(v):
+        try:
+            return "-" if v != v else spec.format(v)  # no data: "-", not "nan"
+        except (TypeError, ValueError):
+            return str(v)
+    return f
+
+
+def _formatters(df) -> dict:
+    """Per-column number formats for tables: data to the precision they carry (temperatures
+    0.1 C, HSP 0.01 MPa^0.5, volumes 0.1 cm3/mol), small quantities to 3 significant figures."""
+    out = {}
+    for c in df.columns:
+        if df[c].dtype.kind != "f":
+            continue
+        if c.endswith("_c"):
+            out[c] = _fmt("{:.1f}")
+        elif c.startswith("delta_") or c in ("molar_volume", "molar_mass", "radius", "r0"):
+            out[c] = _fmt("{:.2f}" if c.startswith("delta_") else "{:.1f}")
+        elif c in ("vapour_pressure_kpa", "viscosity_mpa_s", "exposure_limit", "evaporation_rate",
+                   "cost_per_litre", "hvap_kj_mol"):
+            out[c] = _fmt("{:.3g}")
+    return out
+
+
+#: unit notes for the columns a table may carry
+_UNITS = (
+    (("delta_d", "delta_p", "delta_h", "ra", "radius"), "dD/dP/dH, Ra, R0 in MPa^0.5"),
+    (("boiling_point_c", "flash_point_c", "bp_low_c", "bp_high_c", "lowest_flash_point_c"), "temperatures in C"),
+    (("molar_volume",), "molar volume in cm3/mol"),
+    (("vapour_pressure_kpa",), "vapour pressure in kPa at 25 C"),
+    (("viscosity_mpa_s",), "viscosity in mPa s"),
+    (("evaporation_rate",), "evaporation rate relative to n-butyl acetate = 1"),
+    (("blend",), "blend shares by volume"),
+)
+
+
+def units_line(columns) -> str:
+    """One "Units: ..." line for the columns present, or ""."""
+    cols = set(columns)
+    parts = [text for keys, text in _UNITS if cols & set(keys)]
+    return ("Units: " + "; ".join(parts) + "; - = no data") if parts else ""
+
+
 def emit(df, a, columns=None, caution: bool = False, header: str | None = None,
          empty: str = EMPTY_MESSAGE) -> None:
     """Print or write a result table in the chosen format.
@@ -227,7 +272,9 @@ def emit(df, a, columns=None, caution: bool = False, header: str | None = None,
 
         with pd.option_context("display.max_rows", 500, "display.max_columns", 50,
                                "display.width", 200, "display.float_format", "{:.3f}".format):
-            text = df.to_string(index=False)
+            text = df.to_string(index=False, formatters=_formatters(df), na_rep="-")
+        units = units_line(df.columns)
+        header = "\n".join(x for x in (header, units) if x)
         if header:
             text = header + "\n" + text
         if caution:

@@ -119,3 +119,18 @@ def test_app_refuses_a_busy_port(capsys):
         err = capsys.readouterr().err
         assert f"port {port}" in err and "in use" in err and "serving" not in err
     assert port_is_free(port)
+
+
+def test_table_numbers_carry_their_precision_and_units(capsys):
+    # Temperatures to 0.1 C and HSP to 0.01 MPa^0.5 (the tables' own precision; common practice:
+    # no more digits than the data carry), missing data as "-", and a units line.
+    from selector.cli import main
+
+    assert main(["rank", "18,1.4,2", "--only", "toluene,dibromomethane", "--top", "2"]) == 0
+    out = capsys.readouterr().out
+    assert "Units: dD/dP/dH, Ra, R0 in MPa^0.5; temperatures in C" in out
+    tol = next(line for line in out.splitlines() if " toluene " in line)
+    # toluene: bp 110.6 C, flash point 4 C (chemicals), dD 18.0 (published tables)
+    assert " 110.6 " in tol and " 4.0 " in tol and " 18.00 " in tol and "110.600" not in tol
+    dbm = next(line for line in out.splitlines() if "dibromomethane" in line)
+    assert " - " in dbm  # no flash point in the library: shown as "-", not NaN

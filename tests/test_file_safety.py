@@ -319,7 +319,8 @@ def test_file_output_gets_every_row_unless_top_given(tmp_path, capsys):
 def test_list_shows_all_by_default_and_empty_result_is_one_line(capsys):
     rc, out, _ = run(["list"], capsys)
     n = int(out.splitlines()[0].split()[0])  # "<n> liquids match"
-    assert rc == 0 and n > 100 and len(out.strip().splitlines()) == n + 2  # count line, column names, rows
+    assert rc == 0 and n > 100 and len(out.strip().splitlines()) == n + 3  # count, units, column names, rows
+    assert out.splitlines()[1].startswith("Units: dD/dP/dH")
     rc, out, _ = run(["list", "--format", "csv"], capsys)
     assert rc == 0 and len(pd.read_csv(io.StringIO(out))) == n
     rc, out, _ = run(["list", "--search", "no-such-liquid-anywhere"], capsys)
