@@ -59,7 +59,8 @@ COLUMNS = [
     "molar_volume", "molar_volume_estimated", "density", "melting_point_c", "boiling_point_c", "flash_point_c",
     "autoignition_c", "vapour_pressure_kpa", "antoine_a", "antoine_b", "antoine_c",
     "antoine_tmin_c", "antoine_tmax_c", "hvap_kj_mol", "expansion_coeff", "viscosity_mpa_s",
-    "viscosity_estimated", "critical_temperature_c", "exposure_limit", "exposure_limit_unit", "synonyms",
+    "viscosity_estimated", "critical_temperature_c", "exposure_limit", "exposure_limit_unit", "short_term_limit",
+    "short_term_limit_unit", "synonyms",
     "melting_point_source", "boiling_point_source", "volume_method", "vapour_pressure_method",
     "viscosity_method", "flash_point_source", "exposure_limit_source", "reactive_reason", "data_note",
 ]
@@ -428,6 +429,15 @@ def boiling_point_and_vapour_pressure(cas: str, c) -> tuple[float | None, str, s
     return tb, src, method, note
 
 
+#: Isomers without an exposure limit of their own that take the limit set for the commercial
+#: mixture (occupational limits are set for "xylene, all isomers"; common practice).
+EXPOSURE_LIMIT_OF_MIXTURE = {
+    "95-47-6": ("1330-20-7", "mixed xylenes"),
+    "106-42-3": ("1330-20-7", "mixed xylenes"),
+    "108-38-3": ("1330-20-7", "mixed xylenes"),
+}
+
+
 def liquid_record(cas: str) -> dict | None:
     """Property record of one compound at 25 C from ``thermo``, or None when not a liquid at 25 C."""
     import chemicals
@@ -483,10 +493,18 @@ def liquid_record(cas: str) -> dict | None:
             if c.Tflash is not None else "",
         }
         twa = chemicals.safety.TWA(cas)
+        lim_cas, lim_note = cas, ""
+        if not twa and cas in EXPOSURE_LIMIT_OF_MIXTURE:
+            lim_cas = EXPOSURE_LIMIT_OF_MIXTURE[cas][0]
+            lim_note = f" (limit for {EXPOSURE_LIMIT_OF_MIXTURE[cas][1]}, CAS {lim_cas})"
+            twa = chemicals.safety.TWA(lim_cas)
+        stel = chemicals.safety.STEL(lim_cas)
+        rec["short_term_limit"] = _sig(_num(stel[0]), 3) if stel else np.nan
+        rec["short_term_limit_unit"] = stel[1] if stel else ""
         if twa:
             rec["exposure_limit"] = _sig(_num(twa[0]), 3)  # converted limits carry spurious digits
             rec["exposure_limit_unit"] = twa[1]
-            rec["exposure_limit_source"] = (chemicals.safety.TWA_methods(cas) or [""])[0]
+            rec["exposure_limit_source"] = (chemicals.safety.TWA_methods(lim_cas) or [""])[0] + lim_note
         else:
             rec["exposure_limit"] = np.nan
             rec["exposure_limit_unit"] = ""

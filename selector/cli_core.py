@@ -13,7 +13,8 @@ SHOW_FIELDS = ["name", "cas", "smiles", "formula", "molar_mass", "delta_d", "del
                "hsp_source", "hsp_sources_available", "hsp_spread", "sources_disagree", "molar_volume",
                "density", "melting_point_c", "boiling_point_c", "flash_point_c", "autoignition_c",
                "vapour_pressure_kpa", "hvap_kj_mol", "expansion_coeff", "viscosity_mpa_s",
-               "exposure_limit", "exposure_limit_unit", "exposure_limit_source", "synonyms",
+               "exposure_limit", "exposure_limit_unit", "exposure_limit_source", "short_term_limit",
+               "short_term_limit_unit", "synonyms",
                "melting_point_source", "boiling_point_source", "volume_method",
                "vapour_pressure_method", "viscosity_method", "viscosity_estimated", "flash_point_source", "origin",
                "reactive_reason", "data_note"]

@@ -910,11 +910,9 @@ def as_library_rows(df: pd.DataFrame, include_library=False) -> pd.DataFrame:
     names = d["name"].astype(str) if "name" in d.columns else pd.Series("", index=d.index)
     names = names.where(names.str.strip() != "", "estimated: " + d["smiles"].astype(str))
     rows = pd.DataFrame({c: np.nan for c in COLUMNS}, index=d.index)
-    text = {"name", "cas", "smiles", "inchikey", "formula", "hsp_source", "hsp_sources_available",
-            "synonyms", "melting_point_source", "boiling_point_source", "volume_method",
-            "vapour_pressure_method", "viscosity_method", "flash_point_source", "exposure_limit_source",
-            "exposure_limit_unit"}
-    for c in text:
+    from .library import _TEXT_COLUMNS
+
+    for c in (c for c in _TEXT_COLUMNS if c in COLUMNS):
         rows[c] = ""
     rows["name"] = names.values
     rows["smiles"] = d["smiles"].values

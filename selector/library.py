@@ -37,7 +37,7 @@ _TEXT_COLUMNS = ["name", "cas", "smiles", "inchikey", "formula", "hsp_source",
                  "hsp_sources_available", "synonyms", "melting_point_source",
                  "boiling_point_source", "volume_method", "vapour_pressure_method", "viscosity_method",
                  "flash_point_source", "exposure_limit_source", "exposure_limit_unit", "origin",
-                 "data_note"]
+                 "data_note", "short_term_limit_unit"]
 
 #: True/false columns that mark a value as estimated rather than measured.
 ESTIMATE_FLAGS = ("molar_volume_estimated", "viscosity_estimated")
@@ -385,6 +385,7 @@ COMPANIONS = {
     "viscosity_mpa_s": ("viscosity_method", "viscosity_estimated"),
     "flash_point_c": ("flash_point_source",),
     "exposure_limit": ("exposure_limit_unit", "exposure_limit_source"),
+    "short_term_limit": ("short_term_limit_unit",),
 }
 _COMPANION_OF = {c: main for main, cs in COMPANIONS.items() for c in cs}
 

@@ -79,7 +79,13 @@ def _exposure_text(df: pd.DataFrame) -> np.ndarray:
     src = df.get("exposure_limit_source", pd.Series([""] * n, index=df.index)).astype(str).to_numpy()
     txt = pd.Series(v).map(lambda x: f"{x:.4g}").to_numpy(object) + " " + unit
     txt = np.where(src != "", txt + " (" + src + ")", txt)
-    return np.where(np.isfinite(v), txt, "no exposure limit in the library").astype(object)
+    none = "no exposure limit in the library"
+    if "short_term_limit" in df:
+        sv = pd.to_numeric(df["short_term_limit"], errors="coerce").to_numpy(float)
+        su = df.get("short_term_limit_unit", pd.Series([""] * n, index=df.index)).astype(str).to_numpy()
+        stxt = "no 8-h limit; short-term (15 min) " + pd.Series(sv).map(lambda x: f"{x:.4g}").to_numpy(object) + " " + su
+        none = np.where(np.isfinite(sv), stxt, none)
+    return np.where(np.isfinite(v), txt, none).astype(object)
 
 
 def caution_table(liquids: pd.DataFrame) -> pd.DataFrame:

@@ -552,3 +552,20 @@ def test_estimated_densities_of_common_oxygenated_solvents():
         r = lib.loc[lib["cas"] == cas].iloc[0]
         assert r["molar_volume_estimated"]
         assert r["density"] == pytest.approx(rho, rel=0.06), (r["name"], r["density"])
+
+
+def test_exposure_limits_for_isomers_and_short_term_only(lib):
+    # chemicals.safety (Ontario limits): mixed xylenes 100 ppm 8-h TWA, 150 ppm STEL; ethanol has
+    # only a short-term limit, 1000 ppm. The isomers take the mixture's limit (limits are set for
+    # "xylene, all isomers"; common practice), and the caution text names the short-term limit
+    # instead of saying there is none.
+    from selector.report import caution_table
+
+    for cas in ("95-47-6", "106-42-3"):
+        r = lib.loc[lib["cas"] == cas].iloc[0]
+        assert r["exposure_limit"] == 100 and r["exposure_limit_unit"] == "ppm"
+        assert "mixed xylenes" in r["exposure_limit_source"]
+    eth = lib.loc[lib["name"] == "ethanol"]
+    assert eth["exposure_limit"].isna().all() and eth["short_term_limit"].iloc[0] == 1000
+    txt = caution_table(eth)["exposure"].iloc[0]
+    assert txt == "no 8-h limit; short-term (15 min) 1000 ppm"
