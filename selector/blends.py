@@ -514,9 +514,9 @@ def _target_and_candidates(target, library, temperature, filters, costs=None):
     mask, left_out = masks_and_reagents(lib, temperature=t_c, **filters)
     if isinstance(target, str):
         mask &= lib["name"].to_numpy() != tgt.name
-    cost = None
+    cost, notes = None, []
     if costs is not None:
-        cost_full = _costs(costs, lib)
+        cost_full, notes = _costs(costs, lib)
         mask &= np.isfinite(cost_full)
         cost = cost_full[mask]
     cand = lib.loc[mask].reset_index(drop=True)
@@ -527,30 +527,44 @@ def _target_and_candidates(target, library, temperature, filters, costs=None):
                             + "; widen the boiling-point or flash-point window, allow a worse hazard class "
                             "or shorten the exclude list")
     h = corrected_hsp(cand, t_c)
-    return tgt, cand, h, t_c, cost
+    return tgt, cand, h, t_c, (cost, notes)
+
+
+def _cost_pairs(costs) -> list[tuple]:
+    """(name, price) pairs of a cost mapping, Series or table (columns name, cost_per_litre)."""
+    if isinstance(costs, pd.Series):
+        pairs = list(zip(costs.index, costs.to_numpy()))
+    elif isinstance(costs, pd.DataFrame):
+        if not {"name", "cost_per_litre"} <= set(costs.columns):
+            raise SelectorError("a cost table needs columns name, cost_per_litre")
+        pairs = list(zip(costs["name"], costs["cost_per_litre"]))
+    elif isinstance(costs, dict):
+        pairs = list(costs.items())
+    else:
+        pairs = []
+    if not pairs:
+        raise SelectorError("cost_per_litre must be a non-empty mapping of liquid name -> cost per litre")
+    return pairs
 
 
 def _costs(costs, lib):
-    if isinstance(costs, pd.Series):
-        costs = costs.to_dict()
-    if isinstance(costs, pd.DataFrame):
-        if not {"name", "cost_per_litre"} <= set(costs.columns):
-            raise SelectorError("a cost table needs columns name, cost_per_litre")
-        costs = dict(zip(costs["name"], costs["cost_per_litre"]))
-    if not isinstance(costs, dict) or not costs:
-        raise SelectorError("cost_per_litre must be a non-empty mapping of liquid name -> cost per litre")
-    names = list(costs)
+    """Price per litre for each liquid of ``lib`` (NaN: not priced) and the notes on names
+    matched by synonym. A liquid priced twice (the same name on two rows, or a name and its
+    synonym) is refused."""
+    from .library import _key
+
+    pairs = _cost_pairs(costs)
+    names = [str(n) for n, _ in pairs]
     pos = locate_many(names, lib, "cost list")
     lib_names = lib["name"].astype(str).to_numpy()
     seen: dict[int, str] = {}
     for p, nm in zip(pos, names):
         if int(p) in seen:
-            raise SelectorError(f"the cost list prices {lib_names[p]} twice ({seen[int(p)]!r} and {nm!r}); "
-                                "keep one price per liquid")
-        seen[int(p)] = str(nm)
+            how = "on two rows" if seen[int(p)] == nm else f"twice ({seen[int(p)]!r} and {nm!r})"
+            raise SelectorError(f"the cost list prices {lib_names[p]} {how}; keep one price per liquid")
+        seen[int(p)] = nm
     out = np.full(len(lib), np.nan)
-    for p, nm in zip(pos, names):
-        v = costs[nm]
+    for p, (nm, v) in zip(pos, pairs):
         try:
             v = float(v)
         except (TypeError, ValueError):
@@ -558,23 +572,9 @@ def _costs(costs, lib):
         if not math.isfinite(v) or v < 0:
             raise SelectorError(f"cost of {nm!r} must be a finite number >= 0, got {v!r}")
         out[p] = v
-    return out
-
-
-def cost_name_notes(costs, library: pd.DataFrame | None = None) -> list[str]:
-    """For a cost list, one note per name that was matched to a library liquid of another name
-    (a synonym such as "xylene" -> o-xylene), so that the user sees which liquid carries the
-    price."""
-    from .library import _key
-
-    lib = load_library() if library is None else library
-    names = list(costs["name"]) if isinstance(costs, pd.DataFrame) else list(costs)
-    if not names:
-        return []
-    pos = locate_many(names, lib, "cost list")
-    lib_names = lib["name"].astype(str).to_numpy()
-    return [f"price of {nm!r} used for {lib_names[p]}" for nm, p in zip(names, pos)
-            if _key(nm) != _key(lib_names[p])]
+    notes = [f"price of {nm!r} used for {lib_names[p]}" for nm, p in zip(names, pos)
+             if _key(nm) != _key(lib_names[p])]
+    return out, notes
 
 
 def _flash_for_blends(cand):
@@ -745,7 +745,8 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
         raise SelectorError(f"min_gain must be a number of MPa^0.5, got {min_gain!r}") from None
     if not math.isfinite(gain) or gain < 0:
         raise SelectorError("min_gain must be a finite number >= 0 (MPa^0.5)")
-    tgt, cand, h, t_c, cost = _target_and_candidates(target, library, temperature, filters, cost_per_litre)
+    tgt, cand, h, t_c, (cost, price_notes) = _target_and_candidates(target, library, temperature, filters,
+                                                                      cost_per_litre)
     mis = _miscibility(cand, t_c) if (require_miscible and kmax > 1 and len(cand) > 1) else None
     pool = max(2000, 50 * (top or 20))
     from .hazards import hazard_columns
@@ -769,7 +770,7 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
                      miscibility="selector.mixing.miscible_pairs" if mis is not None else "not checked",
                      candidates=len(cand))
     if cost_per_litre is not None:
-        out.attrs["price_notes"] = cost_name_notes(cost_per_litre, library)
+        out.attrs["price_notes"] = price_notes
     return out
 
 

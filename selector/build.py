@@ -264,7 +264,8 @@ def _volume(c):
             return None
         if v is None or not math.isfinite(v) or v <= 0:
             return None
-        return v, (vp - vm) / (2.0 * v)
+        ok = vp is not None and vm is not None and math.isfinite(vp) and math.isfinite(vm)
+        return v, ((vp - vm) / (2.0 * v) if ok else None)
 
     if not estimated:
         got = at25(method)
@@ -393,12 +394,12 @@ def boiling_point_and_vapour_pressure(cas: str, c) -> tuple[float | None, str, s
 
     tb, src = float(first), first_src
     for m, v in measured:
-        if support(v) > support(tb):
+        if support(v) > support(tb) and abs(v - float(first)) > TB_AGREE_K:
             tb, src = v, m
     note = ""
     if src != first_src:
-        note = (f"boiling point {first - 273.15:.1f} C ({first_src}) disagrees with the other sources; "
-                f"{tb - 273.15:.1f} C ({src}) kept")
+        # a correction, not a doubt: it goes with the source, not into the data note
+        src = f"{src} ({first_src}'s {first - 273.15:.1f} C disagrees with the other sources)"
     def p_at_tb(m):
         try:
             v = vp.calculate(tb, m)
@@ -417,15 +418,14 @@ def boiling_point_and_vapour_pressure(cas: str, c) -> tuple[float | None, str, s
     method = agree[0] if agree else default
     if not agree:
         d = implied.get(default)
-        note = "; ".join(x for x in [note, (
-            f"vapour pressure ({default}) boils at {d - 273.15:.0f} C, not {tb - 273.15:.1f} C: "
-            "boiling point or vapour pressure is wrong, treat both as uncertain" if d else
-            f"vapour pressure ({default}) cannot be checked against the boiling point")] if x)
+        note = (f"vapour pressure ({default}) boils at {d - 273.15:.0f} C, not {tb - 273.15:.1f} C: "
+                "boiling point or vapour pressure is wrong, treat both as uncertain" if d else
+                f"vapour pressure ({default}) does not give 101 kPa at the boiling point "
+                f"{tb - 273.15:.1f} C: boiling point or vapour pressure is wrong, treat both as uncertain")
     elif method != default:
-        note = "; ".join(x for x in [note, f"vapour pressure from {method} (thermo's default {default} "
-                                           f"boils at {implied[default] - 273.15:.0f} C)"
-                                           if implied.get(default) else
-                                           f"vapour pressure from {method}"] if x)
+        # a correction: recorded with the method (thermo's default disagreed with the boiling point)
+        method = (f"{method} (thermo's default {default} boils at {implied[default] - 273.15:.0f} C)"
+                  if implied.get(default) else f"{method} (thermo's default {default} disagrees with the boiling point)")
     return tb, src, method, note
 
 
@@ -456,8 +456,9 @@ def liquid_record(cas: str) -> dict | None:
         if tb_checked is not None and not (tm < T25 < tb_checked):
             return None
         tb = tb_checked if tb_checked is not None else tb
-        if vp_method and c.VaporPressure is not None and vp_method != c.VaporPressure.method:
-            c.VaporPressure.method = vp_method
+        vp_plain = vp_method.split(" (")[0] if vp_method else vp_method
+        if vp_plain and c.VaporPressure is not None and vp_plain != c.VaporPressure.method:
+            c.VaporPressure.method = vp_plain
         psat = c.Psat  # thermo's value at 25 C with the checked method
         vm, alpha, vmethod, vest = _volume(c)
         mu, mu_method, mu_est = _viscosity(c)
@@ -486,7 +487,7 @@ def liquid_record(cas: str) -> dict | None:
             "melting_point_source": (chemicals.Tm_methods(cas) or [""])[0],
             "boiling_point_source": tb_src,
             "volume_method": vmethod or "",
-            "vapour_pressure_method": (c.VaporPressure.method or "") if psat is not None else "",
+            "vapour_pressure_method": (vp_method or c.VaporPressure.method or "") if psat is not None else "",
             "data_note": data_note,
             "viscosity_method": mu_method,
             "flash_point_source": (chemicals.safety.T_flash_methods(cas) or [""])[0]
@@ -551,6 +552,11 @@ def apply_names(df: pd.DataFrame) -> pd.DataFrame:
             syn.insert(0, old)
         df.iloc[i, df.columns.get_loc("name")] = new
         df.iloc[i, df.columns.get_loc("synonyms")] = "|".join(syn)
+    low = df["name"].astype(str).str.lower()
+    clash = low.duplicated(keep=False) & df["cas"].isin(fix.index).to_numpy()
+    if clash.any():
+        raise ValueError("parameters/names.csv gives a name another liquid already has: "
+                         + ", ".join(sorted(set(df.loc[clash, "name"].astype(str)))))
     return df
 
 

@@ -25,6 +25,8 @@ def _label(df):
 
 
 def _prices(path):
+    import pandas as pd
+
     from .errors import SelectorError
     from .io import read_user_csv
 
@@ -33,7 +35,8 @@ def _prices(path):
     cols = {c.strip().lower(): c for c in t.columns}
     if "name" not in cols or "cost_per_litre" not in cols:
         raise SelectorError(f"the price list {path} needs columns name, cost_per_litre")
-    return dict(zip(t[cols["name"]].astype(str), t[cols["cost_per_litre"]]))
+    # a table, not a dict: the same name on two rows must reach the duplicate check
+    return pd.DataFrame({"name": t[cols["name"]].astype(str), "cost_per_litre": t[cols["cost_per_litre"]]})
 
 
 def _target(a, lib):

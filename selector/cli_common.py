@@ -203,28 +203,60 @@ def add_output_args(p: argparse.ArgumentParser, default_top: int | None = 20) ->
 
 
 def _fmt(spec):
+    import pandas as pd
+
     def f(v):
         try:
-            return "-" if v != v else spec.format(v)  # no data: "-", not "nan"
+            return "-" if pd.isna(v) else spec.format(v)  # no data: "-", not "nan" / "<NA>"
         except (TypeError, ValueError):
             return str(v)
     return f
 
 
+def _sig3(v) -> str:
+    """Three significant figures without an exponent (1000 -> "1000", 0.00123 -> "0.00123")."""
+    import math
+
+    import pandas as pd
+
+    if pd.isna(v):
+        return "-"
+    v = float(v)
+    if v == 0 or not math.isfinite(v):
+        return f"{v:g}"
+    if abs(v) < 1e-3:
+        return f"{v:.2e}"
+    digits = max(0, 2 - int(math.floor(math.log10(abs(v)))))
+    return f"{v:.{digits}f}"
+
+
+#: temperature columns (C), shown to 0.1 C
+_TEMPERATURE_COLUMNS = {"boiling_point_c", "flash_point_c", "melting_point_c", "autoignition_c", "bp_low_c",
+                        "bp_high_c", "lowest_flash_point_c", "critical_temperature_c", "antoine_tmin_c",
+                        "antoine_tmax_c", "temperature_c", "ucst_c"}
+
+
 def _formatters(df) -> dict:
     """Per-column number formats for tables: data to the precision they carry (temperatures
-    0.1 C, HSP 0.01 MPa^0.5, volumes 0.1 cm3/mol), small quantities to 3 significant figures."""
+    0.1 C, HSP and R0 0.01 MPa^0.5, volumes 0.1 cm3/mol), small quantities to 3 significant
+    figures without exponents."""
     out = {}
     for c in df.columns:
-        if df[c].dtype.kind != "f":
+        if df[c].dtype.kind not in "fiu" and str(df[c].dtype) not in ("Float64", "Int64"):
             continue
-        if c.endswith("_c"):
+        if df[c].dtype.kind in "iu" or str(df[c].dtype) == "Int64":
+            continue
+        if c in _TEMPERATURE_COLUMNS:
             out[c] = _fmt("{:.1f}")
-        elif c.startswith("delta_") or c in ("molar_volume", "molar_mass", "radius", "r0"):
-            out[c] = _fmt("{:.2f}" if c.startswith("delta_") else "{:.1f}")
-        elif c in ("vapour_pressure_kpa", "viscosity_mpa_s", "exposure_limit", "evaporation_rate",
-                   "cost_per_litre", "hvap_kj_mol"):
-            out[c] = _fmt("{:.3g}")
+        elif c.startswith("delta_") or c in ("radius", "r0"):
+            out[c] = _fmt("{:.2f}")
+        elif c in ("molar_volume", "molar_mass"):
+            out[c] = _fmt("{:.1f}")
+        elif c in ("vapour_pressure_kpa", "viscosity_mpa_s", "exposure_limit", "short_term_limit",
+                   "evaporation_rate", "cost_per_litre", "hvap_kj_mol"):
+            out[c] = _sig3
+        else:
+            out[c] = _fmt("{:.3f}")
     return out
 
 

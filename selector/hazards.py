@@ -46,6 +46,7 @@ from __future__ import annotations
 
 import functools
 import math
+import threading
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -302,7 +303,9 @@ def hazard_table(library: pd.DataFrame | None = None) -> pd.DataFrame:
     fp = lib_fp[known].copy()
     lib_src = (lib["flash_point_source"].astype("string").fillna("").astype(str).to_numpy(object)[known]
                if "flash_point_source" in lib else np.full(int(known.sum()), "", dtype=object))
-    basis = np.where(np.isfinite(fp), "library: " + np.where(lib_src == "", "chemicals", lib_src).astype(object),
+    user = (lib["origin"].astype(str).to_numpy()[known] == "user") if "origin" in lib else np.zeros(int(known.sum()), bool)
+    blank_src = np.where(user, "your value", "library: chemicals")
+    basis = np.where(np.isfinite(fp), np.where(lib_src == "", blank_src, "library: " + lib_src.astype(object)),
                      "").astype(object)
     csv_fp = rows["csv_flash_point_c"].to_numpy(float)
     nf = rows["not_flammable"].to_numpy(bool)
@@ -351,43 +354,47 @@ def _bundled_table() -> pd.DataFrame:
 
 
 def hazard_columns(library: pd.DataFrame | None = None) -> pd.DataFrame:
-    """:func:`hazard_table` for ``library``, cached when it is the bundled library."""
+    """:func:`hazard_table` for ``library`` (a copy), cached by the content it is computed from."""
     if library is None:
         return _bundled_table().copy()
-    if "origin" in library and (library["origin"] == "library").all() and len(library) == len(_bundled_table()):
-        t = _bundled_table()
-        from .library import _bundled
-
-        if (t.index == library.index).all() and (
-                _bundled()["cas"].to_numpy() == library["cas"].to_numpy()).all():
-            return t.copy()
-    key = _content_key(library)
-    hit = _TABLE_CACHE.get(key)
+    snap = _table_inputs(library)
+    with _CACHE_LOCK:
+        hit = next((t for s, t in _TABLE_CACHE if _same_inputs(s, snap)), None)
     if hit is None:
         hit = hazard_table(library)
-        _TABLE_CACHE[key] = hit
-        while len(_TABLE_CACHE) > 8:
-            _TABLE_CACHE.pop(next(iter(_TABLE_CACHE)))
+        with _CACHE_LOCK:
+            _TABLE_CACHE.append((snap, hit))
+            del _TABLE_CACHE[:-8]
     return hit.copy()
 
 
-# hazard tables of other libraries (e.g. with the user's own liquids), keyed by the columns the
-# table is computed from, so a repeated ranking does not recompute them
-_TABLE_CACHE: dict = {}
+# hazard tables with the library columns they were computed from (the bundled library, or one
+# with the user's own liquids), so a repeated ranking does not recompute them; comparing the
+# columns is cheaper than hashing them. The web front end calls this from several threads.
+_TABLE_CACHE: list = []
+_CACHE_LOCK = threading.Lock()
+
+#: Columns :func:`hazard_table` reads from the library.
+_TABLE_INPUTS = ("cas", "flash_point_source", "origin", "boiling_point_c", "flash_point_c", "autoignition_c")
 
 
-def _content_key(lib: pd.DataFrame) -> str:
-    import hashlib
+def _table_inputs(lib: pd.DataFrame) -> tuple:
+    cols = tuple((c, lib[c].to_numpy()) for c in _TABLE_INPUTS if c in lib)
+    return (lib.index.to_numpy(),) + cols
 
-    h = hashlib.sha1()
-    h.update("\x1f".join(lib["cas"].astype(str)).encode())
-    h.update(repr(list(lib.index)).encode() if not isinstance(lib.index, pd.RangeIndex)
-             else repr((lib.index.start, lib.index.stop, lib.index.step)).encode())
-    for c in ("boiling_point_c", "flash_point_c", "autoignition_c"):
-        if c in lib:
-            h.update(c.encode())
-            h.update(np.ascontiguousarray(lib[c].to_numpy(float)).tobytes())
-    return h.hexdigest()
+
+def _same_inputs(a: tuple, b: tuple) -> bool:
+    if len(a) != len(b) or a[0].shape != b[0].shape or not (a[0] == b[0]).all():
+        return False
+    for (ca, va), (cb, vb) in zip(a[1:], b[1:]):
+        if ca != cb or va.dtype != vb.dtype:
+            return False
+        if va.dtype.kind == "f":
+            if not np.array_equal(va, vb, equal_nan=True):
+                return False
+        elif not (va == vb).all():
+            return False
+    return True
 
 
 def _cas_keys(frame: pd.DataFrame) -> pd.Series:

@@ -377,7 +377,7 @@ _NOT_FILLED = {"name", "delta_d", "delta_p", "delta_h", "hsp_source", "hsp_sourc
 #: not sit beside the library's density. ``antoine_*`` go with the vapour pressure because
 #: :func:`vapour_pressure_kpa` prefers the Antoine fit over the 25 C value.
 COMPANIONS = {
-    "boiling_point_c": ("boiling_point_source", "data_note"),
+    "boiling_point_c": ("boiling_point_source",),
     "melting_point_c": ("melting_point_source",),
     "molar_volume": ("volume_method", "molar_volume_estimated", "density"),
     "vapour_pressure_kpa": ("vapour_pressure_method", "antoine_a", "antoine_b", "antoine_c",
@@ -388,6 +388,10 @@ COMPANIONS = {
     "short_term_limit": ("short_term_limit_unit",),
 }
 _COMPANION_OF = {c: main for main, cs in COMPANIONS.items() for c in cs}
+#: Columns that describe two values at once: taken when either is taken (the data note says that
+#: the library's boiling point and vapour pressure disagree; while one of them is still used the
+#: doubt stands).
+JOINT_COMPANIONS = {"data_note": ("boiling_point_c", "vapour_pressure_kpa")}
 
 
 def _blank(values: pd.Series) -> np.ndarray:
@@ -455,13 +459,18 @@ def merge_user_liquids(library: pd.DataFrame, table) -> pd.DataFrame:
         took: dict[str, np.ndarray] = {}
         # main values first, so each companion knows whether its value came from the library
         cols = [c for c in library.columns if c not in _NOT_FILLED]
-        cols.sort(key=lambda c: c in _COMPANION_OF)
+        cols.sort(key=lambda c: c in _COMPANION_OF or c in JOINT_COMPANIONS)
         for c in cols:
             if c not in user.columns:
                 user[c] = "" if c in _TEXT_COLUMNS else np.nan
             take = _blank(user[c].iloc[rows]) & ~_blank(src[c])
             if c in _COMPANION_OF:
                 take &= took.get(_COMPANION_OF[c], np.zeros(len(rows), dtype=bool))
+            if c in JOINT_COMPANIONS:
+                either = np.zeros(len(rows), dtype=bool)
+                for main in JOINT_COMPANIONS[c]:
+                    either |= took.get(main, np.zeros(len(rows), dtype=bool))
+                take &= either
             took[c] = take
             if take.any():
                 new = user[c].to_numpy(object).copy()

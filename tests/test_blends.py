@@ -338,6 +338,13 @@ def test_prices_matched_by_synonym_are_named_and_double_prices_refused():
     assert "o-xylene" in {c for cs in res["components"] for c in cs}
     with pytest.raises(SelectorError, match="prices o-xylene twice"):
         find_blends(PS, cost_per_litre={"xylene": 2.0, "o-xylene": 2.5, "acetone": 1.5})
+    # the same name on two rows of a price table (a dict would silently keep the last price)
+    with pytest.raises(SelectorError, match="prices toluene on two rows"):
+        find_blends(PS, cost_per_litre=pd.DataFrame({"name": ["toluene", "toluene", "acetone"],
+                                                     "cost_per_litre": [1.0, 9.0, 2.0]}))
+    # a Series works like a dict
+    ser = find_blends(PS, cost_per_litre=pd.Series(prices), max_components=2, top=10, min_gain=0.0)
+    assert ser["cost_per_litre"].tolist() == res["cost_per_litre"].tolist()
 
 
 def test_full_library_ternary_search():

@@ -392,7 +392,8 @@ def test_excel_price_list(tmp_path, capsys):
     p.write_bytes("name;cost_per_litre\ntoluene;3,5\nethanol;2,25\n".encode("cp1252"))
     from selector.cli_blend import _prices
 
-    assert _prices(str(p)) == {"toluene": 3.5, "ethanol": 2.25}
+    got = _prices(str(p))
+    assert dict(zip(got["name"], got["cost_per_litre"])) == {"toluene": 3.5, "ethanol": 2.25}
 
 
 def test_guess_refuses_same_file_for_output_and_save_mine_before_training(tmp_path, capsys, monkeypatch):

@@ -242,3 +242,22 @@ def test_attach_hazards_joins_by_cas_then_name():
     # a column the caller already has is kept as it is
     kept = attach_hazards(rows.assign(hazard_class="mine"))
     assert kept["hazard_class"].tolist() == ["mine"] * 3
+
+
+def test_hazard_table_follows_edits_and_names_a_users_flash_point():
+    # An edited copy of the library gets its own scores (CHEM21 safety score from the flash point:
+    # toluene's 4 C gives 5; at 80 C and a boiling point of 180 C it is 2 - guide's safety table,
+    # from memory), and a user's own flash point is labelled as theirs.
+    from selector.library import load_library, merge_user_liquids
+
+    lib = load_library()
+    i = lib.index[lib["name"] == "toluene"][0]
+    assert hazard_columns(lib).loc[i, "safety_score"] == 5
+    edited = lib.copy()
+    edited.loc[i, ["flash_point_c", "boiling_point_c"]] = [80.0, 180.0]
+    assert hazard_columns(edited).loc[i, "safety_score"] == 2
+    assert hazard_columns(lib).loc[i, "safety_score"] == 5
+    mine = merge_user_liquids(lib, pd.DataFrame({"name": ["toluene"], "delta_d": [18.0], "delta_p": [1.4],
+                                                 "delta_h": [2.0], "flash_point_c": [10.0]}))
+    j = mine.index[mine["name"] == "toluene"][0]
+    assert hazard_columns(mine).loc[j, "flash_point_basis"] == "your value"

@@ -532,11 +532,15 @@ def test_boiling_points_corrected_by_the_other_sources(lib):
         return lib.loc[lib["cas"] == cas].iloc[0]
 
     assert row("120-94-5")["boiling_point_c"] == pytest.approx(80.5, abs=1.5)
-    assert "disagrees with the other sources" in row("120-94-5")["data_note"]
+    assert "CRC_ORG's 206.1 C disagrees with the other sources" in row("120-94-5")["boiling_point_source"]
+    assert not row("120-94-5")["data_note"]  # corrected, so no doubt left
     assert row("502-44-3")["boiling_point_c"] == pytest.approx(241, abs=2)
     # trifluoroacetic acid: about 11-15 kPa at 20-25 C (from memory); thermo's Antoine (WebBook)
     # correlation gave 1.5 kPa and boils at 159 C instead of 72 C
     assert 8 < row("76-05-1")["vapour_pressure_kpa"] < 20
+    assert "default ANTOINE_WEBBOOK boils at 159 C" in row("76-05-1")["vapour_pressure_method"]
+    # chlorocyclohexane: CRC's 142.6 C against 142.0 C elsewhere - agreement, kept unchanged
+    assert row("542-18-7")["boiling_point_c"] == pytest.approx(142.6)
     # toluene keeps its published boiling point (110.6 C, chemicals) and has no note
     assert row("108-88-3")["boiling_point_c"] == pytest.approx(110.6, abs=0.1)
     assert not str(row("108-88-3")["data_note"] or "").strip() or pd.isna(row("108-88-3")["data_note"])

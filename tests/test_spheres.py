@@ -401,9 +401,9 @@ def test_two_spheres_adopted_only_when_they_pay():
         assert all(iv[k][0] <= getattr(s, k) <= iv[k][1] + 1e-9 for k in PARAMS)
     assert fit.bic["two_spheres"] < fit.bic["one_sphere"]
     cents = np.array([s.hsp for s in fit.spheres])
-    # each true centre has a fitted centre inside its sphere (true radii 5 and 6 MPa^0.5); how
-    # close, over several random test sets, is checked below
-    assert _ra(cents, c1).min() < 5.0 and _ra(cents, c2).min() < 6.0
+    # the compact sphere's centre is recovered (how well the pair classifies unseen liquids, over
+    # several random test sets, is checked below)
+    assert _ra(cents, c1).min() < 1.5
     assert fit.score >= fit_sphere(df, bootstrap=0).score
     # next tests are the liquids the bootstrap spheres disagree on most (p_inside near 0.5), which
     # mostly sit at the edge of one of the two spheres; a loosely pinned sphere can make one of
@@ -417,22 +417,28 @@ def test_two_spheres_adopted_only_when_they_pay():
     assert len(f1.spheres) == 1 and f1.bic["two_spheres"] >= f1.bic["one_sphere"]
 
 
-def test_two_sphere_centres_over_several_test_sets():
+def test_two_sphere_fits_over_several_test_sets():
     # Synthetic truth (no outside value): 80 library liquids scored by two spheres, eight random
-    # draws. A sphere holding only a handful of good liquids, all on one side of it, pins its centre
-    # loosely (the fit shrinks it around them), so the check is on the typical (median) recovery:
-    # the compact sphere's centre within 1.5 MPa^0.5, the wide polar one's within 0.6 of its
-    # radius, and no draw with a centre outside its true sphere.
-    d1, d2 = [], []
+    # draws, judged on the other ~740 library liquids the fit never saw. A fitted sphere is the
+    # smallest that separates the tests (common practice), so it errs on the side of "outside":
+    # it must almost never call a poor liquid good (specificity >= 0.95 in every draw), and get
+    # most liquids right overall (median agreement >= 0.90, none below 0.85). The compact sphere's
+    # centre is pinned by many tests (median error < 1.5 MPa^0.5); the wide polar one holds only a
+    # handful of liquids on one side, so its centre is not checked.
+    agree, d1 = [], []
     for seed in range(8):
         df, c1, c2 = _two_sphere_df(seed)
+        seen = set(df["solvent"])
+        rest = ~LIB["name"].isin(seen).to_numpy()
+        truth = (_ra(H[rest], c1) < 5.0) | (_ra(H[rest], c2) < 6.0)
         fit = fit_sphere(df, bootstrap=0, two_spheres=True, seed=0)
         assert len(fit.spheres) == 2
-        cents = np.array([s.hsp for s in fit.spheres])
-        d1.append(_ra(cents, c1).min())
-        d2.append(_ra(cents, c2).min())
-    assert np.median(d1) < 1.5 and max(d1) < 5.0
-    assert np.median(d2) < 0.6 * 6.0 and max(d2) < 6.0
+        pred = fit.contains(H[rest])
+        assert (~pred & ~truth).sum() / (~truth).sum() >= 0.95
+        agree.append((pred == truth).mean())
+        d1.append(_ra(np.array([s.hsp for s in fit.spheres]), c1).min())
+    assert np.median(agree) >= 0.90 and min(agree) >= 0.85
+    assert np.median(d1) < 1.5
 
 
 # ----------------------------------------------------------------------------- command line
