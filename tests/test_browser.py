@@ -147,6 +147,14 @@ def test_define_target_rank_blend_and_download(page, server):
         pg.locator("[data-testid='stTable']").first.get_by_text(label, exact=True).wait_for()
         assert _first_row_label(pg) == label
         assert pg.get_by_text("safety data sheet").first.is_visible()
+
+        # the drying path of that blend, its table opened: shown, no browser-side error (a NaN in
+        # a table's metadata used to break it with "is not valid JSON")
+        pg.get_by_text("Drying path table").first.click()
+        _settle(pg)
+        body = pg.locator("body").inner_text()
+        assert "not valid JSON" not in body and "SyntaxError" not in body
+        assert pg.get_by_text("evaporated_fraction").count() + pg.get_by_text("Evaporated").count() >= 1
     except BaseException:
         ARTIFACTS.mkdir(exist_ok=True)
         pg.screenshot(path=str(ARTIFACTS / "browser_failure.png"), full_page=True)

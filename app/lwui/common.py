@@ -341,12 +341,20 @@ def with_hazards(df: pd.DataFrame) -> pd.DataFrame:
     return hz.attach_hazards(df, lib, columns=("hazard_class", "h_statements"), table=t)
 
 
+def table(df: pd.DataFrame, **kw):
+    """``st.dataframe`` without the frame's ``attrs``: pandas hands them to the browser as JSON
+    metadata, and a NaN there (e.g. a drying path that never leaves the sphere) breaks the table."""
+    d = df.copy()
+    d.attrs = {}
+    return st.dataframe(d, **kw)
+
+
 def cautions(liquids: pd.DataFrame, *, title: str = "Safety notes for the liquids shown") -> pd.DataFrame:
     """General caution plus a per-liquid table (flammability class, exposure limit, hazard class)."""
     st.warning("**Before you use any of these:** " + GENERAL_CAUTION, icon=":material/warning:")
     ct = caution_table(with_hazards(liquids))
     with st.expander(title, expanded=False):
-        st.dataframe(ct, hide_index=True, width="stretch", column_config={
+        table(ct, hide_index=True, width="stretch", column_config={
             "name": "Liquid", "flash_point_c": st.column_config.NumberColumn("Flash point (°C)", format="%.0f"),
             "boiling_point_c": st.column_config.NumberColumn("Boiling point (°C)", format="%.0f"),
             "flammability": "Flammability (GHS 2.6 criteria)", "exposure": "Exposure limit (source)",

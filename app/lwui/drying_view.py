@@ -6,7 +6,7 @@ import math
 import pandas as pd
 import streamlit as st
 
-from lwui import plots
+from lwui import common, plots
 
 
 def show_drying(path: pd.DataFrame, components) -> None:
@@ -38,4 +38,4 @@ def show_drying(path: pd.DataFrame, components) -> None:
     if a.get("message"):
         st.caption(str(a["message"]))
     with st.expander("Drying path table"):
-        st.dataframe(path, hide_index=True, width="stretch")
+        common.table(path, hide_index=True, width="stretch")

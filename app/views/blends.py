@@ -66,7 +66,7 @@ has_r = "red" in res and res["red"].notna().any()
 st.subheader("Best five")
 common.readable_top(res, ["blend", "red" if has_r else None, "ra", "hazard_class", "lowest_flash_point_c"], 5)
 show_cols = [c for c in res.columns if c not in ("components", "fractions")]
-st.dataframe(res[show_cols], hide_index=True, width="stretch", column_config=common.COLUMN_CONFIG)
+common.table(res[show_cols], hide_index=True, width="stretch", column_config=common.COLUMN_CONFIG)
 
 names = sorted({c for cs in res["components"] for c in cs})
 lib = common.library()

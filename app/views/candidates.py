@@ -44,7 +44,7 @@ st.subheader("Top five")
 common.readable_top(res, ["rank", "name", "red" if has_r else "ra", "score", "boiling_point_c",
                           "flash_point_c", "hazard_class"], 5)
 st.subheader(f"First {min(n_show, len(res))} of {len(res)}")
-st.dataframe(res.head(n_show)[cols], hide_index=True, width="stretch", column_config=common.COLUMN_CONFIG)
+common.table(res.head(n_show)[cols], hide_index=True, width="stretch", column_config=common.COLUMN_CONFIG)
 
 shown = res.head(n_show)
 ct = common.cautions(shown.head(10), title="Safety notes for the first ten")

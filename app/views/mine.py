@@ -115,7 +115,7 @@ if up is not None:
     except (ValueError, KeyError) as e:
         common.show_error(f"{up.name} was not imported (nothing was changed). {e}")
     else:
-        st.dataframe(new, hide_index=True, width="stretch")
+        common.table(new, hide_index=True, width="stretch")
         if st.button(f"Add these {len(new)} liquid(s) to the table", key="mine_add"):
             keep = rows.loc[~rows["name"].fillna("").astype(str).str.lower().isin(new["name"].str.lower())]
             st.session_state[KEY] = pd.concat([keep, new], ignore_index=True)

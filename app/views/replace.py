@@ -69,7 +69,7 @@ st.subheader("Best five")
 common.readable_top(cand, ["candidate", metric, "score", "hazard_class", "boiling_point_c",
                            "lowest_flash_point_c"], 5)
 show = [c for c in res.columns if c not in ("components", "fractions")]
-st.dataframe(res[show], hide_index=True, width="stretch", column_config=dict(
+common.table(res[show], hide_index=True, width="stretch", column_config=dict(
     common.COLUMN_CONFIG, candidate=st.column_config.TextColumn("Candidate"),
     lowest_flash_point_c=st.column_config.NumberColumn("Lowest flash point (°C)", format="%.0f"),
     evaporation_rate=st.column_config.NumberColumn("Evaporation rate", format="%.2f"),

@@ -118,13 +118,13 @@ mis = getattr(res, "misfits", None)
 if isinstance(mis, pd.DataFrame):
     st.markdown(f"**Results the sphere gets wrong:** {len(mis)}")
     if len(mis):
-        st.dataframe(mis, hide_index=True, width="stretch")
+        common.table(mis, hide_index=True, width="stretch")
 
 st.subheader("Suggested next tests")
 st.caption("Liquids whose result would tell the most about the sphere's edge.")
 nxt = common.call(res.suggest_tests, 5)
 if nxt is not None:
-    st.dataframe(nxt, hide_index=True, width="stretch", column_config=common.COLUMN_CONFIG)
+    common.table(nxt, hide_index=True, width="stretch", column_config=common.COLUMN_CONFIG)
     for note in nxt.attrs.get("notes", []):
         st.caption(note)
     lib = common.library()
