@@ -175,12 +175,16 @@ def merge_flash_points(df: pd.DataFrame) -> pd.DataFrame:
 
     Where only the hazard table has a flash point it is used; where both have one and the hazard
     table's is lower by more than 1 C, the lower value is kept (a flash-point limit must not pass a
-    liquid on the higher of two published values) and ``flash_point_source`` names both."""
+    liquid on the higher of two published values) and ``flash_point_source`` names both. A liquid
+    the hazard table marks as not flammable gets no flash point (the filters then treat it as not
+    flammable), and the source names the value ``chemicals`` gave."""
     from .hazards import hazard_statements
 
-    st = hazard_statements().drop_duplicates("cas").set_index("cas")["csv_flash_point_c"]
+    table = hazard_statements().drop_duplicates("cas").set_index("cas")
+    st = table["csv_flash_point_c"]
     df = df.copy()
     csv = df["cas"].map(st).to_numpy(float)
+    nonflam = df["cas"].map(table["not_flammable"]).fillna(False).to_numpy(bool)
     lib = df["flash_point_c"].to_numpy(float)
     src = df["flash_point_source"].fillna("").astype(str).to_numpy(object)
     fill = ~np.isfinite(lib) & np.isfinite(csv)
@@ -191,6 +195,13 @@ def merge_flash_points(df: pd.DataFrame) -> pd.DataFrame:
         new_src[i] = (f"lower of parameters/hazards.csv {csv[i]:g} C (from memory) and {src[i] or 'chemicals'} "
                       f"{lib[i]:g} C")
     out = np.where(fill | lower, csv, lib)
+    # marked not flammable there (tetrachloroethylene, trichloroethylene) but given a flash point
+    # by chemicals: no flash point, and the source says both
+    clash = nonflam & np.isfinite(lib)
+    for i in np.flatnonzero(clash):
+        new_src[i] = (f"not flammable per parameters/hazards.csv (from memory); {src[i] or 'chemicals'} lists "
+                      f"{lib[i]:g} C - check the safety data sheet")
+    out = np.where(clash, np.nan, out)
     df["flash_point_c"] = out
     df["flash_point_source"] = new_src
     return df

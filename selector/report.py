@@ -107,6 +107,11 @@ def caution_table(liquids: pd.DataFrame) -> pd.DataFrame:
         "flammability": flammability_category(fp.to_numpy(float), bp.to_numpy(float)),
         "exposure": _exposure_text(liquids),
     })
+    from .cautions import not_flammable
+
+    if "cas" in liquids:
+        nf = not_flammable(liquids.assign(flash_point_c=fp.to_numpy(float)))
+        out.loc[nf, "flammability"] = "not flammable (parameters/hazards.csv, from memory; check the SDS)"
     if "hazard_class" in liquids:
         hc = liquids["hazard_class"].astype(object).to_numpy()
         out["hazard_class"] = np.where(pd.isna(hc) | (pd.Series(hc).astype(str).str.strip() == "").to_numpy(),

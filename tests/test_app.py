@@ -300,6 +300,16 @@ def test_blend_page_matches_find_blends(at):
 
 
 @pytest.mark.skipif(not has("blends"), reason="selector.blends not installed")
+def test_replace_page_says_a_non_flammable_liquid_is_not_flammable(at):
+    # dichloromethane has no flash point (not flammable; parameters/hazards.csv, from memory, and
+    # common practice): the page must not print "nan °C"
+    go(at, "replace")
+    at.selectbox(key="rp_old").set_value("dichloromethane").run()
+    assert not at.exception and not errors(at)
+    text = " ".join(m.value for m in at.markdown)
+    assert "dichloromethane** today" in text and "not flammable" in text and "nan" not in text
+
+
 def test_replace_page_matches_substitutes(at):
     go(at, "replace")
     at.selectbox(key="rp_old").set_value("1-methyl-2-pyrrolidinone").run()

@@ -573,3 +573,17 @@ def test_exposure_limits_for_isomers_and_short_term_only(lib):
     assert eth["exposure_limit"].isna().all() and eth["short_term_limit"].iloc[0] == 1000
     txt = caution_table(eth)["exposure"].iloc[0]
     assert txt == "no 8-h limit; short-term (15 min) 1000 ppm"
+
+
+def test_non_flammable_chlorinated_solvents_have_no_flash_point(lib):
+    # tetrachloroethylene does not burn (common practice: the dry-cleaning solvent chosen for it;
+    # marked not flammable in parameters/hazards.csv, from memory); chemicals' WIKIDATA entry of
+    # 45 C would have made it "flammable, category 3"
+    from selector.filters import filter_mask
+    from selector.report import caution_table
+
+    perc = (lib["cas"] == "127-18-4").to_numpy()
+    assert np.isnan(lib.loc[perc, "flash_point_c"]).all()
+    assert "WIKIDATA lists 45 C" in lib.loc[perc, "flash_point_source"].iloc[0]
+    assert caution_table(lib.loc[perc])["flammability"].iloc[0].startswith("not flammable")
+    assert filter_mask(lib, min_flash_point_c=60)[perc].all()

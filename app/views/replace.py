@@ -1,8 +1,11 @@
 """Replace a liquid: safer single liquids and blends close to one that must go."""
+import math
+
 import streamlit as st
 
 import selector
 from lwui import common
+from selector.cautions import not_flammable
 from selector.report import LIBRARY_SOURCES, build_report
 
 st.title("Replace a liquid")
@@ -62,9 +65,14 @@ if len(cand) == 0:
 metric = "red" if keep and cand["red"].notna().any() else "ra"
 if len(ref):
     r0 = ref.iloc[0]
+    fp0 = float(r0.get("lowest_flash_point_c", float("nan")))
+    lib0 = common.library()
+    nonflam = bool(not_flammable(lib0.loc[lib0["name"] == old]).any())
+    fp_text = (f"flash point {fp0:.0f} °C" if math.isfinite(fp0) else
+               "not flammable (check the SDS)" if (math.isinf(fp0) or nonflam) else
+               "no flash point in the library")
     st.markdown(f"**{old}** today: hazard class {r0.get('hazard_class', 'unclassified')}, boiling point "
-                f"{r0.get('boiling_point_c', float('nan')):.0f} °C, lowest flash point "
-                f"{r0.get('lowest_flash_point_c', float('nan')):.0f} °C.")
+                f"{r0.get('boiling_point_c', float('nan')):.0f} °C, {fp_text}.")
 st.subheader("Best five")
 common.readable_top(cand, ["candidate", metric, "score", "hazard_class", "boiling_point_c",
                            "lowest_flash_point_c"], 5)
