@@ -203,6 +203,35 @@ def _miscibility(cand, temperature):
     return np.asarray(miscible_pairs(cand, temperature=temperature), dtype=bool)
 
 
+def _allowed_pairs(cand, temperature, k, require_miscible, include_reactive):
+    """(n, n) bool of the pairs that may be blended, or None for "all": miscible (when asked) and,
+    unless ``include_reactive``, not a pair that reacts (:func:`selector.cautions.reactive_pair_matrix`:
+    acid + amine, amine + nitroalkane, primary amine + aldehyde or ketone)."""
+    if k < 2 or len(cand) < 2:
+        return None
+    ok = _miscibility(cand, temperature) if require_miscible else None
+    if not include_reactive:
+        from .cautions import reactive_pair_matrix
+
+        safe = ~reactive_pair_matrix(cand)
+        ok = safe if ok is None else (ok & safe)
+    return ok
+
+
+def _with_pair_notes(out, rows):
+    """Add the reacting-pair notes of each proposal (only possible with ``include_reactive``) to
+    its ``hazard_notes``."""
+    from .cautions import pair_reasons
+
+    by_name = rows.drop_duplicates("name").set_index("name", drop=False)
+    notes = []
+    for comps, base in zip(out["components"], out["hazard_notes"]):
+        extra = pair_reasons(by_name.loc[list(comps)]) if len(comps) > 1 else []
+        notes.append("; ".join(x for x in [base] + [f"REACTIVE PAIR {e}" for e in extra] if x))
+    out["hazard_notes"] = notes
+    return out
+
+
 def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, pool=2000,
                   min_gain=DEFAULT_MIN_GAIN, hazard_rank=None, resolution=0.5, ternary_pool=None,
                   workers=None, method="screened", ra_cap=None, display=None):
@@ -747,7 +776,7 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
         raise SelectorError("min_gain must be a finite number >= 0 (MPa^0.5)")
     tgt, cand, h, t_c, (cost, price_notes) = _target_and_candidates(target, library, temperature, filters,
                                                                       cost_per_litre)
-    mis = _miscibility(cand, t_c) if (require_miscible and kmax > 1 and len(cand) > 1) else None
+    mis = _allowed_pairs(cand, t_c, kmax, require_miscible, bool(filters.get("include_reactive")))
     pool = max(2000, 50 * (top or 20))
     from .hazards import hazard_columns
 
@@ -766,6 +795,7 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     from .hazards import component_notes
 
     out["hazard_notes"] = component_notes(out["components"], cand)
+    out = _with_pair_notes(out, cand)
     out.attrs.update(target=tgt, temperature=t_c, caution=CAUTION, min_fraction=m,
                      miscibility="selector.mixing.miscible_pairs" if mis is not None else "not checked",
                      candidates=len(cand))
@@ -894,7 +924,7 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     pool_top = max(200, 10 * (top or 20))
     tg, cand, h, t_c, _ = _target_and_candidates(
         Target(*tgt.hsp.tolist(), tgt.radius, name=tgt.name, source=tgt.source), lib, temperature, filt)
-    mis = _miscibility(cand, t_c) if (require_miscible and k > 1 and len(cand) > 1) else None
+    mis = _allowed_pairs(cand, t_c, k, require_miscible, bool(filt.get("include_reactive")))
     res = search_arrays(h * SCALE, tg.hsp * SCALE, max_components=k,
                         min_fraction=_check_min_fraction(min_fraction, max(k, 2)), miscible=mis,
                         pool=max(2000, pool_top))
@@ -945,7 +975,9 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     out = pd.concat([xtab, out], ignore_index=True)
     from .hazards import component_notes
 
-    out["hazard_notes"] = component_notes(out["components"], pd.concat([x, cand]).drop_duplicates("name"))
+    both = pd.concat([x, cand]).drop_duplicates("name")
+    out["hazard_notes"] = component_notes(out["components"], both)
+    out = _with_pair_notes(out, both)
     out.attrs.update(target=tg, temperature=t_c, caution=CAUTION, replaced=xname,
                      regulatory_note=str(hz_all["regulatory_note"].iloc[pos]))
     return out

@@ -22,8 +22,13 @@ agents):
   liquids whose limit is set in mg/m3 - phthalates - convert to small ppm values without
   being a vapour hazard, hence the volatility condition.)
 
-This is a screen, not a hazard assessment: a liquid without a reason can still be dangerous.
-Read the supplier's safety data sheet before any use.
+Pairs that react with each other are screened too (:func:`reactive_pair_matrix`,
+:data:`PAIR_RULES`): an acid with an amine or pyridine, an amine with a nitroalkane, a primary
+amine with an aldehyde or ketone. Blends and substitutes never pair them unless
+``include_reactive=True``, and then ``hazard_notes`` says "REACTIVE PAIR".
+
+This is a screen, not a hazard assessment: a liquid without a reason can still be dangerous,
+and a pair it does not flag can still react. Read the supplier's safety data sheet before any use.
 
 >>> reactive_reason("CC(=O)Cl")
 'acyl halide (reacts violently with water, corrosive)'
@@ -68,6 +73,8 @@ REACTIVE_GROUPS = (
     ("unsaturated aldehyde", "[C;!$(C-a)]=[C;!$(C-a)][CH1]=O", "lachrymator, very toxic"),
     ("allylic or benzylic halide", "[Cl,Br,I][CX4;!$(C([Cl,Br,I])([Cl,Br,I]))][$(C=C),$(c)]",
      "alkylating agent, lachrymator"),
+    ("alkyl iodide", "[CX4;!$(C(I)(I))]I", "alkylating agent"),
+    ("vinylpyridine", "[CH2]=[CH1][$(c1ncccc1),$(c1cnccc1),$(c1ccncc1)]", "polymerises, toxic, sensitiser"),
 )
 
 #: GHS statements that make a liquid a reagent wherever ``parameters/hazards.csv`` lists them:
@@ -229,3 +236,81 @@ def not_flammable(library: pd.DataFrame) -> np.ndarray:
     nf = library["cas"].astype(str).isin(_not_flammable_cas()).to_numpy()
     fp = library["flash_point_c"].to_numpy(float) if "flash_point_c" in library else np.full(len(library), np.nan)
     return nf & ~np.isfinite(fp)
+
+
+# ---------------------------------------------------------------- pairs that react with each other
+
+#: Groups for the pair screen: (class, RDKit SMARTS). Our own patterns.
+PAIR_CLASSES = (
+    ("acid", "[CX3](=O)[OX2H1]"),
+    ("base", "[$([NX3;!$(N-[C,S,P]=[O,S,N]);!$(N-a);!$(N-[N,O]);!$([N+]);!$(N#*);!$(N=*)]),"
+             "$([nX2;r6;!$(n(:a):n)])]"),
+    ("primary amine", "[NX3;H2;!$(N-[C,S,P]=[O,S,N]);!$(N-a)][CX4]"),
+    ("carbonyl", "[CX3;$([CH1](=O)[#6,#1]),$(C(=O)([#6])[#6])]=O"),
+    ("nitroalkane", "[CX4][$([N+](=O)[O-]),$(N(=O)=O)]"),
+)
+
+#: Pairs of classes that should not be blended: (class a, class b, why). Common practice (acid and
+#: base: salt formation and heat; primary amines condense with aldehydes and ketones, giving
+#: imines and water); amines sensitising nitroalkanes to detonation is from memory (nitromethane).
+PAIR_RULES = (
+    ("acid", "base", "acid + base: they react (salt, heat)"),
+    ("base", "nitroalkane", "amine + nitroalkane: the amine sensitises the nitro compound to detonation"),
+    ("primary amine", "carbonyl", "primary amine + aldehyde or ketone: they condense (imine and water)"),
+)
+
+
+@functools.lru_cache(maxsize=1)
+def _pair_patterns():
+    from rdkit import Chem
+
+    return [Chem.MolFromSmarts(sma) for _, sma in PAIR_CLASSES]
+
+
+@functools.lru_cache(maxsize=8192)
+def _pair_row(smiles: str) -> tuple:
+    if not smiles:
+        return (False,) * len(PAIR_CLASSES)
+    from rdkit import Chem, RDLogger
+
+    RDLogger.DisableLog("rdApp.*")
+    mol = Chem.MolFromSmiles(smiles)
+    if mol is None:
+        return (False,) * len(PAIR_CLASSES)
+    return tuple(bool(mol.HasSubstructMatch(p)) for p in _pair_patterns())
+
+
+def pair_classes(library: pd.DataFrame) -> np.ndarray:
+    """(n, k) bool: which :data:`PAIR_CLASSES` each liquid belongs to (from its SMILES; one RDKit
+    match per distinct structure, cached)."""
+    smiles = library["smiles"].astype("string").fillna("").astype(str).tolist() if "smiles" in library \
+        else [""] * len(library)
+    return np.array([_pair_row(s) for s in smiles], dtype=bool).reshape(len(smiles), len(PAIR_CLASSES))
+
+
+def reactive_pair_matrix(library: pd.DataFrame) -> np.ndarray:
+    """(n, n) bool, True where two liquids of ``library`` should not be blended (:data:`PAIR_RULES`)."""
+    c = pair_classes(library)
+    names = [k for k, _ in PAIR_CLASSES]
+    out = np.zeros((len(c), len(c)), dtype=bool)
+    for a, b, _ in PAIR_RULES:
+        ca, cb = c[:, names.index(a)], c[:, names.index(b)]
+        out |= np.outer(ca, cb) | np.outer(cb, ca)
+    np.fill_diagonal(out, False)
+    return out
+
+
+def pair_reasons(rows: pd.DataFrame) -> list[str]:
+    """Why the liquids of ``rows`` (a few components of one blend) should not be blended together:
+    one text per reacting pair, e.g. ``"formic acid + morpholine: acid + base: ..."``."""
+    c = pair_classes(rows)
+    names = [k for k, _ in PAIR_CLASSES]
+    liq = rows["name"].astype(str).tolist()
+    out = []
+    for i in range(len(liq)):
+        for j in range(i + 1, len(liq)):
+            for a, b, why in PAIR_RULES:
+                ia, ib = names.index(a), names.index(b)
+                if (c[i, ia] and c[j, ib]) or (c[i, ib] and c[j, ia]):
+                    out.append(f"{liq[i]} + {liq[j]}: {why}")
+    return out

@@ -144,3 +144,34 @@ def test_cli_targets_with_locants_are_names(capsys):
     assert "Target 1,4-dioxane" in capsys.readouterr().out
     assert main(["rank", "18,3"]) == 2
     assert "got 2 numbers" in capsys.readouterr().err
+
+
+def test_reacting_pairs_are_never_blended_unless_asked():
+    # Common practice: acids and amines react (salt, heat); primary amines condense with ketones.
+    # From memory: amines sensitise nitroalkanes (nitromethane) to detonation.
+    from selector.blends import find_blends, substitutes
+    from selector.cautions import pair_reasons, reactive_pair_matrix
+    from selector.library import load_library
+
+    lib = load_library()
+    rows = lib.loc[lib["name"].isin(["formic acid", "morpholine", "nitroethane", "acetone", "butylamine",
+                                     "toluene", "ethyl acetate"])].reset_index(drop=True)
+    m = reactive_pair_matrix(rows)
+    pos = {n: i for i, n in enumerate(rows["name"])}
+    assert m[pos["formic acid"], pos["morpholine"]] and m[pos["morpholine"], pos["formic acid"]]
+    assert m[pos["morpholine"], pos["nitroethane"]] and m[pos["butylamine"], pos["acetone"]]
+    assert not m[pos["toluene"], pos["ethyl acetate"]] and not m[pos["morpholine"], pos["acetone"]]
+    assert "formic acid + morpholine: acid + base" in " ".join(pair_reasons(rows))
+    # the blend search: a target between an acid and an amine, candidates only those and neutrals
+    names = ["formic acid", "morpholine", "triethylamine", "acetic acid", "toluene", "ethyl acetate"]
+    both = lib.loc[lib["name"].isin(names)]
+    target = tuple(both[["delta_d", "delta_p", "delta_h"]].mean().round(1))
+    res = find_blends(target, include=names, max_components=2, top=50, min_gain=0.0)
+    acids, bases = {"formic acid", "acetic acid"}, {"morpholine", "triethylamine"}
+    for cs in res["components"]:
+        assert not (set(cs) & acids and set(cs) & bases), cs
+    free = find_blends(target, include=names, max_components=2, top=50, min_gain=0.0, include_reactive=True)
+    mixed = [n for cs, n in zip(free["components"], free["hazard_notes"]) if set(cs) & acids and set(cs) & bases]
+    assert mixed and all("REACTIVE PAIR" in n for n in mixed)
+    for cs in substitutes("toluene", top=40)["components"]:
+        assert not (set(cs) & acids and set(cs) & bases), cs

@@ -48,6 +48,8 @@ COLUMN_CONFIG = {
     "exposure_limit": st.column_config.NumberColumn("Exposure limit", format="%.4g"),
     "exposure_limit_unit": st.column_config.TextColumn("unit"),
     "hsp_source": st.column_config.TextColumn("HSP source"),
+    "hazard_notes": st.column_config.TextColumn("Hazard notes", help="per component: corrosive, toxic, "
+                                                "CMR, flammable, peroxide former; REACTIVE PAIR if two react"),
     "data_note": st.column_config.TextColumn("Data note", help="Boiling point or vapour pressure in "
                                              "doubt: the published values disagree"),
     "sources_disagree": st.column_config.CheckboxColumn("Sources disagree",

@@ -64,7 +64,8 @@ res.insert(0, "blend", [" + ".join(f"{f:.0%} {c}" for c, f in zip(cs, fs))
                         for cs, fs in zip(res["components"], res["fractions"])])
 has_r = "red" in res and res["red"].notna().any()
 st.subheader("Best five")
-common.readable_top(res, ["blend", "red" if has_r else None, "ra", "hazard_class", "lowest_flash_point_c"], 5)
+common.readable_top(res, ["blend", "red" if has_r else None, "ra", "hazard_class", "lowest_flash_point_c",
+                          "hazard_notes"], 5)
 show_cols = [c for c in res.columns if c not in ("components", "fractions")]
 common.table(res[show_cols], hide_index=True, width="stretch", column_config=common.COLUMN_CONFIG)
 

@@ -75,7 +75,7 @@ if len(ref):
                 f"{r0.get('boiling_point_c', float('nan')):.0f} °C, {fp_text}.")
 st.subheader("Best five")
 common.readable_top(cand, ["candidate", metric, "score", "hazard_class", "boiling_point_c",
-                           "lowest_flash_point_c"], 5)
+                           "lowest_flash_point_c", "hazard_notes"], 5)
 show = [c for c in res.columns if c not in ("components", "fractions")]
 common.table(res[show], hide_index=True, width="stretch", column_config=dict(
     common.COLUMN_CONFIG, candidate=st.column_config.TextColumn("Candidate"),
