@@ -144,6 +144,21 @@ def set_target(spec: dict) -> None:
     st.session_state[TARGET_KEY] = dict(spec)
 
 
+def set_target_and_rerun(spec: dict, message: str) -> None:
+    """Set the target, then run the page again so that the sidebar shows it at once; ``message``
+    is shown on that next run (:func:`show_flash`)."""
+    set_target(spec)
+    st.session_state["lw_flash"] = message
+    st.rerun()
+
+
+def show_flash() -> None:
+    """Show (once) the message left by :func:`set_target_and_rerun`."""
+    msg = st.session_state.pop("lw_flash", None)
+    if msg:
+        st.success(msg)
+
+
 def target_spec() -> dict:
     init_state()
     return st.session_state[TARGET_KEY]
@@ -263,12 +278,23 @@ def liquid_names() -> list[str]:
     return sorted(library()["name"].astype(str).tolist(), key=str.lower)
 
 
+def liquid_label(name: str) -> str:
+    """Picker label "name (CAS)", so that typing a CAS number finds the liquid too."""
+    lib = library()
+    cas = dict(zip(lib["name"].astype(str), lib["cas"].astype(str)))
+    c = cas.get(name, "")
+    return f"{name} ({c})" if c and c not in ("nan", "") and not name.endswith(f"({c})") else name
+
+
 def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool = True,
                  expanded: bool = True) -> tuple[dict, float]:
     """Candidate filters (see :mod:`selector.filters`) and the temperature in C."""
     d = defaults if defaults is not None else (demo_filters() if is_demo() else {})
     bp = d.get("boiling_point_c", (None, None))
     with st.expander("Candidate filters", expanded=expanded):
+        if defaults is None and is_demo():
+            st.caption("Preset from the invented demo scenario; they go back to no limits once you set "
+                       "a target of your own.")
         if temperature:
             c1, c2, c3, c4 = st.columns(4)
         else:

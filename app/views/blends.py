@@ -10,7 +10,9 @@ st.title("Blend design")
 common.demo_banner()
 common.target_line()
 st.caption("A blend's HSP are the volume-fraction-weighted mean of its components, so two liquids that "
-           "each miss the target can together land inside it. Blends are ranked by RED (Ra/R0) or Ra.")
+           "each miss the target can together land inside it. Blends are ordered by Ra in steps of "
+           "0.5 MPa½ (closer than that counts as a tie), then fewer liquids, then a better hazard class, "
+           "then Ra; no liquid appears in more than three blends.")
 
 mod = common.capability("blends")
 if mod is None:

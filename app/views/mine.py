@@ -129,6 +129,7 @@ if len(solutes):
     st.subheader("Use a solute of yours as the target")
     names = solutes["name"].fillna("").astype(str)  # pandas 3: astype(str) alone keeps NaN
     pick = st.selectbox("Solute (kind = solute, with R0)", list(names), key="mine_sol")
+    common.show_flash()
     if st.button("Use as target", key="mine_use"):
         r = solutes.loc[names == pick].iloc[0]
         try:
@@ -138,7 +139,7 @@ if len(solutes):
         except (ValueError, TypeError) as e:
             common.show_error(e)
         else:
-            common.set_target({"kind": "mine", "name": pick, "delta_d": float(r["delta_d"]),
-                               "delta_p": float(r["delta_p"]), "delta_h": float(r["delta_h"]),
-                               "radius": float(r["radius"]), "source": "my liquids"})
-            st.success(f"{pick} is now the target.")
+            common.set_target_and_rerun({"kind": "mine", "name": pick, "delta_d": float(r["delta_d"]),
+                                         "delta_p": float(r["delta_p"]), "delta_h": float(r["delta_h"]),
+                                         "radius": float(r["radius"]), "source": "my liquids"},
+                                        f"{pick} is now the target.")

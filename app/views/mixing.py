@@ -83,8 +83,10 @@ def _num(v, fmt="{:.3g}"):
 
 with tab1:
     c1, c2, c3 = st.columns([2, 2, 1])
-    a = c1.selectbox("First liquid", names, index=_idx("hexane"), key="mx_a")
-    b = c2.selectbox("Second liquid", names, index=_idx("methanol"), key="mx_b")
+    a = c1.selectbox("First liquid", names, index=_idx("hexane"), key="mx_a", format_func=common.liquid_label,
+                     help="type a name or a CAS number")
+    b = c2.selectbox("Second liquid", names, index=_idx("methanol"), key="mx_b", format_func=common.liquid_label,
+                     help="type a name or a CAS number")
     t = c3.number_input("Temperature (°C)", value=25.0, min_value=-100.0, max_value=300.0, step=5.0, key="mx_t")
     r = common.call(pair, a, b, float(t))
     if r is not None:
@@ -128,15 +130,18 @@ with tab2:
     default = [n for n in ["water", "methanol", "ethanol", "acetone", "toluene", "hexane", "ethyl acetate",
                            "1-butanol"] if n in names]
     def _fill_top():
-        r = common.call(selector.rank, common.rank_target(), library=common.library())
+        # the Ranked page's starting filters (the demo scenario's while its target is in use)
+        f = common.demo_filters() if common.is_demo() else {}
+        r = common.call(selector.rank, common.rank_target(), library=common.library(), **f)
         if r is not None:
             st.session_state["mx_set"] = list(r["name"].head(10))
 
     st.button("Fill with the 10 best-ranked liquids for the current target", key="mx_fill", on_click=_fill_top,
-              help="do the candidates mix with each other? (useful before designing a blend)")
+              help="do the candidates mix with each other? (useful before designing a blend); ranked "
+                   "with the Ranked page's starting filters")
     if "mx_set" not in st.session_state:
         st.session_state["mx_set"] = default
-    liqs = st.multiselect("Liquids (2 to 25)", names, key="mx_set")
+    liqs = st.multiselect("Liquids (2 to 25)", names, key="mx_set", format_func=common.liquid_label)
     t2 = st.number_input("Temperature (°C)", value=25.0, min_value=-100.0, max_value=300.0, step=5.0, key="mx_t2")
     if len(liqs) < 2:
         st.info("Choose at least two liquids.")

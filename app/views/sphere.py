@@ -110,9 +110,10 @@ if iv:
     st.table(pd.DataFrame([{"parameter": names.get(k, k), "fitted": f"{vals[k]:.2f}" if k in vals else "",
                             "low": f"{v[0]:.2f}", "high": f"{v[1]:.2f}"} for k, v in iv.items()])
              .set_index("parameter"))
+common.show_flash()
 if st.button("Use this sphere as the target", key="sp_use", type="primary"):
-    common.set_target(dict(st.session_state["lw_fit"], kind="fitted"))
-    st.success("The fitted sphere is now the target for the ranking and blend pages.")
+    common.set_target_and_rerun(dict(st.session_state["lw_fit"], kind="fitted"),
+                                "The fitted sphere is now the target for the ranking and blend pages.")
 
 mis = getattr(res, "misfits", None)
 if isinstance(mis, pd.DataFrame):

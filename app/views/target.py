@@ -24,6 +24,7 @@ if not common.is_demo() and st.button("Back to the invented demo resin", key="tg
     common.set_target(common.demo_target_spec())
     st.rerun()
 
+common.show_flash()
 tabs = st.tabs(["Type the numbers", "A library liquid", "Estimate from a structure (SMILES)",
                 "Fitted sphere"])
 
@@ -31,9 +32,12 @@ with tabs[0]:
     with st.form("tg_typed"):
         name = st.text_input("Name", value="my solute", key="tg_name")
         a, b, cc, d = st.columns(4)
-        dd = a.number_input("dD (MPa½)", value=float(t.delta_d), min_value=0.0, max_value=30.0, step=0.1)
-        dp = b.number_input("dP (MPa½)", value=float(t.delta_p), min_value=0.0, max_value=40.0, step=0.1)
-        dh = cc.number_input("dH (MPa½)", value=float(t.delta_h), min_value=0.0, max_value=50.0, step=0.1)
+        dd = a.number_input("dD (MPa½)", value=float(t.delta_d), min_value=0.0, max_value=30.0, step=0.1,
+                            help="0 to 30 MPa½ (a value outside is set to the nearest end)")
+        dp = b.number_input("dP (MPa½)", value=float(t.delta_p), min_value=0.0, max_value=40.0, step=0.1,
+                            help="0 to 40 MPa½ (a value outside is set to the nearest end)")
+        dh = cc.number_input("dH (MPa½)", value=float(t.delta_h), min_value=0.0, max_value=50.0, step=0.1,
+                             help="0 to 50 MPa½ (a value outside is set to the nearest end)")
         r0 = d.number_input("R0 (MPa½)", value=float(t.radius) if t.radius else None, min_value=0.0,
                             max_value=40.0, step=0.1, placeholder="none (a point)",
                             help="leave empty for a point target; then liquids are ranked by Ra")
@@ -43,10 +47,11 @@ with tabs[0]:
             except (selector.SelectorError, ValueError) as e:
                 common.show_error(e)
             else:
-                common.set_target({"kind": "typed", "name": name or "my solute", "delta_d": dd,
-                                   "delta_p": dp, "delta_h": dh, "radius": r0 or None,
-                                   "source": "typed by the user"})
-                st.rerun()
+                msg = (f"{name or 'my solute'} is now the target, as a point: an R0 of 0 means no sphere, "
+                       "so liquids are ranked by Ra." if r0 == 0 else f"{name or 'my solute'} is now the target.")
+                common.set_target_and_rerun({"kind": "typed", "name": name or "my solute", "delta_d": dd,
+                                             "delta_p": dp, "delta_h": dh, "radius": r0 or None,
+                                             "source": "typed by the user"}, msg)
 
 with tabs[1]:
     names = common.liquid_names()
