@@ -468,3 +468,16 @@ def test_cli_sphere(tmp_path, capsys):
     keep.write_text("previous")
     assert main(["sphere", str(bad), "-o", str(keep)]) == 2
     assert keep.read_text() == "previous"
+
+
+def test_demo_fit_intervals_hold_the_demo_sphere():
+    # The invented demo: its lab tests were written to agree with its invented sphere. Checked
+    # here only for consistency of the demo text (README, app), not as a reference value.
+    from selector.cli_core import demo_scenario
+
+    sc = demo_scenario()
+    r = sc["resin"]
+    fit = fit_sphere(pd.read_csv("parameters/demo/lab_tests.csv"), seed=0)
+    for k in PARAMS:
+        lo, hi = fit.intervals[k]
+        assert lo <= r[k] <= hi, (k, lo, r[k], hi)
