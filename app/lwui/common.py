@@ -278,12 +278,19 @@ def liquid_names() -> list[str]:
     return sorted(library()["name"].astype(str).tolist(), key=str.lower)
 
 
-def liquid_label(name: str) -> str:
-    """Picker label "name (CAS)", so that typing a CAS number finds the liquid too."""
+@st.cache_data(show_spinner=False, max_entries=4)
+def _labels(path: str | None, mtime: float) -> dict:
     lib = library()
-    cas = dict(zip(lib["name"].astype(str), lib["cas"].astype(str)))
-    c = cas.get(name, "")
-    return f"{name} ({c})" if c and c not in ("nan", "") and not name.endswith(f"({c})") else name
+    out = {}
+    for n, c in zip(lib["name"].astype(str), lib["cas"].astype("string").fillna("").astype(str)):
+        out[n] = f"{n} ({c})" if c and c != "nan" and not n.endswith(f"({c})") else n
+    return out
+
+
+def liquid_labels() -> dict:
+    """Picker labels "name (CAS)" by name, so that typing a CAS number finds the liquid too. Take
+    them once per page run: a picker formats each of its ~800 options on every run."""
+    return _labels(*_lib_key())
 
 
 def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool = True,

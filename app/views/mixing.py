@@ -81,11 +81,18 @@ def _num(v, fmt="{:.3g}"):
     return fmt.format(f) if np.isfinite(f) else "—"
 
 
+labels = common.liquid_labels()
+
+
+def _label(n):
+    return labels.get(n, n)
+
+
 with tab1:
     c1, c2, c3 = st.columns([2, 2, 1])
-    a = c1.selectbox("First liquid", names, index=_idx("hexane"), key="mx_a", format_func=common.liquid_label,
+    a = c1.selectbox("First liquid", names, index=_idx("hexane"), key="mx_a", format_func=_label,
                      help="type a name or a CAS number")
-    b = c2.selectbox("Second liquid", names, index=_idx("methanol"), key="mx_b", format_func=common.liquid_label,
+    b = c2.selectbox("Second liquid", names, index=_idx("methanol"), key="mx_b", format_func=_label,
                      help="type a name or a CAS number")
     t = c3.number_input("Temperature (°C)", value=25.0, min_value=-100.0, max_value=300.0, step=5.0, key="mx_t")
     r = common.call(pair, a, b, float(t))
@@ -141,7 +148,7 @@ with tab2:
                    "with the Ranked page's starting filters")
     if "mx_set" not in st.session_state:
         st.session_state["mx_set"] = default
-    liqs = st.multiselect("Liquids (2 to 25)", names, key="mx_set", format_func=common.liquid_label)
+    liqs = st.multiselect("Liquids (2 to 25)", names, key="mx_set", format_func=_label)
     t2 = st.number_input("Temperature (°C)", value=25.0, min_value=-100.0, max_value=300.0, step=5.0, key="mx_t2")
     if len(liqs) < 2:
         st.info("Choose at least two liquids.")
