@@ -174,7 +174,7 @@ def check_molecule(smiles) -> tuple[object | None, str]:
                       "model compound of the repeat unit (cap the ends with H or methyl)")
     mol = Chem.MolFromSmiles(s)
     if mol is None:
-        return None, f"not a valid SMILES: {s!r}"
+        return None, "not a valid SMILES (RDKit could not read it)"
     if "." in s or len(Chem.GetMolFrags(mol)) > 1:
         return None, ("several disconnected parts (a salt or a mixture); estimate each neutral "
                       "component on its own")

@@ -263,9 +263,10 @@ def wait_for_estimator() -> None:
 
 # ---------------------------------------------------------------- widgets
 
-def demo_banner() -> None:
+def demo_banner(on_target_page: bool = False) -> None:
     if is_demo():
-        st.info("**Invented demo.** " + demo()["label"] + " Define your own target on the *Target* page.",
+        # the scenario's own label starts "INVENTED DEMO SCENARIO - ..."; no second heading
+        st.info(demo()["label"] + ("" if on_target_page else " Define your own target on the *Target* page."),
                 icon=":material/science:")
 
 

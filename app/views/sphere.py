@@ -59,7 +59,8 @@ elif src == "Upload a CSV":
                 raise ValueError("the file needs a 'solvent' column (or dD, dP, dH columns) and at least "
                                  f"one row; columns found: {', '.join(map(str, base.columns))}")
         except (ValueError, pd.errors.ParserError, UnicodeDecodeError) as e:
-            common.show_error(f"Could not read {up.name}: {str(e).splitlines()[0]}")
+            first = str(e).splitlines()[0]
+            common.show_error(first if up.name in first else f"Could not read {up.name}: {first}")
             base = None
     if base is None:
         from selector.io import to_csv_text

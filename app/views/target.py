@@ -19,7 +19,7 @@ c[2].metric("dH (MPa½)", f"{t.delta_h:.1f}")
 c[3].metric("R0 (MPa½)", f"{t.radius:.1f}" if t.radius else "—")
 c[4].metric("Source", common.target_spec().get("kind", "given"))
 st.markdown(f"**{t.name}** — {t.source}")
-common.demo_banner()
+common.demo_banner(on_target_page=True)
 if not common.is_demo() and st.button("Back to the invented demo resin", key="tg_demo"):
     common.set_target(common.demo_target_spec())
     st.rerun()
