@@ -183,6 +183,11 @@ def phase_diagram(sweep: pd.DataFrame, ucst_c=None, temperature_c=None,
     return _layout(fig, 460)
 
 
+#: readable axis titles for the drying-path columns
+DRYING_TITLES = {"evaporated_fraction": "fraction of the blend evaporated (by volume)",
+                 "red": "RED to the target (1 = sphere edge)", "ra": "Ra to the target (MPa½)"}
+
+
 def drying_plot(path: pd.DataFrame, x: str, series: list[str], y2: str | None = None,
                 title="Drying path") -> go.Figure:
     """Composition (and optionally RED) of an evaporating blend against ``x``."""
@@ -193,10 +198,12 @@ def drying_plot(path: pd.DataFrame, x: str, series: list[str], y2: str | None = 
         fig.add_trace(go.Scatter(x=path[x], y=path[s], mode="lines", name=s,
                                  line=dict(color=pal[i % 5], dash=dashes[i % 5], width=3)), secondary_y=False)
     if y2 is not None:
-        fig.add_trace(go.Scatter(x=path[x], y=path[y2], mode="lines", name=y2,
+        fig.add_trace(go.Scatter(x=path[x], y=path[y2], mode="lines", name=y2.upper() if y2 == "red" else "Ra",
                                  line=dict(color=BLACK, width=2)), secondary_y=True)
-        fig.update_yaxes(title_text=y2, secondary_y=True)
-    fig.update_xaxes(title_text=x)
+        top = float(np.nanmax(path[y2].to_numpy(float))) if len(path) else 1.0
+        rng = [0, max(1.1, 1.05 * top)] if y2 == "red" else None  # keep the RED = 1 line in view
+        fig.update_yaxes(title_text=DRYING_TITLES.get(y2, y2), secondary_y=True, range=rng)
+    fig.update_xaxes(title_text=DRYING_TITLES.get(x, x))
     fig.update_yaxes(title_text="volume fraction in the liquid", secondary_y=False)
     fig.update_layout(title=title)
     return _layout(fig, 430)
