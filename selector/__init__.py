@@ -35,6 +35,7 @@ _EXPORTS = {
     "fit_sphere": "spheres",
     "miscibility": "mixing",
     "miscibility_matrix": "mixing",
+    "phase_sweep": "mixing",
     "check_blend_miscible": "mixing",
     "find_blends": "blends",
     "substitutes": "blends",

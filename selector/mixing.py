@@ -1335,3 +1335,40 @@ def check_blend_miscible(names_or_rows, *, temperature: float = 25.0,
     iu, ju = np.triu_indices(len(df), 1)
     failing = [(names[i], names[j], str(st[i, j])) for i, j in zip(iu, ju) if st[i, j] != "miscible"]
     return BlendCheck(not failing, failing, float(temperature))
+
+
+def phase_sweep(a, b, *, n: int = 41, library: pd.DataFrame | None = None,
+                t_min_c: float = -60.0, t_max_c: float = 250.0) -> pd.DataFrame:
+    """:func:`miscibility` of ``a`` and ``b`` at ``n`` temperatures across the range where both are
+    liquid at 1 atm (above both melting points, below both boiling points, within
+    ``t_min_c``..``t_max_c``): the data of a temperature-composition phase diagram.
+
+    Columns ``temperature_c``, ``binodal_low`` / ``binodal_high`` (volume fractions of ``a`` in the
+    two coexisting phases, NaN where one phase), ``spinodal_low`` / ``spinodal_high`` and ``state``.
+    A loop over a few temperatures, not over the library.
+
+    >>> s = phase_sweep("hexane", "methanol", n=5)
+    >>> list(s.columns)[:3], bool(s["binodal_low"].notna().any())
+    (['temperature_c', 'binodal_low', 'binodal_high'], True)
+    """
+    from .library import find_liquid
+
+    lib = load_library() if library is None else library
+    if not isinstance(n, (int, np.integer)) or n < 2:
+        raise SelectorError(f"n must be a whole number >= 2, got {n!r}")
+    ra_, rb_ = find_liquid(a, lib), find_liquid(b, lib)
+    lo = float(np.nanmax([t_min_c, ra_["melting_point_c"], rb_["melting_point_c"]])) + 0.5
+    hi = float(np.nanmin([t_max_c, ra_["boiling_point_c"], rb_["boiling_point_c"]])) - 0.5
+    if not hi > lo:
+        raise SelectorError(f"{ra_['name']} and {rb_['name']} are not both liquid at any temperature "
+                            f"between {t_min_c:g} and {t_max_c:g} C")
+    rows = []
+    for t in np.linspace(lo, hi, int(n)):
+        m = miscibility(a, b, temperature=float(t), library=lib)
+        bi, sp = m.binodal or {}, m.spinodal or (np.nan, np.nan)
+        pa = bi.get("phi_a", np.nan)
+        p_lo, p_hi = (float(pa[0]), float(pa[1])) if isinstance(pa, (tuple, list)) else \
+            (float(pa), float(bi.get("phi_b", np.nan)))
+        rows.append({"temperature_c": float(t), "binodal_low": p_lo, "binodal_high": p_hi,
+                     "spinodal_low": float(sp[0]), "spinodal_high": float(sp[1]), "state": m.state})
+    return pd.DataFrame(rows)

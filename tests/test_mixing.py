@@ -500,3 +500,20 @@ def test_probability_of_one_phase_is_calibrated_on_the_reference_pairs():
     for sel in (pr >= 0.5, pr < 0.5):
         assert abs(pr[sel].mean() - f.miscible[sel].mean()) < 0.06
 
+
+
+def test_phase_sweep_follows_miscibility_at_each_temperature():
+    # the phase-diagram data are selector.miscibility at each temperature (no second model); the
+    # gap closes on warming for a UCST pair (hexane-methanol: partially miscible at room
+    # temperature, one phase above about 35-45 C; common practice)
+    import selector
+
+    s = selector.phase_sweep("hexane", "methanol", n=9)
+    assert s["temperature_c"].is_monotonic_increasing
+    for row in s.itertuples():
+        m = selector.miscibility("hexane", "methanol", temperature=row.temperature_c)
+        assert row.state == m.state
+    split = s.loc[s["binodal_low"].notna(), "temperature_c"]
+    assert len(split) and split.max() < s["temperature_c"].max()
+    with pytest.raises(selector.SelectorError, match="whole number"):
+        selector.phase_sweep("hexane", "methanol", n=1)

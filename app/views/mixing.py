@@ -33,14 +33,6 @@ def matrix(liqs, t):
     return selector.miscibility_matrix(list(liqs), temperature=t)
 
 
-def _phases(bi: dict):
-    """(low, high) volume fractions of the first liquid in the two coexisting phases."""
-    pa = bi.get("phi_a", np.nan)
-    if isinstance(pa, (tuple, list)):
-        return float(pa[0]), float(pa[1])
-    return float(pa), float(bi.get("phi_b", np.nan))
-
-
 def _solubilities(bi: dict, a: str, b: str):
     out = []
     for k, v in bi.items():
@@ -58,19 +50,8 @@ def _solubilities(bi: dict, a: str, b: str):
 
 @st.cache_data(show_spinner=False, max_entries=128)
 def phase_sweep(a, b, n=41):
-    """selector.miscibility over the common liquid range of the pair (for the phase diagram)."""
-    lib = common.library()
-    ra_, rb_ = selector.find_liquid(a, lib), selector.find_liquid(b, lib)
-    lo = np.nanmax([-60.0, ra_["melting_point_c"], rb_["melting_point_c"]]) + 0.5
-    hi = np.nanmin([250.0, ra_["boiling_point_c"], rb_["boiling_point_c"]]) - 0.5
-    rows = []
-    for T in np.linspace(lo, hi, n):  # a few temperatures, not the library
-        m = selector.miscibility(a, b, temperature=float(T), library=lib)
-        bi, sp = m.binodal or {}, m.spinodal or (np.nan, np.nan)
-        lo, hi = _phases(bi)
-        rows.append({"temperature_c": float(T), "binodal_low": lo, "binodal_high": hi,
-                     "spinodal_low": sp[0], "spinodal_high": sp[1], "state": m.state})
-    return pd.DataFrame(rows)
+    """selector.phase_sweep over the common liquid range of the pair (for the phase diagram)."""
+    return selector.phase_sweep(a, b, n=n, library=common.library())
 
 
 def _num(v, fmt="{:.3g}"):
