@@ -218,20 +218,6 @@ def _allowed_pairs(cand, temperature, k, require_miscible, include_reactive):
     return ok
 
 
-def _with_pair_notes(out, rows):
-    """Add the reacting-pair notes of each proposal (only possible with ``include_reactive``) to
-    its ``hazard_notes``."""
-    from .cautions import pair_reasons
-
-    by_name = rows.drop_duplicates("name").set_index("name", drop=False)
-    notes = []
-    for comps, base in zip(out["components"], out["hazard_notes"]):
-        extra = pair_reasons(by_name.loc[list(comps)]) if len(comps) > 1 else []
-        notes.append("; ".join(x for x in [base] + [f"REACTIVE PAIR {e}" for e in extra] if x))
-    out["hazard_notes"] = notes
-    return out
-
-
 def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, pool=2000,
                   min_gain=DEFAULT_MIN_GAIN, hazard_rank=None, resolution=0.5, ternary_pool=None,
                   workers=None, method="screened", ra_cap=None, display=None):
@@ -607,20 +593,17 @@ def _costs(costs, lib):
 
 
 def _flash_for_blends(cand):
-    """Per candidate: flash point (C), +inf when known non-flammable, NaN when unknown."""
+    """Per candidate: flash point (C), +inf when known non-flammable
+    (:func:`selector.cautions.not_flammable`), the ``hazards.csv`` value where the library has
+    none, NaN when unknown."""
+    from .cautions import not_flammable
     from .hazards import hazard_statements
 
     fp = cand["flash_point_c"].to_numpy(float).copy()
-    st = hazard_statements()
-    nonflam = set(st.loc[st["not_flammable"], "cas"])
-    csv_fp = dict(zip(st["cas"], st["csv_flash_point_c"]))
-    cas = cand["cas"].astype(str).to_numpy()
-    for p in np.flatnonzero(~np.isfinite(fp)):  # only liquids without a library flash point
-        c = cas[p]
-        if c in nonflam:
-            fp[p] = np.inf
-        elif c in csv_fp and np.isfinite(csv_fp[c]):
-            fp[p] = csv_fp[c]
+    st = hazard_statements().drop_duplicates("cas").set_index("cas")["csv_flash_point_c"]
+    csv = cand["cas"].astype(str).map(st).to_numpy(float)
+    fp = np.where(np.isfinite(fp), fp, csv)
+    fp[not_flammable(cand)] = np.inf
     return fp
 
 
@@ -795,7 +778,6 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     from .hazards import component_notes
 
     out["hazard_notes"] = component_notes(out["components"], cand)
-    out = _with_pair_notes(out, cand)
     out.attrs.update(target=tgt, temperature=t_c, caution=CAUTION, min_fraction=m,
                      miscibility="selector.mixing.miscible_pairs" if mis is not None else "not checked",
                      candidates=len(cand))
@@ -839,26 +821,18 @@ def _matchable_viscosity(table) -> np.ndarray:
     return np.where(bad, np.nan, eta)
 
 
-def _blend_viscosity(idx, f, eta):
-    """Blend viscosity (mPa s) of proposals (volume fractions) from the candidates' viscosities
-    ``eta``: ln(eta) mixed by volume fraction (Arrhenius rule without interaction term); NaN
-    where a component's viscosity is unknown."""
+def _by_volume(idx, f, values, log=False):
+    """Volume-fraction mix of per-candidate ``values`` over proposals (``idx``, ``f``): the
+    weighted mean, or with ``log`` the weighted mean of ln(value) exponentiated (the Arrhenius
+    rule without interaction term, for viscosity); NaN where a component's value is unknown."""
     used = idx >= 0
     safe = np.where(used, idx, 0)
-    fr = np.where(used, f, 0.0)
-    eta = np.asarray(eta, float)
+    v = np.asarray(values, float)
     with np.errstate(invalid="ignore", divide="ignore"):
-        visc = np.exp((fr * np.where(used, np.log(eta[safe]), 0.0)).sum(1))
-    return np.where((used & ~np.isfinite(eta[safe])).any(1), np.nan, visc)
-
-
-def _blend_rer(idx, f, rer):
-    """Initial relative evaporation rate of proposals: volume-weighted mean of the candidates'
-    ``rer``; NaN where a component's is unknown."""
-    used = idx >= 0
-    safe = np.where(used, idx, 0)
-    r = (np.where(used, f, 0.0) * np.where(used, rer[safe], 0.0)).sum(1)
-    return np.where((used & ~np.isfinite(rer[safe])).any(1), np.nan, r)
+        term = np.log(v[safe]) if log else v[safe]
+        mixed = (np.where(used, f, 0.0) * np.where(used, term, 0.0)).sum(1)
+        mixed = np.exp(mixed) if log else mixed
+    return np.where((used & ~np.isfinite(v[safe])).any(1), np.nan, mixed)
 
 
 def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: float = 0.05,
@@ -930,9 +904,9 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
                         pool=max(2000, pool_top))
     tab = _table(tg, cand, h, res["idx"], res["f"], res["ra"], t_c)
     tab["boiling_point_c"] = 0.5 * (tab["bp_low_c"] + tab["bp_high_c"])
-    tab["evaporation_rate"] = _blend_rer(res["idx"], res["f"], relative_evaporation_rate(cand, t_c))
-    tab["viscosity_mpa_s"] = _blend_viscosity(res["idx"], res["f"], cand["viscosity_mpa_s"].to_numpy(float))
-    match_visc = _blend_viscosity(res["idx"], res["f"], _matchable_viscosity(cand))
+    tab["evaporation_rate"] = _by_volume(res["idx"], res["f"], relative_evaporation_rate(cand, t_c))
+    tab["viscosity_mpa_s"] = _by_volume(res["idx"], res["f"], cand["viscosity_mpa_s"], log=True)
+    match_visc = _by_volume(res["idx"], res["f"], _matchable_viscosity(cand), log=True)
     hr = hazard_columns(cand)["hazard_rank"].to_numpy(float)
     used = res["idx"] >= 0
     tab["hazard_rank"] = np.where(used, hr[np.where(used, res["idx"], 0)], -np.inf).max(1)
@@ -944,9 +918,9 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
                   np.array([float(_ra(xh[0], tg.hsp))]), t_c)
     one_i, one_f = np.array([[0, -1, -1]]), np.array([[1.0, 0, 0]])
     xtab["boiling_point_c"] = float(x["boiling_point_c"].iloc[0])
-    xtab["evaporation_rate"] = _blend_rer(one_i, one_f, relative_evaporation_rate(x, t_c))
-    xtab["viscosity_mpa_s"] = _blend_viscosity(one_i, one_f, x["viscosity_mpa_s"].to_numpy(float))
-    x_match_visc = _blend_viscosity(one_i, one_f, _matchable_viscosity(x))
+    xtab["evaporation_rate"] = _by_volume(one_i, one_f, relative_evaporation_rate(x, t_c))
+    xtab["viscosity_mpa_s"] = _by_volume(one_i, one_f, x["viscosity_mpa_s"], log=True)
+    x_match_visc = _by_volume(one_i, one_f, _matchable_viscosity(x), log=True)
     xtab["hazard_rank"] = float(xr)
     parts = []
     for a, b, scale, logp in ((tab["boiling_point_c"], xtab["boiling_point_c"], 50.0, False),
@@ -975,9 +949,7 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     out = pd.concat([xtab, out], ignore_index=True)
     from .hazards import component_notes
 
-    both = pd.concat([x, cand]).drop_duplicates("name")
-    out["hazard_notes"] = component_notes(out["components"], both)
-    out = _with_pair_notes(out, both)
+    out["hazard_notes"] = component_notes(out["components"], pd.concat([x, cand]))
     out.attrs.update(target=tg, temperature=t_c, caution=CAUTION, replaced=xname,
                      regulatory_note=str(hz_all["regulatory_note"].iloc[pos]))
     return out

@@ -363,8 +363,9 @@ def _vp_boiling_point(vp, method, tc=None):
         return None
 
 
-def boiling_point_and_vapour_pressure(cas: str, c) -> tuple[float | None, str, str | None, str]:
-    """Normal boiling point (K) and its source, vapour-pressure method, and a data note.
+def boiling_point_and_vapour_pressure(cas: str, c) -> tuple[float | None, str, str | None, str, str]:
+    """Normal boiling point (K) and its source, the vapour-pressure method, that method as shown
+    in the library (with the reason when it is not thermo's default), and a data note.
 
     ``chemicals`` lists several published boiling points per compound, and a few of the first
     ones are values at reduced pressure or plain errors (N-methylpyrrolidine 206 C where the other
@@ -372,7 +373,8 @@ def boiling_point_and_vapour_pressure(cas: str, c) -> tuple[float | None, str, s
     (triacetin's Landolt correlation boils at 93 C). The check: every measured boiling point (not
     Joback's estimate) is scored by how many of the other measured values and of the boiling
     points implied by the vapour-pressure correlations (the one anchored on Tb itself excluded)
-    lie within 10 C of it; the first-listed value is kept unless another scores higher. The
+    lie within 10 C of it; the first-listed value is kept unless another scores higher and
+    differs from it by more than 10 C. The
     vapour-pressure method is thermo's default if its boiling point agrees with the kept one
     within 10 C, else the first of thermo's other methods that does. Where none does, the
     default is kept and the note says the two disagree."""
@@ -398,7 +400,7 @@ def boiling_point_and_vapour_pressure(cas: str, c) -> tuple[float | None, str, s
     first = chemicals.Tb(cas)
     first_src = (chemicals.Tb_methods(cas) or [""])[0]
     if first is None:
-        return None, "", default, ""
+        return None, "", default, default or "", ""
 
     def support(t):
         return sum(abs(x - t) <= TB_AGREE_K for x in pool)
@@ -411,6 +413,7 @@ def boiling_point_and_vapour_pressure(cas: str, c) -> tuple[float | None, str, s
     if src != first_src:
         # a correction, not a doubt: it goes with the source, not into the data note
         src = f"{src} ({first_src}'s {first - 273.15:.1f} C disagrees with the other sources)"
+
     def p_at_tb(m):
         try:
             v = vp.calculate(tb, m)
@@ -423,21 +426,21 @@ def boiling_point_and_vapour_pressure(cas: str, c) -> tuple[float | None, str, s
         p = p_at_tb(m)
         return p is not None and 101325.0 / 1.5 <= p <= 101325.0 * 1.5
 
-    if default is None or p_at_tb(default) is None:
-        return tb, src, default, note  # the default cannot be checked at the boiling point: kept
-    agree = [default] if agrees(default) else [m for m in order if agrees(m)]
-    method = agree[0] if agree else default
-    if not agree:
-        d = implied.get(default)
+    if default is None or p_at_tb(default) is None or agrees(default):
+        # kept: it agrees, or it cannot be checked at the boiling point
+        return tb, src, default, default or "", note
+    other = next((m for m in order if agrees(m)), None)
+    d = implied.get(default)
+    if other is None:
         note = (f"vapour pressure ({default}) boils at {d - 273.15:.0f} C, not {tb - 273.15:.1f} C: "
                 "boiling point or vapour pressure is wrong, treat both as uncertain" if d else
                 f"vapour pressure ({default}) does not give 101 kPa at the boiling point "
                 f"{tb - 273.15:.1f} C: boiling point or vapour pressure is wrong, treat both as uncertain")
-    elif method != default:
-        # a correction: recorded with the method (thermo's default disagreed with the boiling point)
-        method = (f"{method} (thermo's default {default} boils at {implied[default] - 273.15:.0f} C)"
-                  if implied.get(default) else f"{method} (thermo's default {default} disagrees with the boiling point)")
-    return tb, src, method, note
+        return tb, src, default, default, note
+    # a correction, recorded with the method: thermo's default disagreed with the boiling point
+    label = (f"{other} (thermo's default {default} boils at {d - 273.15:.0f} C)" if d else
+             f"{other} (thermo's default {default} disagrees with the boiling point)")
+    return tb, src, other, label, note
 
 
 #: Isomers without an exposure limit of their own that take the limit set for the commercial
@@ -463,13 +466,12 @@ def liquid_record(cas: str) -> dict | None:
             c = Chemical(cas, T=T25, P=101325.0)
         except Exception:  # noqa: BLE001 - not in thermo's identifier database: cannot build a record
             return None
-        tb_checked, tb_src, vp_method, data_note = boiling_point_and_vapour_pressure(cas, c)
+        tb_checked, tb_src, vp_method, vp_label, data_note = boiling_point_and_vapour_pressure(cas, c)
         if tb_checked is not None and not (tm < T25 < tb_checked):
             return None
         tb = tb_checked if tb_checked is not None else tb
-        vp_plain = vp_method.split(" (")[0] if vp_method else vp_method
-        if vp_plain and c.VaporPressure is not None and vp_plain != c.VaporPressure.method:
-            c.VaporPressure.method = vp_plain
+        if vp_method and c.VaporPressure is not None and vp_method != c.VaporPressure.method:
+            c.VaporPressure.method = vp_method
         psat = c.Psat  # thermo's value at 25 C with the checked method
         vm, alpha, vmethod, vest = _volume(c)
         mu, mu_method, mu_est = _viscosity(c)
@@ -498,7 +500,7 @@ def liquid_record(cas: str) -> dict | None:
             "melting_point_source": (chemicals.Tm_methods(cas) or [""])[0],
             "boiling_point_source": tb_src,
             "volume_method": vmethod or "",
-            "vapour_pressure_method": (vp_method or c.VaporPressure.method or "") if psat is not None else "",
+            "vapour_pressure_method": (vp_label or c.VaporPressure.method or "") if psat is not None else "",
             "data_note": data_note,
             "viscosity_method": mu_method,
             "flash_point_source": (chemicals.safety.T_flash_methods(cas) or [""])[0]

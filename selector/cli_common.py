@@ -242,10 +242,8 @@ def _formatters(df) -> dict:
     figures without exponents."""
     out = {}
     for c in df.columns:
-        if df[c].dtype.kind not in "fiu" and str(df[c].dtype) not in ("Float64", "Int64"):
-            continue
-        if df[c].dtype.kind in "iu" or str(df[c].dtype) == "Int64":
-            continue
+        if not (df[c].dtype.kind == "f" or str(df[c].dtype) == "Float64"):
+            continue  # integers and text print as they are
         if c in _TEMPERATURE_COLUMNS:
             out[c] = _fmt("{:.1f}")
         elif c.startswith("delta_") or c in ("radius", "r0"):

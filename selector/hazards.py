@@ -115,9 +115,10 @@ def statement_flags(statements) -> str:
 def component_notes(components, library) -> list[str]:
     """For each tuple of liquid names, "name: flags; ..." for the components that carry any
     :func:`statement_flags` (hazard statements of ``parameters/hazards.csv``), a reagent reason
-    (:mod:`selector.cautions`), or "no hazard data" for unclassified ones. Worked out once per
-    distinct component name."""
-    from .cautions import reactive_reasons
+    (:mod:`selector.cautions`), or "no hazard data" for unclassified ones, followed by a
+    "REACTIVE PAIR ..." note for each pair of components that react
+    (:func:`selector.cautions.pair_reasons`). Worked out once per distinct component name."""
+    from .cautions import pair_reasons, reactive_reasons
 
     wanted = sorted({c for comp in components for c in comp})
     if not wanted:
@@ -129,7 +130,14 @@ def component_notes(components, library) -> list[str]:
     for n, st_, cls, w in zip(sub["name"].astype(str), hz["h_statements"], hz["hazard_class"], why):
         f = statement_flags(parse_statements(st_)) if cls != UNCLASSIFIED else "no hazard data"
         flags[n] = ", ".join(x for x in (w and f"REAGENT: {w}", f) if x)
-    return ["; ".join(f"{c}: {flags[c]}" for c in comp if flags.get(c)) for comp in components]
+    by_name = sub.set_index(sub["name"].astype(str), drop=False)
+    out = []
+    for comp in components:
+        notes = [f"{c}: {flags[c]}" for c in comp if flags.get(c)]
+        if len(comp) > 1:
+            notes += [f"REACTIVE PAIR {r}" for r in pair_reasons(by_name.loc[list(comp)])]
+        out.append("; ".join(notes))
+    return out
 
 
 def _code(s: str) -> str:
