@@ -310,12 +310,21 @@ ESTIMATED_VISCOSITY_METHODS = frozenset({"LETSOU_STIEL", "PRZEDZIECKI_SRIDHAR", 
 VISCOSITY_RANGE_PA_S = (1e-4, 100.0)
 
 
+#: Joback's viscosity estimate is kept only up to this molar mass (g/mol): the range in which it
+#: was checked. Of the 194 library liquids with a data-based viscosity and a Joback estimate, 193
+#: weigh <= 300 g/mol (median factor off 1.20, 90 % within a factor of 2); the one above,
+#: 1,1,2,2-tetrabromoethane (346 g/mol), is off by a factor of 3.4. Joback's exponent grows with
+#: every group, so large esters drift high: triolein 3,900 mPa s, tributyl citrate 340 mPa s,
+#: where tens of mPa s are usual for such oils and plasticisers (from memory).
+JOBACK_VISCOSITY_MAX_MOLAR_MASS = 300.0
+
+
 def _viscosity(c):
     """Liquid viscosity (Pa s) at 25 C, method, estimated flag.
 
     Rule: thermo's default method when it rests on data for the compound; otherwise Joback's
     group-contribution estimate (Joback and Reid, Chem. Eng. Comm. 57 (1987) 233, as carried by
-    thermo); otherwise no value. The Letsou-Stiel corresponding-states estimate (AIChE J. 19
+    thermo) for molecules up to ``JOBACK_VISCOSITY_MAX_MOLAR_MASS``; otherwise no value. The Letsou-Stiel corresponding-states estimate (AIChE J. 19
     (1973) 409) that thermo would pick there is not used - it is a high-temperature method: on the 183 library liquids that have a data-based correlation and both estimates it
     is off by a median factor of 1.82 at 25 C and low (median ratio 0.55; 54 % within a factor
     of 2), where Joback is off by a median factor of 1.20 (median ratio 0.96; 91 % within a
@@ -339,7 +348,7 @@ def _viscosity(c):
     if method not in ESTIMATED_VISCOSITY_METHODS:
         v = at25(method)
         return (v, method, False) if v is not None else (None, "", False)
-    if "JOBACK" in vl.all_methods:
+    if "JOBACK" in vl.all_methods and (c.MW or math.inf) <= JOBACK_VISCOSITY_MAX_MOLAR_MASS:
         v = at25("JOBACK")
         if v is not None:
             return v, "JOBACK", True

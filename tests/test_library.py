@@ -154,6 +154,29 @@ def test_viscosity_carries_its_method(lib):
                                rtol=1e-4)
 
 
+
+def test_joback_viscosity_only_in_its_checked_range(lib):
+    # Joback's viscosity is kept only up to selector.build.JOBACK_VISCOSITY_MAX_MOLAR_MASS, the
+    # range in which it was checked against thermo's data-based correlations. Triolein (885 g/mol)
+    # has no viscosity data in thermo; Joback would give it about 3,900 mPa s, some 50 times the
+    # viscosity usual for vegetable oils (tens of mPa s, from memory), so it gets no value.
+    import warnings
+
+    from thermo import Chemical
+
+    from selector.build import JOBACK_VISCOSITY_MAX_MOLAR_MASS
+
+    joback = lib["viscosity_method"] == "JOBACK"
+    assert joback.sum() > 250
+    assert (lib.loc[joback, "molar_mass"] <= JOBACK_VISCOSITY_MAX_MOLAR_MASS).all()
+    row = find_liquid("triolein", lib)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        vl = Chemical(row.cas, T=298.15).ViscosityLiquid
+        assert vl.method in ("JOBACK", "LETSOU_STIEL", "PRZEDZIECKI_SRIDHAR")   # no data in thermo
+        assert vl.calculate(298.15, "JOBACK") * 1e3 > 1000
+    assert pd.isna(row.viscosity_mpa_s) and row.viscosity_method == ""
+
 def test_viscosity_estimate_rule_against_data():
     # Source: thermo's data-based ViscosityLiquid correlations (DIPPR, VDI PPDS, Viswanath and
     # Natarajan, ...) at 25 C for liquids that have them. The build prefers Joback's estimate to
