@@ -368,6 +368,31 @@ def test_my_liquids_import_save_and_rank(at, home):
     assert "resin thinner X" in set(ref["name"]) and "my resin" not in set(ref["name"])
 
 
+
+def test_my_liquids_reach_blends_and_mixing(home):
+    # A saved liquid sitting on the target must be the first "blend" (a single liquid at Ra 0), and
+    # the mixing page must know it; the references are the library calls with the same merged
+    # library (selector.find_blends / selector.miscibility).
+    (home / "my_liquids.csv").write_text(
+        "name,kind,delta_d,delta_p,delta_h,molar_volume,boiling_point_c,vapour_pressure_kpa\n"
+        f"house thinner Q,liquid,{PS[0]},{PS[1]},{PS[2]},110,150,1.0\n", encoding="utf-8")
+    a = AppTest.from_file(ENTRY, default_timeout=60)
+    a.run()
+    set_typed_target(a, PS)
+    go(a, "blends")
+    assert not errors(a)
+    lib = selector.load_library(pd.read_csv(home / "my_liquids.csv"))
+    ref = selector.find_blends(selector.Target(*PS[:3], PS[3], name="polystyrene"), max_components=3,
+                               min_fraction=0.05, temperature=25.0, top=20, library=lib)
+    assert list(ref["components"].iloc[0]) == ["house thinner Q"]
+    assert a.table[0].value.index[0] == "100% house thinner Q"
+    go(a, "mixing")
+    a.selectbox(key="mx_a").set_value("house thinner Q").run()
+    assert not a.exception and not errors(a)
+    want = selector.miscibility("house thinner Q", "methanol", library=lib).state
+    shown = [m.value for m in a.markdown if "lw-mix-state" in m.value]
+    assert shown and f"<b>{want}</b>" in shown[0]
+
 def test_my_liquids_bad_upload_keeps_the_file(at, home):
     f = home / "my_liquids.csv"
     f.write_text("name,delta_d,delta_p,delta_h\nkeep me,16,4,4\n", encoding="utf-8")

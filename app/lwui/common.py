@@ -291,7 +291,7 @@ def _labels(path: str | None, mtime: float) -> dict:
 def liquid_labels() -> dict:
     """Picker labels "name (CAS)" by name, so that typing a CAS number finds the liquid too. Take
     them once per page run: a picker formats each of its ~800 options on every run."""
-    return _labels(*_lib_key())
+    return _labels(*lib_key())
 
 
 def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool = True,
@@ -348,7 +348,9 @@ def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool
     return f, float(t)
 
 
-def _lib_key():
+def lib_key() -> tuple:
+    """(path, mtime) of the user's saved liquids: part of every cached computation's key, so that
+    a saved change reaches every page."""
     p = _user_file()
     return (str(p), p.stat().st_mtime) if p.exists() else (None, 0.0)
 
@@ -373,7 +375,7 @@ def with_hazards(df: pd.DataFrame) -> pd.DataFrame:
         if "hazard_class" not in out:
             out["hazard_class"] = "unclassified"
         return out
-    lib, t = _hazards_cached(*_lib_key())
+    lib, t = _hazards_cached(*lib_key())
     return hz.attach_hazards(df, lib, columns=("hazard_class", "h_statements"), table=t)
 
 

@@ -20,19 +20,20 @@ if mod is None:
 
 
 @st.cache_data(show_spinner="Designing blends…", max_entries=64)
-def design(target_key, max_components, min_fraction, temperature, top, filters_key):
+def design(target_key, max_components, min_fraction, temperature, top, filters_key, lib_key):
+    # lib_key (the user's liquids file and its time stamp) makes a saved change start a new design
     from selector.targets import Target
 
     tg = Target(*target_key[:3], target_key[3], name=target_key[4])
     return selector.find_blends(tg, max_components=max_components, min_fraction=min_fraction,
-                                temperature=temperature, top=top, **dict(filters_key))
+                                temperature=temperature, top=top, library=common.library(), **dict(filters_key))
 
 
 @st.cache_data(show_spinner=False, max_entries=64)
-def dry(comps, fracs, temperature, tgt, activity, rh):
+def dry(comps, fracs, temperature, tgt, activity, rh, lib_key):
     from selector.targets import Target
 
-    return selector.drying_path(list(comps), list(fracs), temperature=temperature,
+    return selector.drying_path(list(comps), list(fracs), temperature=temperature, library=common.library(),
                                 target=Target(*tgt[:3], tgt[3]), activity=activity, relative_humidity=rh)
 
 
@@ -53,7 +54,7 @@ with st.form("bl_form"):
 
 t = common.target()
 res = common.call(design, (t.delta_d, t.delta_p, t.delta_h, t.radius, t.name), int(ncomp), float(minf),
-                  temp, int(top), freeze(filters))
+                  temp, int(top), freeze(filters), common.lib_key())
 if res is None:
     st.stop()
 if len(res) == 0:
@@ -99,7 +100,7 @@ with tab1:
                        help="the HSP form is rough for water and strongly hydrogen-bonded pairs")
         rh = d2.slider("Relative humidity (%)", 0, 100, 50, 5, key="bl_rh", help="acts on water only")
         path = common.call(dry, tuple(comps), tuple(fracs), temp, (t.delta_d, t.delta_p, t.delta_h, t.radius),
-                           act, float(rh))
+                           act, float(rh), common.lib_key())
         if path is not None:
             from lwui.drying_view import show_drying
 

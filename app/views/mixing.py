@@ -24,13 +24,14 @@ def _idx(n):
 
 
 @st.cache_data(show_spinner=False, max_entries=256)
-def pair(a, b, t):
-    return selector.miscibility(a, b, temperature=t)
+def pair(a, b, t, lib_key):
+    # lib_key (the user's liquids file and its time stamp): a saved change is a new pair
+    return selector.miscibility(a, b, temperature=t, library=common.library())
 
 
 @st.cache_data(show_spinner="Checking every pair…", max_entries=64)
-def matrix(liqs, t):
-    return selector.miscibility_matrix(list(liqs), temperature=t)
+def matrix(liqs, t, lib_key):
+    return selector.miscibility_matrix(list(liqs), temperature=t, library=common.library())
 
 
 def _solubilities(bi: dict, a: str, b: str):
@@ -49,7 +50,7 @@ def _solubilities(bi: dict, a: str, b: str):
 
 
 @st.cache_data(show_spinner=False, max_entries=128)
-def phase_sweep(a, b, n=41):
+def phase_sweep(a, b, lib_key, n=41):
     """selector.phase_sweep over the common liquid range of the pair (for the phase diagram)."""
     return selector.phase_sweep(a, b, n=n, library=common.library())
 
@@ -76,7 +77,7 @@ with tab1:
     b = c2.selectbox("Second liquid", names, index=_idx("methanol"), key="mx_b", format_func=_label,
                      help="type a name or a CAS number")
     t = c3.number_input("Temperature (°C)", value=25.0, min_value=-100.0, max_value=300.0, step=5.0, key="mx_t")
-    r = common.call(pair, a, b, float(t))
+    r = common.call(pair, a, b, float(t), common.lib_key())
     if r is not None:
         state = str(getattr(r, "state", "?"))
         m = st.columns([2, 1, 1, 1, 1])
@@ -101,7 +102,7 @@ with tab1:
             if sol:
                 st.table(pd.DataFrame([{"": k, "wt %": f"{v['wt_pct']:.2g}", "vol %": f"{v['vol_pct']:.2g}",
                                         "mol %": f"{v['mol_pct']:.2g}"} for k, v in sol]).set_index(""))
-        sweep = common.call(phase_sweep, a, b)
+        sweep = common.call(phase_sweep, a, b, common.lib_key())
         if sweep is not None and sweep["binodal_low"].notna().any():
             st.plotly_chart(plots.phase_diagram(sweep, getattr(r, "ucst_c", None), float(t),
                                                 x_label=f"volume fraction of {r.a}"),
@@ -136,7 +137,7 @@ with tab2:
     elif len(liqs) > 25:
         st.error("Choose at most 25 liquids for a readable heat map.")
     else:
-        mat = common.call(matrix, tuple(liqs), float(t2))
+        mat = common.call(matrix, tuple(liqs), float(t2), common.lib_key())
         if mat is not None:
             st.plotly_chart(plots.heat_map(mat, f"Miscibility at {t2:g} °C"), width="stretch", key="mx_heat")
             st.caption("○ miscible · ◐ partially miscible · ● immiscible (colour and symbol both carry the state).")

@@ -33,16 +33,17 @@ pw = c4.slider("Weight of boiling point / evaporation / viscosity match", 0.0, 2
 
 
 @st.cache_data(show_spinner="Looking for substitutes…", max_entries=64)
-def subs(old, solute, ncomp, pw, filters_key):
+def subs(old, solute, ncomp, pw, filters_key, lib_key):
+    # lib_key (the user's liquids file and its time stamp) makes a saved change start a new search
     from selector.targets import Target
 
     sol = None if solute is None else Target(*solute[:3], solute[3], name=solute[4])
     return selector.substitutes(old, solute=sol, max_components=ncomp, property_weight=pw,
-                                **dict(filters_key))
+                                library=common.library(), **dict(filters_key))
 
 
 freeze = tuple(sorted((k, tuple(v) if isinstance(v, list) else v) for k, v in filters.items()))
-h = common.call(selector.hazard, old)
+h = common.call(selector.hazard, old, common.library())
 if h is not None:
     with st.expander(f"Hazard profile of {old}", expanded=False):
         from lwui.hazard_view import show_hazard
@@ -50,7 +51,7 @@ if h is not None:
         show_hazard(h)
 t = common.target()
 res = common.call(subs, old, (t.delta_d, t.delta_p, t.delta_h, t.radius, t.name) if keep else None,
-                  int(ncomp), float(pw), freeze)
+                  int(ncomp), float(pw), freeze, common.lib_key())
 if res is None:
     st.stop()
 res = res.copy()
