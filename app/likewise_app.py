@@ -40,12 +40,14 @@ nav = st.navigation(pages)
 with st.sidebar:
     t = common.target()
     st.markdown("**Current target**")
-    st.markdown(f"{t.name}  \n"
+    st.markdown(f"{common.md_escape(t.name)}  \n"
                 f"dD {t.delta_d:.1f} · dP {t.delta_p:.1f} · dH {t.delta_h:.1f} MPa<sup>½</sup>"
                 + (f"  \nR0 {t.radius:.1f} MPa<sup>½</sup>" if t.radius else "  \n(point, no R0)"),
                 unsafe_allow_html=True)
     if common.is_demo():
         st.caption("Invented demo resin — not measured data.")
+    if common.estimate_note():
+        st.caption(common.estimate_note())
     st.divider()
     st.caption("A ranking is a starting point for laboratory tests, not a safety assessment. "
                "The supplier's safety data sheet and local regulation come first.")

@@ -195,9 +195,19 @@ def capability(module: str):
         raise
 
 
+#: Characters that Streamlit's Markdown would read as formatting (a SMILES such as
+#: ``*CC(*)c1ccccc1`` or ``[C@H](O)`` must be shown as typed).
+_MD_SPECIAL = "\\`*_[]<>~$"  # enough inside a line: ( ) only link after ], - + # only at a line start
+
+
+def md_escape(text) -> str:
+    """``text`` with Markdown formatting characters backslash-escaped (shown literally)."""
+    return "".join("\\" + ch if ch in _MD_SPECIAL else ch for ch in str(text))
+
+
 def show_error(e: Exception) -> None:
     msg = str(e).strip() or type(e).__name__
-    st.error(msg)
+    st.error(md_escape(msg))
 
 
 def call(fn, *args, **kwargs):
@@ -270,9 +280,26 @@ def demo_banner(on_target_page: bool = False) -> None:
                 icon=":material/science:")
 
 
+def estimate_note(spec: dict | None = None) -> str:
+    """One line on an estimated target's uncertainty ("" for other targets): its 90 % intervals
+    and whether it lies inside the estimator's domain."""
+    s = target_spec() if spec is None else spec
+    if not s.get("estimated"):
+        return ""
+    lab = {"delta_d": "dD", "delta_p": "dP", "delta_h": "dH"}
+    iv = " · ".join(f"{lab[c]} {lo:.1f}–{hi:.1f}" for c, (lo, hi) in (s.get("interval") or {}).items())
+    dom = ("inside the estimator's domain" if s.get("in_domain") else
+           "OUTSIDE the estimator's domain: a rough guess")
+    return f"Estimated from its structure, {dom}; 90 % intervals {iv or 'not available'} MPa½."
+
+
 def target_line() -> None:
     t = target()
-    st.markdown(f"**Target:** {t.describe()}  \n<small>source: {t.source}</small>", unsafe_allow_html=True)
+    st.markdown(f"**Target:** {md_escape(t.describe())}  \n<small>source: {md_escape(t.source)}</small>",
+                unsafe_allow_html=True)
+    note = estimate_note()
+    if note:
+        st.caption(note + " Rankings use the central values; test the best few.")
 
 
 def liquid_names() -> list[str]:

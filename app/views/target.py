@@ -100,7 +100,7 @@ with tabs[2]:
             if col in est.columns:
                 rows.append({"": lab, "value": _f(e[col], fmt), "90 % low": _f(e.get(f"{col}_low"), fmt),
                              "90 % high": _f(e.get(f"{col}_high"), fmt)})
-        st.markdown(f"**{e.get('library_name') or e['smiles']}** — source: {e.get('source', '')}")
+        st.markdown(f"**{common.md_escape(e.get('library_name') or e['smiles'])}** — source: {e.get('source', '')}")
         st.table(pd.DataFrame(rows).set_index(""))
         bits = []
         if "similarity" in est.columns:
@@ -112,14 +112,24 @@ with tabs[2]:
         if "in_domain" in est.columns and not bool(e["in_domain"]):
             st.warning("This structure is outside the estimator's domain: treat the numbers as rough.")
         st.caption(str(e.get("message", "")).rstrip(".") + ". Estimates are not measurements: confirm with a test.")
-        if st.button("Use this estimate as the target", key="tg_use_est", type="primary"):
+        estimated = e.get("source") == "estimated"
+        label = "Use this estimate as the target" if estimated else "Use these published values as the target"
+        common.show_flash()
+        if st.button(label, key="tg_use_est", type="primary"):
             r0v = st.session_state.get("tg_r0s")
-            common.set_target({"kind": "estimate", "name": str(e.get("library_name") or e["smiles"]),
-                               "delta_d": float(e["delta_d"]), "delta_p": float(e["delta_p"]),
-                               "delta_h": float(e["delta_h"]), "radius": r0v or None,
-                               "source": f"{e.get('source', 'estimated')} from SMILES {e['smiles']}"})
+            name = str(e.get("library_name") or e["smiles"])
+            spec = {"kind": "estimate", "name": name, "delta_d": float(e["delta_d"]),
+                    "delta_p": float(e["delta_p"]), "delta_h": float(e["delta_h"]), "radius": r0v or None,
+                    "source": f"{e.get('source', 'estimated')} from SMILES {e['smiles']}"}
+            if estimated:
+                spec["estimated"] = True
+                spec["in_domain"] = bool(e.get("in_domain", False))
+                spec["interval"] = {c: (float(e[f"{c}_low"]), float(e[f"{c}_high"]))
+                                    for c in ("delta_d", "delta_p", "delta_h")
+                                    if pd.notna(e.get(f"{c}_low")) and pd.notna(e.get(f"{c}_high"))}
             st.session_state.pop("lw_est", None)
-            st.rerun()
+            common.set_target_and_rerun(spec, f"{name} is now the target"
+                                        + (" (estimated from its structure: see the sidebar)." if estimated else "."))
 
 with tabs[3]:
     fit = st.session_state.get("lw_fit")
