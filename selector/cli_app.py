@@ -78,11 +78,28 @@ def cmd_app(a) -> int:
                             f"stop it or choose another port, e.g. likewise app --port {a.port + 1}")
     print(f"likewise app: serving on http://127.0.0.1:{a.port} (local only; Ctrl+C stops it)",
           file=sys.stderr)
+    import signal
+
+    # the app trains the structure estimator in the background once the first page is up
+    proc = subprocess.Popen(cmd, env=dict(os.environ, LIKEWISE_WARM_ESTIMATOR="1"))
+
+    def _stop(signum, frame):  # SIGTERM / SIGHUP to this command stop the server too
+        proc.terminate()
+
+    old = {s: signal.signal(s, _stop) for s in (signal.SIGTERM, getattr(signal, "SIGHUP", signal.SIGTERM))}
     try:
-        # the app trains the structure estimator in the background once the first page is up
-        return subprocess.call(cmd, env=dict(os.environ, LIKEWISE_WARM_ESTIMATOR="1"))
-    except KeyboardInterrupt:
+        return proc.wait()
+    except KeyboardInterrupt:   # Ctrl+C reaches the server too; the block below waits for it
         return 0
+    finally:
+        if proc.poll() is None:
+            proc.terminate()
+            try:
+                proc.wait(timeout=10)
+            except subprocess.TimeoutExpired:
+                proc.kill()
+        for s, h in old.items():
+            signal.signal(s, h)
 
 
 def register(sub) -> None:

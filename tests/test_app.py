@@ -6,6 +6,8 @@ show what :mod:`selector` computes) and against facts of the trade cited beside 
 from __future__ import annotations
 
 import importlib.util
+import os
+import sys
 from pathlib import Path
 
 import numpy as np
@@ -495,6 +497,39 @@ def test_app_command_binds_localhost(capsys):
     assert out[out.index("--server.headless") + 1] == "true"
     assert out[out.index("--browser.gatherUsageStats") + 1] == "false"
     assert main(["app", "--port", "70000"]) == 2
+
+
+@pytest.mark.skipif(sys.platform == "win32", reason="POSIX signals")
+def test_app_command_stops_its_server_on_sigterm(tmp_path):
+    # a service manager (or `kill`) stops `likewise app` with SIGTERM: the Streamlit server it
+    # started must stop too and free the port (common practice for a wrapper process)
+    import signal
+    import socket
+    import subprocess
+    import time
+
+    from selector.cli_app import port_is_free
+
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        port = s.getsockname()[1]
+    env = dict(os.environ, LIKEWISE_HOME=str(tmp_path))
+    p = subprocess.Popen([sys.executable, "-m", "selector", "app", "--port", str(port)], env=env,
+                         stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+    try:
+        deadline = time.time() + 60
+        while port_is_free(port) and time.time() < deadline:
+            time.sleep(0.3)
+        assert not port_is_free(port), "the server never started"
+        p.send_signal(signal.SIGTERM)
+        assert p.wait(timeout=30) is not None
+        deadline = time.time() + 15
+        while not port_is_free(port) and time.time() < deadline:
+            time.sleep(0.3)
+        assert port_is_free(port)
+    finally:
+        if p.poll() is None:
+            p.kill()
 
 
 @pytest.mark.skipif(not (has("blends") and has("spheres")), reason="capabilities not installed")

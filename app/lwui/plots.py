@@ -131,8 +131,9 @@ def teas_triangle(groups, points=()) -> go.Figure:
         fig.add_trace(go.Scatterternary(a=[f[0]], b=[f[1]], c=[f[2]], mode="markers", name=label,
                                         text=[label], hoverinfo="text",
                                         marker=dict(size=12, color=BLACK, symbol="diamond")))
-    fig.update_layout(ternary=dict(sum=100, aaxis=dict(title="100 fd", min=0), baxis=dict(title="100 fp", min=0),
-                                   caxis=dict(title="100 fh", min=0)),
+    fig.update_layout(ternary=dict(sum=100, aaxis=dict(title="fd, dispersion share (%)", min=0, dtick=20),
+                                   baxis=dict(title="fp, polar share (%)", min=0, dtick=20),
+                                   caxis=dict(title="fh, hydrogen-bond share (%)", min=0, dtick=20)),
                       title="Teas triangle (fractional parameters)")
     return _layout(fig, 560, legend_below=True)
 
@@ -202,7 +203,11 @@ def drying_plot(path: pd.DataFrame, x: str, series: list[str], y2: str | None = 
                                  line=dict(color=BLACK, width=2)), secondary_y=True)
         top = float(np.nanmax(path[y2].to_numpy(float))) if len(path) else 1.0
         rng = [0, max(1.1, 1.05 * top)] if y2 == "red" else None  # keep the RED = 1 line in view
-        fig.update_yaxes(title_text=DRYING_TITLES.get(y2, y2), secondary_y=True, range=rng)
+        hi = rng[1] if rng else max(top, 1e-9)
+        step = next(d for d in (0.1, 0.2, 0.25, 0.5, 1, 2, 5, 10, 20, 50, 1e9) if hi / d <= 8)
+        # round ticks from 0 (not ones aligned to the left axis' grid), no second grid
+        fig.update_yaxes(title_text=DRYING_TITLES.get(y2, y2), secondary_y=True, range=rng,
+                         tickmode="linear", tick0=0, dtick=step, showgrid=False)
     fig.update_xaxes(title_text=DRYING_TITLES.get(x, x))
     fig.update_yaxes(title_text="volume fraction in the liquid", secondary_y=False)
     fig.update_layout(title=title)

@@ -77,7 +77,8 @@ if len(ref):
 st.subheader("Best five")
 common.readable_top(cand, ["candidate", metric, "score", "hazard_class", "boiling_point_c",
                            "lowest_flash_point_c", "hazard_notes"], 5)
-show = [c for c in res.columns if c not in ("components", "fractions")]
+# without a target there is no RED to show (the column would be empty)
+show = [c for c in res.columns if c not in ("components", "fractions") and not (c == "red" and metric != "red")]
 common.table(res[show], hide_index=True, width="stretch", column_config=dict(
     common.COLUMN_CONFIG, candidate=st.column_config.TextColumn("Candidate"),
     lowest_flash_point_c=st.column_config.NumberColumn("Lowest flash point (°C)", format="%.0f"),
@@ -94,7 +95,7 @@ inputs = dict(common.filters_as_inputs(filters, 25.0), **{"liquid replaced": old
                                                           "property weight": float(pw)})
 kw = dict(target=tg, inputs=inputs, table=res.head(11),
           columns=[c for c in ["candidate", "ra", "red", "score", "hazard_class", "boiling_point_c",
-                               "lowest_flash_point_c", "role"] if c in res], liquids=common.with_hazards(rows),
+                               "lowest_flash_point_c", "role"] if c in show], liquids=common.with_hazards(rows),
           sources=LIBRARY_SOURCES + ["Hazard classes: CHEM21 guide (Prat et al., Green Chem. 18 (2016) 288-296), "
                                      "statements from memory - confirm with the safety data sheet."],
           notes=(["The target is the INVENTED demo resin, not measured data."] if keep and common.is_demo() else []))
