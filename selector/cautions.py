@@ -75,6 +75,25 @@ REACTIVE_GROUPS = (
      "alkylating agent, lachrymator"),
     ("alkyl iodide", "[CX4;!$(C(I)(I))]I", "alkylating agent"),
     ("vinylpyridine", "[CH2]=[CH1][$(c1ncccc1),$(c1cnccc1),$(c1ccncc1)]", "polymerises, toxic, sensitiser"),
+    # Organosulfur and halo-ethyl compounds near ester/ether HSP (common practice unless noted:
+    # none of them is in a solvent selection guide).
+    # 2-chloroethyl ethyl sulfide is the "half-mustard": the 2-haloethyl sulfide group closes to a
+    # sulfonium ion that alkylates skin and DNA (the chemistry of sulfur mustard).
+    ("2-haloethyl sulfide", "[Cl,Br,I][CX4][CX4][SX2]", "mustard-type alkylating agent, vesicant"),
+    # nitrogen mustards: the 2-haloethyl amine closes to an aziridinium ion (amides excluded)
+    ("2-haloethyl amine", "[Cl,Br,I][CX4][CX4][NX3;!$(N-[C,S,P]=[O,S,N]);!$(N-[N,O])]",
+     "mustard-type alkylating agent, vesicant"),
+    # 2-chloroethanol is fatal in contact with skin, 1,3-dichloro-2-propanol a carcinogen (EU CLP,
+    # from memory); halohydrins are epoxide precursors, made to react
+    ("halohydrin", "[Cl,Br,I][CX4][CX4][OX2H]", "alkylating, forms epoxides, toxic"),
+    ("thiirane", "C1CS1", "alkylating agent, polymerises"),
+    # vinyl sulfides are monomers and synthesis intermediates with a stench (divinyl sulfide,
+    # methyl vinyl sulfide); thiophene (aromatic) does not match
+    ("vinyl sulfide", "[SX2][CX3]=[CX3]", "monomer and reagent, stench"),
+    # organic thiocyanates can release cyanide in the body (from memory: methyl thiocyanate is
+    # classed toxic)
+    ("organic thiocyanate", "[#6]SC#N", "toxic, may release cyanide"),
+    ("disulfide", "[#6][SX2][SX2][#6]", "stench, toxic"),
 )
 
 #: GHS statements that make a liquid a reagent wherever ``parameters/hazards.csv`` lists them:

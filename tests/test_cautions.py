@@ -24,9 +24,33 @@ def _reason(name):
     ("allyl chloride", "allylic"), ("benzyl chloride", "benzylic"),
     # hazards.csv lists H310 H330 (fatal) for 1,1,2,2-tetrachloroethane (from memory there)
     ("1,1,2,2-tetrachloroethane", "fatal on exposure"),
+    # Common practice: mustard-type alkylating agents (2-chloroethyl ethyl sulfide is the
+    # "half-mustard"; bis(2-chloroethyl)amine is nor-nitrogen mustard), vinyl sulfide monomers,
+    # thiirane, thiocyanates, disulfides and halohydrins are reagents, not solvents.
+    ("2-chloroethyl ethyl sulfide", "2-haloethyl sulfide"), ("bis(2-chloroethyl)amine", "2-haloethyl amine"),
+    ("divinyl sulfide", "vinyl sulfide"), ("(methylthio)ethene", "vinyl sulfide"),
+    ("ethyl vinyl sulfide", "vinyl sulfide"), ("thiirane", "thiirane"),
+    ("methyl thiocyanate", "thiocyanate"), ("diethyl disulfide", "disulfide"),
+    ("2-chloroethanol", "halohydrin"), ("1,3-dichloro-2-propanol", "halohydrin"),
 ])
 def test_reagents_are_flagged(name, kind):
     assert kind in _reason(name)
+
+
+def test_stored_reasons_match_the_screen():
+    # The bundled library stores each liquid's reason (selector.build); a stale column would hide
+    # a class added to REACTIVE_GROUPS. Recomputed from SMILES, exposure limit and hazards.csv.
+    fresh = reactive_reasons(LIB.drop(columns=["reactive_reason", "origin"]))
+    stored = LIB["reactive_reason"].fillna("").astype(str).to_numpy()
+    assert (fresh == stored).all(), LIB.loc[fresh != stored, "name"].tolist()
+
+
+def test_mustards_and_vinyl_sulfides_leave_the_ranking():
+    # Reviewer's case: a target near tert-butyl cyclohexanecarboxylate (16.5, 4.5, 5.5, R0 5)
+    # once had divinyl sulfide first, (methylthio)ethene third and the half-mustard eighth.
+    top = selector.rank((16.5, 4.5, 5.5, 5.0), top=20)["name"].tolist()
+    assert not {"divinyl sulfide", "(methylthio)ethene", "2-chloroethyl ethyl sulfide",
+                "butyl vinyl sulfide", "ethyl vinyl sulfide"} & set(top)
 
 
 def test_very_low_exposure_limit_is_flagged():
@@ -38,7 +62,8 @@ def test_very_low_exposure_limit_is_flagged():
 @pytest.mark.parametrize("name", ["toluene", "acetone", "ethanol", "ethyl acetate", "NMP", "DMSO", "water",
                                   "hexane", "dibutyl phthalate", "nitromethane", "butyl acrylate",
                                   "propylene carbonate", "dichloromethane", "cinnamaldehyde", "benzaldehyde",
-                                  "chlorobenzene", "pyridine"])
+                                  "chlorobenzene", "pyridine", "thiophene", "3-methylsulfolane", "dimethyl sulfide",
+                                  "tetrahydrothiophene", "bis(2-chloroethyl) ether", "2-chloroethyl acetate"])
 def test_ordinary_solvents_are_not_flagged(name):
     # Common practice: all of these are used as solvents (dibutyl phthalate has a low ppm limit
     # but hardly any vapour, so the exposure rule does not apply).
