@@ -28,8 +28,11 @@ triples of the full library are searched in a fraction of a second.
 Which blends are shown
 ----------------------
 Ra values closer than ``resolution`` (default 0.5 MPa^0.5, about the uncertainty of published
-HSP) are treated as equal: within such a step, fewer components come first, then the better
-hazard class, then the smaller Ra.
+HSP) are treated as equal: within such a step, rows with a component that has no hazard data
+(CHEM21 "unclassified") come after every classified row - unclassified counts as no better than
+the worst class, and this comes before the number of components, so a single liquid without
+hazard data never heads a step that holds a classified blend - then fewer components come first,
+then the better hazard class (unclassified ranked below "highly hazardous"), then the smaller Ra.
 A blend of two is proposed only if it comes at least ``min_gain`` (default 0.1 MPa^0.5) closer to
 the target than each of its liquids alone, and a blend of three only if it beats each of its three
 pairs by the same margin: a third liquid must earn its place. Every pair inside a proposed blend
@@ -55,6 +58,8 @@ REFERENCE_RADIUS = 8.0  # MPa^0.5, as in selector.ranking
 DEFAULT_MIN_GAIN = 0.1  # MPa^0.5
 DEFAULT_RESOLUTION = 0.5  # MPa^0.5: Ra differences below this are within the data's uncertainty
 SCALE = np.array([2.0, 1.0, 1.0])
+#: hazard level of a liquid without hazard data in the search keys (CHEM21 classes are 0-3)
+UNCLASSIFIED_LEVEL = 4
 
 CAUTION = ("Caution: blends are proposals for laboratory tests. Solvents can be flammable, toxic or "
            "reactive; the blend's flash point can be as low as its lowest-flash component. Read each "
@@ -241,7 +246,8 @@ def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, p
     X = np.asarray(X, float)
     n = len(X)
     res = float(resolution)
-    hz = np.zeros(n) if hazard_rank is None else np.where(np.isfinite(hazard_rank), hazard_rank, 4.0)
+    hz = (np.zeros(n) if hazard_rank is None
+          else np.where(np.isfinite(hazard_rank), hazard_rank, float(UNCLASSIFIED_LEVEL)))
     Z = X - np.asarray(t, float)
     G = Z @ Z.T
     gd = np.diag(G).copy()
@@ -498,9 +504,12 @@ def _best(idx, f, rr, kk, pool):
 
 
 def _display_order(res):
-    """Order of display: Ra step (``resolution``), fewer components, better hazard class, Ra."""
+    """Order of display: Ra step (``resolution``), classified before unclassified (any component
+    without hazard data), fewer components, better hazard class, Ra (module doc)."""
     k = (res["idx"] >= 0).sum(1)
-    return np.lexsort((res["key"], k, np.floor(res["key"] / 10.0)))
+    step = np.floor(res["key"] / 10.0)
+    unclassified = np.floor(res["key"] - 10.0 * step) >= UNCLASSIFIED_LEVEL
+    return np.lexsort((res["key"], k, unclassified, step))
 
 
 def _diverse(order_keys, idx, max_uses, top):
@@ -677,7 +686,7 @@ def _pareto(ra, cost):
 def display_cap(parts, top, max_uses, resolution):
     """Ra (MPa^0.5) from which no blend of three can be among the ``top`` rows shown.
 
-    Rows are shown in Ra steps of ``resolution``, fewer liquids first within a step, each liquid
+    Rows are shown in Ra steps of ``resolution`` (the order within a step does not matter here), each liquid
     in at most ``max_uses`` rows (:func:`find_blends`). Take single liquids and pairs in order of
     Ra and keep those that share no liquid with one kept before (``parts``: the (idx, f, ra, key)
     arrays of the singles and pairs). Before step b + 1 is reached, a kept row of a step <= b is

@@ -112,24 +112,23 @@ def statement_flags(statements) -> str:
     return ", ".join(flag for flag, hs in STATEMENT_FLAGS if codes & set(hs))
 
 
+#: The hazard note of a liquid without hazard statements here (``"unclassified"``).
+NO_DATA_NOTE = "no hazard data: treat as hazardous until the safety data sheet says otherwise"
+
+
 def component_notes(components, library) -> list[str]:
     """For each tuple of liquid names, "name: flags; ..." for the components that carry any
     :func:`statement_flags` (hazard statements of ``parameters/hazards.csv``), a reagent reason
-    (:mod:`selector.cautions`), or "no hazard data" for unclassified ones, followed by a
+    (:mod:`selector.cautions`), or :data:`NO_DATA_NOTE` for unclassified ones, followed by a
     "REACTIVE PAIR ..." note for each pair of components that react
     (:func:`selector.cautions.pair_reasons`). Worked out once per distinct component name."""
-    from .cautions import pair_reasons, reactive_reasons
+    from .cautions import pair_reasons
 
     wanted = sorted({c for comp in components for c in comp})
     if not wanted:
         return ["" for _ in components]
     sub = library.loc[library["name"].astype(str).isin(wanted)].drop_duplicates("name")
-    hz = hazard_columns(sub)
-    why = reactive_reasons(sub)
-    flags = {}
-    for n, st_, cls, w in zip(sub["name"].astype(str), hz["h_statements"], hz["hazard_class"], why):
-        f = statement_flags(parse_statements(st_)) if cls != UNCLASSIFIED else "no hazard data"
-        flags[n] = ", ".join(x for x in (w and f"REAGENT: {w}", f) if x)
+    flags = dict(zip(sub["name"].astype(str), liquid_notes(sub)))
     by_name = sub.set_index(sub["name"].astype(str), drop=False)
     out = []
     for comp in components:
@@ -138,6 +137,25 @@ def component_notes(components, library) -> list[str]:
             notes += [f"REACTIVE PAIR {r}" for r in pair_reasons(by_name.loc[list(comp)])]
         out.append("; ".join(notes))
     return out
+
+
+def liquid_notes(library: pd.DataFrame, table: pd.DataFrame | None = None) -> np.ndarray:
+    """Hazard note of each row of ``library`` (object array of str, "" = nothing to flag): the
+    reagent reason ("REAGENT: ...", :mod:`selector.cautions`), then the :func:`statement_flags`
+    of its statements in ``parameters/hazards.csv``, or :data:`NO_DATA_NOTE` where it has none
+    (unclassified). ``table``: :func:`hazard_columns` of ``library`` when the caller has it.
+    Flags are worked out once per distinct statement list."""
+    from .cautions import reactive_reasons
+
+    hz = hazard_columns(library) if table is None else table
+    st_ = hz["h_statements"].astype(str)
+    uniq = pd.unique(st_)
+    flags = st_.map(dict(zip(uniq, (statement_flags(parse_statements(u)) for u in uniq)))).to_numpy(object)
+    flags = np.where(hz["hazard_class"].to_numpy(object) == UNCLASSIFIED, NO_DATA_NOTE, flags)
+    why = reactive_reasons(library)
+    reagent = np.where(why != "", "REAGENT: " + why.astype(str).astype(object), "")
+    both = (reagent != "") & (flags != "")
+    return np.where(both, reagent + ", " + flags, np.where(reagent != "", reagent, flags)).astype(object)
 
 
 def _code(s: str) -> str:

@@ -83,7 +83,9 @@ def rank(target, *, temperature: float = 25.0, library: pd.DataFrame | None = No
     :class:`~selector.targets.Target` or a fitted sphere. ``temperature`` in C. Filters: see
     :mod:`selector.filters`. Returns the library columns plus ``ra`` (MPa^0.5), ``red`` (NaN
     without R0), ``polarity_match`` (0..1), ``score`` (lower is better; see module doc) and
-    ``rank`` (1 = best); ``attrs["reagents_left_out"]`` counts the reagents (reactive,
+    ``rank`` (1 = best), ``hazard_notes`` (:func:`selector.hazards.liquid_notes`: toxic,
+    corrosive, CMR, ..., or "no hazard data: treat as hazardous ..." for an unclassified liquid;
+    the order is by score alone); ``attrs["reagents_left_out"]`` counts the reagents (reactive,
     explosive or very toxic liquids, :mod:`selector.cautions`) that the filters would have let
     through had ``include_reactive=True`` been given. Invalid targets or filters raise ``ValueError`` naming the problem.
 
@@ -128,6 +130,10 @@ def rank(target, *, temperature: float = 25.0, library: pd.DataFrame | None = No
     out["red"] = red
     out["polarity_match"] = pm
     out["score"] = score
+    from .hazards import liquid_notes
+
+    # order unchanged (by score); the notes say where a liquid has no hazard data
+    out["hazard_notes"] = liquid_notes(lib)[mask]
     key = np.round(score / TIE_RESOLUTION)
     order = np.lexsort((out["molar_volume"].to_numpy(float), key))
     out = out.iloc[order].reset_index(drop=True)

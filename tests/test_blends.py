@@ -272,6 +272,36 @@ def test_constraints_never_violated():
         assert r.hazard_class in ("recommended", "problematic")
 
 
+def _unclassified_never_heads_a_step(b, resolution=0.5):
+    # within an Ra step (resolution), no row with an unclassified component precedes a classified one
+    step = np.floor(b["ra"].to_numpy() / resolution)
+    unc = (b["hazard_class"] == "unclassified").to_numpy()
+    for s in np.unique(step):
+        u = unc[step == s]
+        assert not (u[:-1] & ~u[1:]).any(), b.loc[step == s, ["components", "ra", "hazard_class"]]
+
+
+def test_unclassified_liquid_never_heads_classified_blends():
+    # Reviewer's case: near estimated tert-butyl cyclohexanecarboxylate (16.5, 4.5, 5.5, R0 5),
+    # "100% divinyl sulfide" (no hazard data, Ra 0.14) came first, above classified blends of the
+    # same Ra step (recommended, Ra < 0.1). Unclassified counts as no better than the worst class.
+    b = find_blends((16.5, 4.5, 5.5, 5.0), top=10, include_reactive=True)
+    _unclassified_never_heads_a_step(b)
+    assert b["components"].iloc[0] != ("divinyl sulfide",)
+    assert b["hazard_class"].iloc[0] != "unclassified"
+    # menthyl acetate's own HSP (16.8, 4.7, 4.9, library values): the liquid itself (Ra 0, no
+    # hazard data in parameters/hazards.csv) comes after the classified rows of its step (Ra
+    # steps of 0.1 MPa^0.5; before, a single liquid came first in its step whatever its class)
+    lib = selector.load_library()
+    row = lib.set_index("name").loc["menthyl acetate"]
+    hsp = tuple(float(row[c]) for c in ("delta_d", "delta_p", "delta_h"))
+    b = find_blends(hsp + (5.0,), top=6, max_components=2, resolution=0.1)
+    _unclassified_never_heads_a_step(b, 0.1)
+    first = b.index[b["components"].map(lambda c: c == ("menthyl acetate",)).to_numpy()]
+    assert len(first) == 1 and (b["hazard_class"].iloc[:first[0]] != "unclassified").all() and first[0] > 0
+    assert "no hazard data: treat as hazardous" in b["hazard_notes"].iloc[first[0]]
+
+
 def test_diversity_limits_repeats():
     res = find_blends((17.0, 7.0, 7.0, 6.0), max_components=2, top=20, max_uses=2)
     counts = pd.Series([c for cs in res["components"] for c in cs]).value_counts()

@@ -209,7 +209,8 @@ def test_blend_and_substitute_rows_carry_component_hazard_notes():
     notes = component_notes([("morpholine", "anisole")], lib)[0]
     assert notes == "morpholine: " + statement_flags(st.loc["morpholine", "statements"])
     unc = lib.loc[~lib["cas"].isin(st["cas"]), "name"].iloc[0]
-    assert component_notes([(unc,)], lib) == [f"{unc}: no hazard data"]
+    assert component_notes([(unc,)], lib) == [
+        f"{unc}: no hazard data: treat as hazardous until the safety data sheet says otherwise"]
     b = selector.find_blends((17.9, 6.1, 6.4, 8.6), max_components=2, top=6)
     assert list(b["hazard_notes"]) == component_notes(b["components"], lib)
     s = selector.substitutes("toluene", top=4, max_components=1)

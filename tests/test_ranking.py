@@ -138,3 +138,17 @@ def test_typed_targets_beyond_any_liquid_are_refused():
         selector.rank((17.9, 6.1, 6.4, 99.0))
     assert Target(31.0, 5.0, 5.0, 45.0, name="fitted sphere").delta_d == 31.0
     assert len(selector.rank((29.9, 39.9, 49.9), top=3)) == 3
+
+
+def test_ranking_notes_flag_liquids_without_hazard_data():
+    # The ranking stays ordered by score, but an unclassified liquid (no statements in
+    # parameters/hazards.csv: menthyl acetate) says plainly that it has no hazard data, and a
+    # classified one carries its GHS flags (toluene: H225, H361d in hazards.csv, from memory).
+    from selector.hazards import hazard_statements
+
+    r = selector.rank((16.5, 4.5, 5.5, 5.0))
+    assert (np.diff(r["score"].to_numpy()) > -0.005 - 1e-12).all()
+    notes = r.set_index("name")["hazard_notes"]
+    assert "menthyl acetate" not in set(hazard_statements()["name"])
+    assert notes["menthyl acetate"] == "no hazard data: treat as hazardous until the safety data sheet says otherwise"
+    assert "extremely or highly flammable" in notes["toluene"] and "reprotoxic" in notes["toluene"]
