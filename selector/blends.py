@@ -664,6 +664,8 @@ def _table(tgt, cand, h, idx, f, rr, t_c, cost=None):
     out["bp_high_c"] = bph
     out["lowest_flash_point_c"] = low_fp
     out["lowest_flash_component"] = lf_comp
+    # every component known not to burn (NaN lowest flash point, but not for want of data)
+    out["not_flammable"] = np.all(np.isinf(fps), 1)
     if cost is not None:
         out["cost_per_litre"] = (fr * np.where(used, cost[safe], 0.0)).sum(1)
     return out
@@ -743,7 +745,9 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     ``red`` (NaN without R0), ``component_red`` (or ``component_ra``), ``non_solvent_pair`` (every
     component outside the sphere, the blend inside), ``hazard_class`` (worst component),
     ``bp_low_c``/``bp_high_c`` (boiling range), ``lowest_flash_point_c`` and its component (NaN if
-    a component's flash point is unknown). The method is exact (module doc).
+    a component's flash point is unknown, or every component is known not to burn: then
+    ``not_flammable`` is True; :func:`selector.cautions.flash_point_text` tells the two apart).
+    The method is exact (module doc).
 
     >>> r = find_blends((17.0, 8.0, 8.0, 5.0), max_components=2, top=3)
     >>> bool((r["red"] < 1).all()), bool(r["fractions"].map(lambda f: min(f) >= 0.05).all())

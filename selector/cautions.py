@@ -257,6 +257,39 @@ def not_flammable(library: pd.DataFrame) -> np.ndarray:
     return nf & ~np.isfinite(fp)
 
 
+#: Texts of :func:`flash_point_text` for a liquid that does not burn and for a missing value.
+NOT_FLAMMABLE_TEXT = "not flammable"
+NO_FLASH_DATA_TEXT = "no data"
+
+
+def flash_point_text(frame: pd.DataFrame, column: str = "flash_point_c", fmt: str = "{:.1f}") -> pd.Series:
+    """``frame[column]`` (flash points in C) as display text, same index: the value formatted with
+    ``fmt``, ``"not flammable"`` where the liquid is known not to burn, ``"no data"`` where the
+    value is missing. A blank flash point means either, so tables must not print both the same
+    way (tetrachloroethylene does not burn; divinyl sulfide has no data and is flammable).
+
+    Known not to burn: the rows a boolean ``not_flammable`` column of ``frame`` marks (blend and
+    substitute tables: every component non-flammable), else, for ``flash_point_c``,
+    :func:`not_flammable` (library rows matched by CAS).
+
+    >>> import pandas as pd
+    >>> flash_point_text(pd.DataFrame({"cas": ["127-18-4", "627-51-0", "64-17-5"],
+    ...                                "flash_point_c": [None, None, 13.0]})).tolist()
+    ['not flammable', 'no data', '13.0']
+    """
+    v = pd.to_numeric(frame[column], errors="coerce").to_numpy(float)
+    if "not_flammable" in frame.columns:
+        nf = frame["not_flammable"].astype("boolean").fillna(False).to_numpy(bool)
+    elif column == "flash_point_c":
+        nf = not_flammable(frame)
+    else:
+        nf = np.zeros(len(v), dtype=bool)
+    known = np.isfinite(v)
+    out = np.where(nf & ~known, NOT_FLAMMABLE_TEXT, NO_FLASH_DATA_TEXT).astype(object)
+    out[known] = [fmt.format(x) for x in v[known]]   # display only: the rows shown
+    return pd.Series(out, index=frame.index, name=column, dtype=object)
+
+
 # ---------------------------------------------------------------- pairs that react with each other
 
 #: Groups for the pair screen: (class, RDKit SMARTS). Our own patterns.

@@ -258,6 +258,26 @@ def _formatters(df) -> dict:
     return out
 
 
+#: flash-point columns shown as text in tables (:func:`flash_texts`)
+FLASH_COLUMNS = ("flash_point_c", "lowest_flash_point_c")
+
+
+def flash_texts(df):
+    """``df`` with its :data:`FLASH_COLUMNS` as text for a table: the value (0.1 C), "not
+    flammable" for liquids (or blends) known not to burn, "no data" for a missing value
+    (:func:`selector.cautions.flash_point_text`; a blank once meant both). Other formats keep
+    the numbers."""
+    from .cautions import flash_point_text
+
+    cols = [c for c in FLASH_COLUMNS if c in df.columns and df[c].dtype.kind in "fiu"]
+    if not cols:
+        return df
+    out = df.copy()
+    for c in cols:
+        out[c] = flash_point_text(df, c)
+    return out
+
+
 #: unit notes for the columns a table may carry
 _UNITS = (
     (("delta_d", "delta_p", "delta_h", "ra", "radius"), "dD/dP/dH, Ra, R0 in MPa^0.5"),
@@ -288,9 +308,11 @@ def emit(df, a, columns=None, caution: bool = False, header: str | None = None,
 
     out = getattr(a, "output", None)
     check_file_args(a)
+    fmt = getattr(a, "format", "table")
+    if fmt == "table":
+        df = flash_texts(df)
     if columns is not None:
         df = df[[c for c in columns if c in df.columns]]
-    fmt = getattr(a, "format", "table")
     if fmt == "csv":
         text = to_csv_text(df)
     elif fmt == "json":

@@ -302,6 +302,25 @@ def test_unclassified_liquid_never_heads_classified_blends():
     assert "no hazard data: treat as hazardous" in b["hazard_notes"].iloc[first[0]]
 
 
+def test_blend_flash_point_text_tells_not_flammable_from_no_data(capsys):
+    # Common practice: dichloromethane, chloroform and tetrachloroethylene do not burn
+    # (parameters/hazards.csv "none", from memory); divinyl sulfide has no flash-point data.
+    from selector.cautions import flash_point_text
+
+    names = ["dichloromethane", "tetrachloroethylene", "chloroform", "divinyl sulfide"]
+    b = find_blends((17.5, 5.5, 5.5, 5.0), include=names, max_components=2, top=10)
+    text = dict(zip(b["components"].map(frozenset), flash_point_text(b, "lowest_flash_point_c")))
+    assert text[frozenset({"chloroform", "dichloromethane"})] == "not flammable"
+    assert text[frozenset({"tetrachloroethylene"})] == "not flammable"
+    assert text[frozenset({"dichloromethane", "divinyl sulfide"})] == "no data"
+    assert main(["blend", "17.5,5.5,5.5,5", "--only", ",".join(names), "--parts", "2"]) == 0
+    out = capsys.readouterr().out
+    row = next(ln for ln in out.splitlines() if "chloroform" in ln and "dichloromethane" in ln)
+    assert "not flammable" in row
+    row = next(ln for ln in out.splitlines() if "divinyl sulfide" in ln and "dichloromethane" in ln)
+    assert "no data" in row
+
+
 def test_diversity_limits_repeats():
     res = find_blends((17.0, 7.0, 7.0, 6.0), max_components=2, top=20, max_uses=2)
     counts = pd.Series([c for cs in res["components"] for c in cs]).value_counts()

@@ -200,3 +200,25 @@ def test_reacting_pairs_are_never_blended_unless_asked():
     assert mixed and all("REACTIVE PAIR" in n for n in mixed)
     for cs in substitutes("toluene", top=40)["components"]:
         assert not (set(cs) & acids and set(cs) & bases), cs
+
+
+def test_flash_point_text_tells_not_flammable_from_no_data(capsys):
+    # Common practice: tetrachloroethylene and dichloromethane do not burn (parameters/hazards.csv
+    # marks them "none", from memory); divinyl sulfide has no flash point in the library (no data,
+    # not "safe"); ethanol's 12.0 C is the library's value (chemicals).
+    from selector.cautions import flash_point_text
+    from selector.cli import main
+
+    sub = LIB.set_index("name", drop=False).loc[["tetrachloroethylene", "dichloromethane",
+                                                  "divinyl sulfide", "ethanol"]]
+    assert flash_point_text(sub).tolist() == ["not flammable", "not flammable", "no data", "12.0"]
+    # the command-line table shows the words; csv keeps the number (blank)
+    assert main(["rank", "18.8,5.1,5.3", "--only", "tetrachloroethylene,divinyl sulfide,ethanol",
+                 "--top", "3"]) == 0
+    lines = {ln.split()[1]: ln for ln in capsys.readouterr().out.splitlines()
+             if ln.strip()[:1].isdigit()}
+    assert "not flammable" in lines["tetrachloroethylene"]
+    assert "no data" in lines["divinyl"] and "not flammable" not in lines["divinyl"]
+    assert "12.0" in lines["ethanol"]
+    assert main(["rank", "18.8,5.1,5.3", "--only", "tetrachloroethylene", "--format", "csv"]) == 0
+    assert "not flammable" not in capsys.readouterr().out
