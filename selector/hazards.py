@@ -303,9 +303,9 @@ def hazard_table(library: pd.DataFrame | None = None) -> pd.DataFrame:
     lib = load_library() if library is None else library
     st = _statement_table().drop_duplicates("cas").set_index("cas")
     n = len(lib)
-    cas = lib["cas"].astype(str).to_numpy()
+    cas = _cas_keys(lib).astype(str).to_numpy()   # a table without CAS numbers: all unclassified
     idx = st.index.get_indexer(cas)
-    known = idx >= 0
+    known = (idx >= 0) & (cas != "")
     bp = lib["boiling_point_c"].to_numpy(float)
     lib_fp = lib["flash_point_c"].to_numpy(float) if "flash_point_c" in lib else np.full(n, np.nan)
     ait = lib["autoignition_c"].to_numpy(float) if "autoignition_c" in lib else np.full(n, np.nan)
