@@ -2,16 +2,27 @@
 from __future__ import annotations
 
 import argparse
+import re
 
-GUESS_COLUMNS = ["name", "smiles", "source", "delta_d", "delta_d_low", "delta_d_high",
+GUESS_COLUMNS = ["name", "smiles", "source", "hsp_source", "delta_d", "delta_d_low", "delta_d_high",
                  "delta_p", "delta_p_low", "delta_p_high", "delta_h", "delta_h_low", "delta_h_high",
                  "molar_volume", "molar_volume_low", "molar_volume_high", "in_domain", "similarity",
-                 "nearest", "message"]
+                 "nearest", "duplicate_of", "message"]
 SHORT_COLUMNS = ["name", "smiles", "source", "delta_d", "delta_p", "delta_h", "molar_volume",
                  "in_domain", "message"]
+#: digits of the values and their intervals in the table format (HSP 0.01 MPa^0.5, volume 0.1 cm3/mol)
+DIGITS = {"delta_d": 2, "delta_p": 2, "delta_h": 2, "molar_volume": 1}
 
-NOTE = ("Estimated values carry 90 % prediction intervals (out-of-fold calibrated); "
-        "'library' rows are published values. Estimates are not measurements: confirm before use.")
+NOTE = ("Source: 'estimated' = estimated from structure, with 90 % prediction intervals (out-of-fold "
+        "calibrated); 'library' = the library's published values; 'published' = HSP from the published "
+        "table the model is trained on (chemicals.solubility, source key in hsp_source), molar volume "
+        "estimated. Estimates are not measurements: confirm before use.")
+
+#: columns of the user-liquid file written by --save-mine
+SAVED_COLUMNS = ["name", "smiles", "delta_d", "delta_p", "delta_h", "molar_volume", "hsp_source", "origin",
+                 "molar_volume_estimated", "volume_method", "delta_d_low", "delta_d_high", "delta_p_low",
+                 "delta_p_high", "delta_h_low", "delta_h_high", "molar_volume_low", "molar_volume_high",
+                 "in_domain"]
 
 
 def register(sub) -> None:
@@ -20,13 +31,20 @@ def register(sub) -> None:
         description=("Estimate delta_d, delta_p, delta_h (MPa^0.5) and molar volume (cm3/mol, 25 C) "
                      "of a molecule from its SMILES, with 90 % intervals and a check of how close it "
                      "is to the molecules the model was trained on. A molecule already in the "
-                     "library is answered with its published values."),
-        formatter_class=argparse.RawDescriptionHelpFormatter)
+                     "library is answered with its published values ('library'); one in the "
+                     "published table the model is trained on, with that table's HSP and an estimated "
+                     "molar volume ('published'). Isotope labels are removed first (CDCl3 is answered "
+                     "as chloroform); without an exact match, a match that ignores stereo answers. "
+                     "Batch rows are numbered from 1 (the first row under the header)."),
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+        epilog="exit status: 0, 1 when --save-mine had to skip rows (named on stderr), 2 on an error")
     p.add_argument("smiles", help="one SMILES string, or a CSV file with a 'smiles' column (optional 'name')")
     p.add_argument("--name", help="name for a single SMILES (used when saving)")
-    p.add_argument("--long", action="store_true", help="table format: show the intervals and nearest compounds")
-    p.add_argument("--save-mine", metavar="CSV", help="append the estimated rows to a CSV of your own "
-                   "liquids (written atomically; usable with --mine in the other commands)")
+    p.add_argument("--long", action="store_true", help="show the intervals, sources and nearest compounds "
+                   "(one SMILES: one line per value)")
+    p.add_argument("--save-mine", metavar="CSV", help="add the estimated and published rows to a CSV of your "
+                   "own liquids (written atomically; a row with the same name is replaced and named; rows "
+                   "that cannot be saved are skipped and named; usable with --mine in the other commands)")
     g = p.add_argument_group("output")
     g.add_argument("--format", choices=["table", "csv", "json"], default="table",
                    help="table (default), csv or json")
@@ -36,10 +54,55 @@ def register(sub) -> None:
     p.set_defaults(func=cmd_guess)
 
 
+def _plural(n: int, word: str) -> str:
+    return f"{n} {word}" + ("" if n == 1 else "s")
+
+
+def _shown(res, cols):
+    """The table-format frame: each interval printed to the precision of its value."""
+    import pandas as pd
+
+    out = res[[c for c in cols if c in res.columns]].copy()
+    for c, d in DIGITS.items():
+        for s in ("_low", "_high"):
+            if c + s in out.columns:
+                out[c + s] = [("-" if pd.isna(v) else f"{float(v):.{d}f}") for v in out[c + s]]
+    if "duplicate_of" in out.columns:
+        out["duplicate_of"] = ["" if pd.isna(v) else str(int(v)) for v in out["duplicate_of"]]
+    return out
+
+
+def _vertical(row) -> str:
+    """One estimate as name/value lines (``--long`` for a single SMILES)."""
+    import pandas as pd
+
+    unit = {"delta_d": "MPa^0.5", "delta_p": "MPa^0.5", "delta_h": "MPa^0.5", "molar_volume": "cm3/mol"}
+    lines = []
+    for f in ("name", "smiles", "source", "hsp_source"):
+        v = row.get(f, "")
+        if str(v).strip():
+            lines.append(f"{f:14s} {v}")
+    for c, d in DIGITS.items():
+        v, lo, hi = row[c], row.get(c + "_low"), row.get(c + "_high")
+        if pd.isna(v):
+            lines.append(f"{c:14s} -")
+            continue
+        iv = f"   90 % interval {lo:.{d}f} .. {hi:.{d}f}" if pd.notna(lo) and pd.notna(hi) else ""
+        lines.append(f"{c:14s} {v:.{d}f} {unit[c]}{iv}")
+    lines.append(f"{'in_domain':14s} {bool(row['in_domain'])}")
+    if pd.notna(row.get("similarity")):
+        lines.append(f"{'similarity':14s} {row['similarity']:.2f} (Tanimoto to the nearest training compound)")
+    for f in ("nearest", "message"):
+        if str(row.get(f, "")).strip():
+            lines.append(f"{f:14s} {row[f]}")
+    return "\n".join(lines)
+
+
 def cmd_guess(a) -> int:
+    import sys
     from pathlib import Path
 
-    from .cli_common import check_file_args, emit
+    from .cli_common import CAUTION, check_file_args, emit
     from .errors import SelectorError
     from .estimation import _looks_like_path, estimate
 
@@ -49,49 +112,84 @@ def cmd_guess(a) -> int:
     res = estimate(a.smiles, names=names, progress=batch)
     if "name" not in res.columns:
         res.insert(0, "name", "")
-    res["name"] = res["name"].where(res["name"].astype(str).str.strip() != "", res["library_name"])
+    res["name"] = res["name"].where(res["name"].astype(str).str.strip() != "", res["matched_name"])
     cols = GUESS_COLUMNS if (a.long or a.format != "table") else SHORT_COLUMNS
-    emit(res, a, cols, caution=True, header=NOTE)
+    if a.format == "table" and a.long and len(res) == 1 and not a.output:
+        sys.stdout.write(NOTE + "\n\n" + _vertical(res.iloc[0]) + "\n\n" + CAUTION + "\n")
+    else:
+        emit(_shown(res, cols) if a.format == "table" else res, a, cols, caution=True, header=NOTE)
+    status = 0
     if a.save_mine:
-        _save_mine(res, Path(a.save_mine))
+        status = _save_mine(res, Path(a.save_mine))
     failed = int((res["source"] == "").sum())
     if failed and batch:
-        import sys
-
         print(f"{failed} of {len(res)} rows could not be estimated (see the message column)", file=sys.stderr)
     if failed == len(res):
         raise SelectorError("no row could be estimated")
-    return 0
+    return status
 
 
-def _save_mine(res, path) -> None:
+_ROW_PREFIX = re.compile(r"^row \d+(?: \([^)]*\))?: ")
+
+
+def _save_mine(res, path) -> int:
+    """Add the saveable rows of ``res`` to the user-liquid file ``path``; 1 when rows were skipped."""
     import sys
 
+    import numpy as np
     import pandas as pd
 
     from .estimation import as_library_rows
-    from .io import write_atomic
-    from .library import _as_frame, validate_user_table
+    from .io import to_csv_text, write_atomic
+    from .library import _as_frame, user_row_problems, validate_user_table
 
-    if not res["source"].eq("estimated").any():
+    src = res["source"].astype(str)
+    dup = res["duplicate_of"].notna().to_numpy() if "duplicate_of" in res.columns else np.zeros(len(res), bool)
+    cand = np.flatnonzero(src.isin(["estimated", "published"]).to_numpy() & ~dup)
+    n_lib = int(src.eq("library").sum())
+    n_dup = int((dup & src.isin(["estimated", "published"]).to_numpy()).sum())
+    if not len(cand):
         print("nothing saved: no row was estimated (library matches and failed rows are not saved)",
               file=sys.stderr)
-        return
-    rows = as_library_rows(res)
-    keep = ["name", "smiles", "delta_d", "delta_p", "delta_h", "molar_volume", "hsp_source",
-            "delta_d_low", "delta_d_high", "delta_p_low", "delta_p_high", "delta_h_low", "delta_h_high",
-            "molar_volume_low", "molar_volume_high", "in_domain"]
-    new = rows[keep].copy()
-    num = [c for c in keep if c.startswith(("delta_", "molar_volume"))]
+        return 0
+    rows = as_library_rows(res)          # the same rows, in the same order
+    new = rows[SAVED_COLUMNS].copy()
+    num = [c for c in SAVED_COLUMNS if c.startswith(("delta_", "molar_volume")) and c != "molar_volume_estimated"]
     new[num] = new[num].astype(float).round(3)
+    _, problems = user_row_problems(new)
+    skipped = []
+    for k in sorted(problems):
+        i = int(cand[k])
+        label = str(res["name"].iloc[i]).strip() or str(res["smiles"].iloc[i])
+        why = "; ".join(_ROW_PREFIX.sub("", t) for t in problems[k])
+        skipped.append(f"row {i + 1} ({label}): {why}")
+    good = new.drop(index=list(problems)).reset_index(drop=True)
+    replaced = []
+    if good.empty:
+        print(f"nothing saved to {path}: {_plural(len(skipped), 'row')} cannot be user liquids:\n  "
+              + "\n  ".join(skipped), file=sys.stderr)
+        return 1
     if path.exists():
         old = _as_frame(path)
-        old = old[~old["name"].astype(str).str.lower().isin(new["name"].str.lower())] if "name" in old else old
-        table = pd.concat([old, new], ignore_index=True)
+        if "name" in old:
+            same = old["name"].astype(str).str.strip().str.lower().isin(good["name"].str.lower())
+            replaced = old.loc[same, "name"].astype(str).tolist()
+            old = old[~same]
+        table = pd.concat([old, good], ignore_index=True)
     else:
-        table = new
+        table = good
     validate_user_table(table)  # refuse to write a table the other commands could not read
-    from .io import to_csv_text
-
     write_atomic(path, to_csv_text(table), make_parents=False)
-    print(f"saved {len(new)} estimated row(s) to {path}", file=sys.stderr)
+    kinds = good["origin"].value_counts()
+    detail = ", ".join(f"{n} {k}" for k, n in kinds.items())
+    msg = f"saved {_plural(len(good), 'row')} to {path} ({detail})"
+    if replaced:
+        msg += f"; replaced {_plural(len(replaced), 'earlier row')} of the same name: " + ", ".join(replaced)
+    if n_lib or n_dup:
+        msg += "; not saved: " + ", ".join(x for x in (
+            f"{n_lib} in the library" if n_lib else "",
+            f"{_plural(n_dup, 'repeated molecule')} (saved once)" if n_dup else "") if x)
+    if skipped:
+        msg += f"; skipped {_plural(len(skipped), 'row')} that cannot be user liquids:\n  " + "\n  ".join(skipped)
+    print(msg, file=sys.stderr)
+    return 1 if skipped else 0

@@ -68,6 +68,8 @@ OUT_COLS = HSP_COLS + ["molar_volume"]
 DOMAIN_THRESHOLD = 0.3
 COVERAGE = 0.90
 ESTIMATED_SOURCE = "estimated from structure (likewise HSPEstimator)"
+#: ``volume_method`` of an estimated molar volume.
+VOLUME_METHOD = "estimated from structure (atom-type model on library densities)"
 #: Tag of the model design; calibration.json written for another design is not used.
 MODEL_TAG = "group-energy ridge + descriptor kernel ridge stacked under extra-trees on energy targets, blended, v7"
 
@@ -642,16 +644,7 @@ class _Bundle:
                           "out-of-fold (slower)...")
             est.calibrate_(np.nan_to_num(X), df[HSP_COLS].to_numpy(float), groups, 5, mols=mols)
         self.hsp = est
-        vm, vv, _ = library_volume_table()
-        self.volume = MolarVolumeModel().fit(vm, vv)
-        if cal.get("volume_log_factor") and sha_ok:
-            self.volume.log_factor_ = float(cal["volume_log_factor"])
-        else:
-            oof = np.zeros_like(vv)
-            for tr, te in grouped_folds(scaffold_groups(vm), 5, 0):
-                m = MolarVolumeModel().fit([vm[i] for i in tr], vv[tr])
-                oof[te] = m.predict([vm[i] for i in te])
-            self.volume.calibrate(vv, oof)
+        self.volume = default_volume_model()
         self.names = df["name"].astype(str).to_numpy()
         self.train_bits = similarity_bits(mols)
         heavy = np.array([m.GetNumHeavyAtoms() for m in mols])
@@ -660,6 +653,26 @@ class _Bundle:
         self.domain_threshold = float(cal.get("domain_threshold", DOMAIN_THRESHOLD))
         if verbose:
             _progress("likewise: estimator ready.")
+
+
+@functools.lru_cache(maxsize=1)
+def default_volume_model() -> MolarVolumeModel:
+    """The molar-volume model fitted on the library's liquids, with the shipped interval factor
+    (or one calibrated out-of-fold when calibration.json is missing or stale); a second or so,
+    without training the HSP model."""
+    cal = load_calibration()
+    sha_ok = cal.get("model") == MODEL_TAG and cal.get("training_sha256") == _file_sha256(TRAINING_CSV)
+    vm, vv, _ = library_volume_table()
+    model = MolarVolumeModel().fit(vm, vv)
+    if cal.get("volume_log_factor") and sha_ok:
+        model.log_factor_ = float(cal["volume_log_factor"])
+    else:
+        oof = np.zeros_like(vv)
+        for tr, te in grouped_folds(scaffold_groups(vm), 5, 0):
+            m = MolarVolumeModel().fit([vm[i] for i in tr], vv[tr])
+            oof[te] = m.predict([vm[i] for i in te])
+        model.calibrate(vv, oof)
+    return model
 
 
 _BUNDLE: list = []
@@ -674,43 +687,109 @@ def default_bundle(verbose=True) -> _Bundle:
 
 # --------------------------------------------------------------------------- library match
 
-def _library_index(lib: pd.DataFrame):
-    from .chem import canonical_smiles
+def _flat_smiles(mol) -> str:
+    """Canonical SMILES without stereo (non-isomeric)."""
+    from rdkit import Chem
 
+    return Chem.MolToSmiles(mol, isomericSmiles=False)
+
+
+def _key_of(mol) -> str:
+    from rdkit import Chem
+
+    try:
+        return Chem.MolToInchiKey(mol) or ""
+    except Exception:  # noqa: BLE001 - InChI failures just mean "no match"
+        return ""
+
+
+class _RefIndex:
+    """Look-up of a reference table (the library, the published training table) by canonical
+    SMILES and InChIKey (exact), and by non-isomeric SMILES and the InChIKey's first block
+    (connectivity, stereo-free)."""
+
+    def __init__(self, smiles, keys=None, mols=None):
+        from rdkit import Chem
+
+        self.exact, self.by_key, self.flat, self.by_block = {}, {}, {}, {}
+        smiles = [str(x) for x in smiles]
+        if mols is None:
+            mols = [Chem.MolFromSmiles(x) if x else None for x in smiles]
+        if keys is None:
+            keys = [_key_of(m) if m is not None else "" for m in mols]
+        for i, (m, k) in enumerate(zip(mols, keys)):
+            if m is not None:
+                self.exact.setdefault(Chem.MolToSmiles(m), i)
+                self.flat.setdefault(_flat_smiles(m), i)
+            k = str(k) if isinstance(k, str) else ""
+            if k:
+                self.by_key.setdefault(k, i)
+                self.by_block.setdefault(k.split("-")[0], i)
+
+    def find(self, mol, can, key):
+        """``(position, how)``: how is "exact" or "stereo-free"; ``(None, "")`` if absent."""
+        pos = self.exact.get(can)
+        if pos is None and key:
+            pos = self.by_key.get(key)
+        if pos is not None:
+            return pos, "exact"
+        pos = self.flat.get(_flat_smiles(mol))
+        if pos is None and key:
+            pos = self.by_block.get(key.split("-")[0])
+        return (pos, "stereo-free") if pos is not None else (None, "")
+
+
+def _library_index(lib: pd.DataFrame) -> _RefIndex:
     cache = getattr(_library_index, "_cache", None)
     if cache is not None and cache[0] is lib:
-        return cache[1], cache[2]
-    by_smiles, by_key = {}, {}
-    for i, s in enumerate(lib["smiles"].astype(str)):
-        c = canonical_smiles(s) if s else None
-        if c:
-            by_smiles.setdefault(c, i)
-    if "inchikey" in lib.columns:
-        for i, k in enumerate(lib["inchikey"].astype(str)):
-            if k:
-                by_key.setdefault(k, i)
-    _library_index._cache = (lib, by_smiles, by_key)
-    return by_smiles, by_key
+        return cache[1]
+    keys = lib["inchikey"].astype(str).tolist() if "inchikey" in lib.columns else None
+    idx = _RefIndex(lib["smiles"].astype(str).where(lib["smiles"].notna(), "").tolist(), keys)
+    _library_index._cache = (lib, idx)
+    return idx
+
+
+@functools.lru_cache(maxsize=1)
+def _published_index() -> _RefIndex:
+    df, mols = _training_cached()
+    return _RefIndex(df["smiles"].tolist(), mols=mols)
 
 
 def _match_library(mols, lib):
     """Library row position of each molecule (canonical SMILES, then InChIKey), or None."""
+    return [m[1] if m[0] == "library" else None for m in _match_references(mols, lib)]
+
+
+def _match_references(mols, lib):
+    """Per molecule ``(where, position, how)``: where is "library" (row of ``lib``), "published"
+    (row of :func:`training_table`) or "" (no match); how is "exact" (same canonical SMILES or
+    InChIKey) or "stereo-free" (same non-isomeric SMILES or InChIKey first block), tried in the
+    order library exact, published exact, library stereo-free, published stereo-free."""
     from rdkit import Chem
 
-    by_smiles, by_key = _library_index(lib)
+    li = _library_index(lib)
+    pi = None
     out = []
     for m in mols:
         if m is None:
-            out.append(None)
+            out.append(("", None, ""))
             continue
-        pos = by_smiles.get(Chem.MolToSmiles(m))
-        if pos is None and by_key:
-            try:
-                key = Chem.MolToInchiKey(m)
-            except Exception:  # noqa: BLE001 - InChI failures just mean "no match"
-                key = ""
-            pos = by_key.get(key) if key else None
-        out.append(pos)
+        can, key = Chem.MolToSmiles(m), _key_of(m)
+        lp, lhow = li.find(m, can, key)
+        if lp is not None and lhow == "exact":
+            out.append(("library", lp, lhow))
+            continue
+        if pi is None:
+            pi = _published_index()
+        pp, phow = pi.find(m, can, key)
+        if pp is not None and phow == "exact":
+            out.append(("published", pp, phow))
+        elif lp is not None:
+            out.append(("library", lp, lhow))
+        elif pp is not None:
+            out.append(("published", pp, phow))
+        else:
+            out.append(("", None, ""))
     return out
 
 
@@ -741,21 +820,38 @@ def _looks_like_path(s: str) -> bool:
 def estimate(smiles, library=None, names=None, progress=False, domain_threshold=None) -> pd.DataFrame:
     """Estimate delta_d, delta_p, delta_h (MPa^0.5) and molar volume (cm^3/mol, 25 C) from SMILES.
 
-    ``smiles``: one SMILES string, a list of them, or the path of a CSV file with a ``smiles``
-    column (and optionally ``name``). One SMILES that cannot be estimated raises
+    ``smiles``: one SMILES string, a list of them (or an (n, 1) array), or the path of a CSV file
+    with a ``smiles`` column (and optionally ``name``). One SMILES that cannot be estimated raises
     :class:`SelectorError` with the reason; in a batch the row gets NaN values and the reason in
     ``message``, and the other rows are estimated.
 
     Returns one row per input with ``smiles, delta_d, delta_p, delta_h, molar_volume``, the 90 %
     interval ``<col>_low``/``<col>_high`` of each, ``similarity`` (Tanimoto to the nearest
     training molecule), ``in_domain``, ``nearest`` (the three most similar training compounds),
-    ``source`` ("library" when the molecule is in the solvent library - values then come from the
-    library and the intervals are empty - "estimated", or "" for a failed row) and ``message``.
-    A molecule found in the library is answered from it even where the model would refuse it
-    (water, carbon disulfide...). See the module docstring for the methods. Estimates are not
-    measurements.
+    ``source``, ``hsp_source``, ``matched_name`` (``library_name`` for library rows),
+    ``duplicate_of`` and ``message``. ``source`` is
+
+    * "library" when the molecule is in the solvent library: every value comes from the library
+      and the intervals are empty;
+    * "published" when it is in the published training table (``parameters/estimator/
+      training_hsp.csv``, see :func:`training_table`) but not in the library: the HSP are the
+      published ones (``hsp_source`` names the ``chemicals`` source key, HSP intervals empty),
+      the molar volume is estimated by the volume model (with its interval; ``message`` says so);
+    * "estimated" for a model estimate (``hsp_source`` = :data:`ESTIMATED_SOURCE`);
+    * "" for a row that failed.
+
+    Matching (library first, then the published table) is by canonical SMILES or InChIKey; when
+    neither matches exactly, a stereo-free match (non-isomeric SMILES, or the InChIKey's first
+    block) answers, and ``message`` names the compound matched. Isotope labels are removed before
+    matching and estimating: an isotopologue (CDCl3, CD3OD) is answered as its parent, whose HSP
+    and molar volume are close to its own (common practice); ``message`` says so. A molecule found
+    in the library is answered from it even where the model would refuse it (water, carbon
+    disulfide...). In a batch, a row with the same molecule (same canonical SMILES after removing
+    isotopes) as an earlier row gets ``duplicate_of`` = that row's number (rows numbered from 1,
+    the first SMILES) and a note in ``message``. See the module docstring for the methods.
+    Estimates are not measurements.
     """
-    from .estimation_features import featurize, similarity_bits, tanimoto
+    from .estimation_features import featurize, similarity_bits, strip_isotopes, tanimoto
     from .library import load_library
 
     single = False
@@ -784,10 +880,12 @@ def estimate(smiles, library=None, names=None, progress=False, domain_threshold=
     from rdkit import Chem
 
     # a molecule the model refuses (water, an inorganic liquid...) may still be in the library
-    parsed = [m if m is not None else (Chem.MolFromSmiles(s.strip()) if isinstance(s, str) and s.strip()
-                                        and "*" not in s else None) for m, s in zip(mols, items)]
-    lib_pos = _match_library(parsed, lib)
-    if single and msgs[0] and lib_pos[0] is None:
+    raw = [Chem.MolFromSmiles(s.strip()) if isinstance(s, str) and s.strip() and "*" not in s else None
+           for s in items]
+    isotopic = [strip_isotopes(m)[1] for m in raw]
+    parsed = [m if m is not None else strip_isotopes(r)[0] for m, r in zip(mols, raw)]
+    matches = _match_references(parsed, lib)
+    if single and msgs[0] and matches[0][0] != "library":
         raise SelectorError(f"cannot estimate {items[0]!r}: {msgs[0]}")
 
     out = pd.DataFrame({"smiles": [str(s).strip() for s in items]})
@@ -801,24 +899,70 @@ def estimate(smiles, library=None, names=None, progress=False, domain_threshold=
     out["in_domain"] = False
     out["nearest"] = ""
     out["source"] = ""
+    out["hsp_source"] = ""
     out["library_name"] = ""
-    out["message"] = msgs
+    out["matched_name"] = ""
+    out["duplicate_of"] = pd.array([pd.NA] * n, dtype="Int64")
+    notes = [[m] if m else [] for m in msgs]
+    for i, iso in enumerate(isotopic):
+        if iso and parsed[i] is not None:
+            notes[i].insert(0, f"isotope labels removed: answered as the parent {Chem.MolToSmiles(parsed[i])} "
+                               "(an isotopologue's HSP and molar volume are close to the parent's)")
 
-    est_rows = []
-    for i, pos in enumerate(lib_pos):
-        if pos is None and mols[i] is None:
-            continue
-        if pos is not None:
+    est_rows, pub_rows, pub_pos = [], [], []
+    table = None
+    for i, (where, pos, how) in enumerate(matches):
+        if where == "library":
             row = lib.iloc[pos]
             for c in OUT_COLS:
                 out.at[i, c] = float(row[c]) if pd.notna(row[c]) else np.nan
             out.at[i, "source"] = "library"
-            out.at[i, "library_name"] = str(row["name"])
+            out.at[i, "hsp_source"] = str(row.get("hsp_source", "") or "")
+            out.at[i, "library_name"] = out.at[i, "matched_name"] = str(row["name"])
             out.at[i, "in_domain"] = True
             out.at[i, "similarity"] = 1.0
-            out.at[i, "message"] = f"in the library as {row['name']}: published values, not an estimate"
-        else:
+            if how == "stereo-free":
+                notes[i].append(f"no exact match; same compound without stereo as {row['name']} "
+                                f"({row['smiles']}) in the library")
+            notes[i].append(f"in the library as {row['name']}: published values, not an estimate")
+        elif where == "published":
+            if table is None:
+                table = _training_cached()[0]
+            row = table.iloc[pos]
+            for c in HSP_COLS:
+                out.at[i, c] = float(row[c])
+            out.at[i, "source"] = "published"
+            out.at[i, "hsp_source"] = str(row["hsp_source"])
+            out.at[i, "matched_name"] = str(row["name"])
+            out.at[i, "in_domain"] = True
+            out.at[i, "similarity"] = 1.0
+            if how == "stereo-free":
+                notes[i].append(f"no exact match; same compound without stereo as {row['name']} "
+                                f"({row['smiles']}) in the published table")
+            notes[i].append(f"in the published HSP table as {row['name']} ({row['hsp_source']}, chemicals): "
+                            "published HSP, not an estimate; molar volume estimated from structure")
+            pub_rows.append(i)
+        elif mols[i] is not None:
             est_rows.append(i)
+    # the rows a library match rescued lose the model's refusal
+    for i, (where, _, _) in enumerate(matches):
+        if where == "library" and msgs[i]:
+            notes[i] = [x for x in notes[i] if x != msgs[i]]
+
+    vol_rows = pub_rows + est_rows
+    if vol_rows:
+        vmodel = default_volume_model() if not est_rows else default_bundle(verbose=True).volume
+        vmols = [mols[i] for i in vol_rows]
+        vol, unseen = vmodel.predict_with_unseen(vmols)
+        lf = vmodel.log_factor_ if vmodel.log_factor_ is not None else np.nan
+        vidx = np.array(vol_rows)
+        out.loc[vidx, "molar_volume"] = vol
+        out.loc[vidx, "molar_volume_low"] = vol * np.exp(-lf)
+        out.loc[vidx, "molar_volume_high"] = vol * np.exp(lf)
+        for k, i in enumerate(vol_rows):
+            if unseen[k]:
+                notes[i].append("molar volume less certain: atom type(s) " + ", ".join(unseen[k]) +
+                                " not in the volume training set")
 
     if est_rows:
         b = default_bundle(verbose=True)
@@ -832,8 +976,6 @@ def estimate(smiles, library=None, names=None, progress=False, domain_threshold=
                 _progress_bar(min(start + chunk, len(emols)), len(emols))
         X = np.vstack(parts)
         pred, low, high = b.hsp.predict_interval(features=X, mols=emols)
-        vol, unseen = b.volume.predict_with_unseen(emols)
-        lf = b.volume.log_factor_ if b.volume.log_factor_ is not None else np.nan
         sims = tanimoto(similarity_bits(emols), b.train_bits)
         top = np.argsort(-sims, axis=1)[:, :3]
         best = sims[np.arange(len(emols))[:, None], top]
@@ -849,31 +991,40 @@ def estimate(smiles, library=None, names=None, progress=False, domain_threshold=
             out.loc[idx, c] = np.clip(pred[:, j], 0.0, None)
             out.loc[idx, c + "_low"] = low[:, j]
             out.loc[idx, c + "_high"] = high[:, j]
-        out.loc[idx, "molar_volume"] = vol
-        out.loc[idx, "molar_volume_low"] = vol * np.exp(-lf)
-        out.loc[idx, "molar_volume_high"] = vol * np.exp(lf)
         out.loc[idx, "similarity"] = best[:, 0]
         out.loc[idx, "in_domain"] = (best[:, 0] >= thr) & size_ok
         out.loc[idx, "source"] = "estimated"
-        nearest_txt, messages = [], []
+        out.loc[idx, "hsp_source"] = ESTIMATED_SOURCE
+        nearest_txt = []
         for k, i in enumerate(est_rows):
             nearest_txt.append("; ".join(f"{b.names[t]} ({s:.2f})" for t, s in zip(top[k], best[k])))
-            notes = ["estimated from structure"]
+            more = ["estimated from structure"]
             if best[k, 0] < thr:
-                notes.append(f"outside the applicability domain (nearest training compound only "
-                             f"{best[k, 0]:.2f} similar): treat as a rough guess")
+                more.append(f"outside the applicability domain (nearest training compound only "
+                            f"{best[k, 0]:.2f} similar): treat as a rough guess")
             if not size_ok[k]:
-                notes.append(f"outside the applicability domain: {heavy[k]} heavy atoms against "
-                             f"{'/'.join(str(v) for v in near_heavy[k])} in the most similar training compounds (training range "
-                             f"{lo_h}-{hi_h}; fingerprint similarity does not see size)")
-            if unseen[k]:
-                notes.append("molar volume less certain: atom type(s) " + ", ".join(unseen[k]) +
-                             " not in the volume training set")
-            messages.append("; ".join(notes))
+                more.append(f"outside the applicability domain: {heavy[k]} heavy atoms against "
+                            f"{'/'.join(str(v) for v in near_heavy[k])} in the most similar training compounds (training range "
+                            f"{lo_h}-{hi_h}; fingerprint similarity does not see size)")
+            notes[i] = [x for x in notes[i] if x.startswith("isotope")] + more + \
+                [x for x in notes[i] if not x.startswith("isotope")]
         out.loc[idx, "nearest"] = nearest_txt
-        out.loc[idx, "message"] = messages
     elif progress:
         _progress_bar(n, n)
+    # the same molecule twice in a batch: the later rows point to the first
+    first: dict[str, int] = {}
+    for i, m in enumerate(parsed):
+        if m is None:
+            continue
+        can = Chem.MolToSmiles(m)
+        if can in first:
+            j = first[can]
+            out.at[i, "duplicate_of"] = j + 1
+            label = f" ({given_names[j]})" if given_names is not None and str(given_names[j]).strip() else ""
+            notes[i].append(f"same molecule as row {j + 1}{label}")
+        else:
+            first[can] = i
+    out["message"] = ["; ".join(x) for x in notes]
     out["in_domain"] = out["in_domain"].astype(bool)
     return out
 
@@ -888,10 +1039,15 @@ def _progress_bar(done: int, total: int) -> None:
 # --------------------------------------------------------------------------- library rows
 
 def as_library_rows(df: pd.DataFrame, include_library=False) -> pd.DataFrame:
-    """Rows of an :func:`estimate` result in library format (``origin`` = "estimated"), ready
-    for :func:`merge_estimates`, :func:`selector.rank` (as a library) or as a target
-    (:func:`selector.targets.as_target` accepts a row). Failed rows are dropped; rows matched in
-    the library are dropped too unless ``include_library``. The interval columns are kept.
+    """Rows of an :func:`estimate` result in library format, ready for :func:`merge_estimates`,
+    :func:`selector.rank` (as a library) or as a target (:func:`selector.targets.as_target`
+    accepts a row). Estimated rows get ``origin`` = "estimated" and ``hsp_source`` =
+    :data:`ESTIMATED_SOURCE`; rows of the published table ("published") get ``origin`` =
+    "published" and the table's source key as ``hsp_source``; the molar volume of both is marked
+    estimated (``molar_volume_estimated``). Failed rows are dropped, and so are later copies of
+    the same molecule (``duplicate_of``); rows matched in the library are dropped too unless
+    ``include_library`` (they keep the library's source, ``origin`` = "library"). The interval
+    columns are kept.
 
     >>> import pandas as pd
     >>> r = pd.DataFrame({"smiles": ["CCO"], "delta_d": [15.8], "delta_p": [8.8], "delta_h": [19.4],
@@ -903,12 +1059,17 @@ def as_library_rows(df: pd.DataFrame, include_library=False) -> pd.DataFrame:
 
     if "source" not in df.columns:
         raise SelectorError("as_library_rows expects the table returned by estimate()")
-    keep = df["source"].eq("estimated") | (include_library & df["source"].eq("library"))
+    keep = df["source"].isin(["estimated", "published"]) | (include_library & df["source"].eq("library"))
+    if "duplicate_of" in df.columns:
+        keep &= df["duplicate_of"].isna().to_numpy()
     d = df.loc[keep].copy()
     if d.empty:
         raise SelectorError("no estimated rows to turn into library entries")
+    src = d["source"].astype(str)
     names = d["name"].astype(str) if "name" in d.columns else pd.Series("", index=d.index)
-    names = names.where(names.str.strip() != "", "estimated: " + d["smiles"].astype(str))
+    matched = d["matched_name"].astype(str) if "matched_name" in d.columns else pd.Series("", index=d.index)
+    names = names.where(names.str.strip() != "", matched.where(src.ne("estimated") & matched.str.strip().ne(""),
+                                                               "estimated: " + d["smiles"].astype(str)))
     rows = pd.DataFrame({c: np.nan for c in COLUMNS}, index=d.index)
     from .library import _TEXT_COLUMNS
 
@@ -920,20 +1081,25 @@ def as_library_rows(df: pd.DataFrame, include_library=False) -> pd.DataFrame:
         rows[c] = d[c].astype(float).values
         for s in ("_low", "_high"):
             rows[c + s] = d[c + s].astype(float).values if c + s in d.columns else np.nan
-    rows["hsp_source"] = ESTIMATED_SOURCE
-    rows["volume_method"] = "estimated from structure (atom-type model on library densities)"
+    given = d["hsp_source"].astype(str) if "hsp_source" in d.columns else pd.Series("", index=d.index)
+    rows["hsp_source"] = np.where(src.eq("estimated") | given.str.strip().eq(""),
+                                  np.where(src.eq("library"), "", ESTIMATED_SOURCE), given).tolist()
+    est_volume = src.isin(["estimated", "published"]).to_numpy()
+    rows["volume_method"] = np.where(est_volume, VOLUME_METHOD, "")
+    rows["molar_volume_estimated"] = est_volume
     rows["sources_disagree"] = False
     rows["hsp_spread"] = np.nan
-    rows["origin"] = "estimated"
+    rows["origin"] = src.values
     if "in_domain" in d.columns:
         rows["in_domain"] = d["in_domain"].values
     return rows.reset_index(drop=True)
 
 
 def merge_estimates(library: pd.DataFrame, rows: pd.DataFrame) -> pd.DataFrame:
-    """The library with estimated rows (from :func:`as_library_rows`) appended; a row whose name
-    is already in the library replaces it. Columns missing on either side are filled empty."""
-    if "origin" not in rows.columns or not rows["origin"].eq("estimated").all():
+    """The library with estimated rows (from :func:`as_library_rows`, or an :func:`estimate`
+    result, converted) appended; a row whose name is already in the library replaces it.
+    Columns missing on either side are filled empty."""
+    if "origin" not in rows.columns or not rows["origin"].isin(["estimated", "published", "library"]).all():
         rows = as_library_rows(rows)
     drop = library["name"].str.lower().isin(rows["name"].str.lower())
     cols = list(library.columns) + [c for c in rows.columns if c not in library.columns]

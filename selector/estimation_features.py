@@ -163,7 +163,8 @@ def check_molecule(smiles) -> tuple[object | None, str]:
     (salts and mixtures: estimate each neutral component on its own), polymer repeat units
     (``*``), elements outside C H N O S P F Cl Br I Si B (metals, most inorganics), molecules
     without carbon, a net charge (ions; charge-separated neutral groups such as nitro are
-    accepted) and radicals.
+    accepted) and radicals. Isotope labels are removed (:func:`strip_isotopes`): the returned
+    molecule is the parent.
     """
     Chem = _rdkit()[0]
     if not isinstance(smiles, str) or not smiles.strip():
@@ -193,7 +194,21 @@ def check_molecule(smiles) -> tuple[object | None, str]:
                       "(a salt's HSP is not that of its ions)")
     if any(a.GetNumRadicalElectrons() for a in mol.GetAtoms()):
         return None, "radical (unpaired electrons): give a closed-shell molecule"
-    return mol, ""
+    return strip_isotopes(mol)[0], ""
+
+
+def strip_isotopes(mol):
+    """``(parent, changed)``: the molecule with its isotope labels removed (deuterium becomes
+    ordinary hydrogen, 13C ordinary carbon) and whether there were any. The HSP and molar volume
+    of an isotopologue are close to those of its parent (common practice), so isotopologues are
+    matched and estimated as the parent."""
+    if mol is None or not any(a.GetIsotope() for a in mol.GetAtoms()):
+        return mol, False
+    Chem = _rdkit()[0]
+    m = Chem.RWMol(mol)
+    for a in m.GetAtoms():
+        a.SetIsotope(0)
+    return Chem.RemoveHs(m.GetMol()), True
 
 
 def featurize(mols) -> np.ndarray:

@@ -309,10 +309,31 @@ def validate_user_table(table, library: pd.DataFrame | None = None) -> pd.DataFr
     numbers within :data:`RANGES`; names must be unique. All problems are reported together in an
     :class:`~selector.errors.InputTableError`.
     """
+    df, problems = _check_user_table(table)
+    if problems:
+        raise InputTableError("user liquids", [text for _, text in problems])
+    return df
+
+
+def user_row_problems(table) -> tuple[pd.DataFrame, dict[int, list[str]]]:
+    """``(cleaned table, problems)``: the checks of :func:`validate_user_table` without raising;
+    ``problems`` maps the position of each row that cannot be saved to its reasons (a name used
+    twice counts against the later rows, a CAS used twice against every row that has it).
+    Missing required columns and an empty table still raise."""
+    df, problems = _check_user_table(table)
+    out: dict[int, list[str]] = {}
+    for rows, text in problems:
+        for i in rows:
+            out.setdefault(int(i), []).append(text)
+    return df, out
+
+
+def _check_user_table(table):
+    """The cleaned table and its problems as ``(row positions, text)`` pairs."""
     from .io import rename_aliases
 
     df = rename_aliases(_as_frame(table), USER_COLUMN_ALIASES, "user liquids")
-    problems: list[str] = []
+    problems: list[tuple[list[int], str]] = []
     missing = [c for c in ["name", *HSP] if c not in df.columns]
     if missing:
         raise InputTableError("user liquids", [f"missing column(s): {', '.join(missing)} "
@@ -324,11 +345,11 @@ def validate_user_table(table, library: pd.DataFrame | None = None) -> pd.DataFr
     df["name"] = _text(df["name"])
     for i, n in enumerate(df["name"]):
         if not n:
-            problems.append(f"row {i + 2}: name is empty")
+            problems.append(([i], f"row {i + 2}: name is empty"))
     low = df["name"].str.lower()
-    dups = low[low.duplicated() & (low != "")]
-    for n in sorted(set(dups)):
-        problems.append(f"name {n!r} appears more than once")
+    dup_mask = (low.duplicated() & (low != "")).to_numpy()
+    for n in sorted(set(low[dup_mask])):
+        problems.append((list(np.flatnonzero(dup_mask & (low == n).to_numpy())), f"name {n!r} appears more than once"))
     for col, (lo, hi) in RANGES.items():
         if col not in df.columns:
             continue
@@ -338,33 +359,32 @@ def validate_user_table(table, library: pd.DataFrame | None = None) -> pd.DataFr
             blank = (isinstance(r, float) and np.isnan(r)) or (isinstance(r, str) and not r.strip())
             if blank:
                 if col in HSP:
-                    problems.append(f"row {i + 2} ({df['name'].iloc[i]}): {col} is missing")
+                    problems.append(([i], f"row {i + 2} ({df['name'].iloc[i]}): {col} is missing"))
                 continue
             if not np.isfinite(v):
-                problems.append(f"row {i + 2} ({df['name'].iloc[i]}): {col} = {r!r} is not a number")
+                problems.append(([i], f"row {i + 2} ({df['name'].iloc[i]}): {col} = {r!r} is not a number"))
             elif not (lo <= v <= hi):
                 unit = "MPa^0.5" if col.startswith("delta") or col == "radius" else (
                     "cm3/mol" if col == "molar_volume" else "C")
-                problems.append(f"row {i + 2} ({df['name'].iloc[i]}): {col} = {v:g} is outside "
-                                f"{lo:g}..{hi:g} {unit}")
+                problems.append(([i], f"row {i + 2} ({df['name'].iloc[i]}): {col} = {v:g} is outside "
+                                      f"{lo:g}..{hi:g} {unit}"))
         df[col] = vals
     if "kind" in df.columns:
         df["kind"] = _text(df["kind"]).str.lower().replace("", "liquid")
         for i, k in enumerate(df["kind"]):
             if k not in ("liquid", "solute"):
-                problems.append(f"row {i + 2} ({df['name'].iloc[i]}): kind {k!r} must be 'liquid' or 'solute'")
+                problems.append(([i], f"row {i + 2} ({df['name'].iloc[i]}): kind {k!r} must be 'liquid' or 'solute'"))
     if "cas" in df.columns:
         df["cas"] = _text(df["cas"])
         for i, c in enumerate(df["cas"]):
             if c and not _CAS_RE.match(c):
-                problems.append(f"row {i + 2} ({df['name'].iloc[i]}): {c!r} is not a CAS number")
+                problems.append(([i], f"row {i + 2} ({df['name'].iloc[i]}): {c!r} is not a CAS number"))
         cas = df["cas"]
         for c in sorted(set(cas[cas.duplicated() & (cas != "")])):
-            rows = ", ".join(str(i + 2) for i in np.flatnonzero(cas.to_numpy() == c))
-            problems.append(f"CAS {c} appears in more than one row (rows {rows})")
-    if problems:
-        raise InputTableError("user liquids", problems)
-    return df
+            at = np.flatnonzero(cas.to_numpy() == c)
+            rows = ", ".join(str(i + 2) for i in at)
+            problems.append((list(at), f"CAS {c} appears in more than one row (rows {rows})"))
+    return df, problems
 
 
 #: Columns a user entry never takes from the library entry it replaces (its own HSP and origin).
@@ -480,7 +500,7 @@ def merge_user_liquids(library: pd.DataFrame, table) -> pd.DataFrame:
                     filled[i].append(c)
     order = {c: k for k, c in enumerate(library.columns)}
     user["filled_from_library"] = [", ".join(sorted(f, key=order.get)) for f in filled]
-    user["origin"] = "user"
+    user["origin"] = user_origin(user)
     for c in library.columns:
         if c not in user.columns:
             user[c] = "" if c in _TEXT_COLUMNS else np.nan
@@ -496,6 +516,60 @@ def merge_user_liquids(library: pd.DataFrame, table) -> pd.DataFrame:
     extra = [c for c in user.columns if c not in library.columns]
     out = pd.concat([library.loc[~drop], user[list(library.columns) + extra]], ignore_index=True)
     return out
+
+
+#: ``origin`` of a row: "library" (bundled), "user" (the user's own values), "estimated" (HSP
+#: estimated from structure by :mod:`selector.estimation`), "published" (HSP of the published
+#: training table of the estimator, molar volume estimated).
+ORIGINS = ("library", "user", "estimated", "published")
+#: ``hsp_source`` that marks an estimate from structure (:data:`selector.estimation.ESTIMATED_SOURCE`).
+ESTIMATED_PREFIX = "estimated from structure"
+
+
+def user_origin(user: pd.DataFrame) -> np.ndarray:
+    """``origin`` of user rows: "estimated" or "published" where the file says so (its ``origin``
+    column, written by ``likewise guess --save-mine``) or where ``hsp_source`` marks an estimate
+    from structure; "user" otherwise."""
+    given = _text(user["origin"]).str.lower() if "origin" in user.columns else pd.Series("", index=user.index)
+    hs = _text(user["hsp_source"]) if "hsp_source" in user.columns else pd.Series("", index=user.index)
+    out = np.where(given.isin(["estimated", "published"]), given, "user").astype(object)
+    out[hs.str.lower().str.startswith(ESTIMATED_PREFIX).to_numpy()] = "estimated"
+    return out
+
+
+def hsp_estimated(df: pd.DataFrame) -> np.ndarray:
+    """True for rows whose HSP are estimated from structure (``origin`` "estimated")."""
+    if "origin" not in df.columns:
+        return np.zeros(len(df), dtype=bool)
+    return (df["origin"].astype(str) == "estimated").to_numpy()
+
+
+def interval_text(row, digits=1) -> str:
+    """The 90 % intervals of a row's estimated HSP as "dD 14.9-17.8, dP 5.0-10.9, dH 6.4-10.5"
+    (MPa^0.5), or "" when the row carries none (``delta_*_low``/``_high`` columns)."""
+    parts = []
+    for c, lab in zip(HSP, ("dD", "dP", "dH")):
+        lo, hi = row.get(c + "_low"), row.get(c + "_high")
+        try:
+            lo, hi = float(lo), float(hi)
+        except (TypeError, ValueError):
+            continue
+        if np.isfinite(lo) and np.isfinite(hi):
+            parts.append(f"{lab} {lo:.{digits}f}-{hi:.{digits}f}")
+    return ", ".join(parts)
+
+
+def estimate_note(row) -> str:
+    """A short mark for a liquid whose values are estimates: "estimated from structure (90 %
+    intervals dD ..., ...)" for estimated HSP, "published HSP (KEY), molar volume estimated" for a
+    row of the published table, "" otherwise."""
+    origin = str(row.get("origin", ""))
+    if origin == "estimated":
+        iv = interval_text(row)
+        return "estimated from structure" + (f" (90 % intervals {iv} MPa^0.5)" if iv else "")
+    if origin == "published":
+        return f"published HSP ({row.get('hsp_source', '')}), molar volume estimated"
+    return ""
 
 
 def file_fingerprint(path) -> str | None:

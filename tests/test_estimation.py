@@ -405,3 +405,74 @@ def test_works_inside_scikit_learn_cross_validation():
     # score = -MAE; must beat predicting the mean of the published values (common practice check)
     assert np.all(np.isfinite(scores))
     assert -scores.mean() < 0.7 * np.abs(Y - Y.mean(axis=0)).mean()
+
+
+# ---------------------------------------------------------------------------------- matching rules
+
+def test_published_table_compound_is_answered_with_the_published_value():
+    # benzamide is in the published training table but not in the solvent library
+    res = E.estimate(["c1ccccc1C(=O)N", "CCO"])
+    row = res.iloc[0]
+    assert row["source"] == "published" and row["hsp_source"] == "ALSHERI_HANSEN"
+    assert row["matched_name"] == "benzamide"
+    # published values, chemicals.solubility (ALSHERI_HANSEN kept first)
+    np.testing.assert_allclose(row[E.HSP_COLS].to_numpy(float), published_hsp("55-21-0"), atol=1e-9)
+    assert all(np.isnan(row[c + s]) for c in E.HSP_COLS for s in ("_low", "_high"))   # not an estimate
+    assert row["molar_volume_low"] < row["molar_volume"] < row["molar_volume_high"]   # the volume is
+    assert "molar volume estimated" in row["message"] and "ALSHERI_HANSEN" in row["message"]
+    rows = E.as_library_rows(res)
+    assert rows[["name", "origin", "hsp_source"]].iloc[0].tolist() == ["benzamide", "published", "ALSHERI_HANSEN"]
+    assert bool(rows.loc[0, "molar_volume_estimated"]) and len(rows) == 1     # ethanol: library, dropped
+
+
+def test_isotopologues_are_answered_as_their_parent():
+    from selector.library import load_library
+
+    lib = load_library()
+    res = E.estimate(["[2H]C(Cl)(Cl)Cl", "[2H]C([2H])([2H])O"])
+    assert list(res["matched_name"]) == ["chloroform", "methanol"] and set(res["source"]) == {"library"}
+    # the parents' values in the library (parameters/liquids.csv): V of methanol about 40.7 cm3/mol
+    for i, name in enumerate(["chloroform", "methanol"]):
+        ref = lib.loc[lib.name == name].iloc[0]
+        np.testing.assert_allclose(res.loc[i, E.OUT_COLS].to_numpy(float), ref[E.OUT_COLS].to_numpy(float))
+        assert "isotope labels removed" in res.loc[i, "message"]
+    # an estimated molecule and its deuterated form get the same estimate (common practice: an
+    # isotopologue's HSP and molar volume are close to the parent's)
+    smi = "CC(C)(C)OC(=O)CCC(=O)OC(C)(C)C"
+    pair = E.estimate([smi, smi.replace("CCC(=O)", "C([2H])([2H])CC(=O)", 1)])
+    np.testing.assert_allclose(pair.loc[0, E.OUT_COLS].to_numpy(float), pair.loc[1, E.OUT_COLS].to_numpy(float))
+    assert pair.loc[1, "duplicate_of"] == 1
+
+
+def test_stereo_free_match_names_the_compound():
+    # (S)-1,2-propanediol: the library has 1,2-propanediol without stereo (parameters/liquids.csv)
+    res = E.estimate("C[C@H](O)CO")
+    assert res.loc[0, "source"] == "library" and res.loc[0, "matched_name"] == "1,2-propanediol"
+    assert "without stereo as 1,2-propanediol" in res.loc[0, "message"]
+
+
+def test_save_mine_skips_rows_that_cannot_be_user_liquids(tmp_path, capsys):
+    from selector.cli import main
+
+    batch = tmp_path / "batch.csv"
+    batch.write_text("name,smiles\ndtb succinate,CC(C)(C)OC(=O)CCC(=O)OC(C)(C)C\nC300 alkane," + "C" * 300 +
+                     "\ndtb again,O=C(OC(C)(C)C)CCC(=O)OC(C)(C)C\n,c1ccccc1C(=O)N\n", encoding="utf-8")
+    mine = tmp_path / "mine.csv"
+    mine.write_text("name,delta_d,delta_p,delta_h\nkeep me,16,5,5\n", encoding="utf-8")
+    capsys.readouterr()
+    assert main(["guess", str(batch), "--save-mine", str(mine), "--format", "csv"]) == 1
+    cap = capsys.readouterr()
+    out = pd.read_csv(__import__("io").StringIO(cap.out))
+    # the third row is the first molecule written another way (same canonical SMILES, RDKit)
+    assert out.loc[2, "duplicate_of"] == 1 and "same molecule as row 1 (dtb succinate)" in out.loc[2, "message"]
+    saved = pd.read_csv(mine)
+    assert list(saved["name"]) == ["keep me", "dtb succinate", "benzamide"]     # saved once, old row kept
+    assert list(saved["origin"].fillna("")) == ["", "estimated", "published"]
+    # a C300 alkane is far above the 5000 cm3/mol the user-liquid check allows (selector.library.RANGES)
+    assert "row 2 (C300 alkane): molar_volume = " in cap.err and "outside 5..5000" in cap.err
+    assert "saved 2 rows" in cap.err and "skipped 1 row " in cap.err and "1 repeated molecule" in cap.err
+    assert "replaced" not in cap.err              # the first save replaced nothing
+    # saving again replaces the rows of the same name and says so
+    assert main(["guess", str(batch), "--save-mine", str(mine)]) == 1
+    assert "replaced 2 earlier rows of the same name: dtb succinate, benzamide" in capsys.readouterr().err
+    assert list(pd.read_csv(mine)["name"]) == ["keep me", "dtb succinate", "benzamide"]
