@@ -18,14 +18,22 @@ Health (most severe GHS H3xx statement):
 score  statements
 =====  =====================================================================
 9      H300 H310 H330 (acute toxicity 1-2); H340 H350 H360 (CMR category 1)
+7      H314 (severe skin burns and eye damage)
 6      H301 H311 H331 (acute toxicity 3); H341 H351 H361 (CMR category 2);
        H370 H372 (organ toxicity category 1)
-4      H314 H318 (corrosive, serious eye damage); H334 (respiratory sensitiser)
+4      H318 (serious eye damage); H334 (respiratory sensitiser)
 2      H302 H312 H332 H304 H371 H373 H315 H317 H319 H320 H335 H336 EUH066 EUH070
 1      no H3xx statement
 =====  =====================================================================
 
 plus 1 when the boiling point is below 85 C (more of it in the air). At most 10.
+
+How the health rows were checked (all from memory of the guide's printed scores, not re-read):
+the +1 rule is needed for ethanol 3 (H319, bp 78) against MIBK 2 (bp 116); methanol's 7
+(H301 H311 H331 H370, bp 65) then puts acute toxicity 3 and H370 at 6, not 7; 2-MeTHF's 5
+(H318, bp 80) puts H318 at 4; formic acid's 7 (H314 H331, bp 101) can then only come from
+H314 at 7, which also makes acetic acid (H314 alone) problematic, as the guide ranks it.
+H314 was scored 4 here before (corrosive amines and acids came out "recommended").
 
 Environment: boiling point 70..139 C: 3; 50..69 or 140..200 C: 5; < 50 or > 200 C: 7 (hard to
 contain, or energy-hungry to recycle); aquatic H412/H413: at least 5; H400/H410/H411: 7;
@@ -67,8 +75,11 @@ METHOD = ("CHEM21 (Prat et al., Green Chem. 18 (2016) 288-296), scoring tables f
 #: Health score of each GHS statement (first four characters: H360FD counts as H360).
 HEALTH_SCORES = {
     **dict.fromkeys(["H300", "H310", "H330", "H340", "H350", "H360"], 9),
+    # H314 at 7: reconstructed from the guide's formic acid score (module doc; from memory)
+    "H314": 7,
+    # acute toxicity 3 at 6, not 7: methanol scores 7 with the +1 for its boiling point
     **dict.fromkeys(["H301", "H311", "H331", "H341", "H351", "H361", "H370", "H372"], 6),
-    **dict.fromkeys(["H314", "H318", "H334"], 4),
+    **dict.fromkeys(["H318", "H334"], 4),
     **dict.fromkeys(["H302", "H312", "H332", "H304", "H371", "H373", "H315", "H317", "H319",
                      "H320", "H335", "H336", "EUH066", "EUH070"], 2),
 }

@@ -49,6 +49,10 @@ PUBLISHED_SCORES = {
     "methanol": (4, 7, 5),
     "tetrahydrofuran": (6, 7, 5),
     "water": (1, 1, 1),
+    # the checks behind the health rows (selector.hazards module doc): 2-MeTHF 5 (H318 at 4),
+    # formic acid 7 (H314 at 7)
+    "2-methyltetrahydrofuran": (6, 5, 3),
+    "formic acid": (3, 7, 3),
 }
 
 
@@ -262,3 +266,20 @@ def test_hazard_table_follows_edits_and_names_a_users_flash_point():
                                                  "delta_h": [2.0], "flash_point_c": [10.0]}))
     j = mine.index[mine["name"] == "toluene"][0]
     assert hazard_columns(mine).loc[j, "flash_point_basis"] == "your value"
+
+
+def test_corrosive_and_toxic_liquids_are_not_recommended():
+    # H314 scores health 7 (CHEM21, reconstructed from memory: selector.hazards module doc), so
+    # liquids that burn skin are at best problematic. Statements from parameters/hazards.csv
+    # (EU CLP, from memory): morpholine H311 H314 H331, formic acid H314 H331, acetic acid H314.
+    # Acetic and formic acid are "problematic" in the guide (from memory); morpholine is not in it.
+    for name in ("morpholine", "formic acid", "acetic acid"):
+        r = selector.hazard(name)
+        assert r.health_score == 7 and r.hazard_class == "problematic", name
+    # acute toxicity 3 stays at 6: methanol (H301 H311 H331 H370, bp 65 C) keeps the guide's 7
+    assert selector.hazard("methanol").health_score == 7
+    # the Replace flow once offered 65 % morpholine + 33 % formic acid as strictly safer than
+    # toluene (problematic); a problematic component can no longer be part of one
+    s = selector.substitutes("toluene", top=40)
+    used = {c for comp in s["components"].iloc[1:] for c in comp}
+    assert not used & {"morpholine", "formic acid", "acetic acid"}
