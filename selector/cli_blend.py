@@ -53,16 +53,33 @@ def cmd_blend(a) -> int:
                       top=a.top, library=lib, max_uses=a.max_uses,
                       cost_per_litre=_prices(a.prices) if a.prices else None,
                       require_miscible=not a.skip_mixing_check, **_filters(a))
+    from .cli_core import describe_target
+
     tgt = res.attrs["target"]
-    header = (f"Blends for {tgt.describe()} at {a.at:g} C; {res.attrs['candidates']} candidate liquids; "
-              f"smallest share {a.min_share:g}; every pair miscible "
+    header = (f"Blends for {describe_target(tgt, lib)} at {a.at:g} C; {res.attrs['candidates']} candidate "
+              f"liquids; smallest share {a.min_share:g}; every pair miscible "
               f"({res.attrs['miscibility']}). Hazard class = worst component (CHEM21).")
     if res.attrs.get("price_notes"):
         header += "\nPrices matched by synonym: " + "; ".join(res.attrs["price_notes"])
-    cols = [c for c in BLEND_COLUMNS if c != "red" or res["red"].notna().any()]
+    res, est_cols, note = _with_estimated(res, lib, a)
+    cols = [c for c in BLEND_COLUMNS if c != "red" or res["red"].notna().any()] + est_cols
     emit(_label(res), a, cols + (["components", "fractions"] if a.format != "table" else []),
-         caution=True, header=header)
+         caution=True, header=header + note)
     return 0
+
+
+def _with_estimated(res, lib, a):
+    """``res`` with an ``estimated`` column naming the components whose HSP are estimated from
+    structure (:func:`selector.library.hsp_estimated`), the columns to add and a header note."""
+    from .library import hsp_estimated
+
+    est = set(lib.loc[hsp_estimated(lib), "name"].astype(str))
+    res = res.copy()
+    res["estimated"] = [", ".join(c for c in cs if c in est) for cs in res["components"]]
+    used = res["estimated"].ne("").any()
+    note = ("\nestimated = components whose HSP are estimated from structure (not measured): the blend "
+            "point is as uncertain as they are") if used else ""
+    return res, (["estimated"] if used or a.format != "table" else []), note
 
 
 def cmd_replace(a) -> int:
@@ -80,9 +97,10 @@ def cmd_replace(a) -> int:
     header = (f"Safer candidates for {res.attrs['replaced']} (first row; class "
               f"{res['hazard_class'].iloc[0]}{'; ' + note if note else ''}). Only liquids with a strictly "
               "better CHEM21 class; score = distance + 0.5 x property mismatch, lower is better.")
-    cols = [c for c in REPLACE_COLUMNS if c != "red" or res["red"].notna().any()]
+    res, est_cols, est_note = _with_estimated(res, lib, a)
+    cols = [c for c in REPLACE_COLUMNS if c != "red" or res["red"].notna().any()] + est_cols
     emit(_label(res), a, cols + (["components", "fractions"] if a.format != "table" else []),
-         caution=True, header=header)
+         caution=True, header=header + est_note)
     return 0
 
 

@@ -17,7 +17,59 @@ SHOW_FIELDS = ["name", "cas", "smiles", "formula", "molar_mass", "delta_d", "del
                "short_term_limit_unit", "synonyms",
                "melting_point_source", "boiling_point_source", "volume_method",
                "vapour_pressure_method", "viscosity_method", "viscosity_estimated", "flash_point_source", "origin",
-               "reactive_reason", "data_note"]
+               "molar_volume_estimated", "in_domain", "filled_from_library", "reactive_reason", "data_note"]
+#: values that may carry a 90 % interval (``<name>_low``/``<name>_high``, estimated liquids)
+INTERVAL_FIELDS = {"delta_d": 2, "delta_p": 2, "delta_h": 2, "molar_volume": 1}
+#: origins whose HSP did not come from the library's comparison of published sources
+NOT_COMPARED = ("estimated", "published")
+
+
+def for_display(df):
+    """A copy of library rows for output: ``sources_disagree`` is blank (not False) where the HSP
+    were not compared across published sources (estimated or published-table rows), and
+    ``viscosity_estimated`` is blank where there is no viscosity."""
+    import numpy as np
+
+    out = df.copy()
+    if "sources_disagree" in out.columns and "origin" in out.columns:
+        blank = out["origin"].astype(str).isin(NOT_COMPARED).to_numpy()
+        if blank.any():
+            out["sources_disagree"] = np.where(blank, "", out["sources_disagree"].astype(object))
+    if "viscosity_estimated" in out.columns and "viscosity_mpa_s" in out.columns:
+        none = out["viscosity_mpa_s"].isna().to_numpy()
+        if none.any():
+            out["viscosity_estimated"] = np.where(none, "", out["viscosity_estimated"].astype(object))
+    return out
+
+
+def describe_target(tgt, lib) -> str:
+    """``tgt.describe()`` with the mark of a target whose HSP are estimated ("estimated from
+    structure (90 % intervals ...)", :func:`selector.library.estimate_note`)."""
+    from .library import estimate_note
+
+    text = tgt.describe()
+    if "name" in lib.columns and tgt.name != "target":
+        hit = lib.loc[lib["name"].astype(str) == str(tgt.name)]
+        if len(hit):
+            note = estimate_note(hit.iloc[0])
+            if note:
+                text += f" ({note})"
+    return text
+
+
+def unknown_liquid_hint(text: str, err) -> Exception:
+    """The error for an unknown liquid: when ``text`` reads as a SMILES, a message that says how to
+    estimate it (``likewise guess ... --save-mine``); otherwise ``err`` itself."""
+    from rdkit import Chem, RDLogger
+
+    from .errors import SelectorError
+
+    RDLogger.DisableLog("rdApp.*")
+    if Chem.MolFromSmiles(text) is not None and any(ch in text for ch in "=#()[]1cC"):
+        return SelectorError(f"unknown liquid {text!r}: it reads as a SMILES that is not in the library; "
+                             f"estimate its HSP with  likewise guess '{text}' --save-mine my_liquids.csv  "
+                             "and then add --mine my_liquids.csv")
+    return err
 
 
 def target_from_text(text: str, radius: float | None = None, library=None):
@@ -54,20 +106,16 @@ def target_from_text(text: str, radius: float | None = None, library=None):
         if len(parts) > 1 and _is_number(parts[0]):
             raise SelectorError(f"{err}; as numbers, a target is 'dD,dP,dH' or 'dD,dP,dH,R0' in "
                                 "MPa^0.5") from None
-        from rdkit import Chem, RDLogger
-
-        RDLogger.DisableLog("rdApp.*")
-        if Chem.MolFromSmiles(text) is not None and any(ch in text for ch in "=#()[]1cC"):
-            raise SelectorError(f"unknown liquid {text!r}: it reads as a SMILES that is not in the library; "
-                                f"estimate its HSP with  likewise guess '{text}' --save-mine my_liquids.csv  "
-                                "and then add --mine my_liquids.csv") from None
+        hint = unknown_liquid_hint(text, err)
+        if hint is not err:
+            raise hint from None
         raise
     if radius is None:
         return text
     from .targets import Target
 
     return Target(float(row.delta_d), float(row.delta_p), float(row.delta_h), radius,
-                  name=str(row["name"]), source="library point with given R0")
+                  name=str(row["name"]), source=f"library point with given R0 ({row.get('hsp_source', '')})")
 
 
 def _is_number(s: str) -> bool:
@@ -86,11 +134,11 @@ def cmd_rank(a) -> int:
                polarity_weight=a.polarity_weight, **filters_from_args(a))
     tgt = res.attrs["target"]
     cols = RANK_COLUMNS if res["red"].notna().any() else [c for c in RANK_COLUMNS if c != "red"]
-    header = (f"Target {tgt.describe()} at {a.at:g} C; {len(res)} candidates; "
+    header = (f"Target {describe_target(tgt, lib)} at {a.at:g} C; {len(res)} candidates; "
               "score = distance + polarity weight x (1 - polarity match), lower is better; "
               "hazard class: CHEM21 (unclassified = no hazard data here, not safe)"
               + _reagent_note(res))
-    shown = _with_hazard_class(res, lib)
+    shown = for_display(_with_hazard_class(res, lib))
     if (shown["reagent"] != "").any():
         cols = cols + ["reagent"]
     emit(shown.head(a.top), a, cols, caution=True, header=header + data_note_line(shown.head(a.top)))
@@ -133,26 +181,69 @@ def cmd_show(a) -> int:
     import pandas as pd
 
     from .cautions import reactive_reasons
-    from .library import find_liquid
 
     lib = library_from_args(a)
-    rows = [find_liquid(q, lib) for q in a.liquids]
+    rows = [find_liquid_or_hint(q, lib) for q in a.liquids]
     why = reactive_reasons(pd.DataFrame(rows))
     rows = [r.copy() for r in rows]
     for r, w in zip(rows, why):
         r["reactive_reason"] = w
+    shown = for_display(pd.DataFrame(rows))
     if a.format == "table":
-        for r in rows:
+        for _, r in shown.iterrows():
             for f in SHOW_FIELDS:
                 if f in r.index:
                     v = r[f]
-                    print(f"{f:24s} {'' if (isinstance(v, float) and v != v) else v}")
+                    text = "" if (isinstance(v, float) and v != v) else v
+                    lo, hi = r.get(f + "_low"), r.get(f + "_high")
+                    if f in INTERVAL_FIELDS and pd.notna(lo) and pd.notna(hi) and text != "":
+                        d = INTERVAL_FIELDS[f]
+                        text = f"{float(v):.{d}f}   (90 % interval {float(lo):.{d}f} .. {float(hi):.{d}f})"
+                    print(f"{f:24s} {text}")
             print()
-        print("HSP from chemicals.solubility (source key above); properties from thermo/chemicals "
-              "(method names above). Missing values are blank: no data, not zero.")
+        print(show_footer(shown))
         return 0
-    emit(pd.DataFrame(rows)[[f for f in SHOW_FIELDS if f in rows[0].index]], a)
+    extra = [f + s for f in INTERVAL_FIELDS for s in ("_low", "_high") if f + s in shown.columns]
+    emit(shown[[f for f in SHOW_FIELDS + extra if f in shown.columns]], a)
     return 0
+
+
+def show_footer(rows) -> str:
+    """Where the values of ``rows`` come from, by origin (library, your file, estimated, published)."""
+    import pandas as pd
+
+    origin = (rows["origin"].astype(str) if "origin" in rows.columns
+              else pd.Series("library", index=rows.index))
+    names = rows["name"].astype(str)
+    lines = []
+    if (origin == "library").any():
+        lines.append("Library liquids: HSP from chemicals.solubility (source key above); properties from "
+                     "thermo/chemicals (method names above).")
+    for kind, text in (("user", "values from your file (--mine); properties listed in filled_from_library "
+                        "come from the library liquid of the same name or CAS"),
+                       ("estimated", "HSP and molar volume estimated from structure (likewise guess), with "
+                        "their 90 % intervals where the file carries them; estimates, not measurements"),
+                       ("published", "HSP from the published table the estimator is trained on "
+                        "(chemicals.solubility, source key above); molar volume estimated from structure")):
+        hit = (origin == kind).to_numpy()
+        if hit.any():
+            lines.append(f"{', '.join(names[hit])}: {text}.")
+    lines.append("Missing values are blank: no data, not zero.")
+    return "\n".join(lines)
+
+
+def find_liquid_or_hint(query, lib):
+    """:func:`selector.library.find_liquid`, with the ``likewise guess`` hint for an unknown SMILES."""
+    from .errors import SelectorError
+    from .library import find_liquid
+
+    try:
+        return find_liquid(query, lib)
+    except SelectorError as err:
+        hint = unknown_liquid_hint(str(query), err)
+        if hint is not err:
+            raise hint from None
+        raise
 
 
 def cmd_list(a) -> int:
@@ -170,7 +261,7 @@ def cmd_list(a) -> int:
     from .cautions import reactive_reasons
 
     out = lib.loc[m].sort_values("name")
-    out = out.assign(reagent=reactive_reasons(out))
+    out = for_display(out.assign(reagent=reactive_reasons(out)))
     cols = ["name", "cas", "delta_d", "delta_p", "delta_h", "molar_volume", "boiling_point_c",
             "flash_point_c", "hsp_source", "sources_disagree", "reagent"]
     emit(out.head(a.top) if a.top else out, a, cols, header=f"{int(np.sum(m))} liquids match")

@@ -40,7 +40,11 @@ def cmd_mix(a) -> int:
 
     from .mixing import miscibility
 
+    from .cli_core import find_liquid_or_hint
+
     lib = library_from_args(a)
+    for q in (a.first, a.second):
+        find_liquid_or_hint(q, lib)      # an unknown SMILES: say how to estimate it
     r = miscibility(a.first, a.second, temperature=a.at, library=lib, model=a.model)
     if a.format != "table" or a.output:
         emit(pd.DataFrame([_pair_row(r)]), a, PAIR_COLUMNS)
@@ -83,9 +87,18 @@ def cmd_grid(a) -> int:
     from .library import locate_many
     from .mixing import miscibility_matrix
 
+    from .cli_core import find_liquid_or_hint
+    from .errors import SelectorError
+    from .library import hsp_estimated
+
     lib = library_from_args(a)
     if a.liquids:
-        df = lib.iloc[locate_many(_names(a.liquids), lib)]
+        try:
+            df = lib.iloc[locate_many(_names(a.liquids), lib)]
+        except SelectorError:
+            for q in _names(a.liquids):
+                find_liquid_or_hint(q, lib)      # an unknown SMILES: say how to estimate it
+            raise
     else:
         flt = filters_from_args(a)
         if not flt and not a.all:
@@ -94,6 +107,9 @@ def cmd_grid(a) -> int:
         # checking miscibility proposes nothing: reagents stay in the grid (selector.cautions)
         df = lib.loc[filter_mask(lib, temperature=a.at, **dict(flt, include_reactive=True))]
     m = miscibility_matrix(df, temperature=a.at, library=lib, model=a.model)
+    est = df["name"].astype(str)[hsp_estimated(df)].tolist()
+    est_note = ("\nHSP estimated from structure (not measured; states as uncertain as the estimates, "
+                "`likewise mix` checks their intervals): " + ", ".join(est)) if est else ""
     if a.long:
         import numpy as np
 
@@ -102,12 +118,12 @@ def cmd_grid(a) -> int:
         out = pd.DataFrame({"a": m.index.to_numpy()[iu], "b": m.columns.to_numpy()[ju], "state": st[iu, ju]})
         if a.not_miscible:
             out = out[out.state != "miscible"]
-        emit(out, a, caution=True, header=f"{len(out)} pairs at {a.at:g} C")
+        emit(out, a, caution=True, header=f"{len(out)} pairs at {a.at:g} C" + est_note)
         return 0
     shown = m if a.format != "table" else m.replace(SHORT)
     out = shown.reset_index().rename(columns={"index": "liquid"})
     header = (f"{len(m)} liquids at {a.at:g} C; " + ("" if a.format != "table" else
-              "mix = miscible in all proportions, part = partially miscible, no = immiscible"))
+              "mix = miscible in all proportions, part = partially miscible, no = immiscible")) + est_note
     emit(out, a, caution=True, header=header)
     return 0
 

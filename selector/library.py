@@ -566,7 +566,7 @@ def estimate_note(row) -> str:
     origin = str(row.get("origin", ""))
     if origin == "estimated":
         iv = interval_text(row)
-        return "estimated from structure" + (f" (90 % intervals {iv} MPa^0.5)" if iv else "")
+        return "estimated from structure" + (f"; 90 % intervals {iv} MPa^0.5" if iv else "")
     if origin == "published":
         return f"published HSP ({row.get('hsp_source', '')}), molar volume estimated"
     return ""

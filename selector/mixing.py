@@ -768,6 +768,12 @@ def _record(row, name) -> dict:
     if rec["smiles"] and math.isnan(site_counts(rec["smiles"])[0]):
         raise SelectorError(f"{name}: {rec['smiles']!r} is not a valid SMILES string")
     rec["sources_disagree"] = str(get("sources_disagree", False)).lower() == "true"
+    rec["origin"] = str(get("origin", "") or "")
+    rec["hsp_source"] = str(get("hsp_source", "") or "")
+    # 90 % intervals of an estimated liquid (delta_*_low/_high, molar_volume_low/_high), if any
+    for k in _NUM_FIELDS:
+        lo, hi = _opt(get(k + "_low")), _opt(get(k + "_high"))
+        rec[k + "_range"] = (lo, hi) if math.isfinite(lo) and math.isfinite(hi) and lo <= hi else None
     from .cautions import row_reason
 
     rec["reactive_reason"] = row_reason(row)
@@ -1134,10 +1140,51 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
                      "triethylamine above about 19 C); the model's cross hydrogen bonds weaken "
                      "on heating but seldom enough to open such a gap")
     conf = _confidence(chi, cc, ra_, rb_, lcst, notes)
+    for r in (ra_, rb_):
+        if r["origin"] == "estimated":
+            notes.append(f"{r['name']}: HSP and molar volume estimated from structure, not measured")
+        elif r["origin"] == "published":
+            notes.append(f"{r['name']}: molar volume estimated from structure (HSP published, {r['hsp_source']})")
+    found = corner_states(ra_, rb_, s, t, mdl)
+    if found is not None and len(set(found) | {state}) > 1:
+        conf = "low"
+        which = " and ".join(r["name"] for r in (ra_, rb_) if _ranges(r) is not None)
+        notes.append(f"within the 90 % intervals of {which} the state can be "
+                     + ", ".join(sorted(set(found) | {state})) + " (states at the corners of the intervals)")
     notes.append("a model estimate: confirm with a small test mix, and read the safety data sheets "
                  "of both liquids first")
     return Miscibility(ra_["name"], rb_["name"], t, state, chi, cc, ucst_c, bino, spin,
                        conf, notes, float(vr), a12, mdl.name, lcst_c, mdl.p_miscible(chi, cc))
+
+
+def _ranges(rec):
+    """``(hsp choices (c, 3), volume choices (c,))`` at the corners of a liquid's 90 % intervals
+    (the value itself where a quantity has none), or None when it carries no interval."""
+    have = [rec.get(k + "_range") for k in _NUM_FIELDS]
+    if not any(have):
+        return None
+    axes = [list(r) if r is not None else [rec[k]] for k, r in zip(_NUM_FIELDS, have)]
+    grid = np.array(np.meshgrid(*axes, indexing="ij")).reshape(4, -1).T
+    return grid[:, :3], grid[:, 3]
+
+
+def corner_states(ra_, rb_, sites, t, mdl):
+    """States of the pair at every combination of the corners of the liquids' 90 % intervals
+    (HSP and molar volume; up to 16 x 16 combinations, one vectorised evaluation), or None when
+    neither liquid carries intervals."""
+    c1, c2 = _ranges(ra_), _ranges(rb_)
+    if c1 is None and c2 is None:
+        return None
+    h1, v1 = c1 if c1 is not None else (np.array([[ra_[k] for k in _NUM_FIELDS[:3]]]), np.array([ra_["molar_volume"]]))
+    h2, v2 = c2 if c2 is not None else (np.array([[rb_[k] for k in _NUM_FIELDS[:3]]]), np.array([rb_["molar_volume"]]))
+    h1 = np.clip(h1, [1e-6, 0.0, 0.0], None)
+    h2 = np.clip(h2, [1e-6, 0.0, 0.0], None)
+    al1, al2 = ra_["expansion_coeff"], rb_["expansion_coeff"]
+    s1, s2 = np.asarray(sites[0], float)[None, None, :], np.asarray(sites[1], float)[None, None, :]
+    *_, pa, pb = _compute(h1[:, None, :], h2[None, :, :], s1, s2, v1[:, None], v2[None, :], t, mdl, al1, al2)
+    st = _classify(pa, pb, volume_at(v1, al1, t)[:, None], volume_at(v2, al2, t)[None, :],
+                   ra_["molar_mass"], rb_["molar_mass"])
+    return np.unique(st).tolist()
 
 
 #: Confidence bands on |ln(chi / chi_c)|: above the first "high", above the second "medium".

@@ -139,3 +139,62 @@ def test_table_numbers_carry_their_precision_and_units(capsys):
     assert (tol["boiling_point_c"], tol["flash_point_c"], tol["delta_d"]) == ("110.6", "4.0", "18.00")
     # dibromomethane has no flash point in the library: shown as "-", not NaN
     assert rows["dibromomethane"]["flash_point_c"] == "-"
+
+
+@pytest.fixture(scope="module")
+def estimated_mine(tmp_path_factory):
+    """A user file written by `likewise guess --save-mine`: GVL and methyl levulinate (not in the
+    library: estimated from structure) and benzamide (in the published training table)."""
+    d = tmp_path_factory.mktemp("mine")
+    batch = d / "batch.csv"
+    batch.write_text("name,smiles\ngvl,CC1CCC(=O)O1\nmethyl levulinate,CC(=O)CCC(=O)OC\n,c1ccccc1C(=O)N\n",
+                     encoding="utf-8")
+    mine = d / "mine.csv"
+    assert main(["guess", str(batch), "--save-mine", str(mine), "--format", "csv", "-o", str(d / "g.csv")]) == 0
+    return mine
+
+
+def test_estimated_liquids_stay_marked_estimated(estimated_mine, capsys):
+    mine = str(estimated_mine)
+    saved = pd.read_csv(mine)
+    assert {"delta_p_low", "delta_p_high", "molar_volume_low"} <= set(saved.columns)   # intervals written
+    rc, out, _ = run(["show", "gvl", "benzamide", "toluene", "--mine", mine], capsys)
+    assert rc == 0
+    gvl, benz, tol = out.split("\n\n")[:3]
+    assert "origin                   estimated" in gvl and "molar_volume_estimated   True" in gvl
+    assert "90 % interval" in gvl and "sources_disagree" in gvl
+    assert [ln for ln in gvl.splitlines() if ln.startswith("sources_disagree")][0].split() == ["sources_disagree"]
+    # benzamide: the published value (chemicals.solubility, ALSHERI_HANSEN: 21.2, 14.7, 11.2)
+    assert "origin                   published" in benz and "ALSHERI_HANSEN" in benz and "21.2" in benz
+    assert "origin                   library" in tol and "sources_disagree         False" in tol
+    assert "gvl: HSP and molar volume estimated from structure" in out
+    assert "benzamide: HSP from the published table" in out
+    rc, out, _ = run(["rank", "gvl", "--mine", mine, "--radius", "6", "--top", "3"], capsys)
+    assert "Target gvl: dD 18.3" in out and "(estimated from structure; 90 % intervals dD" in out
+    rc, out, _ = run(["blend", "gvl", "--mine", mine, "--radius", "6", "--top", "3", "--format", "json"], capsys)
+    assert rc == 0 and "estimated" in json.loads(out)[0]
+    rc, out, _ = run(["blend", "18,10,8", "--mine", mine, "--only", "gvl,methyl levulinate,toluene,ethanol",
+                      "--format", "json"], capsys)
+    blends = json.loads(out)
+    assert any(b["estimated"] == "gvl" for b in blends) and any(b["estimated"] == "" for b in blends)
+    rc, out, _ = run(["mix", "methyl levulinate", "hexane", "--mine", mine], capsys)
+    assert "methyl levulinate: HSP and molar volume estimated from structure" in out
+    rc, out, _ = run(["mix-grid", "gvl,hexane,water", "--mine", mine], capsys)
+    assert "HSP estimated from structure" in out and ": gvl" in out
+
+
+def test_sphere_tests_on_estimated_liquids_say_so(estimated_mine, tmp_path, capsys):
+    tests = tmp_path / "tests.csv"
+    tests.write_text("solvent,outcome\ngvl,good\ntoluene,bad\nhexane,bad\nacetone,good\nethanol,bad\n"
+                     "water,bad\nDMSO,good\nNMP,good\n", encoding="utf-8")
+    rc, out, _ = run(["sphere", str(tests), "--mine", str(estimated_mine), "--bootstrap", "0", "--format", "csv",
+                      "--part", "tests"], capsys)
+    t = pd.read_csv(io.StringIO(out)).set_index("label")
+    assert t.loc["gvl", "kind"] == "estimated" and t.loc["toluene", "kind"] == "library"
+
+
+@pytest.mark.parametrize("args", [["mix", "CC1CCC(=O)O1", "hexane"], ["mix-grid", "CC1CCC(=O)O1,hexane"],
+                                  ["show", "CC1CCC(=O)O1"]])
+def test_unknown_smiles_gets_the_guess_hint(args, capsys):
+    rc, _, err = run(args, capsys)
+    assert rc == 2 and "likewise guess 'CC1CCC(=O)O1' --save-mine" in err

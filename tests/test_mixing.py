@@ -517,3 +517,26 @@ def test_phase_sweep_follows_miscibility_at_each_temperature():
     assert len(split) and split.max() < s["temperature_c"].max()
     with pytest.raises(selector.SelectorError, match="whole number"):
         selector.phase_sweep("hexane", "methanol", n=1)
+
+
+def test_estimated_liquid_state_is_checked_at_its_interval_corners():
+    from selector import estimation as E
+
+    # methyl levulinate is not in the library: estimated from structure, with 90 % intervals
+    rows = E.as_library_rows(E.estimate("CC(=O)CCC(=O)OC", names=["methyl levulinate"]))
+    row = rows.iloc[0]
+    r = miscibility(row, "hexane")
+    assert r.state == "miscible" and r.confidence == "low"
+    assert any("estimated from structure" in n for n in r.notes)
+    assert any("within the 90 % intervals of methyl levulinate" in n and "partially miscible" in n
+               for n in r.notes)
+    # the corner that splits: the top of the dP and dH intervals (the same model, no intervals)
+    corner = row.drop([c for c in row.index if c.endswith(("_low", "_high"))]).copy()
+    corner["delta_p"], corner["delta_h"] = row["delta_p_high"], row["delta_h_high"]
+    corner["molar_volume"] = row["molar_volume_high"]
+    assert miscibility(corner, "hexane").state == "partially miscible"
+    # the centre point without intervals: a clear answer, as before
+    centre = row.drop([c for c in row.index if c.endswith(("_low", "_high"))])
+    assert miscibility(centre, "hexane").confidence != "low"
+    # library liquids carry no intervals: toluene-hexane stays "high" (miscible, common practice)
+    assert miscibility("toluene", "hexane").confidence == "high"
