@@ -96,6 +96,18 @@ def test_opens_on_invented_demo_with_rank_result(at):
     shown = at.dataframe[0].value
     assert list(shown["name"].head(25)) == list(ref["name"].head(25))
     np.testing.assert_allclose(shown["red"].to_numpy(float), ref["red"].head(len(shown)).to_numpy(float))
+    # a missing flash point reads "not flammable" for a liquid that does not burn (tetrachloroethylene;
+    # parameters/hazards.csv, and common practice) and "no data" otherwise, never a blank
+    top = at.table[0].value.set_index("Liquid")
+    assert "tetrachloroethylene" in top.index     # so that the check below is exercised
+    lib = selector.load_library()
+    for name in top.index:
+        fp = selector.find_liquid(name, lib).flash_point_c
+        txt = str(top.loc[name, "Flash point (°C)"])
+        if pd.notna(fp):
+            assert txt == f"{fp:.0f}"
+        else:
+            assert txt == ("not flammable" if name == "tetrachloroethylene" else "no data"), (name, txt)
     # the usual cautions are shown next to a recommendation
     assert any("safety data sheet" in w.value for w in at.warning)
     # 3-D plot: liquids inside the sphere (RED < 1) and outside differ in marker shape and colour

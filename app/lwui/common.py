@@ -197,7 +197,9 @@ def capability(module: str):
 
 #: Characters that Streamlit's Markdown would read as formatting (a SMILES such as
 #: ``*CC(*)c1ccccc1`` or ``[C@H](O)`` must be shown as typed).
-_MD_SPECIAL = "\\`*_[]<>~$"  # enough inside a line: ( ) only link after ], - + # only at a line start
+# enough inside a line: ( ) only make a link after ], - + # only act at a line start, and an
+# underscore inside a word (delta_p, file_name) is not emphasis in CommonMark
+_MD_SPECIAL = "\\`*[]<>~$"
 
 
 def md_escape(text) -> str:
@@ -435,10 +437,19 @@ def readable_top(df: pd.DataFrame, columns: list[str], n: int = 5, key: str = "t
     """The first rows as a plain HTML table (readable by people, printers and browser tests)."""
     cols = list(dict.fromkeys(c for c in columns if c and c in df.columns))
     top = df.head(n)[cols].copy()
+    if "name" in cols and "hsp_source" in df.columns:
+        # an estimate stays marked as one wherever it is listed
+        est = df.head(n)["hsp_source"].fillna("").astype(str).str.startswith("estimated")
+        top.loc[est.to_numpy(), "name"] = top.loc[est.to_numpy(), "name"].astype(str) + " (estimated HSP)"
     labels = {c: (COLUMN_CONFIG[c]["label"] if c in COLUMN_CONFIG and isinstance(COLUMN_CONFIG[c], dict)
                   and COLUMN_CONFIG[c].get("label") else c) for c in cols}
     for c in cols:
-        if pd.api.types.is_float_dtype(top[c]):
+        if c in ("flash_point_c", "lowest_flash_point_c"):
+            from selector.cautions import flash_point_text
+
+            # a blank would mean both "does not burn" and "no data"
+            top[c] = flash_point_text(df.head(n), column=c, fmt="{:.0f}").to_numpy()
+        elif pd.api.types.is_float_dtype(top[c]):
             fmt = "{:.0f}" if c.endswith("_c") else "{:.2f}"
             top[c] = top[c].map(lambda v, f=fmt: "" if not np.isfinite(v) else f.format(v))
     top = top.rename(columns=labels)
