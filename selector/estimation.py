@@ -93,8 +93,24 @@ def parse_smiles(smiles_list):
 
 
 def _as_smiles_list(smiles, what="smiles") -> list[str]:
+    """A list of SMILES from a string, a list/tuple/Series/Index, a 1-D array, or a one-column
+    2-D array or DataFrame (the (n, 1) shape scikit-learn pipelines pass)."""
     if isinstance(smiles, str):
         return [smiles]
+    if isinstance(smiles, pd.DataFrame):
+        if smiles.shape[1] != 1:
+            raise SelectorError(f"{what}: expected one column of SMILES, got a table with {smiles.shape[1]} "
+                                "columns")
+        smiles = smiles.iloc[:, 0]
+    if isinstance(smiles, np.ndarray) and smiles.ndim != 1:
+        if smiles.ndim == 2 and smiles.shape[1] == 1:
+            smiles = smiles[:, 0]
+        else:
+            raise SelectorError(f"{what}: expected a 1-D list of SMILES or an (n, 1) array, got an array "
+                                f"of shape {smiles.shape}")
+    if isinstance(smiles, (list, tuple)) and smiles and all(
+            isinstance(x, (list, tuple, np.ndarray)) and len(x) == 1 for x in smiles):
+        smiles = [x[0] for x in smiles]      # [["CCO"], ["CCC"]]: rows of one SMILES each
     if isinstance(smiles, (pd.Series, pd.Index, np.ndarray, list, tuple)):
         out = list(smiles)
         if not out:
@@ -365,11 +381,25 @@ class HSPEstimator:
 
         self._check_params()
         mols = self._mols(smiles, "training SMILES")
-        Y = np.asarray(y, dtype=float)
-        if Y.ndim != 2 or Y.shape != (len(mols), 3):
-            raise SelectorError(f"y must have shape (n, 3) = (delta_d, delta_p, delta_h); got {Y.shape}")
-        if not np.all(np.isfinite(Y)) or (Y < 0).any():
-            raise SelectorError("y contains NaN, infinite or negative HSP values")
+        try:
+            Y = np.asarray(y, dtype=float)
+        except (TypeError, ValueError):
+            raise SelectorError("y must be numbers: an (n, 3) array of delta_d, delta_p, delta_h in MPa^0.5") from None
+        if Y.ndim != 2 or Y.shape[1] != 3:
+            raise SelectorError(f"y must have three columns (delta_d, delta_p, delta_h), one row per SMILES; "
+                                f"got an array of shape {Y.shape}")
+        if len(Y) != len(mols):
+            raise SelectorError(f"{len(Y)} rows of y for {len(mols)} SMILES: give one (delta_d, delta_p, "
+                                "delta_h) row per SMILES")
+        bad = ~np.isfinite(Y).all(axis=1)
+        neg = (Y < 0).any(axis=1) & ~bad
+        if bad.any() or neg.any():
+            def rows(mask):
+                at = np.flatnonzero(mask)
+                return ", ".join(str(i) for i in at[:10]) + (f" and {len(at) - 10} more" if len(at) > 10 else "")
+            parts = ([f"NaN or infinite values in row(s) {rows(bad)}"] if bad.any() else []) + (
+                [f"negative HSP in row(s) {rows(neg)}"] if neg.any() else [])
+            raise SelectorError("y: " + "; ".join(parts) + " (rows counted from 0); drop or fix them")
         if len(mols) < 10:
             raise SelectorError(f"need at least 10 training molecules, got {len(mols)}")
         X = featurize(mols) if features is None else np.asarray(features, float)

@@ -90,6 +90,26 @@ def test_bad_training_input_is_refused():
         est.fit(["CCO"] * 10, np.ones((10, 2)))
     with pytest.raises(SelectorError, match="not fitted"):
         E.HSPEstimator().predict(["CCO"])
+    with pytest.raises(SelectorError, match=r"11 rows of y for 10 SMILES"):
+        est.fit(["CCO"] * 10, np.ones((11, 3)))
+    y = np.ones((10, 3))
+    y[3, 1] = np.nan
+    with pytest.raises(SelectorError, match=r"NaN or infinite values in row\(s\) 3"):
+        est.fit(["CCO"] * 10, y)
+    with pytest.raises(SelectorError, match=r"an \(n, 1\) array, got an array of shape \(2, 2\)"):
+        est.fit(np.array([["CCO", "CCC"], ["CCO", "CCC"]]), np.ones((2, 3)))
+
+
+def test_smiles_as_an_n_by_1_array():
+    # the (n, 1) shape scikit-learn pipelines pass: read as one SMILES per row
+    df, mols, X = training()
+    sub = np.arange(0, len(df), 40)
+    smi = df["smiles"].iloc[sub].to_numpy(object)
+    est = E.HSPEstimator(n_estimators=4, calibration_folds=0, random_state=0)
+    est.fit(smi[:, None], df[E.HSP_COLS].to_numpy(float)[sub])
+    np.testing.assert_array_equal(est.predict(smi[:5, None]), est.predict(list(smi[:5])))
+    res = E.estimate(np.array([["CCO"], ["O"]], dtype=object))     # ethanol, water: in the library
+    assert list(res["matched_name"]) == ["ethanol", "water"]
 
 
 def test_batch_survives_bad_rows_and_uses_library(tmp_path):
