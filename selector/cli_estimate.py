@@ -90,7 +90,7 @@ def _vertical(row) -> str:
         iv = f"   90 % interval {lo:.{d}f} .. {hi:.{d}f}" if pd.notna(lo) and pd.notna(hi) else ""
         lines.append(f"{c:14s} {v:.{d}f} {unit[c]}{iv}")
     lines.append(f"{'in_domain':14s} {bool(row['in_domain'])}")
-    if pd.notna(row.get("similarity")):
+    if pd.notna(row.get("similarity")) and row.get("source") == "estimated":
         lines.append(f"{'similarity':14s} {row['similarity']:.2f} (Tanimoto to the nearest training compound)")
     for f in ("nearest", "message"):
         if str(row.get(f, "")).strip():

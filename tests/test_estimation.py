@@ -496,3 +496,28 @@ def test_save_mine_skips_rows_that_cannot_be_user_liquids(tmp_path, capsys):
     assert main(["guess", str(batch), "--save-mine", str(mine)]) == 1
     assert "replaced 2 earlier rows of the same name: dtb succinate, benzamide" in capsys.readouterr().err
     assert list(pd.read_csv(mine)["name"]) == ["keep me", "dtb succinate", "benzamide"]
+
+
+def test_guess_prints_intervals_to_the_precision_of_the_values(tmp_path, capsys):
+    import re
+
+    from selector.cli import main
+
+    smi = "CC(C)(C)OC(=O)CCC(=O)OC(C)(C)C"
+    mine = tmp_path / "mine.csv"
+    assert main(["guess", smi, "--long", "--name", "dtb succinate", "--save-mine", str(mine)]) == 0
+    cap = capsys.readouterr()
+    lines = {ln.split()[0]: ln for ln in cap.out.splitlines() if ln.strip()}
+    # one value per line; HSP to 0.01 MPa^0.5 and the volume to 0.1 cm3/mol, intervals likewise
+    assert re.fullmatch(r"delta_p\s+\d+\.\d\d MPa\^0\.5\s+90 % interval \d+\.\d\d \.\. \d+\.\d\d", lines["delta_p"])
+    assert re.fullmatch(r"molar_volume\s+\d+\.\d cm3/mol\s+90 % interval \d+\.\d \.\. \d+\.\d",
+                        lines["molar_volume"])
+    assert lines["name"].split(None, 1)[1] == "dtb succinate"
+    assert f"saved 1 row to {mine} (1 estimated)" in cap.err
+    # the batch table (--long): intervals as text with the digits of their value
+    from selector.cli_estimate import GUESS_COLUMNS, _shown
+
+    shown = _shown(E.estimate([smi, "CCO"]), GUESS_COLUMNS)
+    assert re.fullmatch(r"\d+\.\d", shown.loc[0, "molar_volume_low"])
+    assert re.fullmatch(r"\d+\.\d\d", shown.loc[0, "delta_d_high"])
+    assert shown.loc[1, "delta_d_low"] == "-"          # ethanol: library value, no interval
