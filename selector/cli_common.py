@@ -294,6 +294,11 @@ def units_line(columns) -> str:
     """One "Units: ..." line for the columns present, or ""."""
     cols = set(columns)
     parts = [text for keys, text in _UNITS if cols & set(keys)]
+    if parts and parts[0] == _UNITS[0][1]:
+        # name only the Hansen quantities the table shows
+        hsp = [lab for keys, lab in ((("delta_d", "delta_p", "delta_h"), "dD/dP/dH"), (("ra",), "Ra"),
+                                     (("radius",), "R0")) if cols & set(keys)]
+        parts[0] = ", ".join(hsp) + " in MPa^0.5"
     return ("Units: " + "; ".join(parts) + "; - = no data") if parts else ""
 
 
@@ -340,6 +345,6 @@ def emit(df, a, columns=None, caution: bool = False, header: str | None = None,
         top = getattr(a, "top", None)
         if top and not getattr(a, "_top_given", False) and len(df) >= top:
             note = f" (the --top default of {top}; give --top N for more)"
-        print(f"wrote {len(df)} rows to {out}{note}", file=sys.stderr)
+        print(f"wrote {len(df)} row{'' if len(df) == 1 else 's'} to {out}{note}", file=sys.stderr)
     else:
         sys.stdout.write(text if text.endswith("\n") else text + "\n")
