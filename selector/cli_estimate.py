@@ -2,7 +2,6 @@
 from __future__ import annotations
 
 import argparse
-import re
 
 GUESS_COLUMNS = ["name", "smiles", "source", "hsp_source", "delta_d", "delta_d_low", "delta_d_high",
                  "delta_p", "delta_p_low", "delta_p_high", "delta_h", "delta_h_low", "delta_h_high",
@@ -18,11 +17,6 @@ NOTE = ("Source: 'estimated' = estimated from structure, with 90 % prediction in
         "table the model is trained on (chemicals.solubility, source key in hsp_source), molar volume "
         "estimated. Estimates are not measurements: confirm before use.")
 
-#: columns of the user-liquid file written by --save-mine
-SAVED_COLUMNS = ["name", "smiles", "delta_d", "delta_p", "delta_h", "molar_volume", "hsp_source", "origin",
-                 "molar_volume_estimated", "volume_method", "delta_d_low", "delta_d_high", "delta_p_low",
-                 "delta_p_high", "delta_h_low", "delta_h_high", "molar_volume_low", "molar_volume_high",
-                 "in_domain"]
 
 
 def register(sub) -> None:
@@ -129,55 +123,24 @@ def cmd_guess(a) -> int:
     return status
 
 
-_ROW_PREFIX = re.compile(r"^row \d+(?: \([^)]*\))?: ")
-
-
 def _save_mine(res, path) -> int:
     """Add the saveable rows of ``res`` to the user-liquid file ``path``; 1 when rows were skipped."""
     import sys
 
-    import numpy as np
-    import pandas as pd
-
-    from .estimation import as_library_rows
+    from .estimation import saveable_rows, with_user_rows
     from .io import to_csv_text, write_atomic
-    from .library import _as_frame, user_row_problems, validate_user_table
+    from .library import _as_frame, validate_user_table
 
-    src = res["source"].astype(str)
-    dup = res["duplicate_of"].notna().to_numpy() if "duplicate_of" in res.columns else np.zeros(len(res), bool)
-    cand = np.flatnonzero(src.isin(["estimated", "published"]).to_numpy() & ~dup)
-    n_lib = int(src.eq("library").sum())
-    n_dup = int((dup & src.isin(["estimated", "published"]).to_numpy()).sum())
-    if not len(cand):
+    good, skipped, n_lib, n_dup = saveable_rows(res)
+    if good is None:
         print("nothing saved: no row was estimated (library matches and failed rows are not saved)",
               file=sys.stderr)
         return 0
-    rows = as_library_rows(res)          # the same rows, in the same order
-    new = rows[SAVED_COLUMNS].copy()
-    num = [c for c in SAVED_COLUMNS if c.startswith(("delta_", "molar_volume")) and c != "molar_volume_estimated"]
-    new[num] = new[num].astype(float).round(3)
-    _, problems = user_row_problems(new)
-    skipped = []
-    for k in sorted(problems):
-        i = int(cand[k])
-        label = str(res["name"].iloc[i]).strip() or str(res["smiles"].iloc[i])
-        why = "; ".join(_ROW_PREFIX.sub("", t) for t in problems[k])
-        skipped.append(f"row {i + 1} ({label}): {why}")
-    good = new.drop(index=list(problems)).reset_index(drop=True)
-    replaced = []
     if good.empty:
         print(f"nothing saved to {path}: {_plural(len(skipped), 'row')} cannot be user liquids:\n  "
               + "\n  ".join(skipped), file=sys.stderr)
         return 1
-    if path.exists():
-        old = _as_frame(path)
-        if "name" in old:
-            same = old["name"].astype(str).str.strip().str.lower().isin(good["name"].str.lower())
-            replaced = old.loc[same, "name"].astype(str).tolist()
-            old = old[~same]
-        table = pd.concat([old, good], ignore_index=True)
-    else:
-        table = good
+    table, replaced = with_user_rows(_as_frame(path) if path.exists() else None, good)
     validate_user_table(table)  # refuse to write a table the other commands could not read
     write_atomic(path, to_csv_text(table), make_parents=False)
     kinds = good["origin"].value_counts()

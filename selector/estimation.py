@@ -51,6 +51,7 @@ from __future__ import annotations
 import functools
 import hashlib
 import json
+import re
 import sys
 from pathlib import Path
 
@@ -1123,6 +1124,52 @@ def as_library_rows(df: pd.DataFrame, include_library=False) -> pd.DataFrame:
     if "in_domain" in d.columns:
         rows["in_domain"] = d["in_domain"].values
     return rows.reset_index(drop=True)
+
+
+#: columns of a user-liquid file row made from an estimate (``likewise guess --save-mine``, the app)
+SAVED_COLUMNS = ["name", "smiles", "delta_d", "delta_p", "delta_h", "molar_volume", "hsp_source", "origin",
+                 "molar_volume_estimated", "volume_method", "delta_d_low", "delta_d_high", "delta_p_low",
+                 "delta_p_high", "delta_h_low", "delta_h_high", "molar_volume_low", "molar_volume_high",
+                 "in_domain"]
+_ROW_PREFIX = re.compile(r"^row \d+(?: \([^)]*\))?: ")
+
+
+def saveable_rows(res: pd.DataFrame):
+    """The rows of an :func:`estimate` result that can go into a user-liquid file.
+
+    Returns ``(rows, skipped, n_library, n_repeated)``: ``rows`` in :data:`SAVED_COLUMNS` (values
+    rounded to 0.001; None when no row is estimated or published), ``skipped`` one message per
+    row that fails the user-liquid checks (named by its row in ``res``, counted from 1, with the
+    reason), and the counts of library matches and repeated molecules, which are not saved."""
+    from .library import user_row_problems
+
+    src = res["source"].astype(str)
+    dup = res["duplicate_of"].notna().to_numpy() if "duplicate_of" in res.columns else np.zeros(len(res), bool)
+    cand = np.flatnonzero(src.isin(["estimated", "published"]).to_numpy() & ~dup)
+    n_lib = int(src.eq("library").sum())
+    n_dup = int((dup & src.isin(["estimated", "published"]).to_numpy()).sum())
+    if not len(cand):
+        return None, [], n_lib, n_dup
+    new = as_library_rows(res)[SAVED_COLUMNS].copy()          # the same rows, in the same order
+    num = [c for c in SAVED_COLUMNS if c.startswith(("delta_", "molar_volume")) and c != "molar_volume_estimated"]
+    new[num] = new[num].astype(float).round(3)
+    _, problems = user_row_problems(new)
+    skipped = []
+    for k in sorted(problems):
+        i = int(cand[k])
+        label = (str(res["name"].iloc[i]).strip() if "name" in res.columns else "") or str(res["smiles"].iloc[i])
+        skipped.append(f"row {i + 1} ({label}): " + "; ".join(_ROW_PREFIX.sub("", t) for t in problems[k]))
+    return new.drop(index=list(problems)).reset_index(drop=True), skipped, n_lib, n_dup
+
+
+def with_user_rows(old: pd.DataFrame | None, rows: pd.DataFrame):
+    """``(table, replaced)``: the user-liquid table ``old`` (None: no file yet) with ``rows``
+    appended; an old row with the same name (case-insensitive) is replaced, and its name listed."""
+    if old is None or "name" not in old:
+        return (rows.copy() if old is None else pd.concat([old, rows], ignore_index=True)), []
+    same = old["name"].astype(str).str.strip().str.lower().isin(rows["name"].astype(str).str.lower())
+    return (pd.concat([old[~same], rows], ignore_index=True),
+            old.loc[same, "name"].astype(str).tolist())
 
 
 def merge_estimates(library: pd.DataFrame, rows: pd.DataFrame) -> pd.DataFrame:

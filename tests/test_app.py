@@ -245,6 +245,31 @@ def test_estimated_target_keeps_its_intervals_and_smiles_show_as_typed(at):
     assert not at.exception
     assert any("\\*CC(\\*)c1ccccc1" in e for e in errors(at)), errors(at)
 
+
+@pytest.mark.skipif(not has("estimation"), reason="selector.estimation not installed")
+def test_estimate_added_to_my_liquids_is_a_marked_candidate(at, home):
+    # "Add to my liquids" writes the estimate with its intervals; the ranking then proposes it,
+    # marked as estimated (reference: selector.rank on the library merged with that file)
+    smi = "CC(C)(C)OC(=O)C1CCCCC1"
+    go(at, "target")
+    at.text_input(key="tg_smiles").set_value(smi)
+    at.button[[b.label for b in at.button].index("Estimate")].click().run()
+    at.text_input(key="tg_add_name").set_value("tBu ester X")
+    at.button(key="tg_add_est").click().run()
+    assert not at.exception and not errors(at)
+    saved = pd.read_csv(home / "my_liquids.csv")
+    est = selector.estimate(smi).iloc[0]
+    row = saved.loc[saved["name"] == "tBu ester X"].iloc[0]
+    assert row["origin"] == "estimated"
+    assert row["delta_p_low"] == pytest.approx(float(est["delta_p_low"]), abs=1e-3)
+    assert row["delta_p_high"] == pytest.approx(float(est["delta_p_high"]), abs=1e-3)
+    set_typed_target(at, (float(est["delta_d"]), float(est["delta_p"]), float(est["delta_h"]), 5.0), name="near it")
+    go(at, "candidates")
+    ref = selector.rank((float(est["delta_d"]), float(est["delta_p"]), float(est["delta_h"]), 5.0),
+                        library=selector.load_library(saved))
+    assert ref["name"].iloc[0] == "tBu ester X"
+    assert top_names(at)[0] == "tBu ester X (estimated HSP)"
+
 # ---------------------------------------------------------------- miscibility
 
 @pytest.mark.skipif(not has("mixing"), reason="selector.mixing not installed")

@@ -68,6 +68,43 @@ with tabs[1]:
                                "radius": r0l or None, "source": f"library ({row['hsp_source']})"})
             st.rerun()
 
+def _add_to_mine(est, e) -> None:
+    """Save an estimate (or a published-table answer) as one of the user's liquids, so that every
+    page can propose it; the row keeps its intervals and its "estimated" mark."""
+    from selector.estimation import saveable_rows, with_user_rows
+    from selector.library import file_fingerprint, save_user_liquids, user_liquids_file, validate_user_table
+
+    c1, c2 = st.columns([2, 1])
+    default = str(e.get("library_name") or "") or f"my {e['smiles']}"
+    nm = c1.text_input("Name in your liquids", value=default, key="tg_add_name")
+    c2.write("")
+    if not c2.button("Add to my liquids (a candidate everywhere)", key="tg_add_est"):
+        return
+    if not nm.strip():
+        st.error("Give the liquid a name first.")
+        return
+    one = est.head(1).copy()
+    one["name"] = nm.strip()
+    rows, skipped, _, _ = saveable_rows(one)
+    if skipped or rows is None or rows.empty:
+        common.show_error(f"Not added: {skipped[0] if skipped else 'nothing to add'}")
+        return
+    path = user_liquids_file()
+    stamp = file_fingerprint(path)
+    try:
+        old = validate_user_table(path) if path.exists() else None
+        table, replaced = with_user_rows(old, rows)
+        save_user_liquids(table, path, unchanged_since=stamp)
+    except (ValueError, KeyError) as err:
+        common.show_error(f"Not added (your saved liquids are unchanged; see *My liquids*): {err}")
+        return
+    for k in ("mine_table", "mine_stamp", "mine_editor"):   # My liquids reads the file again
+        st.session_state.pop(k, None)
+    what = "replaced" if replaced else "added"
+    common.set_target_and_rerun(common.target_spec(), f"{nm.strip()} {what} in your liquids ({path}): every page "
+                                "can now propose it, marked as estimated. Use it only after a test.")
+
+
 with tabs[2]:
     st.caption("Hansen parameters and molar volume estimated from the structure by the bundled estimator "
                "(trained on the published HSP tables), with a 90 % interval and an applicability-domain "
@@ -114,7 +151,6 @@ with tabs[2]:
         st.caption(str(e.get("message", "")).rstrip(".") + ". Estimates are not measurements: confirm with a test.")
         estimated = e.get("source") == "estimated"
         label = "Use this estimate as the target" if estimated else "Use these published values as the target"
-        common.show_flash()
         if st.button(label, key="tg_use_est", type="primary"):
             r0v = st.session_state.get("tg_r0s")
             name = str(e.get("library_name") or e["smiles"])
@@ -130,6 +166,8 @@ with tabs[2]:
             st.session_state.pop("lw_est", None)
             common.set_target_and_rerun(spec, f"{name} is now the target"
                                         + (" (estimated from its structure: see the sidebar)." if estimated else "."))
+        if e.get("source") in ("estimated", "published"):
+            _add_to_mine(est, e)
 
 with tabs[3]:
     fit = st.session_state.get("lw_fit")
