@@ -257,6 +257,22 @@ def not_flammable(library: pd.DataFrame) -> np.ndarray:
     return nf & ~np.isfinite(fp)
 
 
+_TRUE_TEXT = frozenset({"true", "t", "yes", "y", "1", "1.0"})
+
+
+def _flag_array(col: pd.Series) -> np.ndarray:
+    """A boolean column as a numpy bool array, also when it holds text (a table read back from
+    CSV: "True"/"False", "yes"/"no", "1"/"0", any case): missing or unrecognised cells are False
+    (not known to be non-flammable)."""
+    if pd.api.types.is_bool_dtype(col):
+        return col.fillna(False).to_numpy(bool)
+    if pd.api.types.is_numeric_dtype(col):
+        v = pd.to_numeric(col, errors="coerce").to_numpy(float)
+        return np.isfinite(v) & (v != 0)
+    text = col.astype(str).str.strip().str.lower()
+    return (text.isin(_TRUE_TEXT) & col.notna()).to_numpy(bool)
+
+
 #: Texts of :func:`flash_point_text` for a liquid that does not burn and for a missing value.
 NOT_FLAMMABLE_TEXT = "not flammable"
 NO_FLASH_DATA_TEXT = "no data"
@@ -279,7 +295,7 @@ def flash_point_text(frame: pd.DataFrame, column: str = "flash_point_c", fmt: st
     """
     v = pd.to_numeric(frame[column], errors="coerce").to_numpy(float)
     if "not_flammable" in frame.columns:
-        nf = frame["not_flammable"].astype("boolean").fillna(False).to_numpy(bool)
+        nf = _flag_array(frame["not_flammable"])
     elif column == "flash_point_c":
         nf = not_flammable(frame)
     else:

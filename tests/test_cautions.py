@@ -24,6 +24,9 @@ def _reason(name):
     ("allyl chloride", "allylic"), ("benzyl chloride", "benzylic"),
     # hazards.csv lists H310 H330 (fatal) for 1,1,2,2-tetrachloroethane (from memory there)
     ("1,1,2,2-tetrachloroethane", "fatal on exposure"),
+    # hazards.csv lists H300 H310 H330 (fatal) for bis(2-chloroethyl) ether (EU CLP harmonised
+    # classification, from memory there)
+    ("bis(2-chloroethyl) ether", "fatal on exposure"),
     # Common practice: mustard-type alkylating agents (2-chloroethyl ethyl sulfide is the
     # "half-mustard"; bis(2-chloroethyl)amine is nor-nitrogen mustard), vinyl sulfide monomers,
     # thiirane, thiocyanates, disulfides and halohydrins are reagents, not solvents.
@@ -63,7 +66,7 @@ def test_very_low_exposure_limit_is_flagged():
                                   "hexane", "dibutyl phthalate", "nitromethane", "butyl acrylate",
                                   "propylene carbonate", "dichloromethane", "cinnamaldehyde", "benzaldehyde",
                                   "chlorobenzene", "pyridine", "thiophene", "3-methylsulfolane", "dimethyl sulfide",
-                                  "tetrahydrothiophene", "bis(2-chloroethyl) ether", "2-chloroethyl acetate"])
+                                  "tetrahydrothiophene", "2-chloroethyl acetate"])
 def test_ordinary_solvents_are_not_flagged(name):
     # Common practice: all of these are used as solvents (dibutyl phthalate has a low ppm limit
     # but hardly any vapour, so the exposure rule does not apply).
@@ -222,3 +225,20 @@ def test_flash_point_text_tells_not_flammable_from_no_data(capsys):
     assert "12.0" in lines["ethanol"]
     assert main(["rank", "18.8,5.1,5.3", "--only", "tetrachloroethylene", "--format", "csv"]) == 0
     assert "not flammable" not in capsys.readouterr().out
+
+
+def test_flash_point_text_reads_text_booleans():
+    # a table read back from CSV holds not_flammable as text; "True"/"False" (pandas' own CSV
+    # spelling), yes/no and 1/0 are read as booleans (common practice), a blank as "not known".
+    # 12.0 C is ethanol's library flash point (chemicals).
+    import io
+
+    import pandas as pd
+
+    from selector.cautions import flash_point_text
+
+    text = "name,flash_point_c,not_flammable\nperc,,True\nx,,False\ny,,yes\nz,,\nethanol,12.0,False\n"
+    frame = pd.read_csv(io.StringIO(text), dtype={"not_flammable": str})
+    assert flash_point_text(frame).tolist() == ["not flammable", "no data", "not flammable", "no data", "12.0"]
+    frame = pd.DataFrame({"flash_point_c": [None, None, None], "not_flammable": ["TRUE", " false ", "1"]})
+    assert flash_point_text(frame).tolist() == ["not flammable", "no data", "not flammable"]
