@@ -33,6 +33,9 @@ HSP) are treated as equal: within such a step, rows with a component that has no
 the worst class, and this comes before the number of components, so a single liquid without
 hazard data never heads a step that holds a classified blend - then fewer components come first,
 then the better hazard class (unclassified ranked below "highly hazardous"), then the smaller Ra.
+A liquid of your own (``origin`` other than "library") without hazard data counts as "highly
+hazardous" here rather than unclassified: you added it on purpose, so it is not pushed behind
+every classified blend; its hazard notes still say that it has no hazard data.
 A blend of two is proposed only if it comes at least ``min_gain`` (default 0.1 MPa^0.5) closer to
 the target than each of its liquids alone, and a blend of three only if it beats each of its three
 pairs by the same margin: a third liquid must earn its place. Every pair inside a proposed blend
@@ -777,6 +780,12 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     from .hazards import hazard_columns
 
     hz = hazard_columns(cand)["hazard_rank"].to_numpy(float)
+    # the user's own liquids (typed, imported or estimated) rarely have hazard data; they were added
+    # on purpose, so without data they rank as the worst class instead of after every classified row
+    # (their notes still say "no hazard data")
+    own = (cand["origin"].astype(str).ne("library").to_numpy() if "origin" in cand.columns
+           else np.zeros(len(cand), bool))
+    hz = np.where(np.isnan(hz) & own, float(UNCLASSIFIED_LEVEL - 1), hz)
     res = search_arrays(h * SCALE, tgt.hsp * SCALE, max_components=kmax, min_fraction=m, miscible=mis,
                         pool=pool, min_gain=gain, hazard_rank=hz, resolution=resolution,
                         ra_cap="display" if cost is None else None, display=(top, max_uses))

@@ -83,12 +83,21 @@ def cmd_app(a) -> int:
     # the app trains the structure estimator in the background once the first page is up
     proc = subprocess.Popen(cmd, env=dict(os.environ, LIKEWISE_WARM_ESTIMATOR="1"))
 
+    stopped = []
+
     def _stop(signum, frame):  # SIGTERM / SIGHUP to this command stop the server too
+        stopped.append(signum)
         proc.terminate()
 
-    old = {s: signal.signal(s, _stop) for s in (signal.SIGTERM, getattr(signal, "SIGHUP", signal.SIGTERM))}
+    old = {}
+    for sig in {signal.SIGTERM, getattr(signal, "SIGHUP", signal.SIGTERM)}:
+        try:
+            old[sig] = signal.signal(sig, _stop)
+        except ValueError:      # not the main thread (called from other code): no handler
+            pass
     try:
-        return proc.wait()
+        rc = proc.wait()
+        return 0 if stopped else rc     # a requested stop is a clean exit
     except KeyboardInterrupt:   # Ctrl+C reaches the server too; the block below waits for it
         return 0
     finally:

@@ -71,11 +71,10 @@ def cmd_blend(a) -> int:
 def _with_estimated(res, lib, a):
     """``res`` with an ``estimated`` column naming the components whose HSP are estimated from
     structure (:func:`selector.library.hsp_estimated`), the columns to add and a header note."""
-    from .library import hsp_estimated
+    from .library import estimated_components
 
-    est = set(lib.loc[hsp_estimated(lib), "name"].astype(str))
     res = res.copy()
-    res["estimated"] = [", ".join(c for c in cs if c in est) for cs in res["components"]]
+    res["estimated"] = estimated_components(res, lib)
     used = res["estimated"].ne("").any()
     note = ("\nestimated = components whose HSP are estimated from structure (not measured): the blend "
             "point is as uncertain as they are") if used else ""

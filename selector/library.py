@@ -544,6 +544,16 @@ def hsp_estimated(df: pd.DataFrame) -> np.ndarray:
     return (df["origin"].astype(str) == "estimated").to_numpy()
 
 
+def estimated_components(result: pd.DataFrame, library: pd.DataFrame) -> list[str]:
+    """For each row of a blend or substitute table (a ``components`` column of name lists), the
+    components whose HSP are estimated from structure in ``library`` (:func:`hsp_estimated`),
+    joined by ", " ("" for none); the blend point is then as uncertain as they are."""
+    est = set(library.loc[hsp_estimated(library), "name"].astype(str))
+    if not est or "components" not in result.columns:
+        return [""] * len(result)
+    return [", ".join(c for c in cs if c in est) for cs in result["components"]]
+
+
 def interval_text(row, digits=1) -> str:
     """The 90 % intervals of a row's estimated HSP as "dD 14.9-17.8, dP 5.0-10.9, dH 6.4-10.5"
     (MPa^0.5), or "" when the row carries none (``delta_*_low``/``_high`` columns)."""

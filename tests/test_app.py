@@ -230,14 +230,16 @@ def test_estimated_target_keeps_its_intervals_and_smiles_show_as_typed(at):
     assert not at.exception
     est = selector.estimate(smi).iloc[0]
     t = at.session_state["lw_target"]
-    assert t["estimated"] and t["delta_p"] == pytest.approx(float(est["delta_p"]))
-    assert t["interval"]["delta_p"] == pytest.approx((float(est["delta_p_low"]), float(est["delta_p_high"])))
+    assert t["origin"] == "estimated" and t["delta_p"] == pytest.approx(float(est["delta_p"]))
+    assert (t["delta_p_low"], t["delta_p_high"]) == pytest.approx((float(est["delta_p_low"]),
+                                                                   float(est["delta_p_high"])))
     side = " ".join(c.value for c in at.sidebar.caption)
-    assert "Estimated from its structure" in side
-    assert f"dP {est['delta_p_low']:.1f}–{est['delta_p_high']:.1f}" in side
+    assert "Estimated from structure" in side
+    assert f"dP {est['delta_p_low']:.1f}-{est['delta_p_high']:.1f}" in side
+    assert ("inside the estimator's domain" if est["in_domain"] else "OUTSIDE") in side
     assert any("is now the target" in m.value for m in at.success)
     go(at, "candidates")
-    assert any("Estimated from its structure" in c.value for c in at.caption)
+    assert any("Estimated from structure" in c.value for c in at.caption)
     # a polymer repeat unit is refused; its asterisks are escaped so that Markdown shows them
     go(at, "target")
     at.text_input(key="tg_smiles").set_value("*CC(*)c1ccccc1")
@@ -268,7 +270,22 @@ def test_estimate_added_to_my_liquids_is_a_marked_candidate(at, home):
     ref = selector.rank((float(est["delta_d"]), float(est["delta_p"]), float(est["delta_h"]), 5.0),
                         library=selector.load_library(saved))
     assert ref["name"].iloc[0] == "tBu ester X"
-    assert top_names(at)[0] == "tBu ester X (estimated HSP)"
+    want = "tBu ester X (estimated HSP" + ("" if est["in_domain"] else ", outside the domain") + ")"
+    assert top_names(at)[0] == want
+    # blends made with it name it as estimated (selector.library.estimated_components)
+    go(at, "blends")
+    full = at.dataframe[0].value
+    mine = full.loc[full["blend"].str.contains("tBu ester X", regex=False)]
+    assert len(mine) and (mine["estimated"] == "tBu ester X").all()
+    assert (full.loc[~full.index.isin(mine.index), "estimated"] == "").all()
+    # chosen later as a library liquid, it is still an estimated target with its intervals
+    go(at, "target")
+    at.selectbox(key="tg_liq").set_value("tBu ester X")
+    at.button(key="tg_use_liq").click().run()
+    t = at.session_state["lw_target"]
+    assert t["origin"] == "estimated"
+    assert t["delta_p_low"] == pytest.approx(float(est["delta_p_low"]), abs=1e-3)
+    assert "estimated from structure" in t["source"]
 
 # ---------------------------------------------------------------- miscibility
 
@@ -559,7 +576,7 @@ def test_app_command_stops_its_server_on_sigterm(tmp_path):
             time.sleep(0.3)
         assert not port_is_free(port), "the server never started"
         p.send_signal(signal.SIGTERM)
-        assert p.wait(timeout=30) is not None
+        assert p.wait(timeout=30) == 0          # a requested stop is a clean exit
         deadline = time.time() + 15
         while not port_is_free(port) and time.time() < deadline:
             time.sleep(0.3)

@@ -302,6 +302,21 @@ def test_unclassified_liquid_never_heads_classified_blends():
     assert "no hazard data: treat as hazardous" in b["hazard_notes"].iloc[first[0]]
 
 
+def test_own_liquid_without_hazard_data_is_not_pushed_out():
+    # A liquid the user added (origin "user") at the target itself: it has no hazard data but is
+    # ranked as the worst class, not after every classified blend, so it still shows (Ra 0) -
+    # with its "no hazard data" note. Same target as above (menthyl acetate's library HSP).
+    lib0 = selector.load_library()
+    row = lib0.set_index("name").loc["menthyl acetate"]
+    hsp = tuple(float(row[c]) for c in ("delta_d", "delta_p", "delta_h"))
+    mine = pd.DataFrame({"name": ["house thinner Z"], "delta_d": [hsp[0]], "delta_p": [hsp[1]],
+                         "delta_h": [hsp[2]], "molar_volume": [200.0], "boiling_point_c": [180.0]})
+    lib = selector.load_library(mine)
+    b = find_blends(hsp + (5.0,), top=10, library=lib)
+    hit = b.index[b["components"].map(lambda c: c == ("house thinner Z",)).to_numpy()]
+    assert len(hit) == 1 and hit[0] == 0        # a single at Ra 0 heads its step among the classified
+    assert "no hazard data" in b["hazard_notes"].iloc[hit[0]]
+
 def test_blend_flash_point_text_tells_not_flammable_from_no_data(capsys):
     # Common practice: dichloromethane, chloroform and tetrachloroethylene do not burn
     # (parameters/hazards.csv "none", from memory); divinyl sulfide has no flash-point data.

@@ -148,7 +148,7 @@ def set_target_and_rerun(spec: dict, message: str) -> None:
     """Set the target, then run the page again so that the sidebar shows it at once; ``message``
     is shown on that next run (:func:`show_flash`)."""
     set_target(spec)
-    st.session_state["lw_flash"] = message
+    st.session_state["lw_flash"] = md_escape(message)
     st.rerun()
 
 
@@ -282,17 +282,34 @@ def demo_banner(on_target_page: bool = False) -> None:
                 icon=":material/science:")
 
 
+#: the fields of an estimated row that a target spec keeps (so the mark and intervals survive)
+_ESTIMATE_FIELDS = ("origin", "in_domain") + tuple(f"{c}_{s}" for c in ("delta_d", "delta_p", "delta_h")
+                                                  for s in ("low", "high"))
+
+
+def estimate_fields(row) -> dict:
+    """The origin, domain flag and 90 % interval bounds of an estimated row, as plain values."""
+    out = {}
+    for k in _ESTIMATE_FIELDS:
+        v = row.get(k) if hasattr(row, "get") else None
+        if v is None or (isinstance(v, float) and v != v):
+            continue
+        out[k] = bool(v) if k == "in_domain" else (str(v) if k == "origin" else float(v))
+    return out
+
+
 def estimate_note(spec: dict | None = None) -> str:
-    """One line on an estimated target's uncertainty ("" for other targets): its 90 % intervals
-    and whether it lies inside the estimator's domain."""
+    """One line on an estimated target ("" for other targets): :func:`selector.library.estimate_note`
+    (its 90 % intervals) and whether it lies inside the estimator's domain."""
+    from selector.library import estimate_note as note
+
     s = target_spec() if spec is None else spec
-    if not s.get("estimated"):
-        return ""
-    lab = {"delta_d": "dD", "delta_p": "dP", "delta_h": "dH"}
-    iv = " · ".join(f"{lab[c]} {lo:.1f}–{hi:.1f}" for c, (lo, hi) in (s.get("interval") or {}).items())
+    text = note(s)
+    if not text or s.get("origin") != "estimated":
+        return text[:1].upper() + text[1:] if text else ""
     dom = ("inside the estimator's domain" if s.get("in_domain") else
            "OUTSIDE the estimator's domain: a rough guess")
-    return f"Estimated from its structure, {dom}; 90 % intervals {iv or 'not available'} MPa½."
+    return text[:1].upper() + text[1:] + f" ({dom})."
 
 
 def target_line() -> None:
@@ -437,10 +454,16 @@ def readable_top(df: pd.DataFrame, columns: list[str], n: int = 5, key: str = "t
     """The first rows as a plain HTML table (readable by people, printers and browser tests)."""
     cols = list(dict.fromkeys(c for c in columns if c and c in df.columns))
     top = df.head(n)[cols].copy()
-    if "name" in cols and "hsp_source" in df.columns:
+    if "name" in cols:
+        from selector.library import hsp_estimated
+
         # an estimate stays marked as one wherever it is listed
-        est = df.head(n)["hsp_source"].fillna("").astype(str).str.startswith("estimated")
-        top.loc[est.to_numpy(), "name"] = top.loc[est.to_numpy(), "name"].astype(str) + " (estimated HSP)"
+        head = df.head(n)
+        est = hsp_estimated(head)
+        out = (head["in_domain"].map(lambda v: str(v).strip().lower() in ("false", "0")).to_numpy(bool)
+               if "in_domain" in head.columns else np.zeros(len(head), bool))   # CSV text or bools
+        top.loc[est, "name"] = top.loc[est, "name"].astype(str) + np.where(
+            out[est], " (estimated HSP, outside the domain)", " (estimated HSP)")
     labels = {c: (COLUMN_CONFIG[c]["label"] if c in COLUMN_CONFIG and isinstance(COLUMN_CONFIG[c], dict)
                   and COLUMN_CONFIG[c].get("label") else c) for c in cols}
     for c in cols:

@@ -67,9 +67,16 @@ res.attrs = {}  # a Target in attrs cannot go to the browser
 res.insert(0, "blend", [" + ".join(f"{f:.0%} {c}" for c, f in zip(cs, fs))
                         for cs, fs in zip(res["components"], res["fractions"])])
 has_r = "red" in res and res["red"].notna().any()
+from selector.library import estimated_components
+
+res["estimated"] = estimated_components(res, common.library())
+has_est = res["estimated"].ne("").any()
 st.subheader("Best five")
 common.readable_top(res, ["blend", "red" if has_r else None, "ra", "hazard_class", "lowest_flash_point_c",
-                          "hazard_notes"], 5)
+                          "estimated" if has_est else None, "hazard_notes"], 5)
+if has_est:
+    st.caption("estimated = components whose HSP are estimated from structure (not measured): such a "
+               "blend point is as uncertain as they are; test it before you rely on it.")
 show_cols = [c for c in res.columns if c not in ("components", "fractions")]
 common.table(res[show_cols], hide_index=True, width="stretch", column_config=common.COLUMN_CONFIG)
 

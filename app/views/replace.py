@@ -74,9 +74,17 @@ if len(ref):
                "no flash point in the library")
     st.markdown(f"**{old}** today: hazard class {r0.get('hazard_class', 'unclassified')}, boiling point "
                 f"{r0.get('boiling_point_c', float('nan')):.0f} °C, {fp_text}.")
+from selector.library import estimated_components
+
+res["estimated"] = estimated_components(res, common.library())
+cand = res.loc[res["role"] != "replaced"] if "role" in res else res
+has_est = cand["estimated"].ne("").any()
 st.subheader("Best five")
 common.readable_top(cand, ["candidate", metric, "score", "hazard_class", "boiling_point_c",
-                           "lowest_flash_point_c", "hazard_notes"], 5)
+                           "lowest_flash_point_c", "estimated" if has_est else None, "hazard_notes"], 5)
+if has_est:
+    st.caption("estimated = liquids whose HSP are estimated from structure (not measured): test such a "
+               "candidate before you rely on it.")
 # without a target there is no RED to show (the column would be empty)
 show = [c for c in res.columns if c not in ("components", "fractions") and not (c == "red" and metric != "red")]
 common.table(res[show], hide_index=True, width="stretch", column_config=dict(

@@ -18,7 +18,7 @@ c[1].metric("dP (MPa½)", f"{t.delta_p:.1f}")
 c[2].metric("dH (MPa½)", f"{t.delta_h:.1f}")
 c[3].metric("R0 (MPa½)", f"{t.radius:.1f}" if t.radius else "—")
 c[4].metric("Source", common.target_spec().get("kind", "given"))
-st.markdown(f"**{t.name}** — {t.source}")
+st.markdown(f"**{common.md_escape(t.name)}** — {common.md_escape(t.source)}")
 common.demo_banner(on_target_page=True)
 if not common.is_demo() and st.button("Back to the invented demo resin", key="tg_demo"):
     common.set_target(common.demo_target_spec())
@@ -63,10 +63,14 @@ with tabs[1]:
     if st.button("Use this liquid", key="tg_use_liq", type="primary"):
         row = common.call(selector.find_liquid, q2.strip() or q, common.library())
         if row is not None:
-            common.set_target({"kind": "library", "name": str(row["name"]), "delta_d": float(row.delta_d),
-                               "delta_p": float(row.delta_p), "delta_h": float(row.delta_h),
-                               "radius": r0l or None, "source": f"library ({row['hsp_source']})"})
-            st.rerun()
+            from selector.library import estimate_note
+
+            spec = {"kind": "library", "name": str(row["name"]), "delta_d": float(row.delta_d),
+                    "delta_p": float(row.delta_p), "delta_h": float(row.delta_h),
+                    "radius": r0l or None, "source": f"library ({row['hsp_source']})"}
+            if estimate_note(row):   # one of your saved estimates: keep its mark and intervals
+                spec.update(common.estimate_fields(row), source=f"my liquids ({estimate_note(row)})")
+            common.set_target_and_rerun(spec, f"{row['name']} is now the target.")
 
 def _add_to_mine(est, e) -> None:
     """Save an estimate (or a published-table answer) as one of the user's liquids, so that every
@@ -75,7 +79,7 @@ def _add_to_mine(est, e) -> None:
     from selector.library import file_fingerprint, save_user_liquids, user_liquids_file, validate_user_table
 
     c1, c2 = st.columns([2, 1])
-    default = str(e.get("library_name") or "") or f"my {e['smiles']}"
+    default = str(e.get("library_name") or e.get("matched_name") or "") or f"my {e['smiles']}"
     nm = c1.text_input("Name in your liquids", value=default, key="tg_add_name")
     c2.write("")
     if not c2.button("Add to my liquids (a candidate everywhere)", key="tg_add_est"):
@@ -91,11 +95,17 @@ def _add_to_mine(est, e) -> None:
         return
     path = user_liquids_file()
     stamp = file_fingerprint(path)
+    if nm.strip().lower() in set(selector.load_library()["name"].str.lower()) and \
+            not st.session_state.get("tg_add_confirm") == nm.strip():
+        st.session_state["tg_add_confirm"] = nm.strip()
+        st.warning(f"{nm.strip()} is a library liquid: saving replaces its published values with this "
+                   "estimate in all your rankings. Press the button again to do so, or choose another name.")
+        return
     try:
         old = validate_user_table(path) if path.exists() else None
         table, replaced = with_user_rows(old, rows)
         save_user_liquids(table, path, unchanged_since=stamp)
-    except (ValueError, KeyError) as err:
+    except (ValueError, KeyError, OSError) as err:
         common.show_error(f"Not added (your saved liquids are unchanged; see *My liquids*): {err}")
         return
     for k in ("mine_table", "mine_stamp", "mine_editor"):   # My liquids reads the file again
@@ -148,7 +158,8 @@ with tabs[2]:
             st.caption("; ".join(bits))
         if "in_domain" in est.columns and not bool(e["in_domain"]):
             st.warning("This structure is outside the estimator's domain: treat the numbers as rough.")
-        st.caption(str(e.get("message", "")).rstrip(".") + ". Estimates are not measurements: confirm with a test.")
+        st.caption(common.md_escape(str(e.get("message", "")).rstrip("."))
+                   + ". Estimates are not measurements: confirm with a test.")
         estimated = e.get("source") == "estimated"
         label = "Use this estimate as the target" if estimated else "Use these published values as the target"
         if st.button(label, key="tg_use_est", type="primary"):
@@ -158,11 +169,7 @@ with tabs[2]:
                     "delta_p": float(e["delta_p"]), "delta_h": float(e["delta_h"]), "radius": r0v or None,
                     "source": f"{e.get('source', 'estimated')} from SMILES {e['smiles']}"}
             if estimated:
-                spec["estimated"] = True
-                spec["in_domain"] = bool(e.get("in_domain", False))
-                spec["interval"] = {c: (float(e[f"{c}_low"]), float(e[f"{c}_high"]))
-                                    for c in ("delta_d", "delta_p", "delta_h")
-                                    if pd.notna(e.get(f"{c}_low")) and pd.notna(e.get(f"{c}_high"))}
+                spec.update(common.estimate_fields(dict(e, origin="estimated")))
             st.session_state.pop("lw_est", None)
             common.set_target_and_rerun(spec, f"{name} is now the target"
                                         + (" (estimated from its structure: see the sidebar)." if estimated else "."))
