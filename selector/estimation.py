@@ -734,10 +734,26 @@ def _key_of(mol) -> str:
         return ""
 
 
+def _charge_of(mol) -> int:
+    return sum(a.GetFormalCharge() for a in mol.GetAtoms())
+
+
+def _block_key(key: str, mol) -> str:
+    """Stereo-free InChIKey key: the first block (connectivity) with the final protonation
+    character and the formal charge, so that an ion (acetate, methylammonium) never matches its
+    neutral parent (the first block ignores protonation); "" without a key."""
+    if not key:
+        return ""
+    parts = key.split("-")
+    prot = parts[-1] if len(parts) == 3 else ""
+    charge = _charge_of(mol) if mol is not None else 0
+    return f"{parts[0]}-{prot}-{charge:+d}"
+
+
 class _RefIndex:
     """Look-up of a reference table (the library, the published training table) by canonical
     SMILES and InChIKey (exact), and by non-isomeric SMILES and the InChIKey's first block
-    (connectivity, stereo-free)."""
+    with its protonation character and the formal charge (connectivity, stereo-free)."""
 
     def __init__(self, smiles, keys=None, mols=None):
         from rdkit import Chem
@@ -755,7 +771,9 @@ class _RefIndex:
             k = str(k) if isinstance(k, str) else ""
             if k:
                 self.by_key.setdefault(k, i)
-                self.by_block.setdefault(k.split("-")[0], i)
+                bk = _block_key(k, m)
+                if bk:
+                    self.by_block.setdefault(bk, i)
 
     def find(self, mol, can, key):
         """``(position, how)``: how is "exact" or "stereo-free"; ``(None, "")`` if absent."""
@@ -766,7 +784,7 @@ class _RefIndex:
             return pos, "exact"
         pos = self.flat.get(_flat_smiles(mol))
         if pos is None and key:
-            pos = self.by_block.get(key.split("-")[0])
+            pos = self.by_block.get(_block_key(key, mol))
         return (pos, "stereo-free") if pos is not None else (None, "")
 
 
@@ -873,11 +891,13 @@ def estimate(smiles, library=None, names=None, progress=False, domain_threshold=
 
     Matching (library first, then the published table) is by canonical SMILES or InChIKey; when
     neither matches exactly, a stereo-free match (non-isomeric SMILES, or the InChIKey's first
-    block) answers, and ``message`` names the compound matched. Isotope labels are removed before
-    matching and estimating: an isotopologue (CDCl3, CD3OD) is answered as its parent, whose HSP
-    and molar volume are close to its own (common practice); ``message`` says so. A molecule found
-    in the library is answered from it even where the model would refuse it (water, carbon
-    disulfide...). In a batch, a row with the same molecule (same canonical SMILES after removing
+    block with the same protonation character and formal charge, so an ion never matches its
+    neutral parent) answers, and ``message`` names the compound matched. Isotope labels are
+    removed before matching and estimating: an isotopologue (CDCl3, CD3OD) is answered as its
+    parent, whose HSP and molar volume are close to its own (common practice); ``message`` says
+    so. A molecule found exactly in the library is answered from it even where the model would
+    refuse it (water, carbon disulfide...); a refused molecule (ion, salt, metal, polymer unit...)
+    is never answered by a stereo-free or published-table match. In a batch, a row with the same molecule (same canonical SMILES after removing
     isotopes) as an earlier row gets ``duplicate_of`` = that row's number (rows numbered from 1,
     the first SMILES) and a note in ``message``. See the module docstring for the methods.
     Estimates are not measurements.
@@ -916,6 +936,10 @@ def estimate(smiles, library=None, names=None, progress=False, domain_threshold=
     isotopic = [strip_isotopes(m)[1] for m in raw]
     parsed = [m if m is not None else strip_isotopes(r)[0] for m, r in zip(mols, raw)]
     matches = _match_references(parsed, lib)
+    # a molecule the model refuses (an ion, a salt, a metal, a polymer unit...) is answered only
+    # by an exact library match, never by a stereo-free or published-table one
+    matches = [mt if not msgs[i] or (mt[0] == "library" and mt[2] == "exact") else ("", None, "")
+               for i, mt in enumerate(matches)]
     if single and msgs[0] and matches[0][0] != "library":
         raise SelectorError(f"cannot estimate {items[0]!r}: {msgs[0]}")
 

@@ -521,3 +521,43 @@ def test_guess_prints_intervals_to_the_precision_of_the_values(tmp_path, capsys)
     assert re.fullmatch(r"\d+\.\d", shown.loc[0, "molar_volume_low"])
     assert re.fullmatch(r"\d+\.\d\d", shown.loc[0, "delta_d_high"])
     assert shown.loc[1, "delta_d_low"] == "-"          # ethanol: library value, no interval
+
+
+def test_ions_and_salts_are_never_matched_to_their_neutral_parent():
+    from rdkit import Chem
+
+    # RDKit's InChIKey: the first block of acetate equals acetic acid's (protonation is in the
+    # last character, -M against -N), which is why a first-block match alone let ions through
+    keys = [E._key_of(Chem.MolFromSmiles(s)) for s in ("CC(=O)[O-]", "CC(=O)O")]
+    assert keys[0].split("-")[0] == keys[1].split("-")[0] and keys[0][-1] == "M" and keys[1][-1] == "N"
+    # ions and salts are refused with check_molecule's reasons, not answered as the neutral acid/amine
+    with pytest.raises(SelectorError, match=r"net charge -1: ions are not supported"):
+        E.estimate("CC(=O)[O-]")
+    with pytest.raises(SelectorError, match=r"net charge \+1: ions are not supported"):
+        E.estimate("C[NH3+]")              # methylamine is in the published table
+    with pytest.raises(SelectorError, match="several disconnected parts"):
+        E.estimate("CC(=O)[O-].[Na+]")
+    res = E.estimate(["CC(=O)[O-]", "C[NH3+]", "CC(=O)[O-].[Na+]", "C[C@H](O)CO", "O"])
+    assert list(res["source"]) == ["", "", "", "library", "library"]
+    assert res["delta_d"].iloc[:3].isna().all() and res["matched_name"].iloc[:3].eq("").all()
+    assert res.loc[0, "message"].startswith("net charge -1") and res.loc[1, "message"].startswith("net charge +1")
+    # stereo-free matching still works for neutral molecules, and a molecule the model refuses
+    # is still answered by an exact library match (water: parameters/liquids.csv)
+    assert list(res["matched_name"].iloc[3:]) == ["1,2-propanediol", "water"]
+
+
+def test_a_refused_ion_does_not_sink_a_batch(tmp_path, capsys):
+    import io
+
+    from selector.cli import main
+
+    batch = tmp_path / "batch.csv"
+    batch.write_text("smiles\nC[NH3+]\nCCO\n", encoding="utf-8")
+    capsys.readouterr()
+    assert main(["guess", str(batch), "--format", "csv"]) == 0
+    cap = capsys.readouterr()
+    out = pd.read_csv(io.StringIO(cap.out))
+    assert out.loc[0, "smiles"] == "C[NH3+]" and out.loc[0, "message"].startswith("net charge +1")
+    # ethanol's library values (parameters/liquids.csv, from chemicals: ALSHERI_HANSEN 15.8, 8.8, 19.4)
+    assert out.loc[1, "source"] == "library" and out.loc[1, ["delta_d", "delta_p", "delta_h"]].tolist() == [15.8, 8.8, 19.4]
+    assert "1 of 2 rows could not be estimated" in cap.err
