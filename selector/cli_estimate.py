@@ -128,8 +128,8 @@ def _save_mine(res, path) -> int:
     import sys
 
     from .estimation import saveable_rows, with_user_rows
-    from .io import to_csv_text, write_atomic
-    from .library import _as_frame, validate_user_table
+    from .io import guard_cells
+    from .library import _as_frame, file_fingerprint, save_user_liquids
 
     good, skipped, n_lib, n_dup = saveable_rows(res)
     if good is None:
@@ -140,9 +140,12 @@ def _save_mine(res, path) -> int:
         print(f"nothing saved to {path}: {_plural(len(skipped), 'row')} cannot be user liquids:\n  "
               + "\n  ".join(skipped), file=sys.stderr)
         return 1
+    # fingerprint before reading: a file another program (the app) wrote meanwhile is not
+    # overwritten; save_user_liquids validates (a table the other commands could not read is
+    # refused) and writes atomically
+    fp = file_fingerprint(path)
     table, replaced = with_user_rows(_as_frame(path) if path.exists() else None, good)
-    validate_user_table(table)  # refuse to write a table the other commands could not read
-    write_atomic(path, to_csv_text(table), make_parents=False)
+    save_user_liquids(guard_cells(table), path, unchanged_since=fp)
     kinds = good["origin"].value_counts()
     detail = ", ".join(f"{n} {k}" for k, n in kinds.items())
     msg = f"saved {_plural(len(good), 'row')} to {path} ({detail})"

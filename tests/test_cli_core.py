@@ -173,7 +173,10 @@ def test_estimated_liquids_stay_marked_estimated(estimated_mine, capsys):
     assert "gvl: HSP and molar volume estimated from structure" in out
     assert "benzamide: HSP from the published table" in out
     rc, out, _ = run(["rank", "gvl", "--mine", mine, "--radius", "6", "--top", "3"], capsys)
-    assert "Target gvl: dD 18.3" in out and "(estimated from structure; 90 % intervals dD" in out
+    # the target line shows the values `guess` saved: those of selector.estimate for GVL's SMILES
+    est = selector.estimate("CC1CCC(=O)O1").iloc[0]
+    assert (f"Target gvl: dD {est['delta_d']:.1f}, dP {est['delta_p']:.1f}, dH {est['delta_h']:.1f} MPa^0.5"
+            in out) and "(estimated from structure; 90 % intervals dD" in out
     rc, out, _ = run(["blend", "gvl", "--mine", mine, "--radius", "6", "--top", "3", "--format", "json"], capsys)
     assert rc == 0 and "estimated" in json.loads(out)[0]
     rc, out, _ = run(["blend", "18,10,8", "--mine", mine, "--only", "gvl,methyl levulinate,toluene,ethanol",
@@ -194,6 +197,33 @@ def test_sphere_tests_on_estimated_liquids_say_so(estimated_mine, tmp_path, caps
                       "--part", "tests"], capsys)
     t = pd.read_csv(io.StringIO(out)).set_index("label")
     assert t.loc["gvl", "kind"] == "estimated" and t.loc["toluene", "kind"] == "library"
+
+
+def test_save_mine_refuses_a_file_changed_meanwhile(tmp_path, monkeypatch, capsys):
+    # another program (the app) saves the user file between guess reading it and writing it:
+    # nothing is written, the other program's save is kept
+    import selector.estimation as E
+
+    mine = tmp_path / "mine.csv"
+    mine.write_text("name,delta_d,delta_p,delta_h\nkeep me,16,5,5\n", encoding="utf-8")
+    theirs = "name,delta_d,delta_p,delta_h\nkeep me,16,5,5\ntheir row,17,6,6\n"
+    real = E.with_user_rows
+
+    def concurrent_save(old, rows):
+        out = real(old, rows)
+        mine.write_text(theirs, encoding="utf-8")
+        return out
+
+    monkeypatch.setattr(E, "with_user_rows", concurrent_save)
+    # benzamide: in the published table (chemicals, ALSHERI_HANSEN), so a saveable row
+    rc, _, err = run(["guess", "c1ccccc1C(=O)N", "--save-mine", str(mine)], capsys)
+    assert rc == 2 and "the file changed since you opened it" in err and "nothing was written" in err
+    assert mine.read_text(encoding="utf-8") == theirs
+    # without the concurrent save the row is added as before
+    monkeypatch.setattr(E, "with_user_rows", real)
+    rc, _, err = run(["guess", "c1ccccc1C(=O)N", "--save-mine", str(mine)], capsys)
+    assert rc == 0 and f"saved 1 row to {mine} (1 published)" in err
+    assert list(pd.read_csv(mine)["name"]) == ["keep me", "their row", "benzamide"]
 
 
 @pytest.mark.parametrize("args", [["mix", "CC1CCC(=O)O1", "hexane"], ["mix-grid", "CC1CCC(=O)O1,hexane"],
