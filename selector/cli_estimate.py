@@ -3,14 +3,17 @@ from __future__ import annotations
 
 import argparse
 
+from .cli_core import INTERVAL_FIELDS
+
 GUESS_COLUMNS = ["name", "smiles", "source", "hsp_source", "delta_d", "delta_d_low", "delta_d_high",
                  "delta_p", "delta_p_low", "delta_p_high", "delta_h", "delta_h_low", "delta_h_high",
                  "molar_volume", "molar_volume_low", "molar_volume_high", "in_domain", "similarity",
                  "nearest", "duplicate_of", "message"]
 SHORT_COLUMNS = ["name", "smiles", "source", "delta_d", "delta_p", "delta_h", "molar_volume",
                  "in_domain", "message"]
-#: digits of the values and their intervals in the table format (HSP 0.01 MPa^0.5, volume 0.1 cm3/mol)
-DIGITS = {"delta_d": 2, "delta_p": 2, "delta_h": 2, "molar_volume": 1}
+#: digits of the values and their intervals in the table format (HSP 0.01 MPa^0.5, volume 0.1 cm3/mol;
+#: the same table serves `show`)
+DIGITS = INTERVAL_FIELDS
 
 NOTE = ("Source: 'estimated' = estimated from structure, with 90 % prediction intervals (out-of-fold "
         "calibrated); 'library' = the library's published values; 'published' = HSP from the published "
