@@ -151,9 +151,13 @@ def drying_path(components, fractions, *, temperature: float = 25.0, target=None
         raise SelectorError("points must be a whole number between 2 and 100000")
     P = vapour_pressure_kpa(rows, t_c)
     v = rows["molar_volume"].to_numpy(float)
-    bad = [n for n, p, vv in zip(names, P, v) if not (np.isfinite(p) and p > 0 and np.isfinite(vv) and vv > 0)]
+    no_p = ~(np.isfinite(P) & (P > 0))
+    no_v = ~(np.isfinite(v) & (v > 0))
+    bad = [f"{n} has no {' and no '.join(w for w, m in (('vapour pressure', a), ('molar volume', b)) if m)}"
+           for n, a, b in zip(names, no_p, no_v) if a or b]
     if bad:
-        raise SelectorError("no vapour pressure or molar volume at this temperature for: " + ", ".join(bad))
+        raise SelectorError(f"cannot follow the drying at {t_c:g} C: " + "; ".join(bad)
+                            + " (a liquid of your own needs vapour_pressure_kpa, the vapour pressure at 25 C)")
     from .ranking import corrected_hsp
 
     h = corrected_hsp(rows, t_c)

@@ -158,3 +158,17 @@ def test_unifac_option():
     u = drying_path(["ethanol", "water"], [0.9, 0.1], activity="unifac", max_evaporated=0.3)
     r = drying_path(["ethanol", "water"], [0.9, 0.1], activity="raoult", max_evaporated=0.3)
     assert u["phi_water"].iloc[-1] < r["phi_water"].iloc[-1]
+
+
+def test_missing_vapour_pressure_is_named_per_liquid():
+    # a liquid of one's own without a vapour pressure cannot evaporate in the model: the message
+    # names that liquid and what it lacks (its molar volume is known, so only the vapour pressure)
+    import pandas as pd
+
+    lib = selector.load_library(pd.DataFrame({"name": ["house solvent W"], "delta_d": [17.0], "delta_p": [4.0],
+                                              "delta_h": [5.0], "molar_volume": [100.0]}))
+    with pytest.raises(selector.SelectorError) as e:
+        selector.drying_path(["house solvent W", "toluene"], [0.5, 0.5], library=lib)
+    msg = str(e.value)
+    assert "house solvent W has no vapour pressure" in msg and "molar volume" not in msg.split("(")[0]
+    assert "toluene" not in msg

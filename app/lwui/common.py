@@ -309,12 +309,13 @@ def estimate_note(spec: dict | None = None) -> str:
         return text[:1].upper() + text[1:] if text else ""
     dom = ("inside the estimator's domain" if s.get("in_domain") else
            "OUTSIDE the estimator's domain: a rough guess")
-    return text[:1].upper() + text[1:] + f" ({dom})."
+    return (text[:1].upper() + text[1:]).replace("MPa^0.5", "MPa½") + f" ({dom})."
 
 
 def target_line() -> None:
     t = target()
-    st.markdown(f"**Target:** {md_escape(t.describe())}  \n<small>source: {md_escape(t.source)}</small>",
+    st.markdown(f"**Target:** {md_escape(t.describe().replace('MPa^0.5', 'MPa½'))}  \n"
+                f"<small>source: {md_escape(t.source.replace('MPa^0.5', 'MPa½'))}</small>",
                 unsafe_allow_html=True)
     note = estimate_note()
     if note:
@@ -430,7 +431,15 @@ def table(df: pd.DataFrame, **kw):
     metadata, and a NaN there (e.g. a drying path that never leaves the sphere) breaks the table."""
     d = df.copy()
     d.attrs = {}
-    return st.dataframe(d, **kw)
+    from selector.cautions import flash_point_text
+
+    for c in ("flash_point_c", "lowest_flash_point_c"):
+        if c in d.columns and d[c].dtype.kind in "fiu":
+            # as text: an empty cell would mean both "does not burn" and "no data"
+            d[c] = flash_point_text(d, c, fmt="{:.0f}")
+    empty = [c for c in ("estimated", "hazard_notes") if c in d.columns
+             and d[c].fillna("").astype(str).str.strip().eq("").all()]
+    return st.dataframe(d.drop(columns=empty), **kw)
 
 
 def cautions(liquids: pd.DataFrame, *, title: str = "Safety notes for the liquids shown") -> pd.DataFrame:
@@ -474,7 +483,7 @@ def readable_top(df: pd.DataFrame, columns: list[str], n: int = 5, key: str = "t
             top[c] = flash_point_text(df.head(n), column=c, fmt="{:.0f}").to_numpy()
         elif pd.api.types.is_float_dtype(top[c]):
             fmt = "{:.0f}" if c.endswith("_c") else "{:.2f}"
-            top[c] = top[c].map(lambda v, f=fmt: "" if not np.isfinite(v) else f.format(v))
+            top[c] = top[c].map(lambda v, f=fmt: "no data" if not np.isfinite(v) else f.format(v))
     top = top.rename(columns=labels)
     st.table(top.set_index(top.columns[0]))
 

@@ -15,8 +15,13 @@ def show_drying(path: pd.DataFrame, components) -> None:
     y2 = next((c for c in ("red", "ra") if c in path.columns and path[c].notna().any()), None)
     fig = plots.drying_plot(path.rename(columns={c: c[4:] for c in series}), x, [c[4:] for c in series], y2)
     if y2 == "red":
-        fig.add_hline(y=1.0, line=dict(color=plots.VERMILLION, dash="dot"), secondary_y=True,
-                      annotation_text="RED = 1 (sphere edge)")
+        import plotly.graph_objects as go
+
+        # a trace on the RED axis (a shape's label would sit on the left axis' scale)
+        xs = path[x].to_numpy(float)
+        fig.add_trace(go.Scatter(x=[xs.min(), xs.max()], y=[1.0, 1.0], mode="lines", name="RED = 1 (sphere edge)",
+                                 line=dict(color=plots.VERMILLION, dash="dot"), hoverinfo="skip"),
+                      secondary_y=True)
     st.plotly_chart(fig, width="stretch", key="drying_plot")
     a = path.attrs or {}
     tail = a.get("tail_solvent")

@@ -11,8 +11,8 @@ common.demo_banner()
 common.target_line()
 st.caption("A blend's HSP are the volume-fraction-weighted mean of its components, so two liquids that "
            "each miss the target can together land inside it. Blends are ordered by Ra in steps of "
-           "0.5 MPa½ (closer than that counts as a tie); within a step, blends with a liquid that has no "
-           "hazard data come last, then fewer liquids, then a better hazard class, then Ra; no liquid "
+           "0.5 MPa½ (closer than that counts as a tie); within a step, blends with a library liquid that has "
+           "no hazard data come last (a liquid of your own without data counts as the worst class), then fewer liquids, then a better hazard class, then Ra; no liquid "
            "appears in more than three blends.")
 
 mod = common.capability("blends")

@@ -158,8 +158,9 @@ with tabs[2]:
             st.caption("; ".join(bits))
         if "in_domain" in est.columns and not bool(e["in_domain"]):
             st.warning("This structure is outside the estimator's domain: treat the numbers as rough.")
-        st.caption(common.md_escape(str(e.get("message", "")).rstrip("."))
-                   + ". Estimates are not measurements: confirm with a test.")
+        st.caption(common.md_escape(str(e.get("message", "")).rstrip(".")) + "."
+                   + (" Estimates are not measurements: confirm with a test." if e.get("source") == "estimated"
+                      else f" You typed {common.md_escape(e['smiles'])}."))
         estimated = e.get("source") == "estimated"
         label = "Use this estimate as the target" if estimated else "Use these published values as the target"
         if st.button(label, key="tg_use_est", type="primary"):
