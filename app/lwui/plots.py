@@ -116,7 +116,8 @@ def projections_2d(groups, spheres=()) -> go.Figure:
 
 def teas_triangle(groups, points=()) -> go.Figure:
     """Teas plot (Teas 1968): fd, fp, fh x 100 from :func:`selector.hansen.teas_fractions`.
-    ``points``: list of (label, (dD, dP, dH)) marked with a black diamond."""
+    ``points``: list of (label, (dD, dP, dH)): the first a black diamond, the next a purple star,
+    then a sky-blue square (shape and colour both differ)."""
     fig = go.Figure()
     for label, df, style, size in groups:
         if df is None or len(df) == 0:
@@ -126,14 +127,17 @@ def teas_triangle(groups, points=()) -> go.Figure:
                                         text=list(df["name"]), hoverinfo="text",
                                         marker=dict(size=max(size, 4) + 2, color=style["color"],
                                                     symbol=style["symbol"], opacity=style.get("opacity", 0.9))))
-    for label, h in points:
+    marks = [(BLACK, "diamond"), (PURPLE, "star"), (SKY, "square")]
+    for i, (label, h) in enumerate(points):
         f = 100 * teas_fractions(np.asarray(h, float))
+        col, sym = marks[i % len(marks)]
         fig.add_trace(go.Scatterternary(a=[f[0]], b=[f[1]], c=[f[2]], mode="markers", name=label,
                                         text=[label], hoverinfo="text",
-                                        marker=dict(size=12, color=BLACK, symbol="diamond")))
-    fig.update_layout(ternary=dict(sum=100, aaxis=dict(title="fd, dispersion share (%)", min=0, dtick=20),
-                                   baxis=dict(title="fp, polar share (%)", min=0, dtick=20),
-                                   caxis=dict(title="fh, hydrogen-bond share (%)", min=0, dtick=20)),
+                                        marker=dict(size=12, color=col, symbol=sym)))
+    # ticks 20-80 only: the 0 and 100 labels would clash at the corners
+    fig.update_layout(ternary=dict(sum=100, aaxis=dict(title="fd, dispersion share (%)", min=0, tickvals=[20, 40, 60, 80]),
+                                   baxis=dict(title="fp, polar share (%)", min=0, tickvals=[20, 40, 60, 80]),
+                                   caxis=dict(title="fh, hydrogen-bond share (%)", min=0, tickvals=[20, 40, 60, 80])),
                       title="Teas triangle (fractional parameters)")
     return _layout(fig, 560, legend_below=True)
 
