@@ -306,6 +306,22 @@ def flash_point_text(frame: pd.DataFrame, column: str = "flash_point_c", fmt: st
     return pd.Series(out, index=frame.index, name=column, dtype=object)
 
 
+
+#: flash-point columns that tables show as text (:func:`with_flash_texts`)
+FLASH_COLUMNS = ("flash_point_c", "lowest_flash_point_c")
+
+
+def with_flash_texts(df: pd.DataFrame, fmt: str = "{:.1f}") -> pd.DataFrame:
+    """``df`` with its numeric :data:`FLASH_COLUMNS` as :func:`flash_point_text` (the value,
+    "not flammable" or "no data"), for display in any front end; ``df`` itself if it has none."""
+    cols = [c for c in FLASH_COLUMNS if c in df.columns and df[c].dtype.kind in "fiu"]
+    if not cols:
+        return df
+    out = df.copy()
+    for c in cols:
+        out[c] = flash_point_text(df, c, fmt=fmt)
+    return out
+
 # ---------------------------------------------------------------- pairs that react with each other
 
 #: Groups for the pair screen: (class, RDKit SMARTS). Our own patterns.

@@ -258,29 +258,19 @@ def _formatters(df) -> dict:
     return out
 
 
-#: flash-point columns shown as text in tables (:func:`flash_texts`)
-FLASH_COLUMNS = ("flash_point_c", "lowest_flash_point_c")
-
-
 def flash_texts(df):
-    """``df`` with its :data:`FLASH_COLUMNS` as text for a table: the value (0.1 C), "not
+    """``df`` with its flash-point columns as text for a table: the value (0.1 C), "not
     flammable" for liquids (or blends) known not to burn, "no data" for a missing value
-    (:func:`selector.cautions.flash_point_text`; a blank once meant both). Other formats keep
+    (:func:`selector.cautions.with_flash_texts`; a blank once meant both). Other formats keep
     the numbers."""
-    from .cautions import flash_point_text
+    from .cautions import with_flash_texts
 
-    cols = [c for c in FLASH_COLUMNS if c in df.columns and df[c].dtype.kind in "fiu"]
-    if not cols:
-        return df
-    out = df.copy()
-    for c in cols:
-        out[c] = flash_point_text(df, c)
-    return out
+    return with_flash_texts(df)
 
 
 #: unit notes for the columns a table may carry
+_HSP_UNITS = ((("delta_d", "delta_p", "delta_h"), "dD/dP/dH"), (("ra",), "Ra"), (("radius",), "R0"))
 _UNITS = (
-    (("delta_d", "delta_p", "delta_h", "ra", "radius"), "dD/dP/dH, Ra, R0 in MPa^0.5"),
     (("boiling_point_c", "flash_point_c", "bp_low_c", "bp_high_c", "lowest_flash_point_c"), "temperatures in C"),
     (("molar_volume",), "molar volume in cm3/mol"),
     (("vapour_pressure_kpa",), "vapour pressure in kPa at 25 C"),
@@ -293,12 +283,8 @@ _UNITS = (
 def units_line(columns) -> str:
     """One "Units: ..." line for the columns present, or ""."""
     cols = set(columns)
-    parts = [text for keys, text in _UNITS if cols & set(keys)]
-    if parts and parts[0] == _UNITS[0][1]:
-        # name only the Hansen quantities the table shows
-        hsp = [lab for keys, lab in ((("delta_d", "delta_p", "delta_h"), "dD/dP/dH"), (("ra",), "Ra"),
-                                     (("radius",), "R0")) if cols & set(keys)]
-        parts[0] = ", ".join(hsp) + " in MPa^0.5"
+    hsp = [lab for keys, lab in _HSP_UNITS if cols & set(keys)]   # only the Hansen quantities shown
+    parts = ([", ".join(hsp) + " in MPa^0.5"] if hsp else []) + [text for keys, text in _UNITS if cols & set(keys)]
     return ("Units: " + "; ".join(parts) + "; - = no data") if parts else ""
 
 

@@ -81,26 +81,6 @@ def _sphere_table(fit):
     return pd.DataFrame(rows)
 
 
-def _mark_estimated(fit, lib) -> None:
-    """Tests on a liquid whose HSP are estimated from structure (your file, ``likewise guess``)
-    get ``kind`` = "estimated" instead of "library" (:func:`selector.library.hsp_estimated`)."""
-    import numpy as np
-
-    from .library import hsp_estimated
-
-    est = hsp_estimated(lib)
-    if not est.any():
-        return
-    for t in (fit.tests, fit.misfits):
-        if t is None or "kind" not in t.columns or "liquid_index" not in t.columns:
-            continue
-        idx = t["liquid_index"].to_numpy(int)
-        hit = (t["kind"].astype(str).to_numpy() == "library") & (idx >= 0)
-        hit[hit] = est[idx[hit]]
-        if hit.any():
-            t["kind"] = np.where(hit, "estimated", t["kind"].astype(object))
-
-
 def cmd_sphere(a) -> int:
     import pandas as pd
 
@@ -111,7 +91,6 @@ def cmd_sphere(a) -> int:
     fit = fit_sphere(a.tests, seed=a.seed, bootstrap=a.bootstrap, outcome=a.outcome,
                      threshold=a.pass_mark, scale=_scale(a.scale), temperature=a.at,
                      two_spheres=a.two, library=lib, name=Path(a.tests).stem)
-    _mark_estimated(fit, lib)
     shelf = [x.strip() for x in a.shelf.split(",") if x.strip()] if a.shelf else None
     nxt = (fit.suggest_tests(a.next, shelf=shelf, temperature=a.at, **filters_from_args(a))
            if a.next > 0 else pd.DataFrame())

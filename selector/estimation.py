@@ -1006,7 +1006,7 @@ def estimate(smiles, library=None, names=None, progress=False, domain_threshold=
 
     vol_rows = pub_rows + est_rows
     if vol_rows:
-        vmodel = default_volume_model() if not est_rows else default_bundle(verbose=True).volume
+        vmodel = default_volume_model()   # the bundle's own volume model; no HSP training for it
         vmols = [mols[i] for i in vol_rows]
         vol, unseen = vmodel.predict_with_unseen(vmols)
         lf = vmodel.log_factor_ if vmodel.log_factor_ is not None else np.nan

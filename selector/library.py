@@ -518,10 +518,9 @@ def merge_user_liquids(library: pd.DataFrame, table) -> pd.DataFrame:
     return out
 
 
-#: ``origin`` of a row: "library" (bundled), "user" (the user's own values), "estimated" (HSP
-#: estimated from structure by :mod:`selector.estimation`), "published" (HSP of the published
-#: training table of the estimator, molar volume estimated).
-ORIGINS = ("library", "user", "estimated", "published")
+# ``origin`` of a row: "library" (bundled), "user" (the user's own values), "estimated" (HSP
+# estimated from structure by :mod:`selector.estimation`), "published" (HSP of the published
+# training table of the estimator, molar volume estimated).
 #: ``hsp_source`` that marks an estimate from structure (:data:`selector.estimation.ESTIMATED_SOURCE`).
 ESTIMATED_PREFIX = "estimated from structure"
 

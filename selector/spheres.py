@@ -234,7 +234,8 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
     Consistent duplicates (same liquid and temperature, same verdict) are merged into one test
     (mean grade and weight); duplicates that disagree are an error. Returns a DataFrame with
     ``label, delta_d, delta_p, delta_h, good, grade, weight, temperature, kind, liquid_index``
-    (library row or -1), with ``attrs`` ``graded, threshold, scale, notes``. Raises
+    (``kind``: "library", "estimated" for a library row whose HSP are estimated from structure,
+    "given" or "blend"; ``liquid_index``: library row or -1), with ``attrs`` ``graded, threshold, scale, notes``. Raises
     :class:`~selector.errors.InputTableError` listing every problem.
     """
     lib = load_library() if library is None else library
@@ -291,6 +292,9 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
     rows = []
     alpha_all = lib["expansion_coeff"].to_numpy(float) if "expansion_coeff" in lib else np.full(len(lib), np.nan)
     lib_hsp = lib[HSP].to_numpy(float)
+    from .library import hsp_estimated
+
+    lib_estimated = hsp_estimated(lib)   # a liquid of your own whose HSP are estimated from structure
     no_alpha = []
     for i, r in enumerate(df.to_dict(orient="records")):
         where = f"row {i + 2}"
@@ -355,7 +359,7 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
                             hsp = hc
                         else:
                             no_alpha.append(label)
-                    kind, lib_index = "library", int(p)
+                    kind, lib_index = ("estimated" if lib_estimated[p] else "library"), int(p)
                     key = ("library", int(p), round(t, 3))
                 if not np.all(np.isfinite(hsp)):
                     problems.append(f"{where}: the library has no HSP for this liquid")

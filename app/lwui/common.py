@@ -431,12 +431,9 @@ def table(df: pd.DataFrame, **kw):
     metadata, and a NaN there (e.g. a drying path that never leaves the sphere) breaks the table."""
     d = df.copy()
     d.attrs = {}
-    from selector.cautions import flash_point_text
+    from selector.cautions import with_flash_texts
 
-    for c in ("flash_point_c", "lowest_flash_point_c"):
-        if c in d.columns and d[c].dtype.kind in "fiu":
-            # as text: an empty cell would mean both "does not burn" and "no data"
-            d[c] = flash_point_text(d, c, fmt="{:.0f}")
+    d = with_flash_texts(d, fmt="{:.0f}")   # an empty cell would mean both "does not burn" and "no data"
     empty = [c for c in ("estimated", "hazard_notes") if c in d.columns
              and d[c].fillna("").astype(str).str.strip().eq("").all()]
     return st.dataframe(d.drop(columns=empty), **kw)
@@ -461,13 +458,16 @@ def cautions(liquids: pd.DataFrame, *, title: str = "Safety notes for the liquid
 
 def readable_top(df: pd.DataFrame, columns: list[str], n: int = 5, key: str = "top") -> None:
     """The first rows as a plain HTML table (readable by people, printers and browser tests)."""
+    from selector.cautions import with_flash_texts
+
     cols = list(dict.fromkeys(c for c in columns if c and c in df.columns))
-    top = df.head(n)[cols].copy()
+    head = df.head(n)
+    # flash points as text: a blank would mean both "does not burn" and "no data"
+    top = with_flash_texts(head, fmt="{:.0f}")[cols].copy()
     if "name" in cols:
         from selector.library import hsp_estimated
 
         # an estimate stays marked as one wherever it is listed
-        head = df.head(n)
         est = hsp_estimated(head)
         out = (head["in_domain"].map(lambda v: str(v).strip().lower() in ("false", "0")).to_numpy(bool)
                if "in_domain" in head.columns else np.zeros(len(head), bool))   # CSV text or bools
@@ -476,12 +476,7 @@ def readable_top(df: pd.DataFrame, columns: list[str], n: int = 5, key: str = "t
     labels = {c: (COLUMN_CONFIG[c]["label"] if c in COLUMN_CONFIG and isinstance(COLUMN_CONFIG[c], dict)
                   and COLUMN_CONFIG[c].get("label") else c) for c in cols}
     for c in cols:
-        if c in ("flash_point_c", "lowest_flash_point_c"):
-            from selector.cautions import flash_point_text
-
-            # a blank would mean both "does not burn" and "no data"
-            top[c] = flash_point_text(df.head(n), column=c, fmt="{:.0f}").to_numpy()
-        elif pd.api.types.is_float_dtype(top[c]):
+        if pd.api.types.is_float_dtype(top[c]):
             fmt = "{:.0f}" if c.endswith("_c") else "{:.2f}"
             top[c] = top[c].map(lambda v, f=fmt: "no data" if not np.isfinite(v) else f.format(v))
     top = top.rename(columns=labels)
