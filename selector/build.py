@@ -22,8 +22,21 @@ Rule for the kept HSP value
 When more than one source carries a compound, the three components are taken *together* from
 the first source in ``SOURCE_PRIORITY`` (``ALSHERI_HANSEN`` first: the most recent peer-reviewed
 compilation; then ``MANUEL_RUBEN_2022``; then ``WDR_SCHRIER``). Components are never mixed across
-sources. ``hsp_spread`` is the largest difference, over the three components, between any two
-sources; ``sources_disagree`` is true when it exceeds 1 MPa^0.5.
+sources, and a compound's values are never changed by hand. ``hsp_note`` (empty otherwise)
+records two things, both only where the sources disagree by more than 1 MPa^0.5:
+
+* a *reviewed choice*: ``parameters/hsp_choices.csv`` names, for a few compounds, the source
+  whose values match the handbook value (each reason given there, from memory); that source is
+  kept instead of the first one;
+* a *suspected copied row*: a source's three values equal, all three, the published values of
+  another compound of a different molecular formula (isomers may share values honestly), e.g.
+  ALSHERI_HANSEN gives tetrachloroethylene the values of 1,1,2,2-tetrachloroethane
+  (:func:`copied_rows`). Which of the two compounds the values belong to cannot be told from
+  the tables, so this is only noted; a reviewed choice settles it where the handbook value is
+  known.
+
+``hsp_spread`` is the largest difference, over the three components, between any two
+sources; ``sources_disagree`` is true when it exceeds 1 MPa^0.5 (whatever was kept).
 
 Liquid at 25 C means a known melting point below 298.15 K and a known boiling point above it.
 Missing data stay missing (empty in the CSV), never invented.
@@ -51,11 +64,12 @@ T25 = 298.15
 
 PARAMETERS_DIR = Path(__file__).resolve().parent.parent / "parameters"
 LIBRARY_CSV = PARAMETERS_DIR / "liquids.csv"
+HSP_CHOICES_CSV = PARAMETERS_DIR / "hsp_choices.csv"
 
 COLUMNS = [
     "name", "cas", "smiles", "inchikey", "formula", "molar_mass",
     "delta_d", "delta_p", "delta_h", "hsp_source", "hsp_sources_available", "hsp_spread",
-    "sources_disagree",
+    "sources_disagree", "hsp_note",
     "molar_volume", "molar_volume_estimated", "density", "melting_point_c", "boiling_point_c", "flash_point_c",
     "autoignition_c", "vapour_pressure_kpa", "antoine_a", "antoine_b", "antoine_c",
     "antoine_tmin_c", "antoine_tmax_c", "hvap_kj_mol", "expansion_coeff", "viscosity_mpa_s",
@@ -85,20 +99,112 @@ def hsp_tables() -> dict[str, pd.DataFrame]:
     return out
 
 
-def merged_hsp() -> pd.DataFrame:
-    """All compounds with HSP, one row per CAS, with the kept value and the disagreement."""
-    tables = hsp_tables()
+def _identity(cas: str) -> tuple[str | None, str | None]:
+    """(common name, molecular formula) of a CAS number from ``chemicals``; (None, None) if unknown."""
+    import chemicals.identifiers as ci
+
+    try:
+        c = ci.search_chemical(cas)
+    except Exception:  # noqa: BLE001 - CAS numbers chemicals does not know
+        return None, None
+    return getattr(c, "common_name", None), getattr(c, "formula", None)
+
+
+def copied_rows(tables: dict[str, pd.DataFrame], identity=_identity) -> dict[tuple[str, str], str]:
+    """Rows of the published tables that look copied from another compound.
+
+    A row ``(source, cas)`` is suspect when the sources disagree on the compound by more than
+    :data:`DISAGREE_LIMIT` and its three values equal (to 0.1 MPa^0.5) the published values of
+    another CAS number, in any of the tables, whose molecular formula is known and differs from
+    this compound's. Returns ``{(source, cas): other_cas}``. ``identity`` maps a CAS number to
+    ``(name, formula)``.
+    """
+    owners: dict[tuple, set] = {}
+    for key, t in tables.items():
+        for cas, row in zip(t.index, np.round(t.to_numpy(float), 1)):
+            owners.setdefault(tuple(row), set()).add(cas)
+    cas_all = sorted(set().union(*[set(t.index) for t in tables.values()]))
+    out = {}
+    for cas in cas_all:
+        present = [k for k in SOURCE_PRIORITY if k in tables and cas in tables[k].index]
+        if len(present) < 2:
+            continue
+        vals = np.array([tables[k].loc[cas].to_numpy(dtype=float) for k in present])
+        if (vals.max(axis=0) - vals.min(axis=0)).max() <= DISAGREE_LIMIT:
+            continue
+        for key, v in zip(present, vals):
+            others = sorted(owners.get(tuple(np.round(v, 1)), set()) - {cas})
+            if not others:
+                continue
+            mine = identity(cas)[1]
+            for other in others:
+                theirs = identity(other)[1]
+                if mine and theirs and mine != theirs:
+                    out[(key, cas)] = other
+                    break
+    return out
+
+
+def hsp_choices(path: Path = None) -> pd.DataFrame:
+    """The reviewed source choices (``parameters/hsp_choices.csv``), indexed by CAS, validated."""
+    path = HSP_CHOICES_CSV if path is None else Path(path)
+    df = pd.read_csv(path, dtype=str, keep_default_na=False)
+    need = {"cas", "name", "keep_source", "reason"}
+    if not need <= set(df.columns):
+        raise ValueError(f"{path}: needs the columns {sorted(need)}, has {list(df.columns)}")
+    bad = sorted(set(df["keep_source"]) - set(SOURCE_PRIORITY))
+    if bad:
+        raise ValueError(f"{path}: unknown source key(s) {bad}; use one of {list(SOURCE_PRIORITY)}")
+    if df["cas"].duplicated().any():
+        raise ValueError(f"{path}: CAS {sorted(set(df['cas'][df['cas'].duplicated()]))} listed twice")
+    return df.set_index("cas")
+
+
+def _settled_elsewhere(tables, choices, key, cas, other) -> bool:
+    """True when a reviewed choice for ``other`` kept values different from the row ``(key, cas)``
+    that it shares: the shared values then belong to ``cas`` and the copy sits with ``other``."""
+    if other not in choices.index:
+        return False
+    kept = tables[choices.at[other, "keep_source"]]
+    if other not in kept.index:
+        return False
+    return not np.allclose(kept.loc[other].to_numpy(float), tables[key].loc[cas].to_numpy(float), atol=0.05)
+
+
+def merged_hsp(tables: dict[str, pd.DataFrame] | None = None, choices: pd.DataFrame | None = None,
+               identity=_identity) -> pd.DataFrame:
+    """All compounds with HSP, one row per CAS, with the kept value, the disagreement and the
+    ``hsp_note`` on a reviewed choice or a suspected copied row (rule in the module doc)."""
+    tables = hsp_tables() if tables is None else tables
+    choices = hsp_choices() if choices is None else choices
+    copied = copied_rows(tables, identity)
     cas_all = sorted(set().union(*[set(t.index) for t in tables.values()]))
     rows = []
     for cas in cas_all:
-        present = [k for k in SOURCE_PRIORITY if cas in tables[k].index]
+        present = [k for k in SOURCE_PRIORITY if k in tables and cas in tables[k].index]
         vals = np.array([tables[k].loc[cas].to_numpy(dtype=float) for k in present])
         spread = float((vals.max(axis=0) - vals.min(axis=0)).max()) if len(vals) > 1 else 0.0
-        kept = vals[0]
+        pick, notes = 0, []
+        if cas in choices.index:
+            want = choices.at[cas, "keep_source"]
+            if want not in present or spread <= DISAGREE_LIMIT:
+                raise ValueError(f"hsp_choices.csv: {cas} ({choices.at[cas, 'name']}): a choice needs a "
+                                 f"{want} value and sources that disagree; sources: {present}, spread {spread:.1f}")
+            pick = present.index(want)
+            notes.append(f"kept {want} over {present[0]}: {choices.at[cas, 'reason']}")
+        for key in present:
+            if (key, cas) in copied:
+                other = copied[(key, cas)]
+                if _settled_elsewhere(tables, choices, key, cas, other):
+                    continue
+                notes.append(f"the {key} values are also published for {identity(other)[0] or other} "
+                             f"({other}), another compound (copied row suspected)")
+        kept = vals[pick]
         rows.append({
             "cas": cas, "delta_d": kept[0], "delta_p": kept[1], "delta_h": kept[2],
-            "hsp_source": present[0], "hsp_sources_available": "|".join(present),
+            "hsp_source": present[pick], "hsp_sources_available": "|".join(present),
             "hsp_spread": round(spread, 3), "sources_disagree": spread > DISAGREE_LIMIT,
+            "hsp_note": "; ".join(notes),
         })
     return pd.DataFrame(rows).set_index("cas")
 
@@ -599,7 +705,8 @@ def build(cas_subset: list[str] | None = None, processes: int = 2) -> pd.DataFra
             continue
         h = hsp.loc[rec["cas"]]
         rec.update({k: h[k] for k in ("delta_d", "delta_p", "delta_h", "hsp_source",
-                                      "hsp_sources_available", "hsp_spread", "sources_disagree")})
+                                      "hsp_sources_available", "hsp_spread", "sources_disagree",
+                                      "hsp_note")})
         rows.append(rec)
     df = merge_flash_points(apply_names(pd.DataFrame(rows)))
     # Names must be unique for look-up: disambiguate rare clashes with the CAS number.

@@ -10,8 +10,8 @@ RANK_COLUMNS = ["rank", "name", "cas", "delta_d", "delta_p", "delta_h", "ra", "r
                 "score", "molar_volume", "boiling_point_c", "flash_point_c", "hazard_class", "hsp_source",
                 "sources_disagree"]
 SHOW_FIELDS = ["name", "cas", "smiles", "formula", "molar_mass", "delta_d", "delta_p", "delta_h",
-               "hsp_source", "hsp_sources_available", "hsp_spread", "sources_disagree", "molar_volume",
-               "density", "melting_point_c", "boiling_point_c", "flash_point_c", "autoignition_c",
+               "hsp_source", "hsp_sources_available", "hsp_spread", "sources_disagree", "hsp_note",
+               "molar_volume", "density", "melting_point_c", "boiling_point_c", "flash_point_c", "autoignition_c",
                "vapour_pressure_kpa", "hvap_kj_mol", "expansion_coeff", "viscosity_mpa_s",
                "exposure_limit", "exposure_limit_unit", "exposure_limit_source", "short_term_limit",
                "short_term_limit_unit", "synonyms",
@@ -145,18 +145,28 @@ def cmd_rank(a) -> int:
     return 0
 
 
+#: header lines for the liquids of a table whose library row carries a note column
+NOTE_LINES = {
+    "data_note": "Data in doubt (boiling point or vapour pressure; `likewise show NAME` says which): ",
+    "hsp_note": "HSP source chosen or in doubt (`likewise show NAME` says why): ",
+}
+
+
 def data_note_line(rows) -> str:
-    """A header line naming the liquids of ``rows`` whose library data carry a ``data_note``
-    (boiling point or vapour pressure in doubt), or ""."""
-    if "data_note" not in rows:
-        return ""
-    has = rows["data_note"].astype("string").fillna("").str.strip() != ""
-    if not has.any():
-        return ""
-    names = rows.loc[has.to_numpy(), "name"].astype(str).tolist()
-    more = f" and {len(names) - 6} more" if len(names) > 6 else ""
-    return ("\nData in doubt (boiling point or vapour pressure; `likewise show NAME` says which): "
-            + ", ".join(names[:6]) + more)
+    """Header lines naming the liquids of ``rows`` whose library data carry a ``data_note``
+    (boiling point or vapour pressure in doubt) or an ``hsp_note`` (which published HSP source
+    was kept and why), or ""."""
+    out = ""
+    for col, text in NOTE_LINES.items():
+        if col not in rows:
+            continue
+        has = rows[col].astype("string").fillna("").str.strip() != ""
+        if not has.any():
+            continue
+        names = rows.loc[has.to_numpy(), "name"].astype(str).tolist()
+        more = f" and {len(names) - 6} more" if len(names) > 6 else ""
+        out += "\n" + text + ", ".join(names[:6]) + more
+    return out
 
 
 def _with_hazard_class(res, lib):

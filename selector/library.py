@@ -37,7 +37,7 @@ _TEXT_COLUMNS = ["name", "cas", "smiles", "inchikey", "formula", "hsp_source",
                  "hsp_sources_available", "synonyms", "melting_point_source",
                  "boiling_point_source", "volume_method", "vapour_pressure_method", "viscosity_method",
                  "flash_point_source", "exposure_limit_source", "exposure_limit_unit", "origin",
-                 "data_note", "short_term_limit_unit"]
+                 "data_note", "short_term_limit_unit", "hsp_note"]
 
 #: True/false columns that mark a value as estimated rather than measured.
 ESTIMATE_FLAGS = ("molar_volume_estimated", "viscosity_estimated")
@@ -389,7 +389,7 @@ def _check_user_table(table):
 
 #: Columns a user entry never takes from the library entry it replaces (its own HSP and origin).
 _NOT_FILLED = {"name", "delta_d", "delta_p", "delta_h", "hsp_source", "hsp_sources_available", "hsp_spread",
-               "sources_disagree", "origin", "radius", "kind"}
+               "sources_disagree", "hsp_note", "origin", "radius", "kind"}
 
 #: Columns that describe another column's value (its source, method, unit, or values derived from
 #: it): they are taken from the library only together with that value, never on their own, so a

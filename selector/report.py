@@ -41,7 +41,7 @@ COLUMN_LABELS = {
     "delta_p": "dP (MPa^0.5)", "delta_h": "dH (MPa^0.5)", "ra": "Ra (MPa^0.5)", "red": "RED",
     "polarity_match": "Polarity match", "score": "Score", "molar_volume": "V (cm3/mol)",
     "boiling_point_c": "Boiling point (C)", "flash_point_c": "Flash point (C)",
-    "hsp_source": "HSP source", "sources_disagree": "Sources disagree",
+    "hsp_source": "HSP source", "sources_disagree": "Sources disagree", "hsp_note": "HSP note",
     "flammability": "Flammability (GHS)", "exposure": "Exposure limit",
     "hazard_class": "Hazard class", "h_statements": "GHS statements", "components": "Components", "fractions": "Volume fractions",
 }

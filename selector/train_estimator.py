@@ -62,7 +62,7 @@ def refresh_training_data(path: Path = E.TRAINING_CSV) -> pd.DataFrame:
         rows.append({"cas": cas, "name": c.common_name or cas, "smiles": c.smiles,
                      "delta_d": r.delta_d, "delta_p": r.delta_p, "delta_h": r.delta_h,
                      "hsp_source": r.hsp_source, "hsp_sources_available": r.hsp_sources_available,
-                     "hsp_spread": r.hsp_spread})
+                     "hsp_spread": r.hsp_spread, "hsp_note": r.hsp_note})
     df = pd.DataFrame(rows)
     df["name"] = _plain_names(df)
     write_atomic(path, df.to_csv(index=False))

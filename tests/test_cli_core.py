@@ -231,3 +231,13 @@ def test_save_mine_refuses_a_file_changed_meanwhile(tmp_path, monkeypatch, capsy
 def test_unknown_smiles_gets_the_guess_hint(args, capsys):
     rc, _, err = run(args, capsys)
     assert rc == 2 and "likewise guess 'CC1CCC(=O)O1' --save-mine" in err
+
+
+def test_show_names_the_kept_source_and_why(capsys):
+    # tetrachloroethylene: the first-priority table repeats 1,1,2,2-tetrachloroethane's row; the
+    # library keeps the handbook value 18.3 / 5.7 / 0.0 (from memory) and says so
+    rc, out, _ = run(["show", "tetrachloroethylene"], capsys)
+    assert rc == 0
+    assert "kept MANUEL_RUBEN_2022 over ALSHERI_HANSEN" in out and "1,1,2,2-tetrachloroethane (79-34-5)" in out
+    rc, out, _ = run(["rank", "18.3,5.7,0.0", "--top", "3"], capsys)
+    assert rc == 0 and "HSP source chosen or in doubt (`likewise show NAME` says why): tetrachloroethylene" in out

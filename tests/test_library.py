@@ -610,3 +610,103 @@ def test_non_flammable_chlorinated_solvents_have_no_flash_point(lib):
     assert "WIKIDATA lists 45 C" in lib.loc[perc, "flash_point_source"].iloc[0]
     assert caution_table(lib.loc[perc])["flammability"].iloc[0].startswith("not flammable")
     assert filter_mask(lib, min_flash_point_c=60)[perc].all()
+
+
+# ------------------------------------------------ which published source is kept (hsp_note)
+
+# Handbook values (Hansen, Hansen Solubility Parameters: A User's Handbook, 2nd ed., 2007; from
+# memory) of compounds where the first-priority table carries another compound's row or a slip.
+HANDBOOK_HSP = {
+    "tetrachloroethylene": (18.3, 5.7, 0.0),
+    "triethanolamine": (17.3, 7.6, 21.0),
+    "benzonitrile": (18.8, 12.0, 3.3),
+    "formic acid": (14.3, 11.9, 16.6),
+    # diisopropyl ether: the two later tables give it propyl ether's values (isomers), the
+    # first-priority one the handbook value, which must stay
+    "diisopropyl ether": (13.7, 3.9, 2.3),
+    # 1,1,2,2-tetrachloroethane keeps its own values, which the first table lent to
+    # tetrachloroethylene
+    "1,1,2,2-tetrachloroethane": (18.8, 5.1, 5.3),
+}
+
+
+@pytest.mark.parametrize("name,hsp", sorted(HANDBOOK_HSP.items()))
+def test_kept_values_against_handbook(lib, name, hsp):
+    row = find_liquid(name, lib)
+    assert (row["delta_d"], row["delta_p"], row["delta_h"]) == pytest.approx(hsp, abs=1e-9)
+    assert row["sources_disagree"]
+
+
+def test_every_reviewed_choice_is_noted_and_used(lib):
+    ch = build.hsp_choices()
+    assert len(ch) >= 5
+    for cas, r in ch.iterrows():
+        if cas not in set(lib["cas"]):
+            continue                                  # e.g. carbon dioxide: a gas, training table only
+        row = lib.loc[lib["cas"] == cas].iloc[0]
+        assert row["hsp_source"] == r["keep_source"]
+        assert row["hsp_note"].startswith(f"kept {r['keep_source']} over ") and "from memory" in row["hsp_note"]
+    # the training table of the estimator keeps the same values (carbon dioxide: handbook
+    # 15.7 / 6.3 / 5.7, from memory; the first table gives it formic acid's values)
+    from selector.estimation import TRAINING_CSV
+
+    tr = pd.read_csv(TRAINING_CSV, dtype={"cas": str}).set_index("cas")
+    assert tuple(tr.loc["124-38-9", ["delta_d", "delta_p", "delta_h"]]) == (15.7, 6.3, 5.7)
+    assert tuple(tr.loc["102-71-6", ["delta_d", "delta_p", "delta_h"]]) == (17.3, 7.6, 21.0)
+
+
+def _tables(rows):
+    """Small published-table stand-ins: {source: {cas: (dD, dP, dH)}}."""
+    return {k: pd.DataFrame.from_dict(v, orient="index", columns=["delta_d", "delta_p", "delta_h"])
+            for k, v in rows.items()}
+
+
+FORMULAS = {"1-1-1": ("liquid A", "C2Cl4"), "2-2-2": ("liquid B", "C2H2Cl4"),
+            "3-3-3": ("isomer one", "C6H14O"), "4-4-4": ("isomer two", "C6H14O"),
+            "5-5-5": ("agreeing", "CH4O")}
+
+
+def test_copied_rows_rule():
+    t = _tables({
+        "ALSHERI_HANSEN": {"1-1-1": (18.8, 5.1, 5.3), "3-3-3": (13.7, 3.9, 2.3), "5-5-5": (15.1, 12.3, 22.3)},
+        "MANUEL_RUBEN_2022": {"1-1-1": (18.3, 5.7, 0.0), "2-2-2": (18.8, 5.1, 5.3), "3-3-3": (15.1, 3.2, 3.2),
+                              "4-4-4": (15.1, 3.2, 3.2), "5-5-5": (15.1, 12.3, 22.3)},
+        "WDR_SCHRIER": {"2-2-2": (18.8, 5.1, 9.4)},
+    })
+    ident = FORMULAS.get
+    got = build.copied_rows(t, identity=lambda c: ident(c, (None, None)))
+    # another formula: suspected both ways (the tables cannot tell which compound owns the values)
+    assert got == {("ALSHERI_HANSEN", "1-1-1"): "2-2-2", ("MANUEL_RUBEN_2022", "2-2-2"): "1-1-1"}
+    # isomers (3-3-3 / 4-4-4) and agreeing sources (5-5-5) are never suspected
+    m = build.merged_hsp(t, build.hsp_choices().iloc[:0], identity=lambda c: ident(c, (None, None)))
+    assert m.loc["1-1-1", "hsp_source"] == "ALSHERI_HANSEN"        # noted, not switched
+    assert "also published for liquid B (2-2-2)" in m.loc["1-1-1", "hsp_note"]
+    assert m.loc["3-3-3", "hsp_note"] == "" and m.loc["5-5-5", "hsp_note"] == ""
+    # a reviewed choice switches the source and settles the pair: the other compound loses its note
+    ch = pd.DataFrame({"name": ["liquid A"], "keep_source": ["MANUEL_RUBEN_2022"],
+                       "reason": ["handbook value"]}, index=pd.Index(["1-1-1"], name="cas"))
+    m = build.merged_hsp(t, ch, identity=lambda c: ident(c, (None, None)))
+    assert tuple(m.loc["1-1-1", ["delta_d", "delta_p", "delta_h"]]) == (18.3, 5.7, 0.0)
+    assert m.loc["1-1-1", "hsp_note"].startswith("kept MANUEL_RUBEN_2022 over ALSHERI_HANSEN: handbook value")
+    assert m.loc["2-2-2", "hsp_note"] == ""
+    assert m.loc["2-2-2", "hsp_source"] == "MANUEL_RUBEN_2022"
+
+
+def test_reviewed_choices_are_validated(tmp_path):
+    bad = tmp_path / "choices.csv"
+    bad.write_text("cas,name,keep_source,reason\n127-18-4,tetrachloroethylene,MY_TABLE,because\n")
+    with pytest.raises(ValueError, match="unknown source key.*MY_TABLE"):
+        build.hsp_choices(bad)
+    t = _tables({"ALSHERI_HANSEN": {"1-1-1": (18.8, 5.1, 5.3)}, "MANUEL_RUBEN_2022": {"1-1-1": (18.8, 5.1, 5.4)}})
+    ch = pd.DataFrame({"name": ["liquid A"], "keep_source": ["WDR_SCHRIER"], "reason": ["x"]},
+                      index=pd.Index(["1-1-1"], name="cas"))
+    with pytest.raises(ValueError, match="1-1-1 .*needs a WDR_SCHRIER value and sources that disagree"):
+        build.merged_hsp(t, ch, identity=lambda c: (None, None))
+
+
+def test_user_entry_does_not_take_the_library_hsp_note():
+    # the note explains the library's HSP; a user row with its own HSP must not carry it
+    lib = selector.load_library()
+    user = pd.DataFrame({"name": ["tetrachloroethylene"], "delta_d": [18.0], "delta_p": [6.0], "delta_h": [1.0]})
+    row = selector.library.merge_user_liquids(lib, user).set_index("name").loc["tetrachloroethylene"]
+    assert row["origin"] == "user" and row["hsp_note"] == ""

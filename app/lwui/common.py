@@ -28,7 +28,7 @@ ERRORS = (SelectorError, ValueError, KeyError, TypeError, FileNotFoundError)
 RANK_COLUMNS = ["rank", "name", "cas", "delta_d", "delta_p", "delta_h", "ra", "red",
                 "polarity_match", "score", "molar_volume", "boiling_point_c", "flash_point_c",
                 "hazard_class", "exposure_limit", "exposure_limit_unit", "hsp_source", "sources_disagree",
-                "origin", "data_note"]
+                "hsp_note", "origin", "data_note"]
 
 COLUMN_CONFIG = {
     "rank": st.column_config.NumberColumn("Rank", format="%d", width="small"),
@@ -54,6 +54,8 @@ COLUMN_CONFIG = {
                                              "doubt: the published values disagree"),
     "sources_disagree": st.column_config.CheckboxColumn("Sources disagree",
                                                         help="published HSP differ by > 1 MPa^0.5"),
+    "hsp_note": st.column_config.TextColumn("HSP note", help="why this published source was kept, or a "
+                                            "source row that repeats another compound's values"),
     "ra_to_target": st.column_config.NumberColumn("Ra", format="%.2f"),
     "hazard_class": st.column_config.TextColumn("Hazard class", help="CHEM21; unclassified = no data, not safe"),
     "blend": st.column_config.TextColumn("Blend (volume %)"),
@@ -434,7 +436,7 @@ def table(df: pd.DataFrame, **kw):
     from selector.cautions import with_flash_texts
 
     d = with_flash_texts(d, fmt="{:.0f}")   # an empty cell would mean both "does not burn" and "no data"
-    empty = [c for c in ("estimated", "hazard_notes") if c in d.columns
+    empty = [c for c in ("estimated", "hazard_notes", "hsp_note") if c in d.columns
              and d[c].fillna("").astype(str).str.strip().eq("").all()]
     return st.dataframe(d.drop(columns=empty), **kw)
 
