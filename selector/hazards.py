@@ -41,10 +41,12 @@ ozone layer (EUH420/H420): 10. Water scores 1 (the guide's own value).
 
 Combination (the guide's "ranking by default"; colours green 1-3, yellow 4-6, red 7-10): one
 score >= 8 or two red scores -> *hazardous*; one score of 7 or two yellow scores ->
-*problematic*; otherwise *recommended*. The guide also lists a few solvents as *highly
-hazardous* after discussion; the solvents so listed here (``HIGHLY_HAZARDOUS_CAS``) are quoted
-from memory. The guide revised some default rankings after discussion (for example methanol and
-acetone); this module reports the default ranking only.
+*problematic*; otherwise *recommended*. The guide then revised some rankings after discussion
+and lists a few solvents as *highly hazardous*. ``hazard_class`` is that final ranking where this
+module knows it (``HIGHLY_HAZARDOUS_CAS`` and ``REVISED_CLASSES``, both quoted from memory of the
+guide's table: methanol and acetone up to recommended; acetonitrile and dimethyl sulfoxide down to
+problematic; pyridine, 1,4-dioxane and triethylamine down to hazardous), and
+``hazard_class_default`` is always the default ranking computed from the scores.
 
 A liquid without hazard statements in ``parameters/hazards.csv`` is **unclassified**, never
 silently safe. Statements in that file are quoted from memory of the EU CLP harmonised
@@ -70,7 +72,7 @@ HAZARD_CLASSES = ("recommended", "problematic", "hazardous", "highly hazardous")
 UNCLASSIFIED = "unclassified"
 
 METHOD = ("CHEM21 (Prat et al., Green Chem. 18 (2016) 288-296), scoring tables from memory; "
-          "default ranking")
+          "default ranking, revised after discussion where the guide did (from memory)")
 
 #: Health score of each GHS statement (first four characters: H360FD counts as H360).
 HEALTH_SCORES = {
@@ -91,6 +93,18 @@ ENVIRONMENT_SCORES = {"H412": 5, "H413": 5, "H400": 7, "H410": 7, "H411": 7, "H4
 #: hexamethylphosphoramide.
 HIGHLY_HAZARDOUS_CAS = frozenset({"71-43-2", "56-23-5", "67-66-3", "107-06-2", "60-29-7",
                                   "75-15-0", "75-52-5", "680-31-9"})
+
+#: Rankings the guide revised after discussion (from memory of its table; CAS -> final class).
+#: The scores stay the default ones; only the class changes.
+REVISED_CLASSES = {
+    "67-56-1": "recommended",    # methanol (default problematic)
+    "67-64-1": "recommended",    # acetone (default problematic)
+    "75-05-8": "problematic",    # acetonitrile
+    "67-68-5": "problematic",    # dimethyl sulfoxide
+    "110-86-1": "hazardous",     # pyridine
+    "123-91-1": "hazardous",     # 1,4-dioxane
+    "121-44-8": "hazardous",     # triethylamine
+}
 
 WATER_CAS = "7732-18-5"
 
@@ -366,6 +380,9 @@ def hazard_table(library: pd.DataFrame | None = None) -> pd.DataFrame:
     e[water] = 1
     cls = combine(s, h, e)
     final = cls.copy()
+    rev = pd.Series(kcas).map(REVISED_CLASSES).to_numpy(object)
+    has_rev = pd.notna(rev)
+    final[has_rev] = rev[has_rev]
     final[np.isin(kcas, list(HIGHLY_HAZARDOUS_CAS))] = "highly hazardous"
     pos = np.flatnonzero(known)
     col = out.columns.get_loc
