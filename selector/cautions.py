@@ -94,6 +94,16 @@ REACTIVE_GROUPS = (
     # classed toxic)
     ("organic thiocyanate", "[#6]SC#N", "toxic, may release cyanide"),
     ("disulfide", "[#6][SX2][SX2][#6]", "stench, toxic"),
+    # Monomers made to polymerise, and other unstable reagents (common practice: sold inhibited,
+    # stored cold, never used as a thinner; acrylonitrile is a carcinogen, acrylic acid corrosive;
+    # EU CLP, from memory). Acrylate esters are left in: radiation-curing inks and coatings use
+    # them as reactive diluents, chosen like solvents.
+    ("acrylic nitrile", "[CH2]=[CX3]C#N", "monomer: polymerises, toxic; acrylonitrile is a carcinogen"),
+    ("acrylic acid", "[CH2]=[CX3]C(=O)[OX2H]", "monomer: may polymerise violently, corrosive"),
+    ("vinyl ester", "[CH2]=[CH1]OC(=O)", "monomer: polymerises"),
+    ("ketene or beta-lactone", "[$([CX3]=[CX2]=O),$(O=C1CCO1),$(O=C1C(=C)CO1),$(C=C1CC(=O)O1)]",
+     "reacts violently, acylating agent; beta-propiolactone is a carcinogen"),
+    ("primary enamine", "[NX3;H2][CX3]=[CX3]", "unstable, tautomerises to an imine; not a bench liquid"),
 )
 
 #: GHS statements that make a liquid a reagent wherever ``parameters/hazards.csv`` lists them:

@@ -35,6 +35,14 @@ def _reason(name):
     ("ethyl vinyl sulfide", "vinyl sulfide"), ("thiirane", "thiirane"),
     ("methyl thiocyanate", "thiocyanate"), ("diethyl disulfide", "disulfide"),
     ("2-chloroethanol", "halohydrin"), ("1,3-dichloro-2-propanol", "halohydrin"),
+    # Common practice: monomers sold inhibited (acrylonitrile, a carcinogen; acrylic and
+    # methacrylic acid; vinyl esters), ketenes and diketene, and primary enamines (unstable) are
+    # reagents, not thinners; a reviewer found acrylonitrile and diketene ranked first and second.
+    ("acrylonitrile", "acrylic nitrile"), ("methacrylonitrile", "acrylic nitrile"),
+    ("acrylic acid", "acrylic acid"), ("methacrylic acid", "acrylic acid"),
+    ("vinyl acetate", "vinyl ester"), ("vinyl trifluoroacetate", "vinyl ester"),
+    ("diketene", "ketene or beta-lactone"), ("dichloroketene", "ketene or beta-lactone"),
+    ("ethenamine", "primary enamine"),
 ])
 def test_reagents_are_flagged(name, kind):
     assert kind in _reason(name)
@@ -46,6 +54,13 @@ def test_stored_reasons_match_the_screen():
     fresh = reactive_reasons(LIB.drop(columns=["reactive_reason", "origin"]))
     stored = LIB["reactive_reason"].fillna("").astype(str).to_numpy()
     assert (fresh == stored).all(), LIB.loc[fresh != stored, "name"].tolist()
+
+
+def test_monomers_and_ketenes_leave_the_ranking():
+    # Reviewer's case: the target 16.1, 13.5, 7.3 had acrylonitrile first and diketene second
+    top = selector.rank((16.1, 13.5, 7.3), top=10)["name"].tolist()
+    assert not {"acrylonitrile", "diketene", "methacrylonitrile"} & set(top)
+    assert len(top) == 10
 
 
 def test_mustards_and_vinyl_sulfides_leave_the_ranking():
