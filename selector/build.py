@@ -28,12 +28,14 @@ records two things, both only where the sources disagree by more than 1 MPa^0.5:
 * a *reviewed choice*: ``parameters/hsp_choices.csv`` names, for a few compounds, the source
   whose values match the handbook value (each reason given there, from memory); that source is
   kept instead of the first one;
-* a *suspected copied row*: a source's three values equal, all three, the published values of
-  another compound of a different molecular formula (isomers may share values honestly), e.g.
-  ALSHERI_HANSEN gives tetrachloroethylene the values of 1,1,2,2-tetrachloroethane
+* a *suspected misfiled row*: a source's three values equal, all three, a row that a table files
+  under another compound of a different molecular formula (isomers may share values honestly),
+  e.g. ALSHERI_HANSEN gives tetrachloroethylene the values of 1,1,2,2-tetrachloroethane
   (:func:`copied_rows`). Which of the two compounds the values belong to cannot be told from
-  the tables, so this is only noted; a reviewed choice settles it where the handbook value is
-  known.
+  the tables, so this is only noted, on both compounds when the other one is carried by a single
+  table (nothing else would note it there); "(not kept)" marks a note on a row that is not the
+  kept one. A reviewed choice settles it where the handbook value is known: the note is then
+  dropped where the choice says the values belong.
 
 ``hsp_spread`` is the largest difference, over the three components, between any two
 sources; ``sources_disagree`` is true when it exceeds 1 MPa^0.5 (whatever was kept).
@@ -110,19 +112,29 @@ def _identity(cas: str) -> tuple[str | None, str | None]:
     return getattr(c, "common_name", None), getattr(c, "formula", None)
 
 
-def copied_rows(tables: dict[str, pd.DataFrame], identity=_identity) -> dict[tuple[str, str], str]:
-    """Rows of the published tables that look copied from another compound.
+def _triple_key(values) -> tuple:
+    """The match key of three HSP values: rounded to the tables' 0.1 MPa^0.5 (one rule for every
+    comparison of rows)."""
+    return tuple(np.round(np.asarray(values, dtype=float), 1).tolist())
+
+
+def copied_rows(tables: dict[str, pd.DataFrame], identity=_identity) -> dict[tuple[str, str], tuple[str, str]]:
+    """Rows of the published tables that look filed under the wrong compound.
 
     A row ``(source, cas)`` is suspect when the sources disagree on the compound by more than
-    :data:`DISAGREE_LIMIT` and its three values equal (to 0.1 MPa^0.5) the published values of
-    another CAS number, in any of the tables, whose molecular formula is known and differs from
-    this compound's. Returns ``{(source, cas): other_cas}``. ``identity`` maps a CAS number to
-    ``(name, formula)``.
+    :data:`DISAGREE_LIMIT` and its three values equal (:func:`_triple_key`) a row that a table
+    files under another CAS number whose molecular formula is known and differs from this
+    compound's (isomers may honestly share values). Returns ``{(source, cas): (other_source,
+    other_cas)}``. The tables cannot tell which of the two compounds the values belong to.
+    ``identity`` maps a CAS number to ``(name, formula)``.
     """
-    owners: dict[tuple, set] = {}
-    for key, t in tables.items():
-        for cas, row in zip(t.index, np.round(t.to_numpy(float), 1)):
-            owners.setdefault(tuple(row), set()).add(cas)
+    owners: dict[tuple, list] = {}
+    for key in SOURCE_PRIORITY:
+        if key not in tables:
+            continue
+        t = tables[key]
+        for cas, row in zip(t.index, t.to_numpy(float)):
+            owners.setdefault(_triple_key(row), []).append((key, cas))
     cas_all = sorted(set().union(*[set(t.index) for t in tables.values()]))
     out = {}
     for cas in cas_all:
@@ -132,21 +144,25 @@ def copied_rows(tables: dict[str, pd.DataFrame], identity=_identity) -> dict[tup
         vals = np.array([tables[k].loc[cas].to_numpy(dtype=float) for k in present])
         if (vals.max(axis=0) - vals.min(axis=0)).max() <= DISAGREE_LIMIT:
             continue
+        mine = identity(cas)[1]
+        if not mine:
+            continue
         for key, v in zip(present, vals):
-            others = sorted(owners.get(tuple(np.round(v, 1)), set()) - {cas})
-            if not others:
-                continue
-            mine = identity(cas)[1]
-            for other in others:
+            for osrc, other in owners.get(_triple_key(v), []):
+                if other == cas:
+                    continue
                 theirs = identity(other)[1]
-                if mine and theirs and mine != theirs:
-                    out[(key, cas)] = other
+                if theirs and theirs != mine:
+                    out[(key, cas)] = (osrc, other)
                     break
     return out
 
 
-def hsp_choices(path: Path = None) -> pd.DataFrame:
-    """The reviewed source choices (``parameters/hsp_choices.csv``), indexed by CAS, validated."""
+def hsp_choices(path: Path = None, tables: dict[str, pd.DataFrame] | None = None,
+                identity=None) -> pd.DataFrame:
+    """The reviewed source choices (``parameters/hsp_choices.csv``), indexed by CAS, validated:
+    known source keys, one row per CAS, a reason on every row, and (when ``tables`` are given)
+    a CAS number that the tables carry, under the name given (``identity``, when given)."""
     path = HSP_CHOICES_CSV if path is None else Path(path)
     df = pd.read_csv(path, dtype=str, keep_default_na=False)
     need = {"cas", "name", "keep_source", "reason"}
@@ -157,18 +173,40 @@ def hsp_choices(path: Path = None) -> pd.DataFrame:
         raise ValueError(f"{path}: unknown source key(s) {bad}; use one of {list(SOURCE_PRIORITY)}")
     if df["cas"].duplicated().any():
         raise ValueError(f"{path}: CAS {sorted(set(df['cas'][df['cas'].duplicated()]))} listed twice")
+    empty = df.loc[df["reason"].str.strip() == "", "cas"].tolist()
+    if empty:
+        raise ValueError(f"{path}: no reason given for {empty}")
+    if tables is not None:
+        known = set().union(*[set(t.index) for t in tables.values()])
+        unknown = sorted(set(df["cas"]) - known)
+        if unknown:
+            raise ValueError(f"{path}: CAS {unknown} is in none of the published tables")
+    if identity is not None:
+        for cas, name in zip(df["cas"], df["name"]):
+            theirs = identity(cas)[0]
+            if theirs and theirs.lower() != name.lower() and name.lower() not in _names_of(cas):
+                raise ValueError(f"{path}: CAS {cas} is {theirs!r} in chemicals, not {name!r}")
     return df.set_index("cas")
 
 
-def _settled_elsewhere(tables, choices, key, cas, other) -> bool:
-    """True when a reviewed choice for ``other`` kept values different from the row ``(key, cas)``
-    that it shares: the shared values then belong to ``cas`` and the copy sits with ``other``."""
+def _names_of(cas: str) -> set[str]:
+    """Lower-case plain names of a CAS number (``parameters/names.csv``), for the choice check."""
+    try:
+        fix = pd.read_csv(NAMES_CSV, dtype=str)
+    except (OSError, ValueError):
+        return set()
+    return set(fix.loc[fix["cas"] == cas, "name"].str.lower())
+
+
+def _settled(tables, choices, key, cas, other_src, other) -> bool:
+    """True when ``other``'s reviewed choice keeps values different from the row ``(key, cas)``
+    that it shares: the shared values then belong to ``cas``."""
     if other not in choices.index:
         return False
-    kept = tables[choices.at[other, "keep_source"]]
-    if other not in kept.index:
+    kept = tables.get(choices.at[other, "keep_source"])
+    if kept is None or other not in kept.index:
         return False
-    return not np.allclose(kept.loc[other].to_numpy(float), tables[key].loc[cas].to_numpy(float), atol=0.05)
+    return _triple_key(kept.loc[other].to_numpy(float)) != _triple_key(tables[key].loc[cas].to_numpy(float))
 
 
 def merged_hsp(tables: dict[str, pd.DataFrame] | None = None, choices: pd.DataFrame | None = None,
@@ -176,35 +214,56 @@ def merged_hsp(tables: dict[str, pd.DataFrame] | None = None, choices: pd.DataFr
     """All compounds with HSP, one row per CAS, with the kept value, the disagreement and the
     ``hsp_note`` on a reviewed choice or a suspected copied row (rule in the module doc)."""
     tables = hsp_tables() if tables is None else tables
-    choices = hsp_choices() if choices is None else choices
+    choices = hsp_choices(tables=tables, identity=identity) if choices is None else choices
     copied = copied_rows(tables, identity)
     cas_all = sorted(set().union(*[set(t.index) for t in tables.values()]))
-    rows = []
+    present_of = {cas: [k for k in SOURCE_PRIORITY if k in tables and cas in tables[k].index] for cas in cas_all}
+    unknown = sorted(set(choices.index) - set(cas_all))
+    if unknown:
+        raise ValueError(f"hsp_choices.csv: CAS {unknown} is in none of the published tables")
+    notes: dict[str, list[str]] = {cas: [] for cas in cas_all}
+    picks: dict[str, int] = {}
     for cas in cas_all:
-        present = [k for k in SOURCE_PRIORITY if k in tables and cas in tables[k].index]
+        present = present_of[cas]
         vals = np.array([tables[k].loc[cas].to_numpy(dtype=float) for k in present])
         spread = float((vals.max(axis=0) - vals.min(axis=0)).max()) if len(vals) > 1 else 0.0
-        pick, notes = 0, []
+        pick = 0
         if cas in choices.index:
             want = choices.at[cas, "keep_source"]
-            if want not in present or spread <= DISAGREE_LIMIT:
+            if want not in present or spread <= DISAGREE_LIMIT or want == present[0]:
                 raise ValueError(f"hsp_choices.csv: {cas} ({choices.at[cas, 'name']}): a choice needs a "
-                                 f"{want} value and sources that disagree; sources: {present}, spread {spread:.1f}")
+                                 f"{want} value that is not the first source's, and sources that disagree; "
+                                 f"sources: {present}, spread {spread:.1f}")
             pick = present.index(want)
-            notes.append(f"kept {want} over {present[0]}: {choices.at[cas, 'reason']}")
-        for key in present:
-            if (key, cas) in copied:
-                other = copied[(key, cas)]
-                if _settled_elsewhere(tables, choices, key, cas, other):
-                    continue
-                notes.append(f"the {key} values are also published for {identity(other)[0] or other} "
-                             f"({other}), another compound (copied row suspected)")
-        kept = vals[pick]
+            notes[cas].append(f"kept {want} over {present[0]}: {choices.at[cas, 'reason']}")
+        picks[cas] = pick
+    for (key, cas), (osrc, other) in sorted(copied.items()):
+        if _settled(tables, choices, key, cas, osrc, other):
+            continue
+        kept = key == present_of[cas][picks[cas]]
+        cname, oname = identity(cas)[0] or cas, identity(other)[0] or other
+        own_choice = cas in choices.index and choices.at[cas, "keep_source"] == key
+        if not own_choice:      # a reviewed choice that keeps this row has settled it
+            notes[cas].append(f"the {key} values{'' if kept else ' (not kept)'} equal those {osrc} files "
+                              f"under {oname} ({other}): one of the two rows is probably filed under "
+                              "the wrong compound")
+        if len(present_of[other]) == 1:
+            # a compound carried by one table only: its row is the likelier slip, and nothing
+            # else would ever note it
+            notes[other].append(f"the {osrc} values equal those {key} files under {cname} ({cas}), "
+                                "whose sources disagree: one of the two rows is probably filed under "
+                                "the wrong compound")
+    rows = []
+    for cas in cas_all:
+        present = present_of[cas]
+        vals = np.array([tables[k].loc[cas].to_numpy(dtype=float) for k in present])
+        spread = float((vals.max(axis=0) - vals.min(axis=0)).max()) if len(vals) > 1 else 0.0
+        kept = vals[picks[cas]]
         rows.append({
             "cas": cas, "delta_d": kept[0], "delta_p": kept[1], "delta_h": kept[2],
-            "hsp_source": present[pick], "hsp_sources_available": "|".join(present),
+            "hsp_source": present[picks[cas]], "hsp_sources_available": "|".join(present),
             "hsp_spread": round(spread, 3), "sources_disagree": spread > DISAGREE_LIMIT,
-            "hsp_note": "; ".join(notes),
+            "hsp_note": "; ".join(dict.fromkeys(notes[cas])),
         })
     return pd.DataFrame(rows).set_index("cas")
 

@@ -148,7 +148,8 @@ def cmd_rank(a) -> int:
 #: header lines for the liquids of a table whose library row carries a note column
 NOTE_LINES = {
     "data_note": "Data in doubt (boiling point or vapour pressure; `likewise show NAME` says which): ",
-    "hsp_note": "HSP source chosen or in doubt (`likewise show NAME` says why): ",
+    "hsp_note": "HSP note (which published source is kept, or a published row that matches another "
+                "compound's; `likewise show NAME`): ",
 }
 
 

@@ -328,11 +328,18 @@ def user_row_problems(table) -> tuple[pd.DataFrame, dict[int, list[str]]]:
     return df, out
 
 
+#: Columns that a ranking or a library build computes, never the user's data: dropped from a user
+#: table on import (a table downloaded from a ranking can be imported as it is). ``hsp_note``
+#: explains the library's own HSP, which a user row replaces.
+DERIVED_COLUMNS = ("rank", "ra", "red", "score", "polarity_match", "hsp_note", "reactive_reason")
+
+
 def _check_user_table(table):
     """The cleaned table and its problems as ``(row positions, text)`` pairs."""
     from .io import rename_aliases
 
     df = rename_aliases(_as_frame(table), USER_COLUMN_ALIASES, "user liquids")
+    df = df.drop(columns=[c for c in DERIVED_COLUMNS if c in df.columns])
     problems: list[tuple[list[int], str]] = []
     missing = [c for c in ["name", *HSP] if c not in df.columns]
     if missing:
@@ -505,6 +512,7 @@ def merge_user_liquids(library: pd.DataFrame, table) -> pd.DataFrame:
         if c not in user.columns:
             user[c] = "" if c in _TEXT_COLUMNS else np.nan
     user["sources_disagree"] = False
+    user["hsp_note"] = ""
     for c in ESTIMATE_FLAGS:
         if c in user.columns:
             user[c] = user[c].astype(object).where(user[c].notna(), "").astype(str).str.lower() == "true"

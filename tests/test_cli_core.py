@@ -239,5 +239,7 @@ def test_show_names_the_kept_source_and_why(capsys):
     rc, out, _ = run(["show", "tetrachloroethylene"], capsys)
     assert rc == 0
     assert "kept MANUEL_RUBEN_2022 over ALSHERI_HANSEN" in out and "1,1,2,2-tetrachloroethane (79-34-5)" in out
+    assert "ALSHERI_HANSEN values (not kept)" in out
     rc, out, _ = run(["rank", "18.3,5.7,0.0", "--top", "3"], capsys)
-    assert rc == 0 and "HSP source chosen or in doubt (`likewise show NAME` says why): tetrachloroethylene" in out
+    assert rc == 0 and "HSP note (which published source is kept" in out
+    assert out.split("HSP note")[1].splitlines()[0].endswith(": tetrachloroethylene")
