@@ -972,6 +972,38 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     from .hazards import component_notes
 
     out["hazard_notes"] = component_notes(out["components"], pd.concat([x, cand]))
+    from .cautions import not_flammable
+
     out.attrs.update(target=tg, temperature=t_c, caution=CAUTION, replaced=xname,
-                     regulatory_note=str(hz_all["regulatory_note"].iloc[pos]))
+                     regulatory_note=str(hz_all["regulatory_note"].iloc[pos]),
+                     warnings=substitute_warnings(out, xname, bool(not_flammable(x).any()), tg.radius))
+    return out
+
+
+def substitute_warnings(table: pd.DataFrame, replaced: str, replaced_burns_not: bool,
+                        radius: float | None) -> list[str]:
+    """Plain warnings on a :func:`substitutes` table: a liquid that does not burn replaced by ones
+    that do (the fire protection of the process changes; common practice), and substitutes too far
+    from the target to behave like the replaced liquid (RED > 1 for a solute sphere, else Ra beyond
+    :data:`REFERENCE_RADIUS`)."""
+    subs = table.loc[table["role"] == "substitute"] if "role" in table else table
+    out: list[str] = []
+    if len(subs) == 0:
+        return out
+    fp = subs["lowest_flash_point_c"].to_numpy(float)
+    burns = np.isfinite(fp)
+    if replaced_burns_not and burns.any():
+        out.append(f"{replaced} does not burn, but {int(burns.sum())} of the {len(subs)} substitutes shown do "
+                   f"(lowest flash point {np.nanmin(fp[burns]):.0f} C): a flammable replacement changes the "
+                   "fire protection the process needs (equipment, ventilation, storage). Check the safety "
+                   "data sheets and local codes, or set a minimum flash point.")
+    if radius is not None:
+        far = subs["red"].to_numpy(float) > 1.0
+        where = "outside the solute's sphere (RED > 1)"
+    else:
+        far = subs["ra"].to_numpy(float) > REFERENCE_RADIUS
+        where = f"more than Ra {REFERENCE_RADIUS:g} MPa^0.5 from {replaced}"
+    if far.any():
+        out.append(f"{int(far.sum())} of the {len(subs)} substitutes shown lie {where}: they are unlikely to "
+                   f"dissolve what {replaced} dissolves; test them before use.")
     return out

@@ -95,7 +95,8 @@ def cmd_replace(a) -> int:
     note = res.attrs.get("regulatory_note") or ""
     header = (f"Safer candidates for {res.attrs['replaced']} (first row; class "
               f"{res['hazard_class'].iloc[0]}{'; ' + note if note else ''}). Only liquids with a strictly "
-              "better CHEM21 class; score = distance + 0.5 x property mismatch, lower is better.")
+              "better CHEM21 class; score = distance + 0.5 x property mismatch, lower is better."
+              + "".join(f"\nWARNING: {w}" for w in res.attrs.get("warnings", [])))
     res, est_cols, est_note = _with_estimated(res, lib, a)
     cols = [c for c in REPLACE_COLUMNS if c != "red" or res["red"].notna().any()] + est_cols
     emit(_label(res), a, cols + (["components", "fractions"] if a.format != "table" else []),

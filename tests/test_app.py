@@ -420,6 +420,10 @@ def test_replace_page_says_a_non_flammable_liquid_is_not_flammable(at):
     assert not at.exception and not errors(at)
     text = " ".join(m.value for m in at.markdown)
     assert "dichloromethane** today" in text and "not flammable" in text and "nan" not in text
+    # the page warns that the flammable substitutes change the fire risk (selector.substitutes,
+    # with the page's own filters)
+    fire = [w.value for w in at.warning if "does not burn" in w.value]
+    assert len(fire) == 1 and fire[0].startswith("dichloromethane does not burn, but ")
 
 
 def test_replace_page_matches_substitutes(at):

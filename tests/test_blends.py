@@ -567,3 +567,22 @@ def test_optimum_beats_any_feasible_mix(pts, target, m, probe):
     g = np.array(probe[:k]) + 1e-12
     g = m + (1 - k * m) * g / g.sum()              # a random feasible mix
     assert d <= float(ra(g @ h, np.asarray(target))) + 1e-7
+
+
+def test_substitutes_warn_when_a_non_burning_solvent_is_replaced_by_flammable_ones():
+    # Common practice: tetrachloroethylene does not burn (parameters/hazards.csv, from memory);
+    # every safer liquid near its HSP does, and the user must hear that the fire risk changes.
+    from selector.blends import substitutes
+
+    res = substitutes("tetrachloroethylene", top=5)
+    fire = [w for w in res.attrs["warnings"] if "does not burn" in w]
+    assert len(fire) == 1
+    low = np.nanmin(res.loc[res["role"] == "substitute", "lowest_flash_point_c"].to_numpy(float))
+    assert f"lowest flash point {low:.0f} C" in fire[0]
+    # with a 60 C flash-point floor the survivors are far away (Ra > 8 MPa^0.5): said too
+    far = substitutes("tetrachloroethylene", top=5, min_flash_point_c=60).attrs["warnings"]
+    ra = substitutes("tetrachloroethylene", top=5, min_flash_point_c=60)
+    n_far = int((ra.loc[ra["role"] == "substitute", "ra"] > 8).sum())
+    assert n_far > 0 and any(w.startswith(f"{n_far} of the 5 substitutes shown lie more than Ra 8") for w in far)
+    # toluene burns: no fire warning when it is replaced
+    assert not [w for w in substitutes("toluene", top=5).attrs["warnings"] if "does not burn" in w]

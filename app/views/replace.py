@@ -55,6 +55,8 @@ res = common.call(subs, old, (t.delta_d, t.delta_p, t.delta_h, t.radius, t.name)
 if res is None:
     st.stop()
 res = res.copy()
+for w in res.attrs.get("warnings", []):
+    st.warning(w)
 res.attrs = {}  # a Target in attrs cannot go to the browser
 res.insert(0, "candidate", [" + ".join(f"{f:.0%} {c}" for c, f in zip(cs, fs)) if len(cs) > 1 else cs[0]
                             for cs, fs in zip(res["components"], res["fractions"])])
