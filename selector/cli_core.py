@@ -17,7 +17,8 @@ SHOW_FIELDS = ["name", "cas", "smiles", "formula", "molar_mass", "delta_d", "del
                "short_term_limit_unit", "synonyms",
                "melting_point_source", "boiling_point_source", "volume_method",
                "vapour_pressure_method", "viscosity_method", "viscosity_estimated", "flash_point_source", "origin",
-               "molar_volume_estimated", "in_domain", "filled_from_library", "reactive_reason", "data_note"]
+               "molar_volume_estimated", "in_domain", "filled_from_library", "reactive_reason", "data_note",
+               "hazard_class", "h_statements", "hazard_notes"]
 #: values that may carry a 90 % interval (``<name>_low``/``<name>_high``, estimated liquids)
 INTERVAL_FIELDS = {"delta_d": 2, "delta_p": 2, "delta_h": 2, "molar_volume": 1}
 #: origins whose HSP did not come from the library's comparison of published sources
@@ -199,7 +200,7 @@ def cmd_show(a) -> int:
     rows = [r.copy() for r in rows]
     for r, w in zip(rows, why):
         r["reactive_reason"] = w
-    shown = for_display(pd.DataFrame(rows))
+    shown = for_display(_with_hazard_summary(pd.DataFrame(rows), lib))
     if a.format == "table":
         for _, r in shown.iterrows():
             for f in SHOW_FIELDS:
@@ -217,6 +218,16 @@ def cmd_show(a) -> int:
     extra = [f + s for f in INTERVAL_FIELDS for s in ("_low", "_high") if f + s in shown.columns]
     emit(shown[[f for f in SHOW_FIELDS + extra if f in shown.columns]], a)
     return 0
+
+
+def _with_hazard_summary(rows, lib):
+    """``rows`` with ``hazard_class`` (CHEM21), ``h_statements`` and ``hazard_notes`` (flags such
+    as toxic, CMR, peroxide former, or "no hazard data ...") from :mod:`selector.hazards`."""
+    from .hazards import attach_hazards, hazard_columns, liquid_notes
+
+    out = attach_hazards(rows, lib, columns=("hazard_class", "h_statements"))
+    out["hazard_notes"] = liquid_notes(out, hazard_columns(out))
+    return out
 
 
 def show_footer(rows) -> str:

@@ -243,3 +243,16 @@ def test_show_names_the_kept_source_and_why(capsys):
     rc, out, _ = run(["rank", "18.3,5.7,0.0", "--top", "3"], capsys)
     assert rc == 0 and "HSP note (which published source is kept" in out
     assert out.split("HSP note")[1].splitlines()[0].endswith(": tetrachloroethylene")
+
+
+def test_show_gives_the_hazard_summary(capsys):
+    # NMP is toxic to reproduction (H360D, EU CLP harmonised classification; from memory in
+    # parameters/hazards.csv) and diisopropyl ether forms peroxides (common practice): show says so
+    rc, out, _ = run(["show", "NMP", "diisopropyl ether"], capsys)
+    assert rc == 0
+    lines = [ln for ln in out.splitlines() if ln.startswith(("hazard_class", "h_statements", "hazard_notes"))]
+    assert "H360D" in lines[1] and "reprotoxic" in lines[2] and lines[0].split()[-1] == "hazardous"
+    assert "peroxide former" in lines[5]
+    # a liquid without hazard data says so instead of looking safe
+    rc, out, _ = run(["show", "3-octanone"], capsys)
+    assert "no hazard data" in out
