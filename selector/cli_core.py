@@ -65,7 +65,13 @@ def unknown_liquid_hint(text: str, err) -> Exception:
 
     from .errors import SelectorError
 
+    import re
+
     RDLogger.DisableLog("rdApp.*")
+    nums = re.split(r"[;:/|\s]+", text.strip())
+    if len(nums) in (3, 4) and all(re.fullmatch(r"[-+]?\d+(\.\d*)?", n) for n in nums):
+        return SelectorError(f"unknown liquid {text!r}: a target given as numbers is dD,dP,dH[,R0] in "
+                             f"MPa^0.5 separated by commas, e.g. {','.join(nums)}")
     if Chem.MolFromSmiles(text) is not None and any(ch in text for ch in "=#()[]1cC"):
         return SelectorError(f"unknown liquid {text!r}: it reads as a SMILES that is not in the library; "
                              f"estimate its HSP with  likewise guess '{text}' --save-mine my_liquids.csv  "

@@ -119,6 +119,15 @@ def as_target(target, library: pd.DataFrame | None = None, name: str | None = No
                                 f"(delta_d, delta_p, delta_h, R0); got {len(vals)} values")
         nums = [_num(v, k) for v, k in zip(vals, ["delta_d", "delta_p", "delta_h", "R0"])]
         return _check_given(Target(*nums[:3], nums[3] if len(nums) == 4 else None, name=name or "target"))
+    if isinstance(target, pd.DataFrame):
+        if len(target) != 1:
+            raise SelectorError(f"a target table must have exactly one row, this one has {len(target)}: "
+                                "pass one row, e.g. table.iloc[0]")
+        target = target.iloc[0]
+        if "name" not in target.index or not str(target.get("name") or "").strip():
+            label = target.get("matched_name") or target.get("smiles") or name or "target"
+            target = target.copy()
+            target["name"] = str(label)
     if isinstance(target, (dict, pd.Series)):
         get = target.get
         r = get("radius", get("R0", get("r0")))

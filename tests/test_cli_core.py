@@ -59,6 +59,7 @@ def test_output_file_written_atomically(tmp_path, capsys):
     (["rank", "18,1,3", "--bp", "abc"], "--bp"),
     (["rank", "18,1,3", "--only", "water,unobtainium"], "unknown liquid"),
     (["show", "unobtainium"], "unknown liquid"),
+    (["rank", "18;5;5"], "dD,dP,dH[,R0] in MPa^0.5 separated by commas, e.g. 18,5,5"),
     (["rank", "18,1,3", "--mine", "/nonexistent/file.csv"], "file not found"),
 ])
 def test_errors_are_one_line(args, msg, capsys):

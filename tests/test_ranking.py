@@ -152,3 +152,17 @@ def test_ranking_notes_flag_liquids_without_hazard_data():
     assert "menthyl acetate" not in set(hazard_statements()["name"])
     assert notes["menthyl acetate"] == "no hazard data: treat as hazardous until the safety data sheet says otherwise"
     assert "extremely or highly flammable" in notes["toluene"] and "reprotoxic" in notes["toluene"]
+
+
+def test_a_one_row_estimate_is_a_target_and_a_bigger_table_is_refused():
+    # selector.estimate returns a table; its one row is usable as a target directly (named by
+    # its SMILES, source "estimated"), and a table of two rows is refused in one clear line.
+    # Ethanol is a library liquid, so its "estimate" is the published value (chemicals tables).
+    from selector.errors import SelectorError
+
+    one = selector.estimate("CCO")
+    res = selector.rank(one)
+    assert res.attrs["target"].delta_d == pytest.approx(float(one["delta_d"].iloc[0]))
+    assert res["name"].iloc[0] == "ethanol" and res["ra"].iloc[0] == pytest.approx(0.0, abs=1e-9)
+    with pytest.raises(SelectorError, match="exactly one row, this one has 2"):
+        selector.rank(selector.estimate(["CCO", "CCCO"]))
