@@ -132,8 +132,11 @@ def cmd_sphere(a) -> int:
         if len(nxt):
             lines.append("")
             lines.append("Worth testing next (p_inside: share of plausible spheres that contain it):")
+            from .cautions import with_flash_texts
+
             with pd.option_context("display.width", 200, "display.float_format", "{:.2f}".format):
-                lines.append(nxt[[c for c in NEXT_COLUMNS if c in nxt.columns]].to_string(index=False))
+                shown = with_flash_texts(nxt[[c for c in NEXT_COLUMNS if c in nxt.columns]], fmt="{:.0f}")
+                lines.append(shown.to_string(index=False))
             lines += [f"- {n}" for n in nxt.attrs.get("notes", [])]
         lines += ["", CAUTION]
         text = "\n".join(lines) + "\n"

@@ -459,6 +459,8 @@ def test_cli_sphere(tmp_path, capsys):
     assert main(["sphere", demo, "--bootstrap", "0"]) == 0
     text = capsys.readouterr().out
     assert "R0" in text and "safety data sheet" in text
+    # the next-test table gives a missing flash point as "no data" (or "not flammable"), never NaN
+    assert "NaN" not in text and "nan" not in text.split("Worth testing next")[1]
     bad = tmp_path / "bad.csv"
     bad.write_text("solvent,outcome\ntolune,good\nwater,perhaps\n")
     assert main(["sphere", str(bad)]) == 2
