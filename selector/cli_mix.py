@@ -55,7 +55,9 @@ def cmd_mix(a) -> int:
               "(logistic fit on the reference pairs at 25 C)")
     print(f"  chi {r.chi:.3f} (per {r.v_ref:.1f} cm3/mol), critical chi {r.chi_critical:.3f}; "
           f"model: {r.model}")
-    print(f"  UCST: {_fmt(r.ucst_c, 1) + ' C' if r.ucst_c is not None else 'none in this model'}")
+    lcst_pair = any("lower critical solution behaviour" in n for n in r.notes)
+    print(f"  UCST: {_fmt(r.ucst_c, 1) + ' C' if r.ucst_c is not None else 'none in this model'}"
+          + (" (model; does not apply to this pair, see the notes)" if lcst_pair and r.ucst_c is not None else ""))
     if r.lcst_c is not None:
         print(f"  LCST: {_fmt(r.lcst_c, 1)} C (a gap opens on heating)")
     if r.binodal:

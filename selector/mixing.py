@@ -1130,15 +1130,21 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
         notes.append("with water the model UCST is only a rough hint (water-1-butanol: model about "
                      "27 C, published about 125 C)")
     if (wa != wb) and bino is not None:
-        notes.append("the mutual solubilities are rough: the model often puts ten times too much water "
-                     "into the organic phase (water in ethyl acetate: model about 30 wt %, measured "
-                     "about 3 wt %, from memory); the water-side value is closer")
+        notes.append("the mutual solubilities are rough, often off by a factor of ten or more in either "
+                     "phase (water in ethyl acetate: model about 30 wt %, measured about 3 wt %; "
+                     "1-butanol in water: model about 28 wt %, measured about 7.7 wt %; from memory)")
     lcst = (wa != wb) and _lcst_prone(rb_ if wa else ra_)
     if lcst:
+        # the model's own temperature trend (a UCST, a gap narrowing on heating) is the opposite of
+        # what such pairs do, so its UCST note would mislead: replaced by this one
+        notes[:] = [n for n in notes if not n.startswith("model UCST")
+                    and not n.startswith("the UCST lies above")
+                    and not n.startswith("with water the model UCST")]
         notes.append("water with an amine, pyridine or glycol ether: such pairs can show lower "
-                     "critical solution behaviour (a gap that opens on heating, e.g. water-"
-                     "triethylamine above about 19 C); the model's cross hydrogen bonds weaken "
-                     "on heating but seldom enough to open such a gap")
+                     "critical solution behaviour - one phase when cold, a gap that opens on heating "
+                     "(water-triethylamine: miscible below about 19 C, from memory). This model only "
+                     "knows gaps that close on heating, so its temperature trend (and any model UCST) "
+                     "does not apply here: test the mix at the temperatures of use")
     conf = _confidence(chi, cc, ra_, rb_, lcst, notes)
     for r in (ra_, rb_):
         if r["origin"] == "estimated":

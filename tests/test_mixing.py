@@ -245,6 +245,11 @@ def test_lcst_pairs_get_a_note():
     r = miscibility("water", "triethylamine")
     assert r.confidence == "low"
     assert any("lower critical" in n for n in r.notes)
+    # the model's own UCST trend ("the gap narrows on heating") is the opposite of such a pair's
+    # and must not be printed beside it (a reviewer read the two as a contradiction)
+    cold = miscibility("water", "triethylamine", temperature=10)
+    assert not any("narrows on heating" in n or n.startswith("model UCST") for n in cold.notes)
+    assert any("does not apply here" in n for n in cold.notes)
 
 
 def test_donor_acceptor_sites_follow_structure():
