@@ -913,7 +913,16 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     filt["max_hazard_class"] = worst_allowed
     exc = list(filt.get("exclude") or [])
     filt["exclude"] = ([exc] if isinstance(exc, str) else exc) + [xname]
-    tgt = as_target(solute, lib) if solute is not None else as_target(xname, lib)
+    if solute is not None:
+        tgt = as_target(solute, lib)
+    else:
+        # the replaced liquid itself, at the same temperature as the candidates (its HSP are
+        # corrected like theirs, so it sits at Ra 0 from itself)
+        from .ranking import corrected_hsp
+
+        tgt0 = as_target(xname, lib)
+        xh0 = corrected_hsp(x, check_temperature(temperature))[0]
+        tgt = Target(*[float(v) for v in xh0], tgt0.radius, name=tgt0.name, source=tgt0.source)
     k = int(max_components) if max_components in (1, 2, 3) else None
     if k is None:
         raise SelectorError(f"max_components must be 1, 2 or 3, got {max_components!r}")

@@ -586,3 +586,16 @@ def test_substitutes_warn_when_a_non_burning_solvent_is_replaced_by_flammable_on
     assert n_far > 0 and any(w.startswith(f"{n_far} of the 5 substitutes shown lie more than Ra 8") for w in far)
     # toluene burns: no fire warning when it is replaced
     assert not [w for w in substitutes("toluene", top=5).attrs["warnings"] if "does not burn" in w]
+
+
+def test_replaced_liquid_is_at_ra_zero_from_itself_at_any_temperature():
+    # Reviewer's case: at 15 C the replaced NMP sat at Ra 0.39 from itself (the target stayed at
+    # 25 C while the candidates were corrected). Candidates and target now share the temperature.
+    from selector.blends import substitutes
+    from selector.ranking import corrected_hsp
+
+    res = substitutes("NMP", temperature=15, top=3)
+    assert res.loc[res["role"] == "replaced", "ra"].iloc[0] == pytest.approx(0.0, abs=1e-9)
+    lib = selector.load_library()
+    nmp = lib.loc[lib["cas"] == "872-50-4"]
+    np.testing.assert_allclose(res.attrs["target"].hsp, corrected_hsp(nmp, 15.0)[0])
