@@ -985,34 +985,45 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
 
     out.attrs.update(target=tg, temperature=t_c, caution=CAUTION, replaced=xname,
                      regulatory_note=str(hz_all["regulatory_note"].iloc[pos]),
-                     warnings=substitute_warnings(out, xname, bool(not_flammable(x).any()), tg.radius))
+                     warnings=substitute_warnings(out, xname, bool(not_flammable(x).any()), tg.radius,
+                                                  solute=solute is not None,
+                                                  flash_floor=filt.get("min_flash_point_c") is not None))
     return out
 
 
 def substitute_warnings(table: pd.DataFrame, replaced: str, replaced_burns_not: bool,
-                        radius: float | None) -> list[str]:
+                        radius: float | None, solute: bool = False, flash_floor: bool = False) -> list[str]:
     """Plain warnings on a :func:`substitutes` table: a liquid that does not burn replaced by ones
     that do (the fire protection of the process changes; common practice), and substitutes too far
     from the target to behave like the replaced liquid (RED > 1 for a solute sphere, else Ra beyond
-    :data:`REFERENCE_RADIUS`)."""
+    :data:`REFERENCE_RADIUS`; from the solute when ``solute``). ``flash_floor``: a minimum
+    flash point is already set (the warning then does not suggest one)."""
     subs = table.loc[table["role"] == "substitute"] if "role" in table else table
     out: list[str] = []
     if len(subs) == 0:
         return out
     fp = subs["lowest_flash_point_c"].to_numpy(float)
     burns = np.isfinite(fp)
-    if replaced_burns_not and burns.any():
-        out.append(f"{replaced} does not burn, but {int(burns.sum())} of the {len(subs)} substitutes shown do "
-                   f"(lowest flash point {np.nanmin(fp[burns]):.0f} C): a flammable replacement changes the "
-                   "fire protection the process needs (equipment, ventilation, storage). Check the safety "
-                   "data sheets and local codes, or set a minimum flash point.")
+    unknown = np.isnan(fp)                      # "no data" (+inf: none of the components burns)
+    if replaced_burns_not and (burns.any() or unknown.any()):
+        parts = []
+        if burns.any():
+            parts.append(f"{int(burns.sum())} of the {len(subs)} substitutes shown do (lowest flash point "
+                         f"{np.nanmin(fp[burns]):.0f} C)")
+        if unknown.any():
+            parts.append(f"{int(unknown.sum())} have no flash-point data (treat them as flammable)")
+        out.append(f"{replaced} does not burn, but " + " and ".join(parts) + ": a flammable replacement "
+                   "changes the fire protection the process needs (equipment, ventilation, storage). "
+                   "Check the safety data sheets and local codes"
+                   + ("." if flash_floor else ", or set a minimum flash point."))
     if radius is not None:
         far = subs["red"].to_numpy(float) > 1.0
         where = "outside the solute's sphere (RED > 1)"
     else:
         far = subs["ra"].to_numpy(float) > REFERENCE_RADIUS
-        where = f"more than Ra {REFERENCE_RADIUS:g} MPa^0.5 from {replaced}"
+        where = f"more than Ra {REFERENCE_RADIUS:g} MPa^0.5 from {'the solute' if solute else replaced}"
     if far.any():
+        what = "the solute" if solute else f"what {replaced} dissolves"
         out.append(f"{int(far.sum())} of the {len(subs)} substitutes shown lie {where}: they are unlikely to "
-                   f"dissolve what {replaced} dissolves; test them before use.")
+                   f"dissolve {what}; test them before use.")
     return out

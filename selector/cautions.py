@@ -96,11 +96,14 @@ REACTIVE_GROUPS = (
     ("disulfide", "[#6][SX2][SX2][#6]", "stench, toxic"),
     # Monomers made to polymerise, and other unstable reagents (common practice: sold inhibited,
     # stored cold, never used as a thinner; acrylonitrile is a carcinogen, acrylic acid corrosive;
-    # EU CLP, from memory). Acrylate esters are left in: radiation-curing inks and coatings use
-    # them as reactive diluents, chosen like solvents.
+    # EU CLP, from memory). Acrylate esters and vinyl ethers are left in: radiation-curing inks
+    # and coatings use them as reactive diluents, chosen like solvents.
+    ("cyanoacrylate", "[CH2]=C(C#N)C(=O)O", "instant-adhesive monomer: polymerises on moisture, bonds skin"),
     ("acrylic nitrile", "[CH2]=[CX3]C#N", "monomer: polymerises, toxic; acrylonitrile is a carcinogen"),
     ("acrylic acid", "[CH2]=[CX3]C(=O)[OX2H]", "monomer: may polymerise violently, corrosive"),
     ("vinyl ester", "[CH2]=[CH1]OC(=O)", "monomer: polymerises"),
+    ("vinyl ketone", "[CH2]=[CX3]C(=O)[#6]", "monomer: very toxic, lachrymator (methyl vinyl ketone)"),
+    ("halodiene", "[CH2]=C([Cl,Br])C=C", "monomer: polymerises; chloroprene is a carcinogen"),
     ("ketene or beta-lactone", "[$([CX3]=[CX2]=O),$(O=C1CCO1),$(O=C1C(=C)CO1),$(C=C1CC(=O)O1)]",
      "reacts violently, acylating agent; beta-propiolactone is a carcinogen"),
     ("primary enamine", "[NX3;H2][CX3]=[CX3]", "unstable, tautomerises to an imine; not a bench liquid"),

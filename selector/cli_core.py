@@ -18,7 +18,7 @@ SHOW_FIELDS = ["name", "cas", "smiles", "formula", "molar_mass", "delta_d", "del
                "melting_point_source", "boiling_point_source", "volume_method",
                "vapour_pressure_method", "viscosity_method", "viscosity_estimated", "flash_point_source", "origin",
                "molar_volume_estimated", "in_domain", "filled_from_library", "reactive_reason", "data_note",
-               "hazard_class", "h_statements", "hazard_notes"]
+               "hazard_class", "hazard_class_default", "h_statements", "hazard_notes"]
 #: values that may carry a 90 % interval (``<name>_low``/``<name>_high``, estimated liquids)
 INTERVAL_FIELDS = {"delta_d": 2, "delta_p": 2, "delta_h": 2, "molar_volume": 1}
 #: origins whose HSP did not come from the library's comparison of published sources
@@ -58,9 +58,11 @@ def describe_target(tgt, lib) -> str:
     return text
 
 
-def unknown_liquid_hint(text: str, err) -> Exception:
+def unknown_liquid_hint(text: str, err, target: bool = True) -> Exception:
     """The error for an unknown liquid: when ``text`` reads as a SMILES, a message that says how to
-    estimate it (``likewise guess ... --save-mine``); otherwise ``err`` itself."""
+    estimate it (``likewise guess ... --save-mine``); where a target is asked for (``target``) and
+    ``text`` is three or four numbers with the wrong separator, the dD,dP,dH[,R0] form; otherwise
+    ``err`` itself."""
     from rdkit import Chem, RDLogger
 
     from .errors import SelectorError
@@ -69,7 +71,7 @@ def unknown_liquid_hint(text: str, err) -> Exception:
 
     RDLogger.DisableLog("rdApp.*")
     nums = re.split(r"[;:/|\s]+", text.strip())
-    if len(nums) in (3, 4) and all(re.fullmatch(r"[-+]?\d+(\.\d*)?", n) for n in nums):
+    if target and len(nums) in (3, 4) and all(re.fullmatch(r"[-+]?(\d+\.?\d*|\.\d+)", n) for n in nums):
         return SelectorError(f"unknown liquid {text!r}: a target given as numbers is dD,dP,dH[,R0] in "
                              f"MPa^0.5 separated by commas, e.g. {','.join(nums)}")
     if Chem.MolFromSmiles(text) is not None and any(ch in text for ch in "=#()[]1cC"):
@@ -231,7 +233,10 @@ def _with_hazard_summary(rows, lib):
     as toxic, CMR, peroxide former, or "no hazard data ...") from :mod:`selector.hazards`."""
     from .hazards import attach_hazards, hazard_columns, liquid_notes
 
-    out = attach_hazards(rows, lib, columns=("hazard_class", "h_statements"))
+    out = attach_hazards(rows, lib, columns=("hazard_class", "hazard_class_default", "h_statements"))
+    # the default ranking only where the guide revised it (methanol, pyridine, ...)
+    same = out["hazard_class_default"].astype(str) == out["hazard_class"].astype(str)
+    out["hazard_class_default"] = out["hazard_class_default"].where(~same, "")
     out["hazard_notes"] = liquid_notes(out, hazard_columns(out))
     return out
 
@@ -268,7 +273,7 @@ def find_liquid_or_hint(query, lib):
     try:
         return find_liquid(query, lib)
     except SelectorError as err:
-        hint = unknown_liquid_hint(str(query), err)
+        hint = unknown_liquid_hint(str(query), err, target=False)
         if hint is not err:
             raise hint from None
         raise

@@ -94,16 +94,18 @@ ENVIRONMENT_SCORES = {"H412": 5, "H413": 5, "H400": 7, "H410": 7, "H411": 7, "H4
 HIGHLY_HAZARDOUS_CAS = frozenset({"71-43-2", "56-23-5", "67-66-3", "107-06-2", "60-29-7",
                                   "75-15-0", "75-52-5", "680-31-9"})
 
-#: Rankings the guide revised after discussion (from memory of its table; CAS -> final class).
-#: The scores stay the default ones; only the class changes.
+#: Rankings the guide revised after discussion (from memory of its table; CAS -> (default
+#: class, final class)). The scores stay the default ones; only the class changes, and only when
+#: the class computed from the row's own data is the guide's default (a user row with other data
+#: keeps its computed class).
 REVISED_CLASSES = {
-    "67-56-1": "recommended",    # methanol (default problematic)
-    "67-64-1": "recommended",    # acetone (default problematic)
-    "75-05-8": "problematic",    # acetonitrile
-    "67-68-5": "problematic",    # dimethyl sulfoxide
-    "110-86-1": "hazardous",     # pyridine
-    "123-91-1": "hazardous",     # 1,4-dioxane
-    "121-44-8": "hazardous",     # triethylamine
+    "67-56-1": ("problematic", "recommended"),    # methanol
+    "67-64-1": ("problematic", "recommended"),    # acetone
+    "75-05-8": ("recommended", "problematic"),    # acetonitrile
+    "67-68-5": ("recommended", "problematic"),    # dimethyl sulfoxide
+    "110-86-1": ("recommended", "hazardous"),     # pyridine
+    "123-91-1": ("problematic", "hazardous"),     # 1,4-dioxane
+    "121-44-8": ("problematic", "hazardous"),     # triethylamine
 }
 
 WATER_CAS = "7732-18-5"
@@ -380,9 +382,11 @@ def hazard_table(library: pd.DataFrame | None = None) -> pd.DataFrame:
     e[water] = 1
     cls = combine(s, h, e)
     final = cls.copy()
-    rev = pd.Series(kcas).map(REVISED_CLASSES).to_numpy(object)
-    has_rev = pd.notna(rev)
-    final[has_rev] = rev[has_rev]
+    rev = pd.Series(kcas).map(REVISED_CLASSES)
+    for i in np.flatnonzero(rev.notna().to_numpy()):
+        default, revised = rev.iloc[i]
+        if cls[i] == default:
+            final[i] = revised
     final[np.isin(kcas, list(HIGHLY_HAZARDOUS_CAS))] = "highly hazardous"
     pos = np.flatnonzero(known)
     col = out.columns.get_loc

@@ -331,7 +331,9 @@ def user_row_problems(table) -> tuple[pd.DataFrame, dict[int, list[str]]]:
 #: Columns that a ranking or a library build computes, never the user's data: dropped from a user
 #: table on import (a table downloaded from a ranking can be imported as it is). ``hsp_note``
 #: explains the library's own HSP, which a user row replaces.
-DERIVED_COLUMNS = ("rank", "ra", "red", "score", "polarity_match", "hsp_note", "reactive_reason")
+DERIVED_COLUMNS = ("rank", "ra", "red", "score", "polarity_match", "hsp_note", "reactive_reason", "reagent",
+                   "hazard_class", "hazard_class_default", "hazard_rank", "hazard_notes", "h_statements",
+                   "filled_from_library", "estimated")
 
 
 def _check_user_table(table):

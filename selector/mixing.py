@@ -1137,9 +1137,9 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     if lcst:
         # the model's own temperature trend (a UCST, a gap narrowing on heating) is the opposite of
         # what such pairs do, so its UCST note would mislead: replaced by this one
-        notes[:] = [n for n in notes if not n.startswith("model UCST")
-                    and not n.startswith("the UCST lies above")
-                    and not n.startswith("with water the model UCST")]
+        notes[:] = [n for n in notes if not n.startswith(("model UCST", "the UCST lies above",
+                                                          "with water the model UCST",
+                                                          "no UCST in this model", "the gap stays open"))]
         notes.append("water with an amine, pyridine or glycol ether: such pairs can show lower "
                      "critical solution behaviour - one phase when cold, a gap that opens on heating "
                      "(water-triethylamine: miscible below about 19 C, from memory). This model only "

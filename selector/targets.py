@@ -99,6 +99,14 @@ def _num(v, what):
         raise SelectorError(f"{what} must be a number, got {v!r}") from None
 
 
+def _is_num(v) -> bool:
+    try:
+        float(v)
+    except (TypeError, ValueError):
+        return False
+    return True
+
+
 def as_target(target, library: pd.DataFrame | None = None, name: str | None = None) -> Target:
     """Turn any accepted target form (see module doc) into a validated :class:`Target`."""
     if isinstance(target, Target):
@@ -124,10 +132,18 @@ def as_target(target, library: pd.DataFrame | None = None, name: str | None = No
             raise SelectorError(f"a target table must have exactly one row, this one has {len(target)}: "
                                 "pass one row, e.g. table.iloc[0]")
         target = target.iloc[0]
-        if "name" not in target.index or not str(target.get("name") or "").strip():
-            label = target.get("matched_name") or target.get("smiles") or name or "target"
+
+        def _text(v):
+            return str(v).strip() if v is not None and not (isinstance(v, float) and math.isnan(v)) else ""
+
+        msg = _text(target.get("message"))
+        if msg and not all(math.isfinite(float(target.get(k, math.nan))) if _is_num(target.get(k)) else False
+                           for k in ("delta_d", "delta_p", "delta_h")):
+            raise SelectorError(f"this row has no HSP to use as a target: {msg}")
+        if not _text(target.get("name")):
             target = target.copy()
-            target["name"] = str(label)
+            target["name"] = (_text(target.get("matched_name")) or _text(target.get("smiles"))
+                              or name or "target")
     if isinstance(target, (dict, pd.Series)):
         get = target.get
         r = get("radius", get("R0", get("r0")))

@@ -586,6 +586,11 @@ def test_substitutes_warn_when_a_non_burning_solvent_is_replaced_by_flammable_on
     assert n_far > 0 and any(w.startswith(f"{n_far} of the 5 substitutes shown lie more than Ra 8") for w in far)
     # toluene burns: no fire warning when it is replaced
     assert not [w for w in substitutes("toluene", top=5).attrs["warnings"] if "does not burn" in w]
+    # with a flash-point floor already set the warning does not suggest one; with a solute the
+    # distance is to the solute and the text says so
+    assert not any("set a minimum flash point" in w for w in far)
+    sol = substitutes("dichloromethane", top=3, solute=(24.0, 2.0, 30.0)).attrs["warnings"]
+    assert any("from the solute: they are unlikely to dissolve the solute" in w for w in sol)
 
 
 def test_replaced_liquid_is_at_ra_zero_from_itself_at_any_temperature():

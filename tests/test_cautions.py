@@ -43,6 +43,11 @@ def _reason(name):
     ("vinyl acetate", "vinyl ester"), ("vinyl trifluoroacetate", "vinyl ester"),
     ("diketene", "ketene or beta-lactone"), ("dichloroketene", "ketene or beta-lactone"),
     ("ethenamine", "primary enamine"),
+    # reviewer's second round: chloroprene (a carcinogen, EU CLP from memory) ranked second for
+    # 16.2, 5.5, 2.0; methyl vinyl ketone is the ketone analogue of acrolein; a cyanoacrylate is
+    # an instant adhesive (common practice)
+    ("chloroprene", "halodiene"), ("methyl vinyl ketone", "vinyl ketone"),
+    ("ethyl 2-cyanoacrylate", "cyanoacrylate"),
 ])
 def test_reagents_are_flagged(name, kind):
     assert kind in _reason(name)
@@ -90,7 +95,8 @@ def test_ordinary_solvents_are_not_flagged(name):
 
 def test_reagents_never_candidates_unless_asked():
     flagged = reactive_reasons(LIB) != ""
-    assert 50 < flagged.sum() < 150
+    # a screen, not a ban: well under a quarter of the library (152 of 823 when written)
+    assert 50 < flagged.sum() < 0.25 * len(LIB)
     assert not (filter_mask(LIB) & flagged).any()
     assert filter_mask(LIB, include_reactive=True).all()
     # rank: the same order, the reagents dropped

@@ -60,6 +60,7 @@ def test_output_file_written_atomically(tmp_path, capsys):
     (["rank", "18,1,3", "--only", "water,unobtainium"], "unknown liquid"),
     (["show", "unobtainium"], "unknown liquid"),
     (["rank", "18;5;5"], "dD,dP,dH[,R0] in MPa^0.5 separated by commas, e.g. 18,5,5"),
+    (["rank", "18.5;.5;3"], "separated by commas, e.g. 18.5,.5,3"),
     (["rank", "18,1,3", "--mine", "/nonexistent/file.csv"], "file not found"),
 ])
 def test_errors_are_one_line(args, msg, capsys):
@@ -246,14 +247,26 @@ def test_show_names_the_kept_source_and_why(capsys):
     assert out.split("HSP note")[1].splitlines()[0].endswith(": tetrachloroethylene")
 
 
+def test_number_hint_only_where_a_target_is_asked_for(capsys):
+    # show takes names, CAS numbers or SMILES, never numbers: no dD,dP,dH hint there
+    rc, _, err = run(["show", "18;5;5"], capsys)
+    assert rc == 2 and "unknown liquid" in err and "separated by commas" not in err
+
+
 def test_show_gives_the_hazard_summary(capsys):
     # NMP is toxic to reproduction (H360D, EU CLP harmonised classification; from memory in
     # parameters/hazards.csv) and diisopropyl ether forms peroxides (common practice): show says so
     rc, out, _ = run(["show", "NMP", "diisopropyl ether"], capsys)
     assert rc == 0
-    lines = [ln for ln in out.splitlines() if ln.startswith(("hazard_class", "h_statements", "hazard_notes"))]
-    assert "H360D" in lines[1] and "reprotoxic" in lines[2] and lines[0].split()[-1] == "hazardous"
-    assert "peroxide former" in lines[5]
+    blocks = [dict((ln.split(maxsplit=1) + [""])[:2] for ln in b.splitlines() if ln.strip())
+              for b in out.split("\n\n") if b.startswith("name")]
+    nmp, dipe = blocks[0], blocks[1]
+    assert "H360D" in nmp["h_statements"] and "reprotoxic" in nmp["hazard_notes"]
+    assert nmp["hazard_class"] == "hazardous" and "peroxide former" in dipe["hazard_notes"]
+    # methanol: the guide's class after discussion, with its default beside it (from memory)
+    rc, out, _ = run(["show", "methanol"], capsys)
+    m = dict((ln.split(maxsplit=1) + [""])[:2] for ln in out.splitlines() if ln.startswith("hazard_class"))
+    assert m == {"hazard_class": "recommended", "hazard_class_default": "problematic"}
     # a liquid without hazard data says so instead of looking safe
     rc, out, _ = run(["show", "3-octanone"], capsys)
     assert "no hazard data" in out

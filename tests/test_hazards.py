@@ -80,6 +80,17 @@ def test_class_after_discussion_keeps_the_default_beside_it(name, classes):
     assert (r.hazard_class, r.hazard_class_default) == classes
 
 
+def test_revision_applies_only_to_the_guide_default_it_revises(tmp_path):
+    # a user row with acetonitrile's CAS but a boiling point of 20 C and a flash point of -50 C
+    # scores worse than the guide's default for acetonitrile: its own computed class stands (a
+    # revision must never make such a row look better)
+    lib = selector.library.merge_user_liquids(selector.load_library(), pd.DataFrame({
+        "name": ["my nitrile"], "cas": ["75-05-8"], "delta_d": [15.3], "delta_p": [18.0], "delta_h": [6.1],
+        "boiling_point_c": [20.0], "flash_point_c": [-50.0]}))
+    r = selector.hazard("my nitrile", lib)
+    assert r.hazard_class == r.hazard_class_default != "recommended"
+
+
 def test_revised_classes_reach_substitutes():
     # pyridine (hazardous after discussion; exposure limit 1 ppm, from memory) is no longer offered
     # as a safer replacement for toluene (problematic)

@@ -775,3 +775,20 @@ def test_a_table_downloaded_from_a_ranking_imports_as_my_liquids(tmp_path, capsy
     assert main(["rank", "17,5.7,0", "--mine", str(path), "--top", "3"]) == 0
     out = capsys.readouterr().out
     assert "tetrachloroethylene" in out and "HSP note" not in out
+    # the same round trip through the command line's own CSV, which carries hazard_class and
+    # reagent columns: the library liquids keep their hazard classes (a stale column once made
+    # every one "unclassified")
+    cli_csv = tmp_path / "ranked.csv"
+    assert main(["rank", "18.3,5.7,0.0,4", "--top", "3", "--format", "csv", "-o", str(cli_csv)]) == 0
+    assert "hazard_class" in pd.read_csv(cli_csv).columns
+    lib2 = load_library(cli_csv)
+    ref = selector.rank((17, 5.7, 0), top=5)
+    got = selector.rank((17, 5.7, 0), top=5, library=lib2)
+    assert "hazard_class" not in lib2.columns or lib2["hazard_class"].isna().all()
+    from selector.hazards import hazard_columns
+
+    lib_rows = lib2["origin"].eq("library").to_numpy()
+    np.testing.assert_array_equal(hazard_columns(lib2)["hazard_class"].to_numpy()[lib_rows],
+                                  hazard_columns(selector.load_library())["hazard_class"].to_numpy()[
+                                      np.isin(selector.load_library()["name"], lib2.loc[lib_rows, "name"])])
+    assert set(got["name"]) and len(got) == len(ref)

@@ -250,6 +250,10 @@ def test_lcst_pairs_get_a_note():
     cold = miscibility("water", "triethylamine", temperature=10)
     assert not any("narrows on heating" in n or n.startswith("model UCST") for n in cold.notes)
     assert any("does not apply here" in n for n in cold.notes)
+    # nor "one phase at all temperatures" beside a gap that opens on heating (water-allylamine)
+    al = miscibility("water", "allylamine")
+    assert any("lower critical" in n for n in al.notes)
+    assert not any(n.startswith(("no UCST in this model", "the gap stays open")) for n in al.notes)
 
 
 def test_donor_acceptor_sites_follow_structure():

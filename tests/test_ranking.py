@@ -166,3 +166,7 @@ def test_a_one_row_estimate_is_a_target_and_a_bigger_table_is_refused():
     assert res["name"].iloc[0] == "ethanol" and res["ra"].iloc[0] == pytest.approx(0.0, abs=1e-9)
     with pytest.raises(SelectorError, match="exactly one row, this one has 2"):
         selector.rank(selector.estimate(["CCO", "CCCO"]))
+    # a refused row says why, not "delta_d must be a finite number"
+    bad = selector.estimate(["CCO", "xx("]).iloc[[1]]
+    with pytest.raises(SelectorError, match="no HSP to use as a target: not a valid SMILES"):
+        selector.rank(bad)
