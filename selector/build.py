@@ -198,7 +198,7 @@ def _names_of(cas: str) -> set[str]:
     return set(fix.loc[fix["cas"] == cas, "name"].str.lower())
 
 
-def _settled(tables, choices, key, cas, other_src, other) -> bool:
+def _settled(tables, choices, key, cas, other) -> bool:
     """True when ``other``'s reviewed choice keeps values different from the row ``(key, cas)``
     that it shares: the shared values then belong to ``cas``."""
     if other not in choices.index:
@@ -238,7 +238,7 @@ def merged_hsp(tables: dict[str, pd.DataFrame] | None = None, choices: pd.DataFr
             notes[cas].append(f"kept {want} over {present[0]}: {choices.at[cas, 'reason']}")
         picks[cas] = pick
     for (key, cas), (osrc, other) in sorted(copied.items()):
-        if _settled(tables, choices, key, cas, osrc, other):
+        if _settled(tables, choices, key, cas, other):
             continue
         kept = key == present_of[cas][picks[cas]]
         cname, oname = identity(cas)[0] or cas, identity(other)[0] or other
