@@ -158,11 +158,10 @@ def copied_rows(tables: dict[str, pd.DataFrame], identity=_identity) -> dict[tup
     return out
 
 
-def hsp_choices(path: Path = None, tables: dict[str, pd.DataFrame] | None = None,
-                identity=None) -> pd.DataFrame:
+def hsp_choices(path: Path = None, identity=None) -> pd.DataFrame:
     """The reviewed source choices (``parameters/hsp_choices.csv``), indexed by CAS, validated:
-    known source keys, one row per CAS, a reason on every row, and (when ``tables`` are given)
-    a CAS number that the tables carry, under the name given (``identity``, when given)."""
+    known source keys, one row per CAS, a reason on every row, and (``identity`` given) the name
+    given is the CAS number's. :func:`merged_hsp` checks them against the tables."""
     path = HSP_CHOICES_CSV if path is None else Path(path)
     df = pd.read_csv(path, dtype=str, keep_default_na=False)
     need = {"cas", "name", "keep_source", "reason"}
@@ -176,26 +175,14 @@ def hsp_choices(path: Path = None, tables: dict[str, pd.DataFrame] | None = None
     empty = df.loc[df["reason"].str.strip() == "", "cas"].tolist()
     if empty:
         raise ValueError(f"{path}: no reason given for {empty}")
-    if tables is not None:
-        known = set().union(*[set(t.index) for t in tables.values()])
-        unknown = sorted(set(df["cas"]) - known)
-        if unknown:
-            raise ValueError(f"{path}: CAS {unknown} is in none of the published tables")
     if identity is not None:
+        # a plain name from parameters/names.csv counts as the CAS number's name too
+        plain = pd.read_csv(NAMES_CSV, dtype=str).groupby("cas")["name"].agg(lambda s: set(s.str.lower()))
         for cas, name in zip(df["cas"], df["name"]):
             theirs = identity(cas)[0]
-            if theirs and theirs.lower() != name.lower() and name.lower() not in _names_of(cas):
+            if theirs and theirs.lower() != name.lower() and name.lower() not in plain.get(cas, set()):
                 raise ValueError(f"{path}: CAS {cas} is {theirs!r} in chemicals, not {name!r}")
     return df.set_index("cas")
-
-
-def _names_of(cas: str) -> set[str]:
-    """Lower-case plain names of a CAS number (``parameters/names.csv``), for the choice check."""
-    try:
-        fix = pd.read_csv(NAMES_CSV, dtype=str)
-    except (OSError, ValueError):
-        return set()
-    return set(fix.loc[fix["cas"] == cas, "name"].str.lower())
 
 
 def _settled(tables, choices, key, cas, other) -> bool:
@@ -214,7 +201,7 @@ def merged_hsp(tables: dict[str, pd.DataFrame] | None = None, choices: pd.DataFr
     """All compounds with HSP, one row per CAS, with the kept value, the disagreement and the
     ``hsp_note`` on a reviewed choice or a suspected copied row (rule in the module doc)."""
     tables = hsp_tables() if tables is None else tables
-    choices = hsp_choices(tables=tables, identity=identity) if choices is None else choices
+    choices = hsp_choices(identity=identity) if choices is None else choices
     copied = copied_rows(tables, identity)
     cas_all = sorted(set().union(*[set(t.index) for t in tables.values()]))
     present_of = {cas: [k for k in SOURCE_PRIORITY if k in tables and cas in tables[k].index] for cas in cas_all}
@@ -223,10 +210,12 @@ def merged_hsp(tables: dict[str, pd.DataFrame] | None = None, choices: pd.DataFr
         raise ValueError(f"hsp_choices.csv: CAS {unknown} is in none of the published tables")
     notes: dict[str, list[str]] = {cas: [] for cas in cas_all}
     picks: dict[str, int] = {}
+    values: dict[str, tuple[np.ndarray, float]] = {}
     for cas in cas_all:
         present = present_of[cas]
         vals = np.array([tables[k].loc[cas].to_numpy(dtype=float) for k in present])
         spread = float((vals.max(axis=0) - vals.min(axis=0)).max()) if len(vals) > 1 else 0.0
+        values[cas] = (vals, spread)
         pick = 0
         if cas in choices.index:
             want = choices.at[cas, "keep_source"]
@@ -256,8 +245,7 @@ def merged_hsp(tables: dict[str, pd.DataFrame] | None = None, choices: pd.DataFr
     rows = []
     for cas in cas_all:
         present = present_of[cas]
-        vals = np.array([tables[k].loc[cas].to_numpy(dtype=float) for k in present])
-        spread = float((vals.max(axis=0) - vals.min(axis=0)).max()) if len(vals) > 1 else 0.0
+        vals, spread = values[cas]
         kept = vals[picks[cas]]
         rows.append({
             "cas": cas, "delta_d": kept[0], "delta_p": kept[1], "delta_h": kept[2],

@@ -63,11 +63,11 @@ def unknown_liquid_hint(text: str, err, target: bool = True) -> Exception:
     estimate it (``likewise guess ... --save-mine``); where a target is asked for (``target``) and
     ``text`` is three or four numbers with the wrong separator, the dD,dP,dH[,R0] form; otherwise
     ``err`` itself."""
+    import re
+
     from rdkit import Chem, RDLogger
 
     from .errors import SelectorError
-
-    import re
 
     RDLogger.DisableLog("rdApp.*")
     nums = re.split(r"[;:/|\s]+", text.strip())

@@ -1103,19 +1103,25 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
         lo, hi = spinodal(chi, n1, n2)
         spin = (float(lo), float(hi))
         bino = _binodal_dict(pa, pb, v1t, v2t, m1, m2)
-    if ucst_c is not None:
-        if ucst_c < t:
-            notes.append(f"model UCST {ucst_c:.0f} C, below {t:g} C: one phase here; a gap may open "
-                         "on cooling")
-        else:
-            notes.append(f"model UCST {ucst_c:.0f} C: the gap narrows on heating and closes there")
-        if math.isfinite(bp_low) and ucst_c > bp_low:
-            notes.append("the UCST lies above a boiling point: at atmospheric pressure the gap "
-                         "does not close before the mixture boils")
-    elif math.isinf(u):
-        notes.append("the gap stays open up to 400 C in this model")
-    elif lcst_c is None:
-        notes.append("no UCST in this model: one phase at all temperatures from -150 C up")
+    wa, wb = _is_water(ra_), _is_water(rb_)
+    # water with an amine, pyridine or glycol ether: the model's own temperature trend (a UCST, a
+    # gap narrowing on heating) is the opposite of what such pairs do, so its UCST notes would
+    # mislead; the LCST note below replaces them
+    lcst = (wa != wb) and _lcst_prone(rb_ if wa else ra_)
+    if not lcst:
+        if ucst_c is not None:
+            if ucst_c < t:
+                notes.append(f"model UCST {ucst_c:.0f} C, below {t:g} C: one phase here; a gap may open "
+                             "on cooling")
+            else:
+                notes.append(f"model UCST {ucst_c:.0f} C: the gap narrows on heating and closes there")
+            if math.isfinite(bp_low) and ucst_c > bp_low:
+                notes.append("the UCST lies above a boiling point: at atmospheric pressure the gap "
+                             "does not close before the mixture boils")
+        elif math.isinf(u):
+            notes.append("the gap stays open up to 400 C in this model")
+        elif lcst_c is None:
+            notes.append("no UCST in this model: one phase at all temperatures from -150 C up")
     if lcst_c is not None:
         where = "below" if lcst_c < t else "above"
         notes.append(f"model LCST {lcst_c:.0f} C ({where} {t:g} C): cross hydrogen bonds hold the pair "
@@ -1125,21 +1131,14 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
             notes.insert(0, f"{r['name']} is a reagent, not a solvent ({r['reactive_reason']}): it may react "
                          "with the other liquid instead of mixing, which this model cannot tell; read its "
                          "safety data sheet before any contact")
-    wa, wb = _is_water(ra_), _is_water(rb_)
-    if (wa or wb) and ucst_c is not None:
+    if (wa or wb) and ucst_c is not None and not lcst:
         notes.append("with water the model UCST is only a rough hint (water-1-butanol: model about "
                      "27 C, published about 125 C)")
     if (wa != wb) and bino is not None:
         notes.append("the mutual solubilities are rough, often off by a factor of ten or more in either "
                      "phase (water in ethyl acetate: model about 30 wt %, measured about 3 wt %; "
                      "1-butanol in water: model about 28 wt %, measured about 7.7 wt %; from memory)")
-    lcst = (wa != wb) and _lcst_prone(rb_ if wa else ra_)
     if lcst:
-        # the model's own temperature trend (a UCST, a gap narrowing on heating) is the opposite of
-        # what such pairs do, so its UCST note would mislead: replaced by this one
-        notes[:] = [n for n in notes if not n.startswith(("model UCST", "the UCST lies above",
-                                                          "with water the model UCST",
-                                                          "no UCST in this model", "the gap stays open"))]
         notes.append("water with an amine, pyridine or glycol ether: such pairs can show lower "
                      "critical solution behaviour - one phase when cold, a gap that opens on heating "
                      "(water-triethylamine: miscible below about 19 C, from memory). This model only "
