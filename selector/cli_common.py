@@ -268,6 +268,23 @@ def flash_texts(df):
     return with_flash_texts(df)
 
 
+def short_notes(df):
+    """``df`` with the long "no hazard data: treat as hazardous until ..." note shortened for a
+    table (the full wording stays in CSV and JSON, and the table header says what it means)."""
+    if "hazard_notes" not in df.columns:
+        return df
+    from .hazards import NO_DATA_NOTE
+
+    out = df.copy()
+    out["hazard_notes"] = out["hazard_notes"].astype(object).where(out["hazard_notes"].notna(), "")
+    out["hazard_notes"] = out["hazard_notes"].astype(str).str.replace(NO_DATA_NOTE, SHORT_NO_DATA_NOTE, regex=False)
+    return out
+
+
+#: the table form of :data:`selector.hazards.NO_DATA_NOTE`
+SHORT_NO_DATA_NOTE = "no hazard data (treat as hazardous)"
+
+
 #: unit notes for the columns a table may carry
 _HSP_UNITS = ((("delta_d", "delta_p", "delta_h"), "dD/dP/dH"), (("ra",), "Ra"), (("radius",), "R0"))
 _UNITS = (
@@ -301,7 +318,7 @@ def emit(df, a, columns=None, caution: bool = False, header: str | None = None,
     check_file_args(a)
     fmt = getattr(a, "format", "table")
     if fmt == "table":
-        df = flash_texts(df)
+        df = short_notes(flash_texts(df))
     if columns is not None:
         df = df[[c for c in columns if c in df.columns]]
     if fmt == "csv":

@@ -8,7 +8,7 @@ from .cli_common import add_filter_args, add_output_args, emit, filters_from_arg
 
 RANK_COLUMNS = ["rank", "name", "cas", "delta_d", "delta_p", "delta_h", "ra", "red", "polarity_match",
                 "score", "molar_volume", "boiling_point_c", "flash_point_c", "hazard_class", "hsp_source",
-                "sources_disagree"]
+                "sources_disagree", "hazard_notes"]
 SHOW_FIELDS = ["name", "cas", "smiles", "formula", "molar_mass", "delta_d", "delta_p", "delta_h",
                "hsp_source", "hsp_sources_available", "hsp_spread", "sources_disagree", "hsp_note",
                "molar_volume", "density", "melting_point_c", "boiling_point_c", "flash_point_c", "autoignition_c",

@@ -6,7 +6,7 @@ import math
 
 from .cli_common import CAUTION, add_filter_args, add_output_args, emit, filters_from_args, library_from_args
 
-PAIR_COLUMNS = ["a", "b", "temperature_c", "state", "chi", "chi_critical", "ucst_c", "lcst_c", "confidence",
+PAIR_COLUMNS = ["a", "b", "temperature_c", "state", "chi", "chi_critical", "ucst_c", "lcst_c", "lcst_prone", "confidence",
                 "p_miscible", "a_in_b_vol_pct", "a_in_b_wt_pct", "a_in_b_mol_pct", "b_in_a_vol_pct", "b_in_a_wt_pct",
                 "b_in_a_mol_pct", "spinodal_low", "spinodal_high", "v_ref", "interaction_mpa", "model", "notes"]
 
@@ -15,7 +15,8 @@ SHORT = {"miscible": "mix", "partially miscible": "part", "immiscible": "no"}
 
 def _pair_row(r) -> dict:
     d = {k: getattr(r, k) for k in ("a", "b", "temperature_c", "state", "chi", "chi_critical", "ucst_c",
-                                    "lcst_c", "confidence", "p_miscible", "v_ref", "interaction_mpa", "model")}
+                                    "lcst_c", "lcst_prone", "confidence", "p_miscible", "v_ref", "interaction_mpa",
+                                    "model")}
     for side in ("a_in_b", "b_in_a"):
         for unit in ("vol_pct", "wt_pct", "mol_pct"):
             d[f"{side}_{unit}"] = r.binodal[side][unit] if r.binodal else None
@@ -55,7 +56,7 @@ def cmd_mix(a) -> int:
               "(logistic fit on the reference pairs at 25 C)")
     print(f"  chi {r.chi:.3f} (per {r.v_ref:.1f} cm3/mol), critical chi {r.chi_critical:.3f}; "
           f"model: {r.model}")
-    lcst_pair = any("lower critical solution behaviour" in n for n in r.notes)
+    lcst_pair = r.lcst_prone
     print(f"  UCST: {_fmt(r.ucst_c, 1) + ' C' if r.ucst_c is not None else 'none in this model'}"
           + (" (model; does not apply to this pair, see the notes)" if lcst_pair and r.ucst_c is not None else ""))
     if r.lcst_c is not None:

@@ -832,7 +832,9 @@ def _lcst_prone_smiles(smi: str) -> bool:
         return False
     amine = Chem.MolFromSmarts("[NX3;!$(N[#6,#16]=[O,S,N]);!$(Na);!$(N~[O,N])]")
     pyr = Chem.MolFromSmarts("[nX2]")
-    glycol_ether = Chem.MolFromSmarts("[OX2H][CH2][CH2,CH1][OX2][#6]")
+    # a hydroxyl two saturated carbons from an ether oxygen: 2-alkoxyethanols and the
+    # 1-alkoxy-2-propanols alike (1-methoxy-2-propanol carries its OH on the CH)
+    glycol_ether = Chem.MolFromSmarts("[OX2H][CX4][CX4][OX2][#6]")
     return (mol.HasSubstructMatch(amine) or mol.HasSubstructMatch(pyr)
             or mol.HasSubstructMatch(glycol_ether))
 
@@ -855,7 +857,9 @@ class Miscibility:
     None when miscible; ``spinodal``: (low, high) volume fractions of ``a`` or None;
     ``confidence``: "high", "medium" or "low"; ``p_miscible``: probability of one phase in all
     proportions from the logistic model fitted on the reference pairs at 25 C (NaN for a model
-    without one); ``notes``: list of plain-language remarks.
+    without one); ``notes``: list of plain-language remarks; ``lcst_prone``: water with an amine,
+    pyridine or glycol ether, a pair whose gap opens on heating in practice, so that the model's
+    UCST trend does not apply to it.
     """
 
     a: str
@@ -874,6 +878,7 @@ class Miscibility:
     model: str = ""
     lcst_c: float | None = None
     p_miscible: float = math.nan
+    lcst_prone: bool = False
 
     @property
     def miscible(self) -> bool:
@@ -882,7 +887,7 @@ class Miscibility:
     def as_dict(self) -> dict:
         d = {k: getattr(self, k) for k in ("a", "b", "temperature_c", "state", "chi", "chi_critical",
                                            "ucst_c", "lcst_c", "confidence", "p_miscible", "v_ref", "interaction_mpa",
-                                           "model")}
+                                           "model", "lcst_prone")}
         d["spinodal"] = None if self.spinodal is None else list(self.spinodal)
         d["binodal"] = self.binodal
         d["notes"] = list(self.notes)
@@ -1159,7 +1164,7 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     notes.append("a model estimate: confirm with a small test mix, and read the safety data sheets "
                  "of both liquids first")
     return Miscibility(ra_["name"], rb_["name"], t, state, chi, cc, ucst_c, bino, spin,
-                       conf, notes, float(vr), a12, mdl.name, lcst_c, mdl.p_miscible(chi, cc))
+                       conf, notes, float(vr), a12, mdl.name, lcst_c, mdl.p_miscible(chi, cc), bool(lcst))
 
 
 def _ranges(rec):

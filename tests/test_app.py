@@ -322,6 +322,15 @@ def test_mixing_pair_matches_library_and_trade_fact(at):
     at.selectbox(key="mx_b").set_value("ethanol").run()
     # Common practice: water and ethanol mix in all proportions.
     assert at.metric[0].value == "miscible"
+    # water-triethylamine: two phases above about 19 C, one below (lower critical solution
+    # temperature; Sorensen & Arlt 1979, from memory). The page must not show the model's UCST
+    # or draw a gap closing on heating for it.
+    at.selectbox(key="mx_b").set_value("triethylamine").run()
+    assert not at.exception
+    assert selector.miscibility("water", "triethylamine").lcst_prone
+    assert at.metric[3].value == "does not apply"
+    assert any("No phase diagram for this pair" in c.value for c in at.caption)
+    assert not [c for c in at.get("plotly_chart") if "binodal" in c.proto.spec]
 
 
 @pytest.mark.skipif(not has("mixing"), reason="selector.mixing not installed")

@@ -270,3 +270,18 @@ def test_show_gives_the_hazard_summary(capsys):
     # a liquid without hazard data says so instead of looking safe
     rc, out, _ = run(["show", "3-octanone"], capsys)
     assert "no hazard data" in out
+
+
+def test_rank_lists_each_liquids_hazard_notes(capsys):
+    # carbon tetrachloride is a suspected carcinogen (H351) and toxic (H301/H311/H331; EU CLP
+    # harmonised classification, from memory in parameters/hazards.csv): a ranking that proposes
+    # it must say so in every output format, not only in `show`
+    rc, out, _ = run(["rank", "toluene", "--format", "csv", "--top", "40"], capsys)
+    assert rc == 0
+    df = pd.read_csv(io.StringIO(out)).set_index("name")
+    assert "carcinogen" in df.loc["carbon tetrachloride", "hazard_notes"]
+    no_data = df["hazard_class"] == "unclassified"
+    assert no_data.any() and df.loc[no_data, "hazard_notes"].str.startswith("no hazard data: treat as hazardous").all()
+    # the table keeps the meaning in a shorter form (its header explains unclassified)
+    rc, out, _ = run(["rank", "toluene", "--top", "40"], capsys)
+    assert "no hazard data (treat as hazardous)" in out and "until the safety data sheet" not in out

@@ -254,6 +254,21 @@ def test_lcst_pairs_get_a_note():
     al = miscibility("water", "allylamine")
     assert any("lower critical" in n for n in al.notes)
     assert not any(n.startswith(("no UCST in this model", "the gap stays open")) for n in al.notes)
+    assert r.lcst_prone and cold.lcst_prone and al.lcst_prone
+
+
+def test_glycol_ethers_with_water_are_flagged_as_lcst_prone():
+    # 1-methoxy-2-propanol and 2-butoxyethanol mix with water at 25 C (common practice; the latter
+    # has a lower critical solution temperature near 49 C, from memory, see
+    # parameters/miscibility_pairs.csv). The model's UCST trend does not apply to them, so the
+    # result must say so: the flag, the LCST note and low confidence. Water-hexane is no such pair.
+    for partner in ("1-methoxy-2-propanol", "2-butoxyethanol", "2-methoxyethanol"):
+        r = miscibility("water", partner)
+        assert r.lcst_prone, partner
+        assert r.confidence == "low" and any("lower critical" in n for n in r.notes), partner
+        assert r.as_dict()["lcst_prone"] is True
+    assert not miscibility("water", "hexane").lcst_prone
+    assert not miscibility("toluene", "2-butoxyethanol").lcst_prone   # no water: no such note
 
 
 def test_donor_acceptor_sites_follow_structure():

@@ -27,8 +27,8 @@ ERRORS = (SelectorError, ValueError, KeyError, TypeError, FileNotFoundError)
 
 RANK_COLUMNS = ["rank", "name", "cas", "delta_d", "delta_p", "delta_h", "ra", "red",
                 "polarity_match", "score", "molar_volume", "boiling_point_c", "flash_point_c",
-                "hazard_class", "exposure_limit", "exposure_limit_unit", "hsp_source", "sources_disagree",
-                "hsp_note", "origin", "data_note"]
+                "hazard_class", "hazard_notes", "exposure_limit", "exposure_limit_unit", "hsp_source",
+                "sources_disagree", "hsp_note", "origin", "data_note"]
 
 COLUMN_CONFIG = {
     "rank": st.column_config.NumberColumn("Rank", format="%d", width="small"),
@@ -48,7 +48,7 @@ COLUMN_CONFIG = {
     "exposure_limit": st.column_config.NumberColumn("Exposure limit", format="%.4g"),
     "exposure_limit_unit": st.column_config.TextColumn("unit"),
     "hsp_source": st.column_config.TextColumn("HSP source"),
-    "hazard_notes": st.column_config.TextColumn("Hazard notes", help="per component: corrosive, toxic, "
+    "hazard_notes": st.column_config.TextColumn("Hazard notes", help="for a blend, per component: corrosive, toxic, "
                                                 "CMR, flammable, peroxide former; REACTIVE PAIR if two react"),
     "data_note": st.column_config.TextColumn("Data note", help="Boiling point or vapour pressure in "
                                              "doubt: the published values disagree"),

@@ -84,7 +84,13 @@ with tab1:
         m[0].metric("At this temperature", state)
         m[1].metric("chi", _num(getattr(r, "chi", None)))
         m[2].metric("chi_c (critical)", _num(getattr(r, "chi_critical", None)))
-        m[3].metric("UCST (°C)", _num(getattr(r, "ucst_c", None), "{:.0f}"))
+        lcst_pair = bool(getattr(r, "lcst_prone", False))
+        if lcst_pair:
+            m[3].metric("UCST (°C)", "does not apply",
+                        help="water with an amine, pyridine or glycol ether: such a gap opens on heating, "
+                        "so the model's UCST (a gap closing on heating) does not describe this pair")
+        else:
+            m[3].metric("UCST (°C)", _num(getattr(r, "ucst_c", None), "{:.0f}"))
         pm = getattr(r, "p_miscible", None)
         m[4].metric("Confidence", str(getattr(r, "confidence", "—")),
                     help=None if pm is None or pm != pm else
@@ -102,8 +108,12 @@ with tab1:
             if sol:
                 st.table(pd.DataFrame([{"": k, "wt %": f"{v['wt_pct']:.2g}", "vol %": f"{v['vol_pct']:.2g}",
                                         "mol %": f"{v['mol_pct']:.2g}"} for k, v in sol]).set_index(""))
-        sweep = common.call(phase_sweep, a, b, common.lib_key())
-        if sweep is not None and sweep["binodal_low"].notna().any():
+        sweep = None if lcst_pair else common.call(phase_sweep, a, b, common.lib_key())
+        if lcst_pair:
+            st.caption("No phase diagram for this pair: the model only knows gaps that close on heating, "
+                       "and this one opens on heating in practice (see the notes). Test the mix at the "
+                       "temperatures of use.")
+        elif sweep is not None and sweep["binodal_low"].notna().any():
             st.plotly_chart(plots.phase_diagram(sweep, getattr(r, "ucst_c", None), float(t),
                                                 x_label=f"volume fraction of {r.a}"),
                             width="stretch", key="mx_phase")
