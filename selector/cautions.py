@@ -71,8 +71,22 @@ REACTIVE_GROUPS = (
     ("thiol", "[SX2H]", "stench, toxic"),
     ("hydrogen cyanide", "[CH1]#N", "very toxic"),
     ("unsaturated aldehyde", "[C;!$(C-a)]=[C;!$(C-a)][CH1]=O", "lachrymator, very toxic"),
-    ("allylic or benzylic halide", "[Cl,Br,I][CX4;!$(C([Cl,Br,I])([Cl,Br,I]))][$(C=C),$(c)]",
+    # alpha-halo ketones and aldehydes (chloroacetone, chloroacetaldehyde) alkylate like benzyl
+    # halides and are lachrymators (common practice: chloroacetone was a tear gas)
+    ("alpha-halo carbonyl", "[Cl,Br,I][CX4][CX3]=O", "alkylating agent, lachrymator"),
+    # Other aliphatic aldehydes (butanal, hexanal, 4-pentenal, chloral): they oxidise in air to
+    # acids and peracids, condense with amines and with themselves, and sensitise; they are sold
+    # as reagents and flavours, not as solvents (common practice). Aldehydes on an aromatic ring
+    # or a conjugated C=C stay in: furfural is an industrial extraction solvent.
+    ("aliphatic aldehyde", "[CX3H1](=O)[CX4]",
+     "oxidises in air, condenses with amines; a reagent, not a solvent"),
+    # benzal chloride and benzotrichloride (PhCHCl2, PhCCl3) are benzylic halides too: they
+    # hydrolyse to HCl and benzotrichloride is a carcinogen (EU CLP, from memory); CF3 groups
+    # (benzotrifluoride, a solvent) do not match
+    ("allylic or benzylic halide", "[Cl,Br,I][CX4][$(C=C),$(c)]",
      "alkylating agent, lachrymator"),
+    # alkyl hypochlorites (ethyl hypochlorite) decompose explosively (common practice)
+    ("hypohalite", "[#6]O[Cl,Br,I]", "explosive, oxidiser"),
     ("alkyl iodide", "[CX4;!$(C(I)(I))]I", "alkylating agent"),
     ("vinylpyridine", "[CH2]=[CH1][$(c1ncccc1),$(c1cnccc1),$(c1ccncc1)]", "polymerises, toxic, sensitiser"),
     # Organosulfur and halo-ethyl compounds near ester/ether HSP (common practice unless noted:

@@ -50,7 +50,9 @@ def cmd_mix(a) -> int:
     if a.format != "table" or a.output:
         emit(pd.DataFrame([_pair_row(r)]), a, PAIR_COLUMNS)
         return 0
-    print(f"{r.a} + {r.b} at {r.temperature_c:g} C: {r.state.upper()} (confidence {r.confidence})")
+    word, _, rest = r.headline.partition(" (")   # "uncertain (model: ...)" keeps its lower case
+    print(f"{r.a} + {r.b} at {r.temperature_c:g} C: {word.upper()}{' (' + rest if rest else ''} "
+          f"(confidence {r.confidence})")
     if math.isfinite(r.p_miscible):
         print(f"  probability of one phase in all proportions: {100 * r.p_miscible:.0f} % "
               "(logistic fit on the reference pairs at 25 C)")
@@ -118,15 +120,22 @@ def cmd_grid(a) -> int:
 
         iu, ju = np.triu_indices(len(m), 1)
         st = m.to_numpy()
-        out = pd.DataFrame({"a": m.index.to_numpy()[iu], "b": m.columns.to_numpy()[ju], "state": st[iu, ju]})
+        from .cautions import reactive_pair_matrix
+
+        out = pd.DataFrame({"a": m.index.to_numpy()[iu], "b": m.columns.to_numpy()[ju], "state": st[iu, ju],
+                            "reacts": reactive_pair_matrix(df)[iu, ju]})
         if a.not_miscible:
-            out = out[out.state != "miscible"]
+            out = out[(out.state != "miscible") | out.reacts]
         emit(out, a, caution=True, header=f"{len(out)} pairs at {a.at:g} C" + est_note)
         return 0
     shown = m if a.format != "table" else m.replace(SHORT)
     out = shown.reset_index().rename(columns={"index": "liquid"})
     header = (f"{len(m)} liquids at {a.at:g} C; " + ("" if a.format != "table" else
               "mix = miscible in all proportions, part = partially miscible, no = immiscible")) + est_note
+    pairs = m.attrs.get("reactive_pairs", [])
+    if pairs:
+        header += ("\nREACTIVE PAIRS (they react whatever the state; do not mix them except as a planned "
+                   "reaction): " + ", ".join(f"{x} + {y}" for x, y in pairs))
     emit(out, a, caution=True, header=header)
     return 0
 

@@ -859,7 +859,8 @@ class Miscibility:
     proportions from the logistic model fitted on the reference pairs at 25 C (NaN for a model
     without one); ``notes``: list of plain-language remarks; ``lcst_prone``: water with an amine,
     pyridine or glycol ether, a pair whose gap opens on heating in practice, so that the model's
-    UCST trend does not apply to it.
+    UCST trend does not apply to it; ``reacts``: why the two react with each other (an acid and an
+    amine, ...; :data:`selector.cautions.PAIR_RULES`), "" when no rule applies.
     """
 
     a: str
@@ -879,15 +880,26 @@ class Miscibility:
     lcst_c: float | None = None
     p_miscible: float = math.nan
     lcst_prone: bool = False
+    reacts: str = ""
 
     @property
     def miscible(self) -> bool:
         return self.state == "miscible"
 
+    @property
+    def headline(self) -> str:
+        """The state as an answer to show first: ``state``, except for an LCST-prone pair (water with
+        an amine, pyridine or glycol ether), where the model is not to be trusted either way
+        (water and 1-methoxy-2-propanol mix in all proportions at 25 C, water and triethylamine
+        split; from memory): "uncertain (model: <state>)"; with ", but they react" appended for a
+        pair of :data:`selector.cautions.PAIR_RULES` (``reacts`` names the reaction)."""
+        head = f"uncertain (model: {self.state})" if self.lcst_prone else self.state
+        return f"{head}, but they react" if self.reacts else head
+
     def as_dict(self) -> dict:
         d = {k: getattr(self, k) for k in ("a", "b", "temperature_c", "state", "chi", "chi_critical",
                                            "ucst_c", "lcst_c", "confidence", "p_miscible", "v_ref", "interaction_mpa",
-                                           "model", "lcst_prone")}
+                                           "model", "lcst_prone", "reacts", "headline")}
         d["spinodal"] = None if self.spinodal is None else list(self.spinodal)
         d["binodal"] = self.binodal
         d["notes"] = list(self.notes)
@@ -1163,8 +1175,16 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
                      + ", ".join(sorted(set(found) | {state})) + " (states at the corners of the intervals)")
     notes.append("a model estimate: confirm with a small test mix, and read the safety data sheets "
                  "of both liquids first")
+    from .cautions import pair_reasons
+
+    reacts = "; ".join(w.split(": ", 1)[1] for w in pair_reasons(
+        pd.DataFrame({"name": [ra_["name"], rb_["name"]], "smiles": [ra_.get("smiles", ""), rb_.get("smiles", "")]})))
+    if reacts:
+        notes.insert(0, f"REACTIVE PAIR - {reacts}: whatever the phase behaviour, do not mix them except as "
+                        "a planned reaction; read both safety data sheets")
     return Miscibility(ra_["name"], rb_["name"], t, state, chi, cc, ucst_c, bino, spin,
-                       conf, notes, float(vr), a12, mdl.name, lcst_c, mdl.p_miscible(chi, cc), bool(lcst))
+                       conf, notes, float(vr), a12, mdl.name, lcst_c, mdl.p_miscible(chi, cc), bool(lcst),
+                       reacts)
 
 
 def _ranges(rec):
@@ -1330,7 +1350,8 @@ def miscibility_matrix(liquids, *, temperature: float = 25.0, library: pd.DataFr
     """DataFrame of states ("miscible", "partially miscible", "immiscible") for every pair.
 
     ``liquids``: a list of names/CAS/user dicts, or a library-format DataFrame (up to the whole
-    library). Index and columns are the liquid names.
+    library). Index and columns are the liquid names. ``attrs["reactive_pairs"]``: the pairs
+    ``(a, b)`` that react with each other (:func:`selector.cautions.reactive_pair_matrix`).
 
     >>> m = miscibility_matrix(["water", "hexane", "acetone"])
     >>> m.loc["water", "hexane"], m.loc["water", "acetone"]
@@ -1346,7 +1367,13 @@ def miscibility_matrix(liquids, *, temperature: float = 25.0, library: pd.DataFr
         df = _rows(liquids, library)
     st = state_matrix(df, temperature, model)
     names = df["name"].astype(str).tolist() if "name" in df.columns else list(range(len(df)))
-    return pd.DataFrame(st, index=names, columns=names)
+    out = pd.DataFrame(st, index=names, columns=names)
+    from .cautions import reactive_pair_matrix
+
+    # pairs that react (selector.cautions.PAIR_RULES), whatever their phase behaviour
+    i, j = np.nonzero(np.triu(reactive_pair_matrix(df), 1))
+    out.attrs["reactive_pairs"] = [(names[p], names[q]) for p, q in zip(i, j)]
+    return out
 
 
 # ---------------------------------------------------------------- blend check
@@ -1398,7 +1425,9 @@ def phase_sweep(a, b, *, n: int = 41, library: pd.DataFrame | None = None,
                 t_min_c: float = -60.0, t_max_c: float = 250.0) -> pd.DataFrame:
     """:func:`miscibility` of ``a`` and ``b`` at ``n`` temperatures across the range where both are
     liquid at 1 atm (above both melting points, below both boiling points, within
-    ``t_min_c``..``t_max_c``): the data of a temperature-composition phase diagram.
+    ``t_min_c``..``t_max_c``): the data of a temperature-composition phase diagram. Where the
+    model UCST (LCST) lies in that range, five temperatures just below (above) it are added so that
+    the dome closes at the critical point.
 
     Columns ``temperature_c``, ``binodal_low`` / ``binodal_high`` (volume fractions of ``a`` in the
     two coexisting phases, NaN where one phase), ``spinodal_low`` / ``spinodal_high`` and ``state``.
@@ -1419,8 +1448,19 @@ def phase_sweep(a, b, *, n: int = 41, library: pd.DataFrame | None = None,
     if not hi > lo:
         raise SelectorError(f"{ra_['name']} and {rb_['name']} are not both liquid at any temperature "
                             f"between {t_min_c:g} and {t_max_c:g} C")
+    grid = np.linspace(lo, hi, int(n))
+    # the gap closes at the UCST (opens at the LCST): a few temperatures just inside it draw the
+    # top of the dome, which an even grid would cut flat up to one grid step short of it
+    first = miscibility(a, b, temperature=float(lo), library=lib)
+    step = (hi - lo) / max(int(n) - 1, 1)
+    near = np.array([0.5, 0.2, 0.05, 0.01, 0.001])
+    extra = []
+    for t_c, sign in ((first.ucst_c, -1.0), (first.lcst_c, 1.0)):
+        if t_c is not None and np.isfinite(t_c) and lo < t_c < hi:
+            extra.extend(t_c + sign * near * step)
+    temps = np.unique(np.concatenate([grid, np.clip(extra, lo, hi)])) if extra else grid
     rows = []
-    for t in np.linspace(lo, hi, int(n)):
+    for t in temps:
         m = miscibility(a, b, temperature=float(t), library=lib)
         bi, sp = m.binodal or {}, m.spinodal or (np.nan, np.nan)
         pa = bi.get("phi_a", np.nan)

@@ -331,6 +331,17 @@ def test_mixing_pair_matches_library_and_trade_fact(at):
     assert at.metric[3].value == "does not apply"
     assert any("No phase diagram for this pair" in c.value for c in at.caption)
     assert not [c for c in at.get("plotly_chart") if "binodal" in c.proto.spec]
+    # water and 1-methoxy-2-propanol mix in all proportions at 25 C (common practice): the model
+    # says otherwise, so the page answers "uncertain", not "partially miscible"
+    at.selectbox(key="mx_b").set_value("1-methoxy-2-propanol").run()
+    assert at.metric[0].value == "uncertain"
+    # a primary amine condenses with a ketone (imine + water; common practice): the answer is
+    # "they react" with the reason in red, whatever the phase model says
+    at.selectbox(key="mx_a").set_value("cyclohexylamine")
+    at.selectbox(key="mx_b").set_value("acetone").run()
+    assert not at.exception
+    assert at.metric[0].value == "they react"
+    assert any("REACTIVE PAIR" in e.value and "imine" in e.value for e in at.error)
 
 
 @pytest.mark.skipif(not has("mixing"), reason="selector.mixing not installed")
@@ -347,6 +358,14 @@ def test_mixing_heat_map_and_bad_temperature(at):
     # Common practice: water-hexane immiscible, water-acetone and hexane-acetone miscible.
     assert heat["text"][0][1] == "immiscible" and heat["text"][0][2] == "miscible"
     assert heat["text"][1][2] == "miscible"
+    # cyclohexylamine + acetone react (primary amine + ketone -> imine; common practice): the cell
+    # says so and a warning names the pair
+    at.multiselect(key="mx_set").set_value(["water", "cyclohexylamine", "acetone"]).run()
+    heat = [json.loads(c.proto.spec) for c in at.get("plotly_chart")]
+    heat = [f["data"][0] for f in heat if f["data"] and f["data"][0]["type"] == "heatmap"][0]
+    assert "REACTIVE PAIR" in heat["text"][1][2] and "REACTIVE PAIR" in heat["text"][2][1]
+    assert "REACTIVE" not in heat["text"][0][1]
+    assert any("cyclohexylamine + acetone" in w.value for w in at.warning)
     at.button(key="mx_fill").click().run()
     assert not at.exception and not errors(at)
     from selector.cli_core import demo_scenario

@@ -267,7 +267,11 @@ def test_glycol_ethers_with_water_are_flagged_as_lcst_prone():
         assert r.lcst_prone, partner
         assert r.confidence == "low" and any("lower critical" in n for n in r.notes), partner
         assert r.as_dict()["lcst_prone"] is True
+        # app review: the headline said "partially miscible" for water + 1-methoxy-2-propanol,
+        # which mix in all proportions; the answer shown first is "uncertain" for such pairs
+        assert r.headline.startswith("uncertain (model: "), partner
     assert not miscibility("water", "hexane").lcst_prone
+    assert miscibility("water", "hexane").headline == "immiscible"
     assert not miscibility("toluene", "2-butoxyethanol").lcst_prone   # no water: no such note
 
 
@@ -543,6 +547,19 @@ def test_phase_sweep_follows_miscibility_at_each_temperature():
         selector.phase_sweep("hexane", "methanol", n=1)
 
 
+def test_phase_sweep_closes_the_dome_at_the_model_ucst():
+    # app review: the water-1-butanol diagram stopped flat one grid step (2.5 K) below the UCST
+    # line. The sweep adds temperatures just below the UCST, where the two phases converge.
+    import selector
+
+    for a, b in [("hexane", "methanol"), ("water", "1-butanol")]:
+        u = selector.miscibility(a, b).ucst_c
+        s = selector.phase_sweep(a, b, n=9)
+        top = s.loc[s["binodal_low"].notna()].iloc[-1]
+        assert u - 0.1 < top.temperature_c < u
+        assert top.binodal_high - top.binodal_low < 0.02
+
+
 def test_estimated_liquid_state_is_checked_at_its_interval_corners():
     from selector import estimation as E
 
@@ -564,3 +581,16 @@ def test_estimated_liquid_state_is_checked_at_its_interval_corners():
     assert miscibility(centre, "hexane").confidence != "low"
     # library liquids carry no intervals: toluene-hexane stays "high" (miscible, common practice)
     assert miscibility("toluene", "hexane").confidence == "high"
+
+
+def test_reacting_pairs_are_named_in_pair_and_matrix_answers():
+    # app review: cyclohexylamine + acetone showed as plainly miscible. A primary amine and a ketone
+    # condense to an imine and water; an acid and an amine form a salt (common practice).
+    import selector
+
+    r = selector.miscibility("cyclohexylamine", "acetone")
+    assert "imine" in r.reacts and r.headline.endswith(", but they react")
+    assert r.notes[0].startswith("REACTIVE PAIR") and r.as_dict()["reacts"] == r.reacts
+    assert selector.miscibility("water", "ethanol").reacts == ""
+    m = selector.miscibility_matrix(["cyclohexylamine", "acetone", "formic acid", "hexane"])
+    assert m.attrs["reactive_pairs"] == [("cyclohexylamine", "acetone"), ("cyclohexylamine", "formic acid")]

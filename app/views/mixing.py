@@ -79,9 +79,11 @@ with tab1:
     t = c3.number_input("Temperature (°C)", value=25.0, min_value=-100.0, max_value=300.0, step=5.0, key="mx_t")
     r = common.call(pair, a, b, float(t), common.lib_key())
     if r is not None:
-        state = str(getattr(r, "state", "?"))
+        state = str(getattr(r, "headline", getattr(r, "state", "?")))
         m = st.columns([2, 1, 1, 1, 1])
-        m[0].metric("At this temperature", state)
+        short = ("they react" if getattr(r, "reacts", "") else
+                 "uncertain" if getattr(r, "lcst_prone", False) else state)
+        m[0].metric("At this temperature", short, help=state)
         m[1].metric("chi", _num(getattr(r, "chi", None)))
         m[2].metric("chi_c (critical)", _num(getattr(r, "chi_critical", None)))
         lcst_pair = bool(getattr(r, "lcst_prone", False))
@@ -101,7 +103,10 @@ with tab1:
         for w in getattr(r, "warnings", []) or []:
             st.warning(str(w))
         for note in getattr(r, "notes", []) or []:
-            st.caption("• " + str(note))
+            if note.startswith("REACTIVE PAIR"):
+                st.error(str(note), icon=":material/warning:")
+            else:
+                st.caption("• " + str(note))
         bi = getattr(r, "binodal", None)
         if isinstance(bi, dict):
             sol = _solubilities(bi, r.a, r.b)
@@ -150,7 +155,14 @@ with tab2:
         mat = common.call(matrix, tuple(liqs), float(t2), common.lib_key())
         if mat is not None:
             st.plotly_chart(plots.heat_map(mat, f"Miscibility at {t2:g} °C"), width="stretch", key="mx_heat")
-            st.caption("○ miscible · ◐ partially miscible · ● immiscible (colour and symbol both carry the state).")
+            st.caption("○ miscible · ◐ partially miscible · ● immiscible (colour and symbol both carry the state); "
+                       "! = the two react.")
+            pairs = mat.attrs.get("reactive_pairs", [])
+            if pairs:
+                st.warning("These pairs react with each other whatever their phase behaviour (amine + acid, "
+                           "amine + ketone or aldehyde, amine + nitroalkane): do not mix them except as a "
+                           "planned reaction - " + ", ".join(f"{x} + {y}" for x, y in pairs) + ".",
+                           icon=":material/warning:")
             from selector.io import to_csv_text
 
             st.download_button("Download the matrix (CSV)", to_csv_text(mat.reset_index()),

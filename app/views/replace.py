@@ -22,8 +22,11 @@ old = c1.selectbox("Liquid to replace", names, index=names.index(default) if def
                    key="rp_old")
 keep = c2.checkbox("Must also dissolve the current target", value=common.is_demo(), key="rp_keep",
                    help="rank by RED to the target's sphere instead of the distance to the old liquid")
-if common.is_demo():
-    st.info("Invented demo: the co-op thins its (invented) FV-3 varnish with toluene today.",
+if common.is_demo() and old == default:
+    st.info(f"Invented demo: the co-op thins its (invented) FV-3 varnish with {default} today.",
+            icon=":material/science:")
+elif common.is_demo() and keep:
+    st.info("Invented demo: candidates must also dissolve the (invented) FV-3 varnish resin.",
             icon=":material/science:")
 filters, _ = common.filter_panel("rp", temperature=False, expanded=False)
 c3, c4 = st.columns(2)
