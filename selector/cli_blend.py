@@ -53,12 +53,12 @@ def cmd_blend(a) -> int:
                       top=a.top, library=lib, max_uses=a.max_uses,
                       cost_per_litre=_prices(a.prices) if a.prices else None,
                       require_miscible=not a.skip_mixing_check, **_filters(a))
-    from .cli_core import describe_target
+    from .cli_core import describe_target, target_notes
 
     tgt = res.attrs["target"]
     header = (f"Blends for {describe_target(tgt, lib)} at {a.at:g} C; {res.attrs['candidates']} candidate "
               f"liquids; smallest share {a.min_share:g}; every pair miscible "
-              f"({res.attrs['miscibility']}). Hazard class = worst component (CHEM21).")
+              f"({res.attrs['miscibility']}). Hazard class = worst component (CHEM21)." + target_notes(tgt))
     if res.attrs.get("price_notes"):
         header += "\nPrices matched by synonym: " + "; ".join(res.attrs["price_notes"])
     res, est_cols, note = _with_estimated(res, lib, a)

@@ -58,6 +58,11 @@ def describe_target(tgt, lib) -> str:
     return text
 
 
+def target_notes(tgt) -> str:
+    """Header lines for a target's notes (a dD that looks like cal units, ...), "" without any."""
+    return "".join(f"\nNOTE: {n}" for n in getattr(tgt, "notes", ()))
+
+
 def unknown_liquid_hint(text: str, err, target: bool = True) -> Exception:
     """The error for an unknown liquid: when ``text`` reads as a SMILES, a message that says how to
     estimate it (``likewise guess ... --save-mine``); where a target is asked for (``target``) and
@@ -146,7 +151,7 @@ def cmd_rank(a) -> int:
     header = (f"Target {describe_target(tgt, lib)} at {a.at:g} C; {len(res)} candidates; "
               "score = distance + polarity weight x (1 - polarity match), lower is better; "
               "hazard class: CHEM21 (unclassified = no hazard data here, not safe)"
-              + _reagent_note(res))
+              + _reagent_note(res) + target_notes(tgt))
     shown = for_display(_with_hazard_class(res, lib))
     if (shown["reagent"] != "").any():
         cols = cols + ["reagent"]

@@ -12,7 +12,7 @@ A target may be given as
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 import pandas as pd
@@ -27,6 +27,9 @@ from .library import locate, load_library
 TARGET_MAX = {"delta_d": 30.0, "delta_p": 40.0, "delta_h": 50.0}
 #: Upper bound (MPa^0.5) for a sphere radius R0 (published polymer spheres stay below ~25).
 R0_MAX = 40.0
+#: A typed dD below this (MPa^0.5) is below every liquid of the library (the lowest is
+#: perfluoropentane, 11.3) and most likely given in (cal/cm^3)^0.5, where dD is 7-11.
+CAL_HINT_DD = 11.0
 
 
 @dataclass(frozen=True)
@@ -87,7 +90,25 @@ def _check_given(t: Target) -> Target:
     if t.radius is not None and float(t.radius) > R0_MAX:
         raise SelectorError(f"R0 = {float(t.radius):g} MPa^0.5 is larger than any published sphere "
                             f"(at most {R0_MAX:g}); check the value")
-    return t
+    hint = unit_hint(t)
+    return replace(t, notes=t.notes + (hint,)) if hint and hint not in t.notes else t
+
+
+def unit_hint(t: Target) -> str:
+    """A warning when a typed target looks like (cal/cm^3)^0.5 rather than MPa^0.5 ("" otherwise):
+    its dD is below :data:`CAL_HINT_DD`, lower than any liquid's.
+
+    >>> unit_hint(Target(8.7, 3.0, 2.0))[:40]
+    'dD 8.7 is lower than any liquid (the lo'
+    """
+    d = float(t.delta_d)
+    if d >= CAL_HINT_DD:
+        return ""
+    from .hansen import CAL_TO_MPA
+
+    conv = ", ".join(f"{k} {v * CAL_TO_MPA:.1f}" for k, v in zip(("dD", "dP", "dH"), t.hsp))
+    return (f"dD {d:g} is lower than any liquid (the lowest is 11.3 MPa^0.5, perfluoropentane): if the "
+            f"values are in (cal/cm3)^0.5, multiply them by {CAL_TO_MPA} ({conv} MPa^0.5)")
 
 
 def _num(v, what):

@@ -69,8 +69,15 @@ def plot_array(v):
     return np.asarray(v)
 
 
-def set_typed_target(at, values, name="polystyrene"):
+def target_way(at, way: str):
+    """The Target page with one way of setting the target chosen."""
     go(at, "target")
+    at.segmented_control(key="tg_way").set_value(way).run()
+    assert not at.exception
+
+
+def set_typed_target(at, values, name="polystyrene"):
+    target_way(at, "Type the numbers")
     at.text_input(key="tg_name").set_value(name)
     nums = [n for n in at.number_input if n.label.startswith(("dD", "dP", "dH", "R0 (MPa"))]
     for n, v in zip(nums[:4], values):
@@ -192,7 +199,7 @@ def test_bad_filter_shows_error_not_traceback(at):
 # ---------------------------------------------------------------- target page
 
 def test_library_liquid_as_target(at):
-    go(at, "target")
+    target_way(at, "A library liquid")
     at.text_input(key="tg_q").set_value("108-88-3")  # toluene's CAS number
     at.button(key="tg_use_liq").click().run()
     t = at.session_state["lw_target"]
@@ -203,8 +210,25 @@ def test_library_liquid_as_target(at):
     assert top_names(at) == list(ref["name"].head(5))
 
 
+def test_typed_numbers_out_of_range_or_in_cal_units_are_answered(at):
+    # app review: dD 35 and dP -3 were held back by the inputs without a word
+    at = set_typed_target(at, (35.0, 5.0, 5.0, 8.0), name="resin X")
+    assert any("delta_d = 35" in e.value and "beyond" in e.value for e in at.error)
+    assert at.metric[0].value != "35.0"                       # the target did not change
+    at = set_typed_target(at, (18.0, -3.0, 5.0, 8.0), name="resin X")
+    assert any("must not be negative" in e.value for e in at.error)
+    # 1 (cal/cm3)^0.5 = 2.0455 MPa^0.5 (Hansen's handbook, ch. 1): dD 8.7 is no liquid's value in
+    # MPa^0.5 (the lowest in the library is perfluoropentane's 11.3), so the page says so
+    at = set_typed_target(at, (8.7, 3.0, 2.0, 4.0), name="resin X")
+    assert at.metric[0].value == "8.7"
+    assert any("2.0455" in w.value and "dD 17.8" in w.value for w in at.warning)
+    # the page stays on the way used, and the name field shows the typed target's name
+    assert at.segmented_control(key="tg_way").value == "Type the numbers"
+    assert at.text_input(key="tg_name").value == "resin X"
+
+
 def test_unknown_liquid_is_an_error_message(at):
-    go(at, "target")
+    target_way(at, "A library liquid")
     at.text_input(key="tg_q").set_value("unobtainium oil")
     at.button(key="tg_use_liq").click().run()
     assert not at.exception
@@ -213,7 +237,7 @@ def test_unknown_liquid_is_an_error_message(at):
 
 @pytest.mark.skipif(not has("estimation"), reason="selector.estimation not installed")
 def test_smiles_estimate_and_invalid_smiles(at):
-    go(at, "target")
+    target_way(at, "Estimate from a structure (SMILES)")
     # n-butyl acetate: in the library, so answered from the published values (no model training)
     at.text_input(key="tg_smiles").set_value("CCCCOC(C)=O")
     at.button[[b.label for b in at.button].index("Estimate")].click().run()
@@ -227,7 +251,7 @@ def test_smiles_estimate_and_invalid_smiles(at):
     # butyl acetate: dD 15.8, dP 3.7, dH 6.3 MPa^0.5 (Hansen's handbook, from memory)
     assert (t["delta_d"], t["delta_p"], t["delta_h"]) == pytest.approx((15.8, 3.7, 6.3), abs=0.05)
     # an invalid SMILES is a message in the page, not a traceback
-    go(at, "target")
+    target_way(at, "Estimate from a structure (SMILES)")
     at.text_input(key="tg_smiles").set_value("C1CC(")
     at.button[[b.label for b in at.button].index("Estimate")].click().run()
     assert not at.exception
@@ -240,7 +264,7 @@ def test_estimated_target_keeps_its_intervals_and_smiles_show_as_typed(at):
     # tert-butyl cyclohexanecarboxylate is in neither the library nor the published tables: the
     # target must stay marked as an estimate with the intervals selector.estimate gives
     smi = "CC(C)(C)OC(=O)C1CCCCC1"
-    go(at, "target")
+    target_way(at, "Estimate from a structure (SMILES)")
     at.text_input(key="tg_smiles").set_value(smi)
     at.button[[b.label for b in at.button].index("Estimate")].click().run()
     assert not at.exception and not errors(at)
@@ -260,7 +284,7 @@ def test_estimated_target_keeps_its_intervals_and_smiles_show_as_typed(at):
     go(at, "candidates")
     assert any("Estimated from structure" in c.value for c in at.caption)
     # a polymer repeat unit is refused; its asterisks are escaped so that Markdown shows them
-    go(at, "target")
+    target_way(at, "Estimate from a structure (SMILES)")
     at.text_input(key="tg_smiles").set_value("*CC(*)c1ccccc1")
     at.button[[b.label for b in at.button].index("Estimate")].click().run()
     assert not at.exception
@@ -272,7 +296,7 @@ def test_estimate_added_to_my_liquids_is_a_marked_candidate(at, home):
     # "Add to my liquids" writes the estimate with its intervals; the ranking then proposes it,
     # marked as estimated (reference: selector.rank on the library merged with that file)
     smi = "CC(C)(C)OC(=O)C1CCCCC1"
-    go(at, "target")
+    target_way(at, "Estimate from a structure (SMILES)")
     at.text_input(key="tg_smiles").set_value(smi)
     at.button[[b.label for b in at.button].index("Estimate")].click().run()
     at.text_input(key="tg_add_name").set_value("tBu ester X")
@@ -298,7 +322,7 @@ def test_estimate_added_to_my_liquids_is_a_marked_candidate(at, home):
     assert len(mine) and (mine["estimated"] == "tBu ester X").all()
     assert (full.loc[~full.index.isin(mine.index), "estimated"] == "").all()
     # chosen later as a library liquid, it is still an estimated target with its intervals
-    go(at, "target")
+    target_way(at, "A library liquid")
     at.selectbox(key="tg_liq").set_value("tBu ester X")
     at.button(key="tg_use_liq").click().run()
     t = at.session_state["lw_target"]
@@ -400,9 +424,9 @@ def test_sphere_fit_page_matches_fit_sphere(at):
     assert any("fitted" in m.value.lower() for m in at.sidebar.markdown) or \
         any("fitted" in m.value.lower() for m in at.sidebar.caption)
     # the fitted sphere is offered on the target page too, and the ranking uses it
-    go(at, "target")
+    target_way(at, "Fitted sphere")
     at.button(key="tg_demo").click().run()
-    go(at, "target")
+    target_way(at, "Fitted sphere")
     at.button(key="tg_use_fit").click().run()
     go(at, "candidates")
     assert top_names(at) == list(selector.rank(ref).head(5)["name"])

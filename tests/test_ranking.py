@@ -140,6 +140,20 @@ def test_typed_targets_beyond_any_liquid_are_refused():
     assert len(selector.rank((29.9, 39.9, 49.9), top=3)) == 3
 
 
+def test_targets_in_cal_units_get_a_note():
+    # 1 (cal/cm3)^0.5 = 2.0455 MPa^0.5 (Hansen's handbook, ch. 1); the lowest dD among the bundled
+    # liquids is perfluoropentane's 11.3 (the published table it comes from), so a typed dD below
+    # 11 is most likely in cal units: the target carries a note, and the ranking still runs.
+    from selector.targets import CAL_HINT_DD
+
+    lib = selector.load_library()
+    assert lib["delta_d"].min() == pytest.approx(11.3) and CAL_HINT_DD < lib["delta_d"].min()
+    r = selector.rank((8.7, 3.0, 2.0), top=3)
+    (note,) = r.attrs["target"].notes
+    assert "2.0455" in note and "dD 17.8, dP 6.1, dH 4.1" in note
+    assert selector.rank((17.8, 6.1, 4.1), top=3).attrs["target"].notes == ()
+
+
 def test_ranking_notes_flag_liquids_without_hazard_data():
     # The ranking stays ordered by score, but an unclassified liquid (no statements in
     # parameters/hazards.csv: menthyl acetate) says plainly that it has no hazard data, and a

@@ -5,7 +5,7 @@ import streamlit as st
 
 import selector
 from lwui import common
-from selector.targets import Target
+from selector.targets import unit_hint
 
 st.title("Target")
 st.caption("The point (dD, dP, dH) and, if known, the interaction radius R0 of what you want to "
@@ -24,36 +24,43 @@ if not common.is_demo() and st.button("Back to the invented demo resin", key="tg
     common.set_target(common.demo_target_spec())
     st.rerun()
 
+hint = unit_hint(t)
+if hint:
+    st.warning(hint.replace("MPa^0.5", "MPa½").replace("(cal/cm3)^0.5", "(cal/cm³)½"))
 common.show_flash()
-tabs = st.tabs(["Type the numbers", "A library liquid", "Estimate from a structure (SMILES)",
-                "Fitted sphere"])
+# a keyed choice, not st.tabs: it stays on the chosen way across the rerun that sets the target
+WAYS = ["Type the numbers", "A library liquid", "Estimate from a structure (SMILES)", "Fitted sphere"]
+way = st.segmented_control("Set the target by", WAYS, default=WAYS[0], key="tg_way",
+                           label_visibility="collapsed") or WAYS[0]
 
-with tabs[0]:
+if way == WAYS[0]:
     with st.form("tg_typed"):
-        name = st.text_input("Name", value="my solute", key="tg_name")
+        typed = common.target_spec().get("kind") == "typed"
+        name = st.text_input("Name", value=t.name if typed else "", key="tg_name",
+                             placeholder="e.g. binder resin B-2 (optional)")
         a, b, cc, d = st.columns(4)
-        dd = a.number_input("dD (MPa½)", value=float(t.delta_d), min_value=0.0, max_value=30.0, step=0.1,
-                            help="0 to 30 MPa½ (a value outside is set to the nearest end)")
-        dp = b.number_input("dP (MPa½)", value=float(t.delta_p), min_value=0.0, max_value=40.0, step=0.1,
-                            help="0 to 40 MPa½ (a value outside is set to the nearest end)")
-        dh = cc.number_input("dH (MPa½)", value=float(t.delta_h), min_value=0.0, max_value=50.0, step=0.1,
-                             help="0 to 50 MPa½ (a value outside is set to the nearest end)")
-        r0 = d.number_input("R0 (MPa½)", value=float(t.radius) if t.radius else None, min_value=0.0,
-                            max_value=40.0, step=0.1, placeholder="none (a point)",
-                            help="leave empty for a point target; then liquids are ranked by Ra")
+        # no min/max on the inputs: a value out of range must reach the check below and be
+        # answered, not be held back by the widget without a word
+        dd = a.number_input("dD (MPa½)", value=float(t.delta_d), step=0.1, help="more than 0, at most 30 MPa½")
+        dp = b.number_input("dP (MPa½)", value=float(t.delta_p), step=0.1, help="0 to 40 MPa½")
+        dh = cc.number_input("dH (MPa½)", value=float(t.delta_h), step=0.1, help="0 to 50 MPa½")
+        r0 = d.number_input("R0 (MPa½)", value=float(t.radius) if t.radius else None, step=0.1,
+                            placeholder="none (a point)",
+                            help="leave empty (or 0) for a point target; then liquids are ranked by Ra")
         if st.form_submit_button("Use these numbers", type="primary"):
+            label = name.strip() or "my solute"
             try:
-                Target(dd, dp, dh, r0 or None, name=name or "my solute")
+                selector.as_target((dd, dp, dh) if not r0 else (dd, dp, dh, r0), name=label)
             except (selector.SelectorError, ValueError) as e:
                 common.show_error(e)
             else:
-                msg = (f"{name or 'my solute'} is now the target, as a point: an R0 of 0 means no sphere, "
-                       "so liquids are ranked by Ra." if r0 == 0 else f"{name or 'my solute'} is now the target.")
-                common.set_target_and_rerun({"kind": "typed", "name": name or "my solute", "delta_d": dd,
+                msg = (f"{label} is now the target, as a point: an R0 of 0 means no sphere, "
+                       "so liquids are ranked by Ra." if r0 == 0 else f"{label} is now the target.")
+                common.set_target_and_rerun({"kind": "typed", "name": label, "delta_d": dd,
                                              "delta_p": dp, "delta_h": dh, "radius": r0 or None,
                                              "source": "typed by the user"}, msg)
 
-with tabs[1]:
+if way == WAYS[1]:
     names = common.liquid_names()
     q = st.selectbox("Liquid", names, index=names.index("toluene") if "toluene" in names else 0, key="tg_liq",
                      help="type to search; synonyms and CAS numbers work in the text box below")
@@ -115,7 +122,7 @@ def _add_to_mine(est, e) -> None:
                                 "can now propose it, marked as estimated. Use it only after a test.")
 
 
-with tabs[2]:
+if way == WAYS[2]:
     st.caption("Hansen parameters and molar volume estimated from the structure by the bundled estimator "
                "(trained on the published HSP tables), with a 90 % interval and an applicability-domain "
                "check. A molecule already in the library is answered from the library.")
@@ -177,7 +184,7 @@ with tabs[2]:
         if e.get("source") in ("estimated", "published"):
             _add_to_mine(est, e)
 
-with tabs[3]:
+if way == WAYS[3]:
     fit = st.session_state.get("lw_fit")
     if fit is None:
         st.info("No sphere fitted yet in this session. Fit one on the *Sphere from lab tests* page.")
