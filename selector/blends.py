@@ -548,11 +548,11 @@ def _target_and_candidates(target, library, temperature, filters, costs=None):
         cost = cost_full[mask]
     cand = lib.loc[mask].reset_index(drop=True)
     if len(cand) == 0:
-        raise SelectorError("no liquid passes the filters"
-                            + (f" ({left_out} reagents left out: include_reactive / --include-reactive "
-                               "allows them)" if left_out else "")
-                            + "; widen the boiling-point or flash-point window, allow a worse hazard class "
-                            "or shorten the exclude list")
+        from .filters import nothing_passes
+
+        extra = ["" if abs(t_c - 25.0) < 1e-9 else f"liquid at {t_c:g} C (temperature)",
+                 "" if costs is None else "a price known (costs)"]
+        raise SelectorError(nothing_passes(filters, left_out, "; ".join(e for e in extra if e)))
     h = corrected_hsp(cand, t_c)
     return tgt, cand, h, t_c, (cost, notes)
 

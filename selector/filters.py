@@ -87,6 +87,44 @@ def filter_mask(library: pd.DataFrame, **filters) -> np.ndarray:
     return masks_and_reagents(library, **filters)[0]
 
 
+def nothing_passes(filters: dict, left_out: int = 0, extra: str = "") -> str:
+    """The message for a search that no liquid passes: the filters in force, each with what to
+    change, and the reagents held back (the same words for the library, command line and app).
+
+    >>> nothing_passes({"boiling_point_c": (300, 310), "min_flash_point_c": 60})[:67]
+    'no liquid passes the filters: boiling point 300 to 310 C (widen it)'
+    """
+    def rng(v):
+        lo, hi = v
+        return f"{'-' if lo is None else f'{lo:g}'} to {'-' if hi is None else f'{hi:g}'} C"
+
+    parts = []
+    if filters.get("boiling_point_c") is not None and any(x is not None for x in filters["boiling_point_c"]):
+        parts.append(f"boiling point {rng(filters['boiling_point_c'])} (widen it)")
+    if filters.get("flash_point_c") is not None:
+        parts.append(f"flash point {rng(filters['flash_point_c'])} (widen it)")
+    if filters.get("min_flash_point_c") is not None:
+        parts.append(f"flash point at least {float(filters['min_flash_point_c']):g} C (lower it)")
+    if filters.get("max_molar_volume") is not None:
+        parts.append(f"molar volume at most {float(filters['max_molar_volume']):g} cm3/mol (raise it)")
+    if filters.get("max_hazard_class") is not None:
+        parts.append(f"hazard class at most {filters['max_hazard_class']} (allow a worse one)")
+    if filters.get("consistent_sources_only"):
+        parts.append("agreed HSP sources only (drop it)")
+    exc = filters.get("exclude")
+    if exc:
+        n = 1 if isinstance(exc, str) else len(list(exc))
+        parts.append(f"{n} liquid{'s' if n > 1 else ''} never to propose (shorten the list)")
+    if extra:
+        parts.append(extra)
+    if left_out:
+        parts.append(f"{left_out} reagents held back (reactive, explosive or very toxic; include_reactive, "
+                     "--include-reactive or the app's Include reagents brings them back)")
+    if not parts:
+        return "no liquid passes the filters"
+    return "no liquid passes the filters: " + "; ".join(parts)
+
+
 def masks_and_reagents(library: pd.DataFrame, **filters) -> tuple[np.ndarray, int]:
     """``(mask, left_out)``: the :func:`filter_mask` and how many liquids pass every other filter
     but are left out as reagents (0 with ``include_reactive=True``)."""
@@ -114,7 +152,7 @@ def _mask(library: pd.DataFrame, *, temperature: float = 25.0, include=None, exc
     exc = _as_list(exclude, "exclude")
     if exc:
         mask[locate_many(exc, library, "exclude list")] = False
-    lo, hi = _window(boiling_point_c, "boiling_point_c")
+    lo, hi = _window(boiling_point_c, "boiling-point window")
     bp = library["boiling_point_c"].to_numpy(float)
     if lo is not None:
         mask &= bp >= lo
@@ -142,7 +180,7 @@ def _mask(library: pd.DataFrame, *, temperature: float = 25.0, include=None, exc
     if consistent_sources_only:
         mask &= ~library["sources_disagree"].to_numpy(bool)
     if flash_point_c is not None:
-        flo, fhi = _window(flash_point_c, "flash_point_c")
+        flo, fhi = _window(flash_point_c, "flash-point window")
         fp = library["flash_point_c"].to_numpy(float)
         with np.errstate(invalid="ignore"):
             inside = np.isfinite(fp) & (fp >= (-np.inf if flo is None else flo)) & (fp <= (np.inf if fhi is None else fhi))

@@ -121,9 +121,13 @@ STATEMENT_FLAGS = (
     ("carcinogen, mutagen or reprotoxic", ("H340", "H350", "H360")),
     ("suspected carcinogen, mutagen or reprotoxic", ("H341", "H351", "H361")),
     ("organ damage", ("H370", "H372")),
+    ("may damage organs", ("H371", "H373")),
     ("sensitiser", ("H317", "H334")),
+    ("aspiration hazard", ("H304",)),
+    ("harmful", ("H302", "H312", "H332")),
     ("extremely or highly flammable", ("H224", "H225")),
     ("peroxide former", ("EUH019",)),
+    ("toxic to aquatic life", ("H400", "H410", "H411")),
 )
 
 
@@ -136,8 +140,18 @@ def statement_flags(statements) -> str:
     'extremely or highly flammable'
     """
     codes = {_code(c) for c in statements}
-    return ", ".join(flag for flag, hs in STATEMENT_FLAGS if codes & set(hs))
+    got = [flag for flag, hs in STATEMENT_FLAGS if codes & set(hs)]
+    return ", ".join(f for f in got if not set(_SUBSUMED_BY.get(f, ())) & set(got))
 
+
+#: a flag left out when a stronger one of the same kind is there
+_SUBSUMED_BY = {"toxic": ("fatal on exposure",), "harmful": ("fatal on exposure", "toxic"),
+                "suspected carcinogen, mutagen or reprotoxic": ("carcinogen, mutagen or reprotoxic",),
+                "may damage organs": ("organ damage",)}
+
+
+#: The note of a liquid whose decomposition energy is high (``hazards.csv``; nitro compounds).
+DECOMPOSITION_NOTE = "high decomposition energy (do not heat or distil to dryness; keep from amines and bases)"
 
 #: The hazard note of a liquid without hazard statements here (``"unclassified"``).
 NO_DATA_NOTE = "no hazard data: treat as hazardous until the safety data sheet says otherwise"
@@ -169,7 +183,8 @@ def component_notes(components, library) -> list[str]:
 def liquid_notes(library: pd.DataFrame, table: pd.DataFrame | None = None) -> np.ndarray:
     """Hazard note of each row of ``library`` (object array of str, "" = nothing to flag): the
     reagent reason ("REAGENT: ...", :mod:`selector.cautions`), then the :func:`statement_flags`
-    of its statements in ``parameters/hazards.csv``, or :data:`NO_DATA_NOTE` where it has none
+    of its statements in ``parameters/hazards.csv`` and :data:`DECOMPOSITION_NOTE` where that table
+    marks a high decomposition energy, or :data:`NO_DATA_NOTE` where it has none
     (unclassified). ``table``: :func:`hazard_columns` of ``library`` when the caller has it.
     Flags are worked out once per distinct statement list."""
     from .cautions import reactive_reasons
@@ -178,6 +193,10 @@ def liquid_notes(library: pd.DataFrame, table: pd.DataFrame | None = None) -> np
     st_ = hz["h_statements"].astype(str)
     uniq = pd.unique(st_)
     flags = st_.map(dict(zip(uniq, (statement_flags(parse_statements(u)) for u in uniq)))).to_numpy(object)
+    if "high_decomposition_energy" in hz:
+        # nitroalkanes and nitrobenzene (hazards.csv): energetic, sensitised by amines and bases
+        hot = hz["high_decomposition_energy"].to_numpy(bool)
+        flags = np.where(hot, np.where(flags == "", "", flags + ", ") + DECOMPOSITION_NOTE, flags)
     flags = np.where(hz["hazard_class"].to_numpy(object) == UNCLASSIFIED, NO_DATA_NOTE, flags)
     why = reactive_reasons(library)
     reagent = np.where(why != "", "REAGENT: " + why.astype(str).astype(object), "")
@@ -323,8 +342,8 @@ def hazard_table(library: pd.DataFrame | None = None) -> pd.DataFrame:
     Columns: ``safety_score, health_score, environment_score`` (1-10, NaN if unclassified),
     ``hazard_class`` (a :data:`HAZARD_CLASSES` name or ``"unclassified"``), ``hazard_rank``
     (0 = recommended .. 3 = highly hazardous, NaN if unclassified), ``hazard_class_default``,
-    ``h_statements``, ``peroxide_former``, ``regulatory_note``, ``hazard_source``,
-    ``flash_point_basis`` (where the flash point for the safety score came from).
+    ``h_statements``, ``peroxide_former``, ``high_decomposition_energy``, ``regulatory_note``,
+    ``hazard_source``, ``flash_point_basis`` (where the flash point for the safety score came from).
     Liquids are matched to ``hazards.csv`` by CAS number.
     """
     lib = load_library() if library is None else library
@@ -346,6 +365,7 @@ def hazard_table(library: pd.DataFrame | None = None) -> pd.DataFrame:
     out["hazard_rank"] = np.nan
     out["h_statements"] = ""
     out["peroxide_former"] = False
+    out["high_decomposition_energy"] = False
     out["regulatory_note"] = ""
     out["hazard_source"] = "no hazard data: unclassified (check the supplier's safety data sheet)"
     out["flash_point_basis"] = ""
@@ -398,11 +418,13 @@ def hazard_table(library: pd.DataFrame | None = None) -> pd.DataFrame:
     out.iloc[pos, col("hazard_rank")] = [HAZARD_CLASSES.index(c) for c in final]
     out.iloc[pos, col("h_statements")] = [" ".join(t) for t in stm]
     out.iloc[pos, col("peroxide_former")] = rows["peroxide_former"].to_numpy(bool)
+    out.iloc[pos, col("high_decomposition_energy")] = rows["high_decomposition_energy"].to_numpy(bool)
     out.iloc[pos, col("regulatory_note")] = rows["regulatory_note"].to_numpy(str)
     out.iloc[pos, col("hazard_source")] = (rows["source"].to_numpy(str).astype(object)
                                            + "; scores: " + METHOD)
     out.iloc[pos, col("flash_point_basis")] = basis
     out["peroxide_former"] = out["peroxide_former"].astype(bool)
+    out["high_decomposition_energy"] = out["high_decomposition_energy"].astype(bool)
     return out
 
 

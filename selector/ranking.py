@@ -108,10 +108,10 @@ def rank(target, *, temperature: float = 25.0, library: pd.DataFrame | None = No
         mask &= lib["name"].to_numpy() != tgt.name  # a liquid is not its own candidate
     cand = lib.loc[mask]
     if len(cand) == 0:
-        raise SelectorError(("no liquid passes the filters" + (f" ({left_out} reagents left out: include_reactive "
-                             "/ --include-reactive allows them)" if left_out else "")) +
-                            "; widen the boiling-point window, lower the "
-                            "minimum flash point or shorten the exclude list")
+        from .filters import nothing_passes
+
+        raise SelectorError(nothing_passes(filters, left_out, "" if abs(t_c - 25.0) < 1e-9 else
+                                           f"liquid at {t_c:g} C (temperature)"))
     h = corrected_hsp(cand, t_c)
     dist = _ra(h, tgt.hsp)
     pm = polarity_match(h, tgt.hsp)

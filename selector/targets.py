@@ -99,7 +99,7 @@ def unit_hint(t: Target) -> str:
     its dD is below :data:`CAL_HINT_DD`, lower than any liquid's.
 
     >>> unit_hint(Target(8.7, 3.0, 2.0))[:40]
-    'dD 8.7 is lower than any liquid (the lo'
+    'dD 8.7 is lower than any liquid (the low'
     """
     d = float(t.delta_d)
     if d >= CAL_HINT_DD:

@@ -248,6 +248,20 @@ def test_blend_and_substitute_rows_carry_component_hazard_notes():
     assert statement_flags(("H301", "H350")) == "toxic, carcinogen, mutagen or reprotoxic"
     assert statement_flags(("H360FD",)) == "carcinogen, mutagen or reprotoxic"
     assert statement_flags(("H315", "H319")) == ""
+    # app review: 1,2-dichlorobenzene (H302 H315 H319 H335 H400 H410 in hazards.csv, from memory
+    # there) had a blank note. GHS: H302 "harmful if swallowed", H400/H410 "very toxic to aquatic
+    # life"; a stronger flag of the same kind hides the weaker one (H301 toxic over H302 harmful).
+    assert statement_flags(("H302", "H315", "H319", "H335", "H400", "H410")) == "harmful, toxic to aquatic life"
+    assert statement_flags(("H301", "H302", "H304")) == "toxic, aspiration hazard"
+    assert statement_flags(("H350", "H361d", "H372", "H373")) == "carcinogen, mutagen or reprotoxic, organ damage"
+    from selector.hazards import DECOMPOSITION_NOTE, liquid_notes
+
+    lib0 = selector.load_library()
+    rows = lib0.iloc[[selector.library.locate(n, lib0) for n in ("1,2-dichlorobenzene", "nitroethane")]]
+    dcb, ne = liquid_notes(rows)
+    assert dcb == "harmful, toxic to aquatic life"
+    # nitroethane: high decomposition energy in hazards.csv (a CHEM21 safety-score term)
+    assert ne.endswith(DECOMPOSITION_NOTE)
     lib = selector.load_library()
     st = hazard_statements().set_index("name")
     notes = component_notes([("morpholine", "anisole")], lib)[0]

@@ -140,6 +140,23 @@ def test_typed_targets_beyond_any_liquid_are_refused():
     assert len(selector.rank((29.9, 39.9, 49.9), top=3)) == 3
 
 
+def test_an_empty_result_names_every_filter_in_force():
+    # app review: the message did not mention the molar-volume filter or the reagents held back,
+    # and called the app's "Never propose" list an "exclude list"
+    from selector.errors import SelectorError
+
+    with pytest.raises(SelectorError) as e:
+        selector.rank((17.0, 5.0, 5.0), boiling_point_c=(40, 41), max_molar_volume=50, exclude=["water"])
+    msg = str(e.value)
+    assert "boiling point 40 to 41 C" in msg and "molar volume at most 50" in msg and "never to propose" in msg
+    lib = selector.load_library()
+    two = lib.loc[lib["name"].isin(["acetyl chloride", "toluene"])]   # acetyl chloride: a reagent
+    with pytest.raises(SelectorError, match="1 reagents held back"):
+        selector.rank((17.0, 5.0, 5.0), library=two, exclude=["toluene"])
+    with pytest.raises(SelectorError, match=r"^boiling-point window: low \(200\) is above high \(100\)"):
+        selector.rank((17.0, 5.0, 5.0), boiling_point_c=(200, 100))
+
+
 def test_targets_in_cal_units_get_a_note():
     # 1 (cal/cm3)^0.5 = 2.0455 MPa^0.5 (Hansen's handbook, ch. 1); the lowest dD among the bundled
     # liquids is perfluoropentane's 11.3 (the published table it comes from), so a typed dD below

@@ -34,10 +34,10 @@ COLUMN_CONFIG = {
     "rank": st.column_config.NumberColumn("Rank", format="%d", width="small"),
     "name": st.column_config.TextColumn("Liquid"),
     "cas": st.column_config.TextColumn("CAS"),
-    "delta_d": st.column_config.NumberColumn("dD", help="dispersion, MPa^0.5", format="%.1f"),
-    "delta_p": st.column_config.NumberColumn("dP", help="polar, MPa^0.5", format="%.1f"),
-    "delta_h": st.column_config.NumberColumn("dH", help="hydrogen bonding, MPa^0.5", format="%.1f"),
-    "ra": st.column_config.NumberColumn("Ra", help="Hansen distance to the target, MPa^0.5", format="%.2f"),
+    "delta_d": st.column_config.NumberColumn("dD", help="dispersion, MPa½", format="%.1f"),
+    "delta_p": st.column_config.NumberColumn("dP", help="polar, MPa½", format="%.1f"),
+    "delta_h": st.column_config.NumberColumn("dH", help="hydrogen bonding, MPa½", format="%.1f"),
+    "ra": st.column_config.NumberColumn("Ra", help="Hansen distance to the target, MPa½", format="%.2f"),
     "red": st.column_config.NumberColumn("RED", help="Ra / R0; below 1: expected to dissolve", format="%.2f"),
     "polarity_match": st.column_config.NumberColumn("Polarity match", help="0..1, 1 = same share of "
                                                     "dispersion/polar/H-bond energy", format="%.2f"),
@@ -53,7 +53,7 @@ COLUMN_CONFIG = {
     "data_note": st.column_config.TextColumn("Data note", help="Boiling point or vapour pressure in "
                                              "doubt: the published values disagree"),
     "sources_disagree": st.column_config.CheckboxColumn("Sources disagree",
-                                                        help="published HSP differ by > 1 MPa^0.5"),
+                                                        help="published HSP differ by > 1 MPa½"),
     "hsp_note": st.column_config.TextColumn("HSP note", help="why this published source was kept, or a "
                                             "source row that repeats another compound's values"),
     "ra_to_target": st.column_config.NumberColumn("Ra", format="%.2f"),
@@ -209,9 +209,15 @@ def md_escape(text) -> str:
     return "".join("\\" + ch if ch in _MD_SPECIAL else ch for ch in str(text))
 
 
+def ui_units(text: str) -> str:
+    """A library message with its plain-text units as the pages write them (MPa½, cm³)."""
+    return (str(text).replace("MPa^0.5", "MPa½").replace("(cal/cm3)^0.5", "(cal/cm³)½")
+            .replace("cm3/mol", "cm³/mol"))
+
+
 def show_error(e: Exception) -> None:
     msg = str(e).strip() or type(e).__name__
-    st.error(md_escape(msg))
+    st.error(md_escape(ui_units(msg)))
 
 
 def call(fn, *args, **kwargs):
@@ -311,13 +317,13 @@ def estimate_note(spec: dict | None = None) -> str:
         return text[:1].upper() + text[1:] if text else ""
     dom = ("inside the estimator's domain" if s.get("in_domain") else
            "OUTSIDE the estimator's domain: a rough guess")
-    return (text[:1].upper() + text[1:]).replace("MPa^0.5", "MPa½") + f" ({dom})."
+    return ui_units(text[:1].upper() + text[1:]) + f" ({dom})."
 
 
 def target_line() -> None:
     t = target()
-    st.markdown(f"**Target:** {md_escape(t.describe().replace('MPa^0.5', 'MPa½'))}  \n"
-                f"<small>source: {md_escape(t.source.replace('MPa^0.5', 'MPa½'))}</small>",
+    st.markdown(f"**Target:** {md_escape(ui_units(t.describe()))}  \n"
+                f"<small>source: {md_escape(ui_units(t.source))}</small>",
                 unsafe_allow_html=True)
     note = estimate_note()
     if note:
@@ -376,7 +382,7 @@ def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool
         exc = c6.multiselect("Never propose", liquid_names(), default=d.get("exclude", []),
                              key=f"{prefix}_exc")
         agreed = c7.checkbox("Agreed sources only", value=False, key=f"{prefix}_agreed",
-                             help="drop liquids whose published HSP differ by more than 1 MPa^0.5")
+                             help="drop liquids whose published HSP differ by more than 1 MPa½")
         reactive = c8.checkbox("Include reagents", value=False, key=f"{prefix}_reactive",
                                help="also propose reactive, explosive or very toxic liquids that are "
                                     "reagents rather than solvents (acid chlorides, isocyanates, "

@@ -39,7 +39,7 @@ def show_drying(path: pd.DataFrame, components) -> None:
         st.warning("The solute may come out of solution before the film has set: the remaining liquid "
                    "leaves the sphere early. Add a slower good solvent or change the shares.")
     for w in a.get("warnings", []) or []:
-        st.warning(str(w))
+        st.warning(common.ui_units(w))
     if a.get("message"):
         st.caption(str(a["message"]))
     with st.expander("Drying path table"):

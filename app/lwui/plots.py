@@ -2,7 +2,7 @@
 
 Colours: the Okabe-Ito palette (Okabe and Ito, "Color Universal Design", 2008), safe for the
 common forms of colour blindness. Good and bad liquids differ in marker shape as well as colour
-(filled circle vs cross), so the plots also read in grey print.
+(filled circle vs cross; a filled square in 3-D), so the plots also read in grey print.
 
 Geometry only: every plotted number comes from :mod:`selector` (HSP, Teas fractions, fits,
 phase boundaries). The Hansen sphere is drawn in (dD, dP, dH) axes, where the sphere of radius
@@ -30,7 +30,9 @@ BLACK = "#000000"
 GOOD = dict(color=BLUE, symbol="circle")
 BAD = dict(color=VERMILLION, symbol="x")
 BORDER = dict(color=ORANGE, symbol="diamond-open")
-AXIS = {"d": "dD (MPa^0.5)", "p": "dP (MPa^0.5)", "h": "dH (MPa^0.5)"}
+AXIS = {"d": "dD (MPa½)", "p": "dP (MPa½)", "h": "dH (MPa½)"}
+#: WebGL (3-D) draws the "x" marker as an empty box in Chromium: a filled square stands in
+SYMBOL_3D = {"x": "square"}
 
 
 def _hover(df: pd.DataFrame) -> list[str]:
@@ -66,7 +68,7 @@ def hsp_space_3d(groups, spheres=(), title="Hansen space") -> go.Figure:
         fig.add_trace(go.Scatter3d(
             x=df["delta_d"], y=df["delta_p"], z=df["delta_h"], mode="markers", name=label,
             text=_hover(df), hoverinfo="text",
-            marker=dict(size=size, color=style["color"], symbol=style["symbol"],
+            marker=dict(size=size, color=style["color"], symbol=SYMBOL_3D.get(style["symbol"], style["symbol"]),
                         opacity=style.get("opacity", 0.9), line=dict(width=0))))
     colours = [GREEN, PURPLE, SKY]
     for i, (label, c, r) in enumerate(spheres):
@@ -77,9 +79,13 @@ def hsp_space_3d(groups, spheres=(), title="Hansen space") -> go.Figure:
                                      colorscale=[[0, col], [1, col]], hoverinfo="skip", showlegend=True))
         fig.add_trace(go.Scatter3d(x=[c[0]], y=[c[1]], z=[c[2]], mode="markers", name=f"{label} (centre)",
                                    marker=dict(size=6, color=BLACK, symbol="diamond")))
+    # camera drawn back from plotly's default (1.25, 1.25, 1.25) so that the lower corner and the
+    # dD axis title stay inside the frame
     fig.update_layout(title=title, scene=dict(xaxis_title=AXIS["d"], yaxis_title=AXIS["p"],
-                                              zaxis_title=AXIS["h"], aspectmode="data"))
-    return _layout(fig, 620)
+                                              zaxis_title=AXIS["h"], aspectmode="data",
+                                              camera=dict(eye=dict(x=1.9, y=1.9, z=1.25),
+                                                          center=dict(x=0, y=0, z=-0.05))))
+    return _layout(fig, 640)
 
 
 def projections_2d(groups, spheres=()) -> go.Figure:

@@ -101,7 +101,7 @@ with tab1:
         st.markdown(f"<div id='lw-mix-state'>{a} + {b} at {t:g} °C: <b>{state}</b></div>",
                     unsafe_allow_html=True)
         for w in getattr(r, "warnings", []) or []:
-            st.warning(str(w))
+            st.warning(common.ui_units(w))
         for note in getattr(r, "notes", []) or []:
             if note.startswith("REACTIVE PAIR"):
                 st.error(str(note), icon=":material/warning:")

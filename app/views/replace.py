@@ -59,14 +59,16 @@ if res is None:
     st.stop()
 res = res.copy()
 for w in res.attrs.get("warnings", []):
-    st.warning(w)
+    st.warning(common.ui_units(w))
 res.attrs = {}  # a Target in attrs cannot go to the browser
 res.insert(0, "candidate", [" + ".join(f"{f:.0%} {c}" for c, f in zip(cs, fs)) if len(cs) > 1 else cs[0]
                             for cs, fs in zip(res["components"], res["fractions"])])
 ref = res.loc[res["role"] == "replaced"] if "role" in res else res.iloc[:0]
 cand = res.loc[res["role"] != "replaced"] if "role" in res else res
 if len(cand) == 0:
-    st.warning("No safer candidate passes these filters; widen them.")
+    cls0 = ref.iloc[0].get("hazard_class", "unclassified") if len(ref) else "unclassified"
+    st.warning(f"No liquid or blend with a better hazard class than {old} ({cls0}) passes these filters. "
+               + common.filters_summary(filters))
     st.stop()
 metric = "red" if keep and cand["red"].notna().any() else "ra"
 if len(ref):

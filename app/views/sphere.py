@@ -104,7 +104,7 @@ m[4].metric("Fit score (1 = all right)", f"{res.score:.3f}")
 st.markdown(f"<div id='lw-fit'>Fitted sphere: dD {res.delta_d:.2f}, dP {res.delta_p:.2f}, "
             f"dH {res.delta_h:.2f}, R0 {res.radius:.2f} MPa½</div>", unsafe_allow_html=True)
 for w in getattr(res, "warnings", []) or []:
-    st.warning(str(w))
+    st.warning(common.ui_units(w))
 iv = getattr(res, "intervals", None) or {}
 if iv:
     st.markdown("**Intervals** (bootstrap and profile region combined)")

@@ -26,7 +26,7 @@ if not common.is_demo() and st.button("Back to the invented demo resin", key="tg
 
 hint = unit_hint(t)
 if hint:
-    st.warning(hint.replace("MPa^0.5", "MPa½").replace("(cal/cm3)^0.5", "(cal/cm³)½"))
+    st.warning(common.ui_units(hint))
 common.show_flash()
 # a keyed choice, not st.tabs: it stays on the chosen way across the rerun that sets the target
 WAYS = ["Type the numbers", "A library liquid", "Estimate from a structure (SMILES)", "Fitted sphere"]
