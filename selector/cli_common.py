@@ -142,7 +142,18 @@ def library_from_args(a):
     from .library import load_library
 
     check_file_args(a)
-    return load_library(getattr(a, "mine", None))
+    mine = getattr(a, "mine", None)
+    lib = load_library(mine)
+    if mine:
+        import sys
+
+        from .library import unused_user_columns
+
+        unused = unused_user_columns(mine)
+        if unused:
+            print(f"note: {mine}: column(s) {', '.join(unused)} are not used (check the spelling: e.g. bp, "
+                  "fp, V, R0)", file=sys.stderr)
+    return lib
 
 
 def _top_count(text: str) -> int:

@@ -315,6 +315,30 @@ def validate_user_table(table, library: pd.DataFrame | None = None) -> pd.DataFr
     return df
 
 
+#: Columns of a user table that no computation reads but that belong there (a remark; the marks
+#: and intervals of an estimate).
+USER_EXTRA_COLUMNS = ("note", "kind", "radius", "in_domain", "similarity", "nearest", "source", "message",
+                      "matched_name", "library_name", "duplicate_of")
+
+
+def unused_user_columns(table) -> list[str]:
+    """Columns of a user table that no page, command or function reads: neither a user column
+    (:data:`USER_COLUMN_ALIASES`, after renaming), nor a library column, nor an estimate's
+    ``<column>_low`` / ``_high`` / mark, nor one dropped on import (:data:`DERIVED_COLUMNS`).
+    A typo in a header ("boling point") lands here, so the user can be told.
+
+    >>> unused_user_columns(pd.DataFrame(columns=["name", "dD", "dP", "dH", "boling point"]))
+    ['boling point']
+    """
+    from .io import rename_aliases
+
+    lib = load_library()   # the bundled columns (a merged library carries the user's own)
+    df = rename_aliases(_as_frame(table).iloc[:0], USER_COLUMN_ALIASES, "user liquids")
+    known = set(USER_COLUMN_ALIASES) | set(lib.columns) | set(DERIVED_COLUMNS) | set(USER_EXTRA_COLUMNS)
+    known |= {f"{c}_{s}" for c in ("delta_d", "delta_p", "delta_h", "molar_volume") for s in ("low", "high")}
+    return [str(c) for c in df.columns if str(c) not in known]
+
+
 def user_row_problems(table) -> tuple[pd.DataFrame, dict[int, list[str]]]:
     """``(cleaned table, problems)``: the checks of :func:`validate_user_table` without raising;
     ``problems`` maps the position of each row that cannot be saved to its reasons (a name used

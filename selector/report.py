@@ -137,12 +137,26 @@ def _cell(v) -> str:
     return str(v)
 
 
+def round_half_away(x, digits: int = 0):
+    """Round half away from zero (188.5 -> 189), as printf and the pages' tables do; Python's
+    ``round`` and ``format`` round half to even (188.5 -> 188). Scalars or arrays; NaN stays NaN.
+
+    >>> float(round_half_away(188.5)), float(round_half_away(-0.25, 1)), float(round_half_away(2.675, 2))
+    (189.0, -0.3, 2.68)
+    """
+    k = 10.0 ** digits
+    a = np.asarray(x, dtype=float)
+    # the small nudge takes decimal ties stored just below .5 (2.675 is 2.67499999...) up
+    return np.sign(a) * np.floor(np.abs(a) * k + 0.5 + 1e-9) / k
+
+
 def _table_cells(df: pd.DataFrame, columns) -> tuple[list[str], list[list[str]]]:
     cols = [c for c in (columns or list(df.columns)) if c in df.columns]
     g = guard_cells(df[cols])
     head = [COLUMN_LABELS.get(c, c) for c in cols]
     whole = [c.endswith("_c") for c in cols]  # temperatures in C: whole degrees
-    rows = [[(f"{float(v):.0f}" if w and isinstance(v, (float, np.floating)) and math.isfinite(float(v))
+    # half away from zero, as the pages' tables round (188.5 C is 189 on both, not 188 here)
+    rows = [[(f"{float(round_half_away(v)):.0f}" if w and isinstance(v, (float, np.floating)) and math.isfinite(float(v))
               else _cell(v)) for v, w in zip(r, whole)] for r in g.itertuples(index=False, name=None)]
     return head, rows
 

@@ -210,6 +210,25 @@ def parse_blend(text: str, library: pd.DataFrame):
     return np.asarray(pos, int), f / f.sum()
 
 
+def test_columns_problem(df: pd.DataFrame, library: pd.DataFrame | None = None) -> str:
+    """What is wrong with the columns of a lab-test table (after :func:`normalise_test_columns`),
+    "" when it names the liquids (a ``solvent`` column, or delta_d/delta_p/delta_h). Says so when
+    the first line reads like a test rather than a header (a liquid's name or a number)."""
+    if "solvent" in df.columns or all(c in df.columns for c in HSP):
+        return ""
+    cols = [str(c) for c in df.columns]
+    found = f"columns found: {', '.join(cols)}"
+    if len(cols) == 1 and re.search(r"[;\t]", cols[0]):
+        return f"no 'solvent' column ({found}); the file looks separated by semicolons or tabs: use commas"
+    lib = load_library() if library is None else library
+    names = set(lib["name"].astype(str).str.lower())
+    if any(c.strip().lower() in names or _to_float(c) is not None for c in cols):
+        return (f"no header row: the first line ({', '.join(cols)}) reads like a test. Add a first line "
+                "naming the columns, e.g. solvent,dissolved")
+    return ("no 'solvent' column and no delta_d, delta_p, delta_h columns: say which liquid each "
+            f"test used ({found})")
+
+
 def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | None = None,
                threshold: float | None = None, scale=None, temperature: float = 25.0) -> pd.DataFrame:
     """Read and validate a table of lab tests; every problem is reported at once.
@@ -244,13 +263,10 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
     notes: list[str] = []
     if len(df) == 0:
         raise InputTableError("lab tests", ["the table has no rows"])
+    problem = test_columns_problem(df, lib)
+    if problem:
+        raise InputTableError("lab tests", [problem])
     has_numbers = all(c in df.columns for c in HSP)
-    if "solvent" not in df.columns and not has_numbers:
-        hint = ("; the file looks separated by semicolons or tabs: use commas"
-                if len(df.columns) == 1 and re.search(r"[;\t]", str(df.columns[0])) else "")
-        raise InputTableError("lab tests", [
-            "no 'solvent' column and no delta_d, delta_p, delta_h columns: say which liquid each "
-            f"test used (columns found: {', '.join(map(str, df.columns))}){hint}"])
     graded = threshold is not None
     if graded:
         thr = _to_float(threshold)

@@ -256,6 +256,13 @@ def test_smiles_estimate_and_invalid_smiles(at):
     at.button[[b.label for b in at.button].index("Estimate")].click().run()
     assert not at.exception
     assert any("SMILES" in e for e in errors(at))
+    # app review: an empty box left the previous answer on the page
+    at.text_input(key="tg_smiles").set_value("CCCCOC(C)=O")
+    at.button[[b.label for b in at.button].index("Estimate")].click().run()
+    assert len(at.table) == 1
+    at.text_input(key="tg_smiles").set_value("")
+    at.button[[b.label for b in at.button].index("Estimate")].click().run()
+    assert any("Type a SMILES" in e for e in errors(at)) and len(at.table) == 0
 
 
 
@@ -461,6 +468,18 @@ def test_blend_page_matches_find_blends(at):
                                 activity="raoult", relative_humidity=50.0)
     note = [m.value for m in at.markdown if "lw-drying" in m.value]
     assert note and f"last to leave: <b>{path.attrs['tail_solvent']}</b>" in note[0]
+    # app review: the sentence was said twice (the library's message as a caption too)
+    assert not any("tail solvent" in c.value for c in at.caption)
+    # and the RED axis was on a grid of its own: both axes now have five divisions, so RED = 1
+    # sits on a right-hand tick at a left-hand grid line
+    import json
+
+    fig = [json.loads(c.proto.spec) for c in at.get("plotly_chart")]
+    fig = [f for f in fig if any(d.get("name", "").startswith("RED = 1") for d in f["data"])][0]
+    left, right = fig["layout"]["yaxis"], fig["layout"]["yaxis2"]
+    assert left["range"] == [0, 1] and left["dtick"] == 0.2
+    assert right["range"][1] == pytest.approx(5 * right["dtick"])
+    assert (1.0 / right["dtick"]) == pytest.approx(round(1.0 / right["dtick"]))
 
 
 @pytest.mark.skipif(not has("blends"), reason="selector.blends not installed")
@@ -565,6 +584,12 @@ def test_my_liquids_bad_upload_keeps_the_file(at, home):
     assert not at.exception
     assert any("not imported" in e for e in errors(at))
     assert f.read_bytes() == before
+    # app review: a misspelt header was accepted without a word; "boling point" is no column
+    at.file_uploader(key="mine_up").upload("typo.csv", b"name,delta_d,delta_p,delta_h,boling point\n"
+                                           b"y,16,4,4,120\n", "text/csv").run()
+    assert not at.exception
+    assert any("boling point" in w.value and "not used" in w.value for w in at.warning)
+    assert f.read_bytes() == before
 
 
 # ---------------------------------------------------------------- report builder
@@ -601,6 +626,12 @@ def test_report_contains_inputs_target_cautions_and_escapes():
     assert "&#x27;=HYPERLINK" in html
     with pytest.raises(selector.SelectorError):
         build_report("x", fmt="pdf")
+    # app review: iodobenzene's 188.5 C (the library's boiling point) was 189 on the page (printf
+    # rounding, half away from zero) and 188 in the report (Python's half-to-even)
+    io = selector.find_liquid("iodobenzene")
+    assert io.boiling_point_c == 188.5
+    md = build_report("x", table=pd.DataFrame({"name": ["iodobenzene"], "boiling_point_c": [io.boiling_point_c]}))
+    assert "| iodobenzene | 189 |" in md
 
 
 def test_caution_table_marks_unclassified():

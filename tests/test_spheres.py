@@ -487,3 +487,16 @@ def test_demo_fit_intervals_hold_the_demo_sphere():
     for k in PARAMS:
         lo, hi = fit.intervals[k]
         assert lo <= r[k] <= hi, (k, lo, r[k], hi)
+
+
+def test_a_lab_table_without_a_header_row_is_named_as_such():
+    # app review: a file whose first line is a test (no header) was answered with a column
+    # message that did not say what was wrong; toluene and acetone are library liquids
+    import io
+
+    from selector.errors import InputTableError
+
+    with pytest.raises(InputTableError, match="no header row: the first line \\(toluene, 1\\)"):
+        read_tests(io.StringIO("toluene,1\nacetone,0\nethanol,1\nhexane,0\n"))
+    with pytest.raises(InputTableError, match="columns found: a, b, c"):
+        read_tests(io.StringIO("a,b,c\n1,2,3\n"))

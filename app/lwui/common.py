@@ -48,8 +48,9 @@ COLUMN_CONFIG = {
     "exposure_limit": st.column_config.NumberColumn("Exposure limit", format="%.4g"),
     "exposure_limit_unit": st.column_config.TextColumn("unit"),
     "hsp_source": st.column_config.TextColumn("HSP source"),
-    "hazard_notes": st.column_config.TextColumn("Hazard notes", help="for a blend, per component: corrosive, toxic, "
-                                                "CMR, flammable, peroxide former; REACTIVE PAIR if two react"),
+    "hazard_notes": st.column_config.TextColumn("Hazard notes", help="for a blend, per component: fatal, toxic, "
+                                                "harmful, corrosive, CMR, flammable, peroxide former, aquatic "
+                                                "toxicity, ...; REACTIVE PAIR if two react"),
     "data_note": st.column_config.TextColumn("Data note", help="Boiling point or vapour pressure in "
                                              "doubt: the published values disagree"),
     "sources_disagree": st.column_config.CheckboxColumn("Sources disagree",
@@ -291,7 +292,7 @@ def demo_banner(on_target_page: bool = False) -> None:
 
 
 #: the fields of an estimated row that a target spec keeps (so the mark and intervals survive)
-_ESTIMATE_FIELDS = ("origin", "in_domain") + tuple(f"{c}_{s}" for c in ("delta_d", "delta_p", "delta_h")
+_ESTIMATE_FIELDS = ("origin", "in_domain", "similarity") + tuple(f"{c}_{s}" for c in ("delta_d", "delta_p", "delta_h")
                                                   for s in ("low", "high"))
 
 
@@ -315,8 +316,12 @@ def estimate_note(spec: dict | None = None) -> str:
     text = note(s)
     if not text or s.get("origin") != "estimated":
         return text[:1].upper() + text[1:] if text else ""
-    dom = ("inside the estimator's domain" if s.get("in_domain") else
-           "OUTSIDE the estimator's domain: a rough guess")
+    from selector.estimation import DOMAIN_THRESHOLD
+
+    sim = s.get("similarity")
+    sim = f", nearest training molecule at similarity {float(sim):.2f}" if isinstance(sim, (int, float)) else ""
+    dom = (f"inside the estimator's domain (similarity >= {DOMAIN_THRESHOLD:.2f}{sim})" if s.get("in_domain") else
+           f"OUTSIDE the estimator's domain{sim}: a rough guess")
     return ui_units(text[:1].upper() + text[1:]) + f" ({dom})."
 
 
@@ -468,6 +473,10 @@ def table(df: pd.DataFrame, **kw):
     d.attrs = {}
     from selector.cautions import with_flash_texts
 
+    from selector.report import round_half_away
+
+    for c in [c for c in d.columns if c.endswith("_c") and pd.api.types.is_float_dtype(d[c])]:
+        d[c] = round_half_away(d[c].to_numpy(float))   # whole degrees as in the reports
     d = with_flash_texts(d, fmt="{:.0f}")   # an empty cell would mean both "does not burn" and "no data"
     empty = [c for c in ("estimated", "hazard_notes", "hsp_note") if c in d.columns
              and d[c].fillna("").astype(str).str.strip().eq("").all()]
@@ -496,7 +505,11 @@ def readable_top(df: pd.DataFrame, columns: list[str], n: int = 5, key: str = "t
     from selector.cautions import with_flash_texts
 
     cols = list(dict.fromkeys(c for c in columns if c and c in df.columns))
-    head = df.head(n)
+    from selector.report import round_half_away
+
+    head = df.head(n).copy()
+    for c in [c for c in head.columns if c.endswith("_c") and pd.api.types.is_float_dtype(head[c])]:
+        head[c] = round_half_away(head[c].to_numpy(float))   # 188.5 C is 189 here and in the reports
     # flash points as text: a blank would mean both "does not burn" and "no data"
     top = with_flash_texts(head, fmt="{:.0f}")[cols].copy()
     if "name" in cols:

@@ -40,7 +40,7 @@ def show_drying(path: pd.DataFrame, components) -> None:
                    "leaves the sphere early. Add a slower good solvent or change the shares.")
     for w in a.get("warnings", []) or []:
         st.warning(common.ui_units(w))
-    if a.get("message"):
+    if a.get("message") and not bits:   # the sentence above already says what the message says
         st.caption(str(a["message"]))
     with st.expander("Drying path table"):
         common.table(path, hide_index=True, width="stretch")

@@ -220,13 +220,15 @@ def drying_plot(path: pd.DataFrame, x: str, series: list[str], y2: str | None = 
         fig.add_trace(go.Scatter(x=path[x], y=path[y2], mode="lines", name=y2.upper() if y2 == "red" else "Ra",
                                  line=dict(color=BLACK, width=2)), secondary_y=True)
         top = float(np.nanmax(path[y2].to_numpy(float))) if len(path) else 1.0
-        rng = [0, max(1.1, 1.05 * top)] if y2 == "red" else None  # keep the RED = 1 line in view
-        hi = rng[1] if rng else max(top, 1e-9)
-        step = next(d for d in (0.1, 0.2, 0.25, 0.5, 1, 2, 5, 10, 20, 50, 1e9) if hi / d <= 8)
-        # round ticks from 0 (not ones aligned to the left axis' grid), no second grid
-        fig.update_yaxes(title_text=DRYING_TITLES.get(y2, y2), secondary_y=True, range=rng,
+        need = max(1.1, 1.05 * top) if y2 == "red" else max(1.05 * top, 1e-9)   # RED = 1 in view
+        # five divisions on both axes (left: 0, 0.2, .. 1), so that the right ticks sit on the
+        # left axis' grid lines and a reading on one axis is not taken for the other's
+        step = next(d for d in (0.05, 0.1, 0.2, 0.25, 0.5, 1, 2, 2.5, 5, 10, 20, 25, 50, 100, 1e9)
+                    if 5 * d >= need)
+        fig.update_yaxes(title_text=DRYING_TITLES.get(y2, y2), secondary_y=True, range=[0, 5 * step],
                          tickmode="linear", tick0=0, dtick=step, showgrid=False)
     fig.update_xaxes(title_text=DRYING_TITLES.get(x, x))
-    fig.update_yaxes(title_text="volume fraction in the liquid", secondary_y=False)
+    fig.update_yaxes(title_text="volume fraction in the liquid", secondary_y=False, range=[0, 1],
+                     tickmode="linear", tick0=0, dtick=0.2)
     fig.update_layout(title=title)
     return _layout(fig, 430)

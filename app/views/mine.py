@@ -115,6 +115,12 @@ if up is not None:
     except (ValueError, KeyError) as e:
         common.show_error(f"{up.name} was not imported (nothing was changed). {e}")
     else:
+        from selector.library import unused_user_columns
+
+        unused = unused_user_columns(up.getvalue())
+        if unused:
+            st.warning(f"{up.name}: column(s) {', '.join(unused)} are not used anywhere (check the spelling: "
+                       "e.g. bp or boiling point, fp, V, R0); they are kept in the table but no page reads them.")
         common.table(new, hide_index=True, width="stretch")
         if st.button(f"Add these {len(new)} liquid(s) to the table", key="mine_add"):
             keep = rows.loc[~rows["name"].fillna("").astype(str).str.lower().isin(new["name"].str.lower())]

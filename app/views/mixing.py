@@ -122,9 +122,10 @@ with tab1:
             st.plotly_chart(plots.phase_diagram(sweep, getattr(r, "ucst_c", None), float(t),
                                                 x_label=f"volume fraction of {r.a}"),
                             width="stretch", key="mx_phase")
-            st.caption("Each point is selector.miscibility at that temperature, over the range where "
-                       "both are liquid at 1 atm. Inside the binodal the mixture splits into two phases; "
-                       "inside the spinodal it does so spontaneously.")
+            st.caption("The same model as the answer above, worked out at each temperature where both "
+                       "are liquid at 1 atm. Inside the binodal the mixture splits into two phases; "
+                       "inside the spinodal it does so spontaneously. A model picture: the temperature "
+                       "of a real gap can be far off (see the notes).")
         elif sweep is not None:
             st.caption("No miscibility gap anywhere in the liquid range of the pair (model estimate).")
         st.warning("A phase split can also hide a reaction, a hazard or an azeotrope; the safety data "

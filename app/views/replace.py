@@ -61,6 +61,9 @@ res = res.copy()
 for w in res.attrs.get("warnings", []):
     st.warning(common.ui_units(w))
 res.attrs = {}  # a Target in attrs cannot go to the browser
+if "component_ra" in res:   # a tuple per row: shown like the Ra column, two decimals
+    res["component_ra"] = [" / ".join(f"{float(x):.2f}" for x in v) if isinstance(v, (tuple, list)) else v
+                           for v in res["component_ra"]]
 res.insert(0, "candidate", [" + ".join(f"{f:.0%} {c}" for c, f in zip(cs, fs)) if len(cs) > 1 else cs[0]
                             for cs, fs in zip(res["components"], res["fractions"])])
 ref = res.loc[res["role"] == "replaced"] if "role" in res else res.iloc[:0]
@@ -98,7 +101,8 @@ common.table(res[show], hide_index=True, width="stretch", column_config=dict(
     common.COLUMN_CONFIG, candidate=st.column_config.TextColumn("Candidate"),
     lowest_flash_point_c=st.column_config.NumberColumn("Lowest flash point (°C)", format="%.0f"),
     evaporation_rate=st.column_config.NumberColumn("Evaporation rate", format="%.2f"),
-    mismatch=st.column_config.NumberColumn("Property mismatch", format="%.2f")))
+    mismatch=st.column_config.NumberColumn("Property mismatch", format="%.2f"),
+    component_ra=st.column_config.TextColumn("Ra of each component", help="MPa½, in the order of the candidate")))
 st.caption("The first row is the liquid being replaced, for comparison.")
 
 lib = common.library()

@@ -53,11 +53,12 @@ elif src == "Upload a CSV":
             from selector.spheres import normalise_test_columns
 
             # UTF-8 or Windows-1252, comma/semicolon/tab, decimal commas; dD/δD... headers accepted
+            from selector.spheres import test_columns_problem
+
             base = normalise_test_columns(read_user_csv(up))
-            has_numbers = all(c in base.columns for c in ("delta_d", "delta_p", "delta_h"))
-            if len(base) == 0 or ("solvent" not in base.columns and not has_numbers):
-                raise ValueError("the file needs a 'solvent' column (or dD, dP, dH columns) and at least "
-                                 f"one row; columns found: {', '.join(map(str, base.columns))}")
+            problem = test_columns_problem(base, common.library()) if len(base) else "the file has no rows"
+            if problem:
+                raise ValueError(f"{up.name}: {problem}")
         except (ValueError, pd.errors.ParserError, UnicodeDecodeError) as e:
             first = str(e).splitlines()[0]
             common.show_error(first if up.name in first else f"Could not read {up.name}: {first}")

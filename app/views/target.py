@@ -138,6 +138,7 @@ if way == WAYS[2]:
             est = common.call(selector.estimate, smi.strip())
         st.session_state["lw_est"] = None if est is None or not len(est) else est
     elif go_est:
+        st.session_state.pop("lw_est", None)   # an empty box must not leave the last answer standing
         st.error("Type a SMILES string first, e.g. CCO for ethanol.")
     est = st.session_state.get("lw_est")
     if est is not None and len(est):
@@ -163,8 +164,14 @@ if way == WAYS[2]:
             bits.append(f"nearest: {e['nearest']}")
         if bits:
             st.caption("; ".join(bits))
+        from selector.estimation import DOMAIN_THRESHOLD
+
         if "in_domain" in est.columns and not bool(e["in_domain"]):
             st.warning("This structure is outside the estimator's domain: treat the numbers as rough.")
+        elif "in_domain" in est.columns and e.get("source") == "estimated":
+            st.caption(f"Inside the estimator's domain (similarity >= {DOMAIN_THRESHOLD:.2f}); in the scaffold "
+                       "cross-validation such molecules had clearly smaller errors than those outside it "
+                       "(figures in the README); still an estimate, not a measurement.")
         st.caption(common.md_escape(str(e.get("message", "")).rstrip(".")) + "."
                    + (" Estimates are not measurements: confirm with a test." if e.get("source") == "estimated"
                       else f" You typed {common.md_escape(e['smiles'])}."))
