@@ -87,34 +87,50 @@ def filter_mask(library: pd.DataFrame, **filters) -> np.ndarray:
     return masks_and_reagents(library, **filters)[0]
 
 
+def filter_phrases(filters: dict, *, fixes: bool = False, deg: str = "C", vol: str = "cm3/mol") -> list[str]:
+    """The filters in force, one phrase each ("boiling point 100 to 200 C", ...), for messages and
+    page captions; ``fixes`` adds what to change when nothing passes ("(widen it)").
+
+    >>> filter_phrases({"boiling_point_c": (100, None), "min_flash_point_c": 23})
+    ['boiling point 100 to - C', 'flash point at least 23 C']
+    """
+    def rng(v):
+        lo, hi = v
+        return f"{'-' if lo is None else f'{lo:g}'} to {'-' if hi is None else f'{hi:g}'} {deg}"
+
+    def fix(text):
+        return f" ({text})" if fixes else ""
+
+    parts = []
+    if filters.get("boiling_point_c") is not None and any(x is not None for x in filters["boiling_point_c"]):
+        parts.append(f"boiling point {rng(filters['boiling_point_c'])}{fix('widen it')}")
+    if filters.get("flash_point_c") is not None:
+        parts.append(f"flash point {rng(filters['flash_point_c'])}{fix('widen it')}")
+    if filters.get("min_flash_point_c") is not None:
+        parts.append(f"flash point at least {float(filters['min_flash_point_c']):g} {deg}{fix('lower it')}")
+    if filters.get("max_molar_volume") is not None:
+        parts.append(f"molar volume at most {float(filters['max_molar_volume']):g} {vol}{fix('raise it')}")
+    if filters.get("max_hazard_class") is not None:
+        parts.append(f"hazard class at most {filters['max_hazard_class']}{fix('allow a worse one')}")
+    if filters.get("consistent_sources_only"):
+        parts.append(f"agreed HSP sources only{fix('drop it')}")
+    exc = filters.get("exclude")
+    if exc:
+        exc = [exc] if isinstance(exc, str) else list(exc)
+        parts.append(f"{len(exc)} liquid{'s' if len(exc) > 1 else ''} never to propose{fix('shorten the list')}"
+                     if fixes else "never " + ", ".join(map(str, exc)))
+    return parts
+
+
 def nothing_passes(filters: dict, left_out: int = 0, extra: str = "") -> str:
     """The message for a search that no liquid passes: the filters in force, each with what to
-    change, and the reagents held back (the same words for the library, command line and app).
+    change (:func:`filter_phrases`), and the reagents held back (the same words for the library,
+    command line and app).
 
     >>> nothing_passes({"boiling_point_c": (300, 310), "min_flash_point_c": 60})[:67]
     'no liquid passes the filters: boiling point 300 to 310 C (widen it)'
     """
-    def rng(v):
-        lo, hi = v
-        return f"{'-' if lo is None else f'{lo:g}'} to {'-' if hi is None else f'{hi:g}'} C"
-
-    parts = []
-    if filters.get("boiling_point_c") is not None and any(x is not None for x in filters["boiling_point_c"]):
-        parts.append(f"boiling point {rng(filters['boiling_point_c'])} (widen it)")
-    if filters.get("flash_point_c") is not None:
-        parts.append(f"flash point {rng(filters['flash_point_c'])} (widen it)")
-    if filters.get("min_flash_point_c") is not None:
-        parts.append(f"flash point at least {float(filters['min_flash_point_c']):g} C (lower it)")
-    if filters.get("max_molar_volume") is not None:
-        parts.append(f"molar volume at most {float(filters['max_molar_volume']):g} cm3/mol (raise it)")
-    if filters.get("max_hazard_class") is not None:
-        parts.append(f"hazard class at most {filters['max_hazard_class']} (allow a worse one)")
-    if filters.get("consistent_sources_only"):
-        parts.append("agreed HSP sources only (drop it)")
-    exc = filters.get("exclude")
-    if exc:
-        n = 1 if isinstance(exc, str) else len(list(exc))
-        parts.append(f"{n} liquid{'s' if n > 1 else ''} never to propose (shorten the list)")
+    parts = filter_phrases(filters, fixes=True)
     if extra:
         parts.append(extra)
     if left_out:

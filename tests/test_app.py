@@ -517,6 +517,11 @@ def test_replace_page_matches_substitutes(at):
     # NMP is reprotoxic (H360D): CHEM21 ranks it hazardous (Prat et al. 2016, from memory)
     assert ref["hazard_class"].iloc[0] in ("hazardous", "highly hazardous")
     assert any("safety data sheet" in w.value for w in at.warning)
+    # app review: the collapsed filter panel applied the demo preset without a word; the page
+    # now names it, and the demo's "thins with toluene" note is for toluene only
+    assert any(c.value.startswith("Filters in force: boiling point 100 to 200 °C; flash point at least 23 °C")
+               for c in at.caption)
+    assert not any("with toluene today" in i.value for i in at.info)
 
 
 # ---------------------------------------------------------------- my liquids

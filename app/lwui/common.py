@@ -412,25 +412,11 @@ def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool
 
 
 def filters_summary(filters: dict, temperature: float | None = None) -> str:
-    """One line naming the filters in force ("no filters" when none)."""
-    parts = []
-    if temperature is not None and temperature != 25.0:
-        parts.append(f"{temperature:g} °C")
-    lo, hi = filters.get("boiling_point_c", (None, None))
-    if lo is not None and hi is not None:
-        parts.append(f"boiling point {lo:g} to {hi:g} °C")
-    elif lo is not None:
-        parts.append(f"boiling point at least {lo:g} °C")
-    elif hi is not None:
-        parts.append(f"boiling point at most {hi:g} °C")
-    if filters.get("min_flash_point_c") is not None:
-        parts.append(f"flash point at least {filters['min_flash_point_c']:g} °C")
-    if filters.get("max_molar_volume") is not None:
-        parts.append(f"molar volume at most {filters['max_molar_volume']:g} cm³/mol")
-    if filters.get("exclude"):
-        parts.append("never " + ", ".join(filters["exclude"]))
-    if filters.get("consistent_sources_only"):
-        parts.append("agreed HSP sources only")
+    """One line naming the filters in force (:func:`selector.filters.filter_phrases`)."""
+    from selector.filters import filter_phrases
+
+    parts = ([f"{temperature:g} °C"] if temperature is not None and temperature != 25.0 else [])
+    parts += filter_phrases(filters, deg="°C", vol="cm³/mol")
     parts.append("reagents included" if filters.get("include_reactive") else "reagents held back")
     return "Filters in force: " + "; ".join(parts) + " (open *Candidate filters* to change them)."
 
