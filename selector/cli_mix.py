@@ -124,6 +124,8 @@ def cmd_grid(a) -> int:
 
         out = pd.DataFrame({"a": m.index.to_numpy()[iu], "b": m.columns.to_numpy()[ju], "state": st[iu, ju],
                             "reacts": reactive_pair_matrix(df)[iu, ju]})
+        unsure = {frozenset(p) for p in m.attrs.get("uncertain_pairs", [])}
+        out["uncertain"] = [frozenset((x, y)) in unsure for x, y in zip(out["a"], out["b"])]
         if a.not_miscible:
             out = out[(out.state != "miscible") | out.reacts]
         emit(out, a, caution=True, header=f"{len(out)} pairs at {a.at:g} C" + est_note)
@@ -132,6 +134,10 @@ def cmd_grid(a) -> int:
     out = shown.reset_index().rename(columns={"index": "liquid"})
     header = (f"{len(m)} liquids at {a.at:g} C; " + ("" if a.format != "table" else
               "mix = miscible in all proportions, part = partially miscible, no = immiscible")) + est_note
+    unsure = m.attrs.get("uncertain_pairs", [])
+    if unsure:
+        header += ("\nUNCERTAIN (water with a glycol ether, amine or pyridine; the model cannot be trusted on "
+                   "them, test them): " + ", ".join(f"{x} + {y}" for x, y in unsure))
     pairs = m.attrs.get("reactive_pairs", [])
     if pairs:
         header += ("\nREACTIVE PAIRS (they react whatever the state; do not mix them except as a planned "

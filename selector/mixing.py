@@ -1351,7 +1351,9 @@ def miscibility_matrix(liquids, *, temperature: float = 25.0, library: pd.DataFr
 
     ``liquids``: a list of names/CAS/user dicts, or a library-format DataFrame (up to the whole
     library). Index and columns are the liquid names. ``attrs["reactive_pairs"]``: the pairs
-    ``(a, b)`` that react with each other (:func:`selector.cautions.reactive_pair_matrix`).
+    ``(a, b)`` that react with each other (:func:`selector.cautions.reactive_pair_matrix`);
+    ``attrs["uncertain_pairs"]``: water with an amine, pyridine or glycol ether, whose state the
+    model cannot be trusted on (:attr:`Miscibility.headline` says "uncertain").
 
     >>> m = miscibility_matrix(["water", "hexane", "acetone"])
     >>> m.loc["water", "hexane"], m.loc["water", "acetone"]
@@ -1373,6 +1375,11 @@ def miscibility_matrix(liquids, *, temperature: float = 25.0, library: pd.DataFr
     # pairs that react (selector.cautions.PAIR_RULES), whatever their phase behaviour
     i, j = np.nonzero(np.triu(reactive_pair_matrix(df), 1))
     out.attrs["reactive_pairs"] = [(names[p], names[q]) for p, q in zip(i, j)]
+    # water with an amine, pyridine or glycol ether: the state is uncertain (Miscibility.headline)
+    smiles = df["smiles"].astype("string").fillna("").astype(str).tolist() if "smiles" in df else [""] * len(df)
+    water = [k for k in range(len(df)) if smiles[k] in ("O", "[OH2]") or str(names[k]).lower() == "water"]
+    prone = [k for k in range(len(df)) if _lcst_prone_smiles(smiles[k])]
+    out.attrs["uncertain_pairs"] = [(names[w], names[k]) for w in water for k in prone if k != w]
     return out
 
 

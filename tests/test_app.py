@@ -396,6 +396,8 @@ def test_mixing_heat_map_and_bad_temperature(at):
     heat = [f["data"][0] for f in heat if f["data"] and f["data"][0]["type"] == "heatmap"][0]
     assert "REACTIVE PAIR" in heat["text"][1][2] and "REACTIVE PAIR" in heat["text"][2][1]
     assert "REACTIVE" not in heat["text"][0][1]
+    # water + cyclohexylamine (an amine): uncertain, as on the pair tab
+    assert heat["text"][0][1].startswith("uncertain (model: ")
     assert any("cyclohexylamine + acetone" in w.value for w in at.warning)
     at.button(key="mx_fill").click().run()
     assert not at.exception and not errors(at)

@@ -594,3 +594,14 @@ def test_reacting_pairs_are_named_in_pair_and_matrix_answers():
     assert selector.miscibility("water", "ethanol").reacts == ""
     m = selector.miscibility_matrix(["cyclohexylamine", "acetone", "formic acid", "hexane"])
     assert m.attrs["reactive_pairs"] == [("cyclohexylamine", "acetone"), ("cyclohexylamine", "formic acid")]
+
+
+def test_matrix_names_the_pairs_whose_state_is_uncertain():
+    # helper review: the heat map called water + 1-methoxy-2-propanol "partially miscible" (they
+    # mix in all proportions, common practice) while the pair answer said "uncertain"
+    import selector
+
+    m = selector.miscibility_matrix(["water", "1-methoxy-2-propanol", "triethylamine", "hexane"])
+    assert m.attrs["uncertain_pairs"] == [("water", "1-methoxy-2-propanol"), ("water", "triethylamine")]
+    for a, b in m.attrs["uncertain_pairs"]:
+        assert selector.miscibility(a, b).headline.startswith("uncertain")

@@ -155,11 +155,14 @@ def heat_map(states: pd.DataFrame, title="Miscibility at the chosen temperature"
     text = states.astype(str).to_numpy().astype(object)
     # pairs that react (selector.miscibility_matrix's attrs): "!" beside the symbol, said on hover
     reacts = {frozenset(p) for p in states.attrs.get("reactive_pairs", [])}
+    unsure = {frozenset(p) for p in states.attrs.get("uncertain_pairs", [])}
     idx, cols = list(states.index), list(states.columns)
     for i, r in enumerate(idx):
         for j, c in enumerate(cols):
             if frozenset((r, c)) in reacts:
                 text[i, j] += " - REACTIVE PAIR, do not mix"
+            if frozenset((r, c)) in unsure:
+                text[i, j] = f"uncertain (model: {text[i, j]})"
     scale = [[0, BLUE], [0.333, BLUE], [0.334, YELLOW], [0.666, YELLOW], [0.667, VERMILLION], [1, VERMILLION]]
     symbols = {"miscible": "○", "partially miscible": "◐", "immiscible": "●"}
     fig = go.Figure(go.Heatmap(z=z, x=list(states.columns), y=list(states.index), zmin=-0.5, zmax=2.5,
@@ -169,7 +172,8 @@ def heat_map(states: pd.DataFrame, title="Miscibility at the chosen temperature"
                              y=[r for _ in states.columns for r in states.index],
                              mode="text", hoverinfo="skip", showlegend=False,
                              text=[symbols.get(str(states.loc[r, c]), "")
-                                   + (" !" if frozenset((r, c)) in reacts else "") for c in states.columns
+                                   + (" !" if frozenset((r, c)) in reacts else "")
+                                   + (" ?" if frozenset((r, c)) in unsure else "") for c in states.columns
                                    for r in states.index], textfont=dict(size=14, color=BLACK)))
     fig.update_layout(title=title, yaxis=dict(autorange="reversed"))
     return _layout(fig, 120 + 40 * max(len(states), 4))

@@ -157,7 +157,8 @@ with tab2:
         if mat is not None:
             st.plotly_chart(plots.heat_map(mat, f"Miscibility at {t2:g} °C"), width="stretch", key="mx_heat")
             st.caption("○ miscible · ◐ partially miscible · ● immiscible (colour and symbol both carry the state); "
-                       "! = the two react.")
+                       "! = the two react; ? = uncertain (water with a glycol ether, amine or pyridine: the "
+                       "model cannot be trusted on such pairs, test them).")
             pairs = mat.attrs.get("reactive_pairs", [])
             if pairs:
                 st.warning("These pairs react with each other whatever their phase behaviour (amine + acid, "
