@@ -1377,7 +1377,7 @@ def miscibility_matrix(liquids, *, temperature: float = 25.0, library: pd.DataFr
     out.attrs["reactive_pairs"] = [(names[p], names[q]) for p, q in zip(i, j)]
     # water with an amine, pyridine or glycol ether: the state is uncertain (Miscibility.headline)
     smiles = df["smiles"].astype("string").fillna("").astype(str).tolist() if "smiles" in df else [""] * len(df)
-    water = [k for k in range(len(df)) if smiles[k] in ("O", "[OH2]") or str(names[k]).lower() == "water"]
+    water = [k for k in range(len(df)) if _is_water({"smiles": smiles[k], "name": str(names[k])})]
     prone = [k for k in range(len(df)) if _lcst_prone_smiles(smiles[k])]
     out.attrs["uncertain_pairs"] = [(names[w], names[k]) for w in water for k in prone if k != w]
     return out
