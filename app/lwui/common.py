@@ -452,6 +452,16 @@ def with_hazards(df: pd.DataFrame) -> pd.DataFrame:
     return hz.attach_hazards(df, lib, columns=("hazard_class", "h_statements"), table=t)
 
 
+def whole_degrees(d: pd.DataFrame) -> pd.DataFrame:
+    """``d`` (changed in place) with its temperature columns (``*_c``) rounded half away from zero,
+    as the reports round them (188.5 C is 189 on both)."""
+    from selector.report import round_half_away
+
+    for c in [c for c in d.columns if c.endswith("_c") and pd.api.types.is_float_dtype(d[c])]:
+        d[c] = round_half_away(d[c].to_numpy(float))
+    return d
+
+
 def table(df: pd.DataFrame, **kw):
     """``st.dataframe`` without the frame's ``attrs``: pandas hands them to the browser as JSON
     metadata, and a NaN there (e.g. a drying path that never leaves the sphere) breaks the table."""
@@ -459,10 +469,7 @@ def table(df: pd.DataFrame, **kw):
     d.attrs = {}
     from selector.cautions import with_flash_texts
 
-    from selector.report import round_half_away
-
-    for c in [c for c in d.columns if c.endswith("_c") and pd.api.types.is_float_dtype(d[c])]:
-        d[c] = round_half_away(d[c].to_numpy(float))   # whole degrees as in the reports
+    d = whole_degrees(d)
     d = with_flash_texts(d, fmt="{:.0f}")   # an empty cell would mean both "does not burn" and "no data"
     empty = [c for c in ("estimated", "hazard_notes", "hsp_note") if c in d.columns
              and d[c].fillna("").astype(str).str.strip().eq("").all()]
@@ -491,11 +498,7 @@ def readable_top(df: pd.DataFrame, columns: list[str], n: int = 5, key: str = "t
     from selector.cautions import with_flash_texts
 
     cols = list(dict.fromkeys(c for c in columns if c and c in df.columns))
-    from selector.report import round_half_away
-
-    head = df.head(n).copy()
-    for c in [c for c in head.columns if c.endswith("_c") and pd.api.types.is_float_dtype(head[c])]:
-        head[c] = round_half_away(head[c].to_numpy(float))   # 188.5 C is 189 here and in the reports
+    head = whole_degrees(df.head(n).copy())
     # flash points as text: a blank would mean both "does not burn" and "no data"
     top = with_flash_texts(head, fmt="{:.0f}")[cols].copy()
     if "name" in cols:
