@@ -860,11 +860,15 @@ def _by_volume(idx, f, values, log=False):
 def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: float = 0.05,
                 temperature: float = 25.0, top: int | None = 20, library: pd.DataFrame | None = None,
                 property_weight: float = 0.5, max_uses: int = 3, require_miscible: bool = True,
-                **filters) -> pd.DataFrame:
+                include_energetic: bool = False, **filters) -> pd.DataFrame:
     """Safer single liquids and blends that could replace ``liquid``; ``liquid`` is the first row.
 
     Candidates are liquids with a STRICTLY better CHEM21 class than ``liquid`` (unclassified
-    liquids never qualify). They are searched exactly like :func:`find_blends` against the HSP of
+    liquids never qualify). Liquids with a high energy of decomposition (the nitroalkanes, which
+    amines and bases sensitise to detonation; from memory) are left out unless
+    ``include_energetic``: the CHEM21 default ranking can call nitroethane "recommended", but a
+    replacement meant to be safer should not bring an explosion hazard into the process (this
+    project's rule). ``attrs["left_out"]`` names them. They are searched exactly like :func:`find_blends` against the HSP of
     ``liquid`` (or against ``solute``, a sphere or point, when given) and ranked by
 
         score = distance + property_weight * mismatch
@@ -911,8 +915,16 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
 
         worst_allowed = HAZARD_CLASSES[min(class_rank(filt["max_hazard_class"]), int(xr) - 1)]
     filt["max_hazard_class"] = worst_allowed
-    exc = list(filt.get("exclude") or [])
-    filt["exclude"] = ([exc] if isinstance(exc, str) else exc) + [xname]
+    exc = filt.get("exclude") or []
+    exc = [exc] if isinstance(exc, str) else list(exc)
+    filt["exclude"] = exc + [xname]
+    energetic = []
+    if not include_energetic and filt.get("include") is None:   # liquids named on purpose stay
+        check_filter_keys(filt)
+        passing, _ = masks_and_reagents(lib, temperature=check_temperature(temperature), **filt)
+        hd = hz_all["high_decomposition_energy"].to_numpy(bool)
+        energetic = lib["name"].to_numpy(str)[hd & passing].tolist()
+        filt["exclude"] += energetic
     if solute is not None:
         tgt = as_target(solute, lib)
     else:
@@ -983,12 +995,23 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     out["hazard_notes"] = component_notes(out["components"], pd.concat([x, cand]))
     from .cautions import not_flammable
 
-    out.attrs.update(target=tg, temperature=t_c, caution=CAUTION, replaced=xname,
+    out.attrs.update(target=tg, temperature=t_c, caution=CAUTION, replaced=xname, left_out=energetic,
                      regulatory_note=str(hz_all["regulatory_note"].iloc[pos]),
                      warnings=substitute_warnings(out, xname, bool(not_flammable(x).any()), tg.radius,
                                                   solute=solute is not None,
-                                                  flash_floor=filt.get("min_flash_point_c") is not None))
+                                                  flash_floor=filt.get("min_flash_point_c") is not None)
+                     + ([energetic_note(energetic)] if energetic else []))
     return out
+
+
+def energetic_note(names) -> str:
+    """The line that says which energetic liquids :func:`substitutes` left out."""
+    names = list(names)
+    return (f"Left out as energetic (high energy of decomposition): {', '.join(names)}. "
+            f"{'It has' if len(names) == 1 else 'They have'} a better CHEM21 class, but nitro compounds can "
+            "detonate when heated under confinement or mixed with amines or bases. Bring them back "
+            "(include_energetic, --include-energetic or the app's Include energetic liquids) only after a "
+            "process-safety review.")
 
 
 def substitute_warnings(table: pd.DataFrame, replaced: str, replaced_burns_not: bool,
@@ -1008,10 +1031,13 @@ def substitute_warnings(table: pd.DataFrame, replaced: str, replaced_burns_not: 
     if replaced_burns_not and (burns.any() or unknown.any()):
         parts = []
         if burns.any():
-            parts.append(f"{int(burns.sum())} of the {len(subs)} substitutes shown do (lowest flash point "
+            nb = int(burns.sum())
+            parts.append(f"{nb} of the {len(subs)} substitutes shown {'does' if nb == 1 else 'do'} (lowest flash point "
                          f"{np.nanmin(fp[burns]):.0f} C)")
         if unknown.any():
-            parts.append(f"{int(unknown.sum())} have no flash-point data (treat them as flammable)")
+            nu = int(unknown.sum())
+            parts.append(f"{nu} {'has' if nu == 1 else 'have'} no flash-point data (treat "
+                         f"{'it' if nu == 1 else 'them'} as flammable)")
         out.append(f"{replaced} does not burn, but " + " and ".join(parts) + ": a flammable replacement "
                    "changes the fire protection the process needs (equipment, ventilation, storage). "
                    "Check the safety data sheets and local codes"

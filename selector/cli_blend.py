@@ -91,7 +91,8 @@ def cmd_replace(a) -> int:
 
         solute = target_from_text(a.solute, a.solute_radius, lib)
     res = substitutes(a.liquid, solute=solute, max_components=a.parts, min_fraction=a.min_share,
-                      temperature=a.at, top=a.top, library=lib, **_filters(a))
+                      temperature=a.at, top=a.top, library=lib, include_energetic=a.include_energetic,
+                      **_filters(a))
     note = res.attrs.get("regulatory_note") or ""
     header = (f"Safer candidates for {res.attrs['replaced']} (first row; class "
               f"{res['hazard_class'].iloc[0]}{'; ' + note if note else ''}). Only liquids with a strictly "
@@ -187,6 +188,9 @@ def register(sub) -> None:
     p.add_argument("--solute", metavar="TARGET", help="'dD,dP,dH[,R0]' or a name: judge candidates "
                    "against this solute instead of the liquid's own HSP")
     p.add_argument("--solute-radius", type=float, metavar="R0", help="R0 for a named solute")
+    p.add_argument("--include-energetic", action="store_true",
+                   help="also propose liquids with a high energy of decomposition (nitroethane); "
+                   "left out by default")
     _blend_options(p, parts_default=2)
     add_filter_args(p)
     add_output_args(p)

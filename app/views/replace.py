@@ -29,20 +29,23 @@ elif common.is_demo() and keep:
     st.info("Invented demo: candidates must also dissolve the (invented) FV-3 varnish resin.",
             icon=":material/science:")
 filters, _ = common.filter_panel("rp", temperature=False, expanded=False)
-c3, c4 = st.columns(2)
+c3, c4, c5 = st.columns([2, 3, 2])
 ncomp = c3.radio("Liquids per candidate (at most)", [1, 2], index=1, horizontal=True, key="rp_n")
 pw = c4.slider("Weight of boiling point / evaporation / viscosity match", 0.0, 2.0, 0.5, 0.1, key="rp_pw",
                help="0 = Hansen distance only")
+energetic = c5.checkbox("Include energetic liquids", value=False, key="rp_energetic",
+                        help="nitro compounds (high energy of decomposition) are left out by default: "
+                        "include them only after a process-safety review")
 
 
 @st.cache_data(show_spinner="Looking for substitutes…", max_entries=64)
-def subs(old, solute, ncomp, pw, filters_key, lib_key):
+def subs(old, solute, ncomp, pw, energetic, filters_key, lib_key):
     # lib_key (the user's liquids file and its time stamp) makes a saved change start a new search
     from selector.targets import Target
 
     sol = None if solute is None else Target(*solute[:3], solute[3], name=solute[4])
     return selector.substitutes(old, solute=sol, max_components=ncomp, property_weight=pw,
-                                library=common.library(), **dict(filters_key))
+                                include_energetic=energetic, library=common.library(), **dict(filters_key))
 
 
 freeze = tuple(sorted((k, tuple(v) if isinstance(v, list) else v) for k, v in filters.items()))
@@ -54,11 +57,12 @@ if h is not None:
         show_hazard(h)
 t = common.target()
 res = common.call(subs, old, (t.delta_d, t.delta_p, t.delta_h, t.radius, t.name) if keep else None,
-                  int(ncomp), float(pw), freeze, common.lib_key())
+                  int(ncomp), float(pw), bool(energetic), freeze, common.lib_key())
 if res is None:
     st.stop()
 res = res.copy()
-for w in res.attrs.get("warnings", []):
+warnings = list(res.attrs.get("warnings", []))
+for w in warnings:
     st.warning(common.ui_units(w))
 res.attrs = {}  # a Target in attrs cannot go to the browser
 if "component_ra" in res:   # a tuple per row: shown like the Ra column, two decimals
@@ -117,7 +121,8 @@ kw = dict(target=tg, inputs=inputs, table=res.head(11),
                                "lowest_flash_point_c", "role"] if c in show], liquids=common.with_hazards(rows),
           sources=LIBRARY_SOURCES + ["Hazard classes: CHEM21 guide (Prat et al., Green Chem. 18 (2016) 288-296), "
                                      "statements from memory - confirm with the safety data sheet."],
-          notes=(["The target is the INVENTED demo resin, not measured data."] if keep and common.is_demo() else []))
+          notes=(["The target is the INVENTED demo resin, not measured data."] if keep and common.is_demo() else [])
+          + warnings)
 common.downloads(res[show], stem=f"replace_{old.replace(' ', '_')}",
                  report_md=build_report(f"Replacing {old}", **kw),
                  report_html=build_report(f"Replacing {old}", fmt="html", **kw), key="rp")
