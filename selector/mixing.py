@@ -1138,7 +1138,7 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
         elif math.isinf(u):
             notes.append("the gap stays open up to 400 C in this model")
         elif lcst_c is None:
-            notes.append("no UCST in this model: one phase at all temperatures from -150 C up")
+            notes.append("no UCST in this model: one phase at every temperature where both are liquid")
     if lcst_c is not None:
         where = "below" if lcst_c < t else "above"
         notes.append(f"model LCST {lcst_c:.0f} C ({where} {t:g} C): cross hydrogen bonds hold the pair "
@@ -1173,8 +1173,12 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
         which = " and ".join(r["name"] for r in (ra_, rb_) if _ranges(r) is not None)
         notes.append(f"within the 90 % intervals of {which} the state can be "
                      + ", ".join(sorted(set(found) | {state})) + " (states at the corners of the intervals)")
-    notes.append("a model estimate: confirm with a small test mix, and read the safety data sheets "
-                 "of both liquids first")
+    if ra_["name"] == rb_["name"] and np.allclose(h1, h2) and v1 == v2:
+        notes = [n for n in notes[:1] if "is a reagent, not a solvent" in n] + [
+            "the same liquid on both sides: it forms one phase with itself, there is nothing to predict"]
+    else:
+        notes.append("a model estimate: confirm with a small test mix, and read the safety data sheets "
+                     "of both liquids first")
     from .cautions import pair_reasons
 
     reacts = "; ".join(w.split(": ", 1)[1] for w in pair_reasons(

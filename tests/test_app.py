@@ -360,12 +360,18 @@ def test_mixing_pair_matches_library_and_trade_fact(at):
     assert not at.exception
     assert selector.miscibility("water", "triethylamine").lcst_prone
     assert at.metric[3].value == "does not apply"
-    assert any("No phase diagram for this pair" in c.value for c in at.caption)
+    assert any("No phase diagram or solubilities for this pair" in c.value for c in at.caption)
     assert not [c for c in at.get("plotly_chart") if "binodal" in c.proto.spec]
     # water and 1-methoxy-2-propanol mix in all proportions at 25 C (common practice): the model
     # says otherwise, so the page answers "uncertain", not "partially miscible"
     at.selectbox(key="mx_b").set_value("1-methoxy-2-propanol").run()
     assert at.metric[0].value == "uncertain"
+    # ... and shows no model solubility table for it (the model's wt % would contradict that answer)
+    assert not at.table
+    at.selectbox(key="mx_b").set_value("1-butanol").run()
+    # water-1-butanol is partly miscible (about 7.7 wt % butanol in water at 25 C, from memory):
+    # the table of model solubilities is there
+    assert at.table and "solubility of" in at.table[0].value.index[0]
     # a primary amine condenses with a ketone (imine + water; common practice): the answer is
     # "they react" with the reason in red, whatever the phase model says
     at.selectbox(key="mx_a").set_value("cyclohexylamine")

@@ -605,3 +605,14 @@ def test_matrix_names_the_pairs_whose_state_is_uncertain():
     assert m.attrs["uncertain_pairs"] == [("water", "1-methoxy-2-propanol"), ("water", "triethylamine")]
     for a, b in m.attrs["uncertain_pairs"]:
         assert selector.miscibility(a, b).headline.startswith("uncertain")
+
+
+def test_a_liquid_paired_with_itself_is_one_phase_without_model_talk():
+    # Common practice: a liquid mixes with itself. The answer said "one phase at all temperatures
+    # from -150 C up" for water + water (reviewer); it now says there is nothing to predict.
+    r = miscibility("water", "water")
+    assert r.state == "miscible" and r.chi == 0.0
+    assert r.notes == ["the same liquid on both sides: it forms one phase with itself, there is nothing to predict"]
+    # a distinct pair keeps the model notes, worded without a made-up lower temperature
+    r2 = miscibility("hexane", "toluene")
+    assert r2.notes[0] == "no UCST in this model: one phase at every temperature where both are liquid"

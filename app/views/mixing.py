@@ -84,9 +84,11 @@ with tab1:
         short = ("they react" if getattr(r, "reacts", "") else
                  "uncertain" if getattr(r, "lcst_prone", False) else state)
         m[0].metric("At this temperature", short, help=state)
-        m[1].metric("chi", _num(getattr(r, "chi", None)))
-        m[2].metric("chi_c (critical)", _num(getattr(r, "chi_critical", None)))
         lcst_pair = bool(getattr(r, "lcst_prone", False))
+        model_note = ("the model value; for water with an amine, pyridine or glycol ether it does not "
+                      "decide the answer (see the notes)") if lcst_pair else None
+        m[1].metric("chi", _num(getattr(r, "chi", None)), help=model_note)
+        m[2].metric("chi_c (critical)", _num(getattr(r, "chi_critical", None)), help=model_note)
         if lcst_pair:
             m[3].metric("UCST (°C)", "does not apply",
                         help="water with an amine, pyridine or glycol ether: such a gap opens on heating, "
@@ -94,7 +96,7 @@ with tab1:
         else:
             m[3].metric("UCST (°C)", _num(getattr(r, "ucst_c", None), "{:.0f}"))
         pm = getattr(r, "p_miscible", None)
-        m[4].metric("Confidence", str(getattr(r, "confidence", "—")),
+        m[4].metric("Confidence in the mixing answer", str(getattr(r, "confidence", "—")),
                     help=None if pm is None or pm != pm else
                     f"probability of one phase in all proportions: {100 * pm:.0f} % "
                     "(logistic fit on the reference pairs at 25 °C)")
@@ -108,16 +110,16 @@ with tab1:
             else:
                 st.caption("• " + str(note))
         bi = getattr(r, "binodal", None)
-        if isinstance(bi, dict):
+        if isinstance(bi, dict) and not lcst_pair:   # model solubilities mean nothing for such pairs
             sol = _solubilities(bi, r.a, r.b)
             if sol:
                 st.table(pd.DataFrame([{"": k, "wt %": f"{v['wt_pct']:.2g}", "vol %": f"{v['vol_pct']:.2g}",
                                         "mol %": f"{v['mol_pct']:.2g}"} for k, v in sol]).set_index(""))
         sweep = None if lcst_pair else common.call(phase_sweep, a, b, common.lib_key())
         if lcst_pair:
-            st.caption("No phase diagram for this pair: the model only knows gaps that close on heating, "
-                       "and this one opens on heating in practice (see the notes). Test the mix at the "
-                       "temperatures of use.")
+            st.caption("No phase diagram or solubilities for this pair: the model only knows gaps that "
+                       "close on heating, while water with an amine, pyridine or glycol ether may split on "
+                       "heating instead, if at all (see the notes). Test the mix at the temperatures of use.")
         elif sweep is not None and sweep["binodal_low"].notna().any():
             st.plotly_chart(plots.phase_diagram(sweep, getattr(r, "ucst_c", None), float(t),
                                                 x_label=f"volume fraction of {r.a}"),
@@ -128,8 +130,9 @@ with tab1:
                        "of a real gap can be far off (see the notes).")
         elif sweep is not None:
             st.caption("No miscibility gap anywhere in the liquid range of the pair (model estimate).")
-        st.warning("A phase split can also hide a reaction, a hazard or an azeotrope; the safety data "
-                   "sheet and a small-scale test come first.", icon=":material/warning:")
+        st.warning("Whether or not two liquids mix, mixing them can start a reaction, release heat or "
+                   "form an azeotrope: the safety data sheets and a small-scale test come first.",
+                   icon=":material/warning:")
 
 with tab2:
     default = [n for n in ["water", "methanol", "ethanol", "acetone", "toluene", "hexane", "ethyl acetate",
