@@ -79,10 +79,11 @@ def _check_min_fraction(m, k):
     try:
         m = float(m)
     except (TypeError, ValueError):
-        raise SelectorError(f"min_fraction must be a number between 0 and 1/{k}, got {m!r}") from None
+        raise SelectorError(f"the smallest share (min_fraction) must be a number between 0 and 1/{k}, "
+                            f"got {m!r}") from None
     if not math.isfinite(m) or m < 0 or m * k > 1 + 1e-12:
-        raise SelectorError(f"min_fraction must be between 0 and 1/{k} = {1 / k:.3f} for blends of "
-                            f"{k} liquids, got {m:g}")
+        raise SelectorError(f"the smallest share (min_fraction) must be between 0 and 1/{k} = {1 / k:.3f} "
+                            f"for blends of {k} liquids, got {m:g}")
     return m
 
 
@@ -764,7 +765,8 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
         raise SelectorError(f"max_components must be 1, 2 or 3, got {max_components!r}")
     m = _check_min_fraction(min_fraction, kmax if kmax > 1 else 2)
     if top is not None and (not isinstance(top, (int, np.integer)) or top < 1):
-        raise SelectorError(f"top must be a positive whole number, got {top!r}")
+        raise SelectorError(f"the number of blends to show (top) must be a whole number of at least 1, "
+                            f"got {top!r}")
     if not isinstance(max_uses, (int, np.integer)) or max_uses < 1:
         raise SelectorError(f"max_uses must be a positive whole number, got {max_uses!r}")
     try:

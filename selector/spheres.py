@@ -1005,6 +1005,8 @@ def fit_sphere(tests, *, seed: int = 0, bootstrap: int = 200, outcome: str | Non
         raise SelectorError("bootstrap and seed must be whole numbers") from None
     if B < 0:
         raise SelectorError("bootstrap must be >= 0")
+    if seed < 0:
+        raise SelectorError(f"the random seed must be a whole number of 0 or more, got {seed}")
     try:
         conf = float(confidence)
     except (TypeError, ValueError):

@@ -25,6 +25,8 @@ from .library import locate, load_library
 #: tables (water: dH 42.3; the tables' largest dD is about 28), so larger numbers are unit or
 #: typing errors.
 TARGET_MAX = {"delta_d": 30.0, "delta_p": 40.0, "delta_h": 50.0}
+#: The names a user knows the three parameters by, with the library's keyword beside them.
+LABELS = {"delta_d": "dD (delta_d)", "delta_p": "dP (delta_p)", "delta_h": "dH (delta_h)"}
 #: Upper bound (MPa^0.5) for a sphere radius R0 (published polymer spheres stay below ~25).
 R0_MAX = 40.0
 #: A typed dD below this (MPa^0.5) is below every liquid of the library (the lowest is
@@ -46,15 +48,15 @@ class Target:
 
     def __post_init__(self):
         for k in ("delta_d", "delta_p", "delta_h"):
-            v = getattr(self, k)
+            v, lab = getattr(self, k), LABELS[k]
             if not isinstance(v, (int, float, np.floating, np.integer)) or isinstance(v, bool):
-                raise SelectorError(f"{k} must be a number of MPa^0.5, got {v!r}")
+                raise SelectorError(f"{lab} must be a number of MPa^0.5, got {v!r}")
             if not math.isfinite(float(v)):
-                raise SelectorError(f"{k} must be a finite number, got {v!r}")
+                raise SelectorError(f"{lab} must be a finite number, got {v!r}")
             if float(v) < 0:
-                raise SelectorError(f"{k} must not be negative (got {float(v):g} MPa^0.5)")
+                raise SelectorError(f"{lab} cannot be negative: got {float(v):g} MPa^0.5")
         if float(self.delta_d) <= 0:
-            raise SelectorError("delta_d must be positive: every liquid has dispersion forces")
+            raise SelectorError("dD (delta_d) must be above 0: every liquid has dispersion forces")
         if self.radius is not None:
             r = self.radius
             if isinstance(r, bool) or not isinstance(r, (int, float, np.floating, np.integer)):
@@ -84,11 +86,12 @@ def _check_given(t: Target) -> Target:
     fitted spheres are not held to them."""
     for k, hi in TARGET_MAX.items():
         if float(getattr(t, k)) > hi:
-            raise SelectorError(f"{k} = {float(getattr(t, k)):g} MPa^0.5 is beyond any known liquid or "
-                                f"polymer (at most {hi:g}); check the units: MPa^0.5 (values in Pa^0.5 are "
-                                "1000 times larger)")
+            v = float(getattr(t, k))
+            raise SelectorError(f"{LABELS[k]} {v:g} MPa^0.5 is beyond any known liquid or polymer (at most "
+                                f"{hi:g}); check the value and the units"
+                                + (": it looks like Pa^0.5 (divide by 1000)" if v > 1000 else " (MPa^0.5)"))
     if t.radius is not None and float(t.radius) > R0_MAX:
-        raise SelectorError(f"R0 = {float(t.radius):g} MPa^0.5 is larger than any published sphere "
+        raise SelectorError(f"R0 {float(t.radius):g} MPa^0.5 is larger than any published sphere "
                             f"(at most {R0_MAX:g}); check the value")
     hint = unit_hint(t)
     return replace(t, notes=t.notes + (hint,)) if hint and hint not in t.notes else t
@@ -106,7 +109,8 @@ def unit_hint(t: Target) -> str:
         return ""
     from .hansen import CAL_TO_MPA
 
-    conv = ", ".join(f"{k} {v * CAL_TO_MPA:.1f}" for k, v in zip(("dD", "dP", "dH"), t.hsp))
+    vals = list(zip(("dD", "dP", "dH"), t.hsp)) + ([("R0", t.radius)] if t.radius else [])
+    conv = ", ".join(f"{k} {v * CAL_TO_MPA:.1f}" for k, v in vals)
     return (f"dD {d:g} is lower than any liquid (the lowest is 11.3 MPa^0.5, perfluoropentane): if the "
             f"values are in (cal/cm3)^0.5, multiply them by {CAL_TO_MPA} ({conv} MPa^0.5)")
 

@@ -369,8 +369,7 @@ def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool
             c2, c3, c4 = st.columns(3)
         t = 25.0
         if temperature:
-            t = c1.number_input("Temperature (°C)", value=25.0, min_value=-100.0, max_value=300.0,
-                                step=5.0, key=f"{prefix}_t",
+            t = c1.number_input("Temperature (°C)", value=25.0, step=5.0, key=f"{prefix}_t",
                                 help="HSP of the library liquids are corrected by Hansen-Beerbower")
         lo = c2.number_input("Boiling point from (°C)", value=float(bp[0]) if bp[0] is not None else -150.0,
                              step=10.0, key=f"{prefix}_bplo", help="-150 = no lower limit")
@@ -382,7 +381,7 @@ def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool
                              help="liquids without flash-point data are dropped when set, except "
                                   "those known not to burn (water, dichloromethane, chloroform, ...)")
         c5, c6, c7, c8 = st.columns([1, 2, 1, 1])
-        mv = c5.number_input("Max molar volume (cm³/mol)", value=None, min_value=1.0, step=10.0,
+        mv = c5.number_input("Max molar volume (cm³/mol)", value=None, step=10.0,
                              key=f"{prefix}_mv", placeholder="no limit")
         exc = c6.multiselect("Never propose", liquid_names(), default=d.get("exclude", []),
                              key=f"{prefix}_exc")

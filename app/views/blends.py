@@ -48,9 +48,10 @@ with st.form("bl_form"):
     ncomp = c1.radio("Liquids per blend (at most)", [2, 3], index=1, horizontal=True, key="bl_n",
                      help="a third liquid is proposed only where it brings the blend closer to the "
                           "target than each of its pairs")
-    minf = c2.number_input("Smallest share (volume fraction)", 0.01, 0.45, 0.05, 0.01, key="bl_min",
-                           help="no component below this share")
-    top = c3.number_input("Blends to show", 5, 100, 20, 5, key="bl_top")
+    # no min/max on the inputs: a value out of range reaches the library and is answered there
+    minf = c2.number_input("Smallest share (volume fraction)", value=0.05, step=0.01, key="bl_min",
+                           help="no component below this share; at most 0.5 for two liquids, 0.33 for three")
+    top = c3.number_input("Blends to show", value=20, step=5, key="bl_top", help="1 or more")
     st.form_submit_button("Design blends", type="primary")
 
 t = common.target()

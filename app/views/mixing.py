@@ -76,7 +76,7 @@ with tab1:
                      help="type a name or a CAS number")
     b = c2.selectbox("Second liquid", names, index=_idx("methanol"), key="mx_b", format_func=_label,
                      help="type a name or a CAS number")
-    t = c3.number_input("Temperature (°C)", value=25.0, min_value=-100.0, max_value=300.0, step=5.0, key="mx_t")
+    t = c3.number_input("Temperature (°C)", value=25.0, step=5.0, key="mx_t")
     r = common.call(pair, a, b, float(t), common.lib_key())
     if r is not None:
         state = str(getattr(r, "headline", getattr(r, "state", "?")))
@@ -150,7 +150,7 @@ with tab2:
     if "mx_set" not in st.session_state:
         st.session_state["mx_set"] = default
     liqs = st.multiselect("Liquids (2 to 25)", names, key="mx_set", format_func=_label)
-    t2 = st.number_input("Temperature (°C)", value=25.0, min_value=-100.0, max_value=300.0, step=5.0, key="mx_t2")
+    t2 = st.number_input("Temperature (°C)", value=25.0, step=5.0, key="mx_t2")
     if len(liqs) < 2:
         st.info("Choose at least two liquids.")
     elif len(liqs) > 25:

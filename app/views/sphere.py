@@ -81,7 +81,7 @@ tests = st.data_editor(base, num_rows="dynamic", width="stretch", key=f"sp_ed_{s
                                       "score": st.column_config.NumberColumn("score", help="graded result, optional")})
 c1, c2, c3, c4 = st.columns(4)
 boot = c1.select_slider("Bootstrap resamples (for the intervals)", [0, 25, 50, 100, 200], value=100, key="sp_boot")
-seed = c2.number_input("Random seed", 0, 10_000, 0, key="sp_seed")
+seed = c2.number_input("Random seed", value=0, step=1, key="sp_seed", help="a whole number of 0 or more")
 graded = c3.checkbox("Use the score column as grades", value=False, key="sp_graded",
                      help="grade at or above the pass mark counts as good; higher grades = further inside")
 thr = c3.number_input("Pass mark", value=4.0, step=0.5, key="sp_thr", disabled=not graded)

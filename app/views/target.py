@@ -17,7 +17,10 @@ c[0].metric("dD (MPa½)", f"{t.delta_d:.1f}")
 c[1].metric("dP (MPa½)", f"{t.delta_p:.1f}")
 c[2].metric("dH (MPa½)", f"{t.delta_h:.1f}")
 c[3].metric("R0 (MPa½)", f"{t.radius:.1f}" if t.radius else "—")
-c[4].metric("Source", common.target_spec().get("kind", "given"))
+KIND_WORDS = {"demo": "invented demo", "typed": "typed numbers", "library": "library liquid",
+              "estimate": "structure estimate", "fitted": "fitted sphere", "mine": "my liquids"}
+kind = common.target_spec().get("kind", "")
+c[4].metric("Set from", KIND_WORDS.get(kind, kind or "given"))
 st.markdown(f"**{common.md_escape(t.name)}** — {common.md_escape(t.source)}")
 common.demo_banner(on_target_page=True)
 if not common.is_demo() and st.button("Back to the invented demo resin", key="tg_demo"):
@@ -33,6 +36,13 @@ WAYS = ["Type the numbers", "A library liquid", "Estimate from a structure (SMIL
 way = st.segmented_control("Set the target by", WAYS, default=WAYS[0], key="tg_way",
                            label_visibility="collapsed") or WAYS[0]
 
+def _checked(spec: dict) -> bool:
+    """True when the library accepts the target ``spec`` (R0 as typed); else its message is shown."""
+    hsp = (spec["delta_d"], spec["delta_p"], spec["delta_h"])
+    return common.call(selector.as_target, hsp + ((spec["radius"],) if spec.get("radius") else ()),
+                       name=spec["name"]) is not None
+
+
 if way == WAYS[0]:
     with st.form("tg_typed"):
         typed = common.target_spec().get("kind") == "typed"
@@ -44,8 +54,12 @@ if way == WAYS[0]:
         dd = a.number_input("dD (MPa½)", value=float(t.delta_d), step=0.1, help="more than 0, at most 30 MPa½")
         dp = b.number_input("dP (MPa½)", value=float(t.delta_p), step=0.1, help="0 to 40 MPa½")
         dh = cc.number_input("dH (MPa½)", value=float(t.delta_h), step=0.1, help="0 to 50 MPa½")
-        r0 = d.number_input("R0 (MPa½)", value=float(t.radius) if t.radius else None, step=0.1,
-                            placeholder="none (a point)",
+        # value=None keeps the box clearable (a box started with a number snaps back to it when
+        # emptied); the current R0 is put in through the session state, once per target
+        if st.session_state.get("tg_r0_for") != common.target_spec():
+            st.session_state["tg_r0"] = float(t.radius) if t.radius else None
+            st.session_state["tg_r0_for"] = dict(common.target_spec())
+        r0 = d.number_input("R0 (MPa½)", value=None, step=0.1, key="tg_r0", placeholder="none (a point)",
                             help="leave empty (or 0) for a point target; then liquids are ranked by Ra")
         if st.form_submit_button("Use these numbers", type="primary"):
             label = name.strip() or "my solute"
@@ -65,8 +79,8 @@ if way == WAYS[1]:
     q = st.selectbox("Liquid", names, index=names.index("toluene") if "toluene" in names else 0, key="tg_liq",
                      help="type to search; synonyms and CAS numbers work in the text box below")
     q2 = st.text_input("…or a name, synonym, CAS number or SMILES", key="tg_q", placeholder="e.g. NMP, 67-64-1")
-    r0l = st.number_input("R0 (MPa½), optional", value=None, min_value=0.0, max_value=40.0, step=0.5,
-                          key="tg_r0l", placeholder="none (a point)")
+    r0l = st.number_input("R0 (MPa½), optional", value=None, step=0.5, key="tg_r0l",
+                          placeholder="none (a point)", help="must be positive; empty or 0 for a point")
     if st.button("Use this liquid", key="tg_use_liq", type="primary"):
         row = common.call(selector.find_liquid, q2.strip() or q, common.library())
         if row is not None:
@@ -77,7 +91,8 @@ if way == WAYS[1]:
                     "radius": r0l or None, "source": f"library ({row['hsp_source']})"}
             if estimate_note(row):   # one of your saved estimates: keep its mark and intervals
                 spec.update(common.estimate_fields(row), source=f"my liquids ({estimate_note(row)})")
-            common.set_target_and_rerun(spec, f"{row['name']} is now the target.")
+            if _checked(spec):
+                common.set_target_and_rerun(spec, f"{row['name']} is now the target.")
 
 def _add_to_mine(est, e) -> None:
     """Save an estimate (or a published-table answer) as one of the user's liquids, so that every
@@ -129,8 +144,8 @@ if way == WAYS[2]:
     est_mod = common.capability("estimation")
     with st.form("tg_est"):
         smi = st.text_input("SMILES", key="tg_smiles", placeholder="e.g. CC(C)(C)OC(=O)C1CCCCC1")
-        r0s = st.number_input("R0 (MPa½), optional", value=None, min_value=0.0, max_value=40.0, step=0.5,
-                              key="tg_r0s", placeholder="none (a point)")
+        r0s = st.number_input("R0 (MPa½), optional", value=None, step=0.5, key="tg_r0s",
+                              placeholder="none (a point)", help="must be positive; empty or 0 for a point")
         go_est = st.form_submit_button("Estimate", disabled=est_mod is None)
     if go_est and smi.strip():
         common.wait_for_estimator()
@@ -185,9 +200,10 @@ if way == WAYS[2]:
                     "source": f"{e.get('source', 'estimated')} from SMILES {e['smiles']}"}
             if estimated:
                 spec.update(common.estimate_fields(dict(e, origin="estimated")))
-            st.session_state.pop("lw_est", None)
-            common.set_target_and_rerun(spec, f"{name} is now the target"
-                                        + (" (estimated from its structure: see the sidebar)." if estimated else "."))
+            if _checked(spec):
+                st.session_state.pop("lw_est", None)
+                common.set_target_and_rerun(spec, f"{name} is now the target"
+                                            + (" (estimated from its structure: see the sidebar)." if estimated else "."))
         if e.get("source") in ("estimated", "published"):
             _add_to_mine(est, e)
 
