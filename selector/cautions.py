@@ -357,17 +357,22 @@ PAIR_CLASSES = (
     ("base", "[$([NX3;!$(N-[C,S,P]=[O,S,N]);!$(N-a);!$(N-[N,O]);!$([N+]);!$(N#*);!$(N=*)]),"
              "$([nX2;r6;!$(n(:a):n)])]"),
     ("primary amine", "[NX3;H2;!$(N-[C,S,P]=[O,S,N]);!$(N-a)][CX4]"),
+    ("secondary amine", "[NX3;H1;!$(N-[C,S,P]=[O,S,N]);!$(N-a);!$(N-[N,O])]([CX4])[CX4]"),
     ("carbonyl", "[CX3;$([CH1](=O)[#6,#1]),$(C(=O)([#6])[#6])]=O"),
     ("nitroalkane", "[CX4][$([N+](=O)[O-]),$(N(=O)=O)]"),
 )
 
 #: Pairs of classes that should not be blended: (class a, class b, why). Common practice (acid and
 #: base: salt formation and heat; primary amines condense with aldehydes and ketones, giving
-#: imines and water); amines sensitising nitroalkanes to detonation is from memory (nitromethane).
+#: imines and water; secondary amines give enamines or aminals and water, more slowly with
+#: ketones, faster warm or acid-catalysed); amines sensitising nitroalkanes to detonation is from
+#: memory (nitromethane).
 PAIR_RULES = (
     ("acid", "base", "acid + base: they react (salt, heat)"),
     ("base", "nitroalkane", "amine + nitroalkane: the amine sensitises the nitro compound to detonation"),
     ("primary amine", "carbonyl", "primary amine + aldehyde or ketone: they condense (imine and water)"),
+    ("secondary amine", "carbonyl", "secondary amine + aldehyde or ketone: they condense on standing, "
+                                    "faster when warm or acid-catalysed (enamine or aminal and water)"),
 )
 
 

@@ -209,20 +209,25 @@ def test_cli_targets_with_locants_are_names(capsys):
 
 
 def test_reacting_pairs_are_never_blended_unless_asked():
-    # Common practice: acids and amines react (salt, heat); primary amines condense with ketones.
-    # From memory: amines sensitise nitroalkanes (nitromethane) to detonation.
+    # Common practice: acids and amines react (salt, heat); primary amines condense with ketones
+    # (imines), secondary ones more slowly (enamines: morpholine + cyclohexanone is the textbook
+    # enamine preparation); tertiary amines cannot. From memory: amines sensitise nitroalkanes
+    # (nitromethane) to detonation.
     from selector.blends import find_blends, substitutes
     from selector.cautions import pair_reasons, reactive_pair_matrix
     from selector.library import load_library
 
     lib = load_library()
     rows = lib.loc[lib["name"].isin(["formic acid", "morpholine", "nitroethane", "acetone", "butylamine",
-                                     "toluene", "ethyl acetate"])].reset_index(drop=True)
+                                     "toluene", "ethyl acetate", "triethylamine", "cyclohexanone"])
+                   ].reset_index(drop=True)
     m = reactive_pair_matrix(rows)
     pos = {n: i for i, n in enumerate(rows["name"])}
     assert m[pos["formic acid"], pos["morpholine"]] and m[pos["morpholine"], pos["formic acid"]]
     assert m[pos["morpholine"], pos["nitroethane"]] and m[pos["butylamine"], pos["acetone"]]
-    assert not m[pos["toluene"], pos["ethyl acetate"]] and not m[pos["morpholine"], pos["acetone"]]
+    assert not m[pos["toluene"], pos["ethyl acetate"]] and not m[pos["triethylamine"], pos["acetone"]]
+    assert m[pos["morpholine"], pos["cyclohexanone"]] and m[pos["morpholine"], pos["acetone"]]
+    assert "cyclohexanone + morpholine: secondary amine + aldehyde or ketone" in " ".join(pair_reasons(rows))
     assert "formic acid + morpholine: acid + base" in " ".join(pair_reasons(rows))
     # the blend search: a target between an acid and an amine, candidates only those and neutrals
     names = ["formic acid", "morpholine", "triethylamine", "acetic acid", "toluene", "ethyl acetate"]
