@@ -13,6 +13,8 @@ NEXT_COLUMNS = ["name", "cas", "delta_d", "delta_p", "delta_h", "red", "p_inside
 
 
 def register(sub) -> None:
+    from .spheres import DEFAULT_BOOTSTRAP
+
     p = sub.add_parser(
         "sphere", help="fit a solute's Hansen sphere from your lab tests",
         formatter_class=argparse.RawDescriptionHelpFormatter,
@@ -35,8 +37,8 @@ def register(sub) -> None:
     f = p.add_argument_group("fitting")
     f.add_argument("--two", action="store_true",
                    help="also try two spheres (adopted only if the BIC prefers them)")
-    f.add_argument("--bootstrap", type=int, default=200, metavar="N",
-                   help="bootstrap resamples for the intervals (default 200; 0 = none)")
+    f.add_argument("--bootstrap", type=int, default=DEFAULT_BOOTSTRAP, metavar="N",
+                   help=f"bootstrap resamples for the intervals (default {DEFAULT_BOOTSTRAP}; 0 = none)")
     f.add_argument("--seed", type=int, default=0, help="random seed (default 0)")
     n = p.add_argument_group("next tests")
     n.add_argument("--next", type=int, default=5, metavar="N", help="liquids to suggest testing next (default 5)")

@@ -446,6 +446,15 @@ def test_mixing_heat_map_and_bad_temperature(at):
 @pytest.mark.skipif(not has("spheres"), reason="selector.spheres not installed")
 def test_sphere_fit_page_matches_fit_sphere(at):
     go(at, "sphere")
+    assert not at.exception, errors(at)
+    # app review: the page's suggested next tests differed from `likewise sphere` (100 resamples
+    # against 200); both now use the library default, so they name the same liquids and shares
+    demo = pd.read_csv(ROOT / "parameters" / "demo" / "lab_tests.csv")
+    nxt = selector.fit_sphere(demo, seed=0).suggest_tests(5)
+    shown = [d.value for d in at.dataframe if "p_inside" in d.value.columns][0]
+    assert list(shown["name"]) == list(nxt["name"])
+    assert shown["p_inside"].to_numpy() == pytest.approx(nxt["p_inside"].to_numpy())
+    assert list(shown.columns[:2]) == ["name", "hazard_class"]
     at.select_slider(key="sp_boot").set_value(0).run()
     assert not at.exception, errors(at)
     demo = pd.read_csv(ROOT / "parameters" / "demo" / "lab_tests.csv")

@@ -77,7 +77,10 @@ COLUMN_CONFIG = {
     "mismatch": st.column_config.NumberColumn("Property mismatch", format="%.2f"),
     "role": st.column_config.TextColumn("Role"),
     "p_inside": st.column_config.NumberColumn("Share of fits inside", format="%.2f"),
-    "information": st.column_config.NumberColumn("Information p(1-p)", format="%.3f"),
+    "information": st.column_config.NumberColumn(
+        "What the test would teach", format="%.3f",
+        help="p(1-p), p = share of fits inside: 0.25 when the result is a toss-up between the plausible "
+             "spheres (the most a test can tell), near 0 when they all agree"),
 }
 
 

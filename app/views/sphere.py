@@ -80,7 +80,11 @@ tests = st.data_editor(base, num_rows="dynamic", width="stretch", key=f"sp_ed_{s
                                       "dissolved": st.column_config.CheckboxColumn("dissolved"),
                                       "score": st.column_config.NumberColumn("score", help="graded result, optional")})
 c1, c2, c3, c4 = st.columns(4)
-boot = c1.select_slider("Bootstrap resamples (for the intervals)", [0, 25, 50, 100, 200], value=100, key="sp_boot")
+from selector.spheres import DEFAULT_BOOTSTRAP
+
+boot = c1.select_slider("Bootstrap resamples (for the intervals)", sorted({0, 25, 50, 100, 200, DEFAULT_BOOTSTRAP}),
+                        value=DEFAULT_BOOTSTRAP, key="sp_boot",
+                        help="fewer is faster, but the intervals and the shares below then move from seed to seed")
 seed = c2.number_input("Random seed", value=0, step=1, key="sp_seed", help="a whole number of 0 or more")
 graded = c3.checkbox("Use the score column as grades", value=False, key="sp_graded",
                      help="grade at or above the pass mark counts as good; higher grades = further inside")
@@ -129,7 +133,9 @@ st.subheader("Suggested next tests")
 st.caption("Liquids whose result would tell the most about the sphere's edge.")
 nxt = common.call(res.suggest_tests, 5)
 if nxt is not None:
-    common.table(nxt, hide_index=True, width="stretch", column_config=common.COLUMN_CONFIG)
+    first = [c for c in ("name", "hazard_class", "red", "p_inside", "information") if c in nxt.columns]
+    common.table(nxt[first + [c for c in nxt.columns if c not in first]], hide_index=True, width="stretch",
+                 column_config=common.COLUMN_CONFIG)
     for note in nxt.attrs.get("notes", []):
         st.caption(note)
     lib = common.library()
