@@ -151,7 +151,8 @@ def library_from_args(a):
 
         unused = unused_user_columns(mine)
         if unused:
-            print(f"note: {mine}: column(s) {', '.join(unused)} are not used (check the spelling: e.g. bp, "
+            print(f"note: {mine}: {'column' if len(unused) == 1 else 'columns'} {', '.join(unused)} "
+                  f"{'is' if len(unused) == 1 else 'are'} not used (check the spelling: e.g. bp, "
                   "fp, V, R0)", file=sys.stderr)
     return lib
 

@@ -4,6 +4,7 @@ from __future__ import annotations
 import argparse
 
 from .cli_core import INTERVAL_FIELDS
+from .errors import plural
 
 GUESS_COLUMNS = ["name", "smiles", "source", "hsp_source", "delta_d", "delta_d_low", "delta_d_high",
                  "delta_p", "delta_p_low", "delta_p_high", "delta_h", "delta_h_low", "delta_h_high",
@@ -49,10 +50,6 @@ def register(sub) -> None:
     g.add_argument("--overwrite", action="store_true",
                    help="let -o replace an existing file (never the input batch or a read-only one)")
     p.set_defaults(func=cmd_guess)
-
-
-def _plural(n: int, word: str) -> str:
-    return f"{n} {word}" + ("" if n == 1 else "s")
 
 
 def _shown(res, cols):
@@ -140,7 +137,7 @@ def _save_mine(res, path) -> int:
               file=sys.stderr)
         return 0
     if good.empty:
-        print(f"nothing saved to {path}: {_plural(len(skipped), 'row')} cannot be user liquids:\n  "
+        print(f"nothing saved to {path}: {plural(len(skipped), 'row')} cannot be user liquids:\n  "
               + "\n  ".join(skipped), file=sys.stderr)
         return 1
     # fingerprint before reading: a file another program (the app) wrote meanwhile is not
@@ -151,14 +148,14 @@ def _save_mine(res, path) -> int:
     save_user_liquids(guard_cells(table), path, unchanged_since=fp)
     kinds = good["origin"].value_counts()
     detail = ", ".join(f"{n} {k}" for k, n in kinds.items())
-    msg = f"saved {_plural(len(good), 'row')} to {path} ({detail})"
+    msg = f"saved {plural(len(good), 'row')} to {path} ({detail})"
     if replaced:
-        msg += f"; replaced {_plural(len(replaced), 'earlier row')} of the same name: " + ", ".join(replaced)
+        msg += f"; replaced {plural(len(replaced), 'earlier row')} of the same name: " + ", ".join(replaced)
     if n_lib or n_dup:
         msg += "; not saved: " + ", ".join(x for x in (
             f"{n_lib} in the library" if n_lib else "",
-            f"{_plural(n_dup, 'repeated molecule')} (saved once)" if n_dup else "") if x)
+            f"{plural(n_dup, 'repeated molecule')} (saved once)" if n_dup else "") if x)
     if skipped:
-        msg += f"; skipped {_plural(len(skipped), 'row')} that cannot be user liquids:\n  " + "\n  ".join(skipped)
+        msg += f"; skipped {plural(len(skipped), 'row')} that cannot be user liquids:\n  " + "\n  ".join(skipped)
     print(msg, file=sys.stderr)
     return 1 if skipped else 0

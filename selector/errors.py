@@ -6,6 +6,16 @@ message names the problem; the command line prints it as one line and exits non-
 from __future__ import annotations
 
 
+def plural(n: int, word: str, many: str | None = None) -> str:
+    """``"1 liquid"``, ``"3 liquids"``: a count with its noun in the right number (``many``: an
+    irregular plural).
+
+    >>> plural(1, "problem"), plural(2, "problem"), plural(2, "was", "were")
+    ('1 problem', '2 problems', '2 were')
+    """
+    return f"{n} {word if n == 1 else (many or word + 's')}"
+
+
 class SelectorError(ValueError):
     """Bad input: the message says what is wrong and, where possible, what would be right."""
 
@@ -31,4 +41,4 @@ class InputTableError(SelectorError):
     def __init__(self, what: str, problems: list[str]):
         self.problems = list(problems)
         lines = "\n".join(f"  - {p}" for p in self.problems)
-        super().__init__(f"{what}: {len(self.problems)} problem(s)\n{lines}")
+        super().__init__(f"{what}: {plural(len(self.problems), 'problem')}\n{lines}")

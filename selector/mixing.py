@@ -89,7 +89,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from .errors import SelectorError
+from .errors import SelectorError, plural
 from .hansen import R_GAS
 from .library import load_library, locate
 
@@ -809,7 +809,8 @@ def _check_temperature_frame(t, df):
     if np.any(bad):
         names = df["name"].astype(str).to_numpy()[bad] if "name" in df.columns else np.arange(len(df))[bad]
         shown = ", ".join(map(str, names[:8])) + (" ..." if bad.sum() > 8 else "")
-        raise SelectorError(f"{int(bad.sum())} liquid(s) are not liquid at {t:g} C (below melting or "
+        n = int(bad.sum())
+        raise SelectorError(f"{plural(n, 'liquid')} {'is' if n == 1 else 'are'} not liquid at {t:g} C (below melting or "
                             f"above boiling point): {shown}")
     return t
 
@@ -1267,7 +1268,7 @@ def _arrays(df: pd.DataFrame):
     need = ["delta_d", "delta_p", "delta_h", "molar_volume"]
     miss = [c for c in need if c not in df.columns]
     if miss:
-        raise SelectorError(f"liquids table lacks column(s) {', '.join(miss)}")
+        raise SelectorError(f"liquids table lacks {'column' if len(miss) == 1 else 'columns'} {', '.join(miss)}")
     h = df[["delta_d", "delta_p", "delta_h"]].apply(pd.to_numeric, errors="coerce").to_numpy(float)
     v = pd.to_numeric(df["molar_volume"], errors="coerce").to_numpy(float)
     bad = ~np.isfinite(h).all(axis=1) | ~np.isfinite(v) | (v <= 0) | (h < 0).any(axis=1)

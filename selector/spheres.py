@@ -71,7 +71,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from .errors import InputTableError, SelectorError, UnknownLiquidError
+from .errors import InputTableError, SelectorError, UnknownLiquidError, plural
 from .hansen import blend_hsp, hsp_at_temperature
 from .library import HSP, load_library, locate
 
@@ -410,7 +410,8 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
             good = _parse_binary(v)
             if good is None:
                 g = _to_float(v)
-                hint = (" (numeric grades need threshold=, the lowest grade that counts as good)"
+                hint = (" (numeric grades need a pass mark: threshold= in Python, --pass-mark on the "
+                        "command line, Use the score column as grades in the app)"
                         if g is not None else " (use good/bad, yes/no, true/false or 1/0)")
                 problems.append(f"{where}: cannot read the outcome {v!r}{hint}")
                 ok = False
@@ -451,11 +452,11 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
         notes.append(f"{grp[0]['label']}: {len(grp)} consistent rows merged into one test")
     if not problems:
         if len(merged) < MIN_TESTS:
-            problems.append(f"too few tests: {len(merged)} distinct liquid(s); a sphere has four "
+            problems.append(f"too few tests: {plural(len(merged), 'distinct liquid')}; a sphere has four "
                             f"parameters, so at least {MIN_TESTS} (better 15-40) are needed")
         n_good = sum(1 for r in merged if r["good"])
         if n_good < 2:
-            problems.append(f"only {n_good} good result(s): at least two liquids that dissolve the "
+            problems.append(f"only {plural(n_good, 'good result')}: at least two liquids that dissolve the "
                             "solute are needed to place a sphere")
     if problems:
         raise InputTableError("lab tests", problems)

@@ -28,7 +28,7 @@ def test_cli_blank_name_is_a_message_not_a_traceback(tmp_path, capsys):
     rc = main(["rank", "toluene", "--mine", str(p)])
     err = capsys.readouterr().err
     assert rc == 2
-    assert "user liquids: 1 problem(s)" in err and "row 2: name is empty" in err
+    assert "user liquids: 1 problem\n" in err and "row 2: name is empty" in err
     assert "Traceback" not in err
 
 
@@ -99,7 +99,7 @@ def test_save_refuses_a_file_changed_since_it_was_opened(tmp_path, monkeypatch):
     assert not errors(at)
     assert list(pd.read_csv(f)["name"]) == ["keep me (invented)", "added meanwhile (invented)",
                                             "resin thinner X (invented)", "my resin (invented)"]
-    assert any("Saved 4 liquid(s)" in s.value for s in at.success)
+    assert any("Saved 4 liquids" in s.value for s in at.success)
     # the page's fingerprint follows its own save: a second save is not refused
     at.button(key="mine_save").click().run()
     assert not errors(at)
@@ -131,7 +131,7 @@ def test_invalid_file_saved_unchanged_is_refused_without_a_backup(tmp_path, monk
     at = open_page(tmp_path, monkeypatch)
     assert list(at.session_state["mine_table"]["name"]) == ["bad row (invented)"]
     at.button(key="mine_save").click().run()
-    assert any("Not saved - the file on disk is unchanged" in e and "delta_p = -3" in e for e in errors(at))
+    assert any("Not saved (the file on disk is unchanged" in e and "delta_p = -3" in e for e in errors(at))
     assert f.read_bytes() == before
     assert sorted(p.name for p in tmp_path.iterdir()) == ["my_liquids.csv"]
 

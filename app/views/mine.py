@@ -3,6 +3,7 @@ import pandas as pd
 import streamlit as st
 
 from lwui import common
+from selector.errors import plural
 from selector.io import to_csv_text
 from selector.library import (backup_file, file_fingerprint, save_user_liquids, user_liquids_file,
                               validate_user_table)
@@ -63,17 +64,20 @@ for c in COLUMNS:
     if c not in table.columns:
         table[c] = pd.Series(dtype=object if c in TEXT else float)
 
-edited = st.data_editor(table, num_rows="dynamic", width="stretch", key="mine_editor",
-                        column_config={"kind": st.column_config.SelectboxColumn(
-                                           "kind", options=["liquid", "solute"], default="liquid",
-                                           help="solutes (with R0) can be targets but are never proposed as liquids"),
-                                       "delta_d": st.column_config.NumberColumn("dD (MPa½)"),
-                                       "delta_p": st.column_config.NumberColumn("dP (MPa½)"),
-                                       "delta_h": st.column_config.NumberColumn("dH (MPa½)"),
-                                       "molar_volume": st.column_config.NumberColumn("V (cm³/mol)"),
-                                       "boiling_point_c": st.column_config.NumberColumn("Boiling point (°C)"),
-                                       "flash_point_c": st.column_config.NumberColumn("Flash point (°C)"),
-                                       "radius": st.column_config.NumberColumn("R0 (MPa½)")})
+#: Headers of the editor and of the import preview (the file keeps the plain column names).
+HEADERS = {"name": "Name",
+           "kind": st.column_config.SelectboxColumn(
+               "Kind", options=["liquid", "solute"], default="liquid",
+               help="solutes (with R0) can be targets but are never proposed as liquids"),
+           "cas": "CAS", "smiles": "SMILES",
+           "delta_d": st.column_config.NumberColumn("dD (MPa½)"),
+           "delta_p": st.column_config.NumberColumn("dP (MPa½)"),
+           "delta_h": st.column_config.NumberColumn("dH (MPa½)"),
+           "molar_volume": st.column_config.NumberColumn("V (cm³/mol)"),
+           "boiling_point_c": st.column_config.NumberColumn("Boiling point (°C)"),
+           "flash_point_c": st.column_config.NumberColumn("Flash point (°C)"),
+           "radius": st.column_config.NumberColumn("R0 (MPa½)"), "note": "Note"}
+edited = st.data_editor(table, num_rows="dynamic", width="stretch", key="mine_editor", column_config=HEADERS)
 rows = edited.dropna(how="all")
 rows = rows.astype({c: object for c in TEXT if c in rows.columns})
 c1, c2, c3 = st.columns(3)
@@ -93,11 +97,11 @@ if c1.button("Save my liquids", type="primary", key="mine_save"):
             save_user_liquids(rows, path, unchanged_since=st.session_state[STAMP])
         except (ValueError, KeyError) as e:
             kept = f" (the old file was copied to {bak})" if bak else ""
-            common.show_error(f"Not saved - the file on disk is unchanged{kept}. {e}")
+            common.show_error(f"Not saved (the file on disk is unchanged{kept}): {e}")
         else:
             _load()
             st.session_state.pop("mine_editor", None)
-            st.session_state["mine_msg"] = (f"Saved {len(rows)} liquid(s) to {path}."
+            st.session_state["mine_msg"] = (f"Saved {plural(len(rows), 'liquid')} to {path}."
                                             + (f" The old, unreadable file was kept as {bak}." if bak else ""))
             st.rerun()
 c2.download_button("Export (CSV)", to_csv_text(rows), file_name="my_liquids.csv", mime="text/csv",
@@ -113,16 +117,22 @@ if up is not None:
     try:
         new = validate_user_table(up.getvalue())
     except (ValueError, KeyError) as e:
-        common.show_error(f"{up.name} was not imported (nothing was changed). {e}")
+        common.show_error(f"{up.name} was not imported (nothing was changed): {e}")
     else:
         from selector.library import unused_user_columns
 
         unused = unused_user_columns(up.getvalue())
         if unused:
-            st.warning(f"{up.name}: column(s) {', '.join(unused)} are not used anywhere (check the spelling: "
+            st.warning(f"{up.name}: {'column' if len(unused) == 1 else 'columns'} {', '.join(unused)} "
+                       f"{'is' if len(unused) == 1 else 'are'} not used anywhere (check the spelling: "
                        "e.g. bp or boiling point, fp, V, R0); they are kept in the table but no page reads them.")
-        common.table(new, hide_index=True, width="stretch")
-        if st.button(f"Add these {len(new)} liquid(s) to the table", key="mine_add"):
+        shown = new.copy()
+        for c in shown.columns:          # a text cell left empty shows empty, not "None"
+            if shown[c].dtype == object:
+                shown[c] = shown[c].where(shown[c].notna(), "")
+        common.table(shown, hide_index=True, width="stretch",
+                     column_config={k: v for k, v in HEADERS.items() if k != "kind"} | {"kind": "Kind"})
+        if st.button(f"Add {'this liquid' if len(new) == 1 else f'these {len(new)} liquids'} to the table", key="mine_add"):
             keep = rows.loc[~rows["name"].fillna("").astype(str).str.lower().isin(new["name"].str.lower())]
             st.session_state[KEY] = pd.concat([keep, new], ignore_index=True)
             st.session_state.pop("mine_editor", None)
