@@ -71,21 +71,49 @@ def hsp_space_3d(groups, spheres=(), title="Hansen space") -> go.Figure:
             marker=dict(size=size, color=style["color"], symbol=SYMBOL_3D.get(style["symbol"], style["symbol"]),
                         opacity=style.get("opacity", 0.9), line=dict(width=0))))
     colours = [GREEN, PURPLE, SKY]
+    centres = []
     for i, (label, c, r) in enumerate(spheres):
         col = colours[i % len(colours)]
         if r:
             x, y, z = ellipsoid(c, r)
             fig.add_trace(go.Surface(x=x, y=y, z=z, opacity=0.18, showscale=False, name=label,
                                      colorscale=[[0, col], [1, col]], hoverinfo="skip", showlegend=True))
-        fig.add_trace(go.Scatter3d(x=[c[0]], y=[c[1]], z=[c[2]], mode="markers", name=f"{label} (centre)",
-                                   marker=dict(size=6, color=BLACK, symbol="diamond")))
-    # camera drawn back from plotly's default (1.25, 1.25, 1.25) so that the lower corner and the
-    # dD axis title stay inside the frame
+        # an open diamond: a blend or liquid at the centre stays visible through it
+        centres.append(go.Scatter3d(x=[c[0]], y=[c[1]], z=[c[2]], mode="markers", name=f"centre of {label}",
+                                    marker=dict(size=7, color=BLACK, symbol="diamond-open")))
+    for tr in centres:
+        fig.add_trace(tr)
     fig.update_layout(title=title, scene=dict(xaxis_title=AXIS["d"], yaxis_title=AXIS["p"],
-                                              zaxis_title=AXIS["h"], aspectmode="data",
-                                              camera=dict(eye=dict(x=1.9, y=1.9, z=1.25),
-                                                          center=dict(x=0, y=0, z=-0.05))))
+                                              zaxis_title=AXIS["h"], **_scene_box(groups, spheres)))
     return _layout(fig, 640)
+
+
+def _scene_box(groups, spheres) -> dict:
+    """Axis ranges and aspect for the 3-D plot: the dD axis drawn twice as long per MPa½ as the
+    others, as dD counts twice in Ra, so that a Hansen sphere looks round (and its dD ticks have
+    room)."""
+    lo, hi = np.full(3, np.inf), np.full(3, -np.inf)
+    for _, df, _, _ in groups:
+        if df is not None and len(df):
+            v = df[["delta_d", "delta_p", "delta_h"]].to_numpy(float)
+            lo, hi = np.fmin(lo, np.nanmin(v, 0)), np.fmax(hi, np.nanmax(v, 0))
+    for _, c, r in spheres:
+        ext = np.array([r / 2, r, r]) if r else np.zeros(3)
+        lo, hi = np.fmin(lo, np.asarray(c, float) - ext), np.fmax(hi, np.asarray(c, float) + ext)
+    if not np.all(np.isfinite(lo) & np.isfinite(hi)):
+        return dict(aspectmode="data", camera=dict(eye=dict(x=1.9, y=1.9, z=1.25)))
+    pad = np.maximum(0.04 * (hi - lo), [0.25, 0.5, 0.5])   # the same on the drawn (2 dD) scale
+    lo, hi = lo - pad, hi + pad
+    span = (hi - lo) * np.array([2.0, 1.0, 1.0])
+    ratio = span / span.max()
+    # the camera backs off with the size of the box, so that a cube-like box keeps its corners in
+    # the frame and a tall narrow one does not shrink to the middle of it
+    k = 0.95 * float(np.linalg.norm(ratio))
+    return dict(aspectmode="manual", aspectratio=dict(x=ratio[0], y=ratio[1], z=ratio[2]),
+                camera=dict(eye=dict(x=k, y=k, z=0.6 * k), center=dict(x=0, y=0, z=-0.08)),
+                xaxis=dict(range=[lo[0], hi[0]], nticks=max(3, int(8 * ratio[0]))),
+                yaxis=dict(range=[lo[1], hi[1]], nticks=max(3, int(8 * ratio[1]))),
+                zaxis=dict(range=[lo[2], hi[2]], nticks=max(3, int(8 * ratio[2]))))
 
 
 def projections_2d(groups, spheres=()) -> go.Figure:

@@ -124,7 +124,7 @@ with tab3:
     blend_pt = pd.DataFrame({"name": [pick], "delta_d": [row["delta_d"]], "delta_p": [row["delta_p"]],
                              "delta_h": [row["delta_h"]]})
     st.plotly_chart(plots.hsp_space_3d([("components", crow, dict(plots.BAD, color=plots.ORANGE), 6),
-                                        ("blend", blend_pt, plots.GOOD, 8)],
+                                        ("blend", blend_pt, plots.GOOD, 10)],
                                        [(t.name, tuple(t.hsp), t.radius)], title="The blend and its components"),
                     width="stretch", key="bl_3d")
     st.caption("A blend's point is the volume-weighted mean of its components: two liquids outside the "

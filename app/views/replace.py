@@ -104,6 +104,10 @@ show = [c for c in res.columns if c not in ("components", "fractions") and not (
 common.table(res[show], hide_index=True, width="stretch", column_config=dict(
     common.COLUMN_CONFIG, candidate=st.column_config.TextColumn("Candidate"),
     lowest_flash_point_c=st.column_config.NumberColumn("Lowest flash point (°C)", format="%.0f"),
+    boiling_point_c=st.column_config.NumberColumn(
+        "Boiling point (°C)", format="%.0f",
+        help="for a blend, the middle of its components' boiling points (a rough guide: a blend boils "
+             "over a range, from its lowest to its highest boiling component)"),
     evaporation_rate=st.column_config.NumberColumn("Evaporation rate", format="%.2f"),
     mismatch=st.column_config.NumberColumn("Property mismatch", format="%.2f"),
     component_ra=st.column_config.TextColumn("Ra of each component", help="MPa½, in the order of the candidate")))
