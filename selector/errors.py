@@ -29,6 +29,9 @@ class UnknownLiquidError(SelectorError, KeyError):
         msg = f"unknown liquid {query!r}"
         if self.suggestions:
             msg += "; did you mean " + ", ".join(repr(s) for s in self.suggestions) + "?"
+        else:
+            msg += ("; no library name is close to it: try its CAS number or SMILES, or add it to your "
+                    "own liquids")
         super().__init__(msg)
 
     def __str__(self) -> str:  # KeyError would add quotes around the message
