@@ -723,7 +723,7 @@ def apply_names(df: pd.DataFrame) -> pd.DataFrame:
             continue
         syn = [x for x in str(df["synonyms"].iloc[i] if pd.notna(df["synonyms"].iloc[i]) else "").split("|")
                if x and x.lower() != new.lower()]
-        if old.lower() not in [x.lower() for x in syn]:
+        if old.lower() != new.lower() and old.lower() not in [x.lower() for x in syn]:
             syn.insert(0, old)
         df.iloc[i, df.columns.get_loc("name")] = new
         df.iloc[i, df.columns.get_loc("synonyms")] = "|".join(syn)

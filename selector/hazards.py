@@ -110,6 +110,14 @@ REVISED_CLASSES = {
 
 WATER_CAS = "7732-18-5"
 
+#: This project's rule on top of the guide: a liquid with a suspected carcinogen, mutagen or
+#: reprotoxic statement (H341, H351, H361) or organ damage on repeated exposure (H372) is at best
+#: *problematic*. The guide scores these 6 (yellow), so alone they leave a non-flammable liquid
+#: "recommended" by default (1,1,2-trichloroethane, H351; 2-hexanone, H361f H372, the
+#: neurotoxic ketone industry moved away from); the guide's own revisions after discussion went
+#: the same way for such solvents (dichloromethane). ``hazard_class_default`` keeps the computed class.
+CAP_PROBLEMATIC = ("H341", "H351", "H361", "H372")
+
 
 #: Short plain-language flags for the GHS hazard statements a formulator must not miss
 #: (statement texts of the GHS, UN 2019 rev. 8, condensed).
@@ -407,6 +415,8 @@ def hazard_table(library: pd.DataFrame | None = None) -> pd.DataFrame:
         default, revised = rev.iloc[i]
         if cls[i] == default:
             final[i] = revised
+    capped = np.array([any(x[:4] in CAP_PROBLEMATIC for x in t) for t in stm], dtype=bool)
+    final[capped & (final == "recommended")] = "problematic"
     final[np.isin(kcas, list(HIGHLY_HAZARDOUS_CAS))] = "highly hazardous"
     pos = np.flatnonzero(known)
     col = out.columns.get_loc

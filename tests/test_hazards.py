@@ -349,3 +349,33 @@ def test_bis_chloroethyl_ether_is_classified():
     assert r.health_score == 9 and r.hazard_class == "hazardous"
     row = selector.find_liquid("bis(2-chloroethyl) ether")
     assert row["flash_point_c"] == 55.0 and "lower of parameters/hazards.csv 55 C" in row["flash_point_source"]
+
+
+def test_carcinogens_once_unclassified_carry_h350_and_are_not_recommended():
+    # EU CLP harmonised classification, Annex VI, from memory (parameters/hazards.csv): all three
+    # are Carc. 1B (H350): o-toluidine (95-53-4), 2-nitropropane (79-46-9), 1,2-dibromoethane
+    # (106-93-4). They had no row before and ranked as "unclassified" near the top of results.
+    from selector.hazards import statement_flags
+
+    for name, cas in (("o-toluidine", "95-53-4"), ("2-nitropropane", "79-46-9"),
+                      ("1,2-dibromoethane", "106-93-4")):
+        assert selector.find_liquid(name)["cas"] == cas, name
+        r = selector.hazard(name)
+        assert "H350" in r.statements, name
+        assert "carcinogen, mutagen or reprotoxic" in statement_flags(r.statements), name
+        # H350 scores health 9 (CHEM21 table, from memory): at least hazardous, never recommended
+        assert r.health_score >= 9 and r.hazard_class not in ("recommended", "unclassified"), name
+
+
+def test_suspected_cmr_and_repeated_organ_damage_cap_the_class_at_problematic():
+    # This project's rule over the CHEM21 default ranking (selector.hazards.CAP_PROBLEMATIC):
+    # 1,1,2-trichloroethane (H351, does not burn) and 2-hexanone (H361f, H372: the neurotoxic
+    # ketone; EU CLP Annex VI, from memory) score one yellow at most, so the guide's default
+    # ranking calls them recommended; they are shown as problematic, the default kept beside it.
+    lib = selector.load_library()
+    h = hazard_columns(lib).set_index(lib["name"])
+    for name in ["1,1,2-trichloroethane", "2-hexanone"]:
+        assert h.loc[name, "hazard_class_default"] == "recommended", name
+        assert h.loc[name, "hazard_class"] == "problematic", name
+    # a liquid without such a statement keeps its class (ethyl acetate, recommended in the guide)
+    assert h.loc["ethyl acetate", "hazard_class"] == "recommended"

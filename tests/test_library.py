@@ -228,7 +228,7 @@ def test_vapour_pressure_against_thermo(lib):
     ("methyl ethyl ketone", "2-butanone"), ("Methyl-Ethyl-Ketone", "2-butanone"),
     ("NMP", "1-methyl-2-pyrrolidinone"), ("n-methyl-2-pyrrolidone", "1-methyl-2-pyrrolidinone"),
     ("isopropyl alcohol", "isopropanol"), ("DCM", "dichloromethane"),
-    ("N,N-Dimethylformamide", "n,n-dimethylformamide"),
+    ("n,n-dimethylformamide", "N,N-dimethylformamide"),   # the N locant in capitals (parameters/names.csv)
 ])
 def test_lookup(lib, query, expected):
     assert find_liquid(query, lib)["name"] == expected

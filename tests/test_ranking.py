@@ -81,7 +81,11 @@ def test_filters_are_obeyed():
     r = selector.rank(PS, boiling_point_c=(100, 180), min_flash_point_c=30, max_molar_volume=150,
                       consistent_sources_only=True, exclude=["o-xylene", "NMP"])
     assert r["boiling_point_c"].between(100, 180).all()
-    assert (r["flash_point_c"] >= 30).all()
+    # a liquid that does not burn passes a minimum flash point (selector.filters); 1,1,2-
+    # trichloroethane and pentachloroethane are marked so in parameters/hazards.csv (from memory)
+    from selector.cautions import not_flammable
+    assert ((r["flash_point_c"] >= 30) | not_flammable(r)).all()
+    assert (r["flash_point_c"].isna() == not_flammable(r)).all()
     assert (r["molar_volume"] <= 150).all()
     assert not r["sources_disagree"].any()
     assert "o-xylene" not in set(r["name"]) and "1-methyl-2-pyrrolidinone" not in set(r["name"])
