@@ -327,8 +327,11 @@ def cmd_demo(a) -> int:
     print()
     header = (f"Thinners for {r['name']} (dD {r['delta_d']}, dP {r['delta_p']}, dH {r['delta_h']}, "
               f"R0 {r['radius']} MPa^0.5), boiling point {f['boiling_point_c'][0]:g}-{f['boiling_point_c'][1]:g} C, "
-              f"flash point >= {f['min_flash_point_c']:g} C; hazard class: CHEM21 (unclassified = no "
-              "hazard data here, not safe; the scenario wants a better class than its current thinner):"
+              f"flash point >= {f['min_flash_point_c']:g} C"
+              + (f", CHEM21 class {f['max_hazard_class']} or better (liquids without hazard data are "
+                 "left out: nothing shows they are safer)" if f.get("max_hazard_class") else
+                 "; hazard class: CHEM21 (unclassified = no hazard data here, not safe)")
+              + "; the scenario wants a better class than its current thinner:"
               + _reagent_note(res))
     from .library import load_library
 

@@ -137,8 +137,9 @@ def demo_target_spec() -> dict:
 
 
 def demo_filters() -> dict:
-    f = demo()["filters"]
-    return {"boiling_point_c": tuple(f["boiling_point_c"]), "min_flash_point_c": f["min_flash_point_c"]}
+    f = dict(demo()["filters"])
+    f["boiling_point_c"] = tuple(f["boiling_point_c"])
+    return f
 
 
 def init_state() -> None:
@@ -383,9 +384,16 @@ def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool
                              key=f"{prefix}_fp", placeholder="no limit",
                              help="liquids without flash-point data are dropped when set, except "
                                   "those known not to burn (water, dichloromethane, chloroform, ...)")
-        c5, c6, c7, c8 = st.columns([1, 2, 1, 1])
+        c5, c9, c6, c7, c8 = st.columns([1, 1, 2, 1, 1])
         mv = c5.number_input("Max molar volume (cm³/mol)", value=None, step=10.0,
                              key=f"{prefix}_mv", placeholder="no limit")
+        from selector.hazards import HAZARD_CLASSES
+
+        classes = ["any"] + list(HAZARD_CLASSES[:-1])
+        hz = c9.selectbox("Worst hazard class", classes,
+                          index=classes.index(d.get("max_hazard_class") or "any"), key=f"{prefix}_hz",
+                          help="CHEM21 class; once set, liquids without hazard data (unclassified) "
+                               "are dropped too, as nothing shows they are safer")
         exc = c6.multiselect("Never propose", liquid_names(), default=d.get("exclude", []),
                              key=f"{prefix}_exc")
         agreed = c7.checkbox("Agreed sources only", value=False, key=f"{prefix}_agreed",
@@ -403,6 +411,8 @@ def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool
         f["max_molar_volume"] = mv
     if exc:
         f["exclude"] = exc
+    if hz != "any":
+        f["max_hazard_class"] = hz
     if agreed:
         f["consistent_sources_only"] = True
     if reactive:
@@ -542,7 +552,8 @@ def filters_as_inputs(filters: dict, temperature: float) -> dict:
     names = {"boiling_point_c": "boiling-point window (C)", "min_flash_point_c": "minimum flash point (C)",
              "max_molar_volume": "maximum molar volume (cm3/mol)", "exclude": "never propose",
              "include": "only these", "consistent_sources_only": "agreed HSP sources only",
-             "include_reactive": "reagents (reactive, very toxic) included"}
+             "include_reactive": "reagents (reactive, very toxic) included",
+             "max_hazard_class": "worst CHEM21 hazard class"}
     for k, v in filters.items():
         if k == "boiling_point_c":
             v = f"{'-' if v[0] is None else f'{v[0]:g}'} to {'-' if v[1] is None else f'{v[1]:g}'}"
