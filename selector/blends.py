@@ -634,8 +634,10 @@ def _table(tgt, cand, h, idx, f, rr, t_c, cost=None):
     hr = np.where(used, hrank[safe], -np.inf)
     unc = (used & np.isnan(hrank[safe])).any(1)
     worst = np.nanmax(np.where(np.isnan(hr), -np.inf, hr), axis=1)
-    cls = np.where(unc, UNCLASSIFIED,
-                   np.array(HAZARD_CLASSES, dtype=object)[np.clip(worst, 0, 3).astype(int)])
+    named = np.array(HAZARD_CLASSES, dtype=object)[np.clip(worst, 0, 3).astype(int)]
+    # an unclassified component leaves the blend unclassified, unless a known component is already
+    # hazardous or worse: that class is not hidden behind the missing data
+    cls = np.where(unc, np.where(worst >= 2, named + " (+ unclassified)", UNCLASSIFIED), named)
     bp = cand["boiling_point_c"].to_numpy(float)
     bpl = np.where(used, bp[safe], np.inf).min(1)
     bph = np.where(used, bp[safe], -np.inf).max(1)
@@ -644,8 +646,14 @@ def _table(tgt, cand, h, idx, f, rr, t_c, cost=None):
     low_fp = fps.min(1)
     low_fp = np.where(np.isnan(fps).any(1), np.nan, np.where(np.isinf(low_fp), np.nan, low_fp))
     with np.errstate(invalid="ignore"):
-        lf_comp = np.where(np.isnan(fps).any(1) | np.all(np.isinf(fps), 1), "",
-                           names[safe[np.arange(len(safe)), np.argmin(np.nan_to_num(fps, nan=np.inf), 1)]])
+        known_min = np.where(np.isnan(fps), np.inf, fps)
+        at = np.argmin(known_min, 1)
+        first = names[safe[np.arange(len(safe)), at]]
+        lf_comp = np.where(np.isnan(fps).any(1) | np.all(np.isinf(fps), 1), "", first).astype(object)
+    # some flash points unknown: name the lowest known one (the blend's is at most that)
+    for i in np.flatnonzero(np.isnan(fps).any(1) & np.isfinite(known_min.min(1))):
+        miss = ", ".join(names[safe[i, j]] for j in np.flatnonzero(np.isnan(fps[i])))
+        lf_comp[i] = f"{first[i]} at {known_min[i, at[i]]:.0f} C; no data for {miss}"
     comp_ra = _ra(h[safe], tgt.hsp)
     out = pd.DataFrame({
         "components": [tuple(names[r[u]]) for r, u in zip(idx, used)],

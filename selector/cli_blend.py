@@ -8,7 +8,8 @@ from .cli_common import add_filter_args, add_output_args, emit, filters_from_arg
 BLEND_COLUMNS = ["blend", "n_components", "delta_d", "delta_p", "delta_h", "ra", "red", "non_solvent_pair",
                  "hazard_class", "bp_low_c", "bp_high_c", "lowest_flash_point_c", "lowest_flash_component",
                  "cost_per_litre", "pareto", "hazard_notes"]
-REPLACE_COLUMNS = ["role", "blend", "ra", "red", "hazard_class", "boiling_point_c", "evaporation_rate",
+REPLACE_COLUMNS = ["role", "blend", "ra", "red", "hazard_class", "boiling_point_c", "bp_low_c", "bp_high_c",
+                   "evaporation_rate",
                    "viscosity_mpa_s", "lowest_flash_point_c", "mismatch", "score", "hazard_notes"]
 CLASS_CHOICES = ["recommended", "problematic", "hazardous", "highly-hazardous"]
 
@@ -96,7 +97,9 @@ def cmd_replace(a) -> int:
     note = res.attrs.get("regulatory_note") or ""
     header = (f"Safer candidates for {res.attrs['replaced']} (first row; class "
               f"{res['hazard_class'].iloc[0]}{'; ' + note if note else ''}). Only liquids with a strictly "
-              "better CHEM21 class; score = distance + 0.5 x property mismatch, lower is better."
+              "better CHEM21 class; score = distance + 0.5 x property mismatch, lower is better. A blend's "
+              "boiling_point_c is the middle of its boiling range (bp_low_c to bp_high_c) and its evaporation "
+              "rate the volume-weighted mean: the parts still leave at their own rates (likewise dry)."
               + "".join(f"\nWARNING: {w}" for w in res.attrs.get("warnings", [])))
     res, est_cols, est_note = _with_estimated(res, lib, a)
     cols = [c for c in REPLACE_COLUMNS if c != "red" or res["red"].notna().any()] + est_cols

@@ -6,8 +6,8 @@ import math
 
 from .cli_common import CAUTION, add_filter_args, add_output_args, emit, filters_from_args, library_from_args
 
-PAIR_COLUMNS = ["a", "b", "temperature_c", "state", "chi", "chi_critical", "ucst_c", "lcst_c", "lcst_prone", "confidence",
-                "p_miscible", "a_in_b_vol_pct", "a_in_b_wt_pct", "a_in_b_mol_pct", "b_in_a_vol_pct", "b_in_a_wt_pct",
+PAIR_COLUMNS = ["a", "b", "temperature_c", "state", "chi", "chi_critical", "ucst_c", "lcst_c", "lcst_prone", "trend_doubtful",
+                "confidence", "p_miscible", "a_in_b_vol_pct", "a_in_b_wt_pct", "a_in_b_mol_pct", "b_in_a_vol_pct", "b_in_a_wt_pct",
                 "b_in_a_mol_pct", "spinodal_low", "spinodal_high", "v_ref", "interaction_mpa", "model", "notes"]
 
 SHORT = {"miscible": "mix", "partially miscible": "part", "immiscible": "no"}
@@ -15,7 +15,7 @@ SHORT = {"miscible": "mix", "partially miscible": "part", "immiscible": "no"}
 
 def _pair_row(r) -> dict:
     d = {k: getattr(r, k) for k in ("a", "b", "temperature_c", "state", "chi", "chi_critical", "ucst_c",
-                                    "lcst_c", "lcst_prone", "confidence", "p_miscible", "v_ref", "interaction_mpa",
+                                    "lcst_c", "lcst_prone", "trend_doubtful", "confidence", "p_miscible", "v_ref", "interaction_mpa",
                                     "model")}
     for side in ("a_in_b", "b_in_a"):
         for unit in ("vol_pct", "wt_pct", "mol_pct"):
@@ -30,10 +30,11 @@ def _fmt(x, nd=2):
 
 
 def _pct(x):
-    """A model percentage to two significant figures (the model is not better than that)."""
+    """A model percentage to one significant figure: the mutual solubilities are often off tenfold,
+    so a second figure would claim what the model does not know."""
     if x is None or (isinstance(x, float) and not math.isfinite(x)):
         return "-"
-    return f"{float(f'{x:.2g}'):g}"
+    return f"{float(f'{x:.1g}'):g}"
 
 
 def cmd_mix(a) -> int:
@@ -55,7 +56,8 @@ def cmd_mix(a) -> int:
           f"(confidence {r.confidence})")
     if math.isfinite(r.p_miscible):
         print(f"  probability of one phase in all proportions: {100 * r.p_miscible:.0f} % "
-              "(logistic fit on the reference pairs at 25 C)")
+              + ("(logistic fit on the reference pairs at 25 C)" if abs(r.temperature_c - 25.0) < 1e-9 else
+                 f"(at {r.temperature_c:g} C, from a logistic fit calibrated on reference pairs at 25 C)"))
     print(f"  chi {r.chi:.3f} (per {r.v_ref:.1f} cm3/mol), critical chi {r.chi_critical:.3f}; "
           f"model: {r.model}")
     lcst_pair = r.lcst_prone
@@ -65,7 +67,7 @@ def cmd_mix(a) -> int:
         print(f"  LCST: {_fmt(r.lcst_c, 1)} C (a gap opens on heating)")
     if r.binodal:
         ab, ba = r.binodal["a_in_b"], r.binodal["b_in_a"]
-        print("  coexisting phases (binodal, equal chemical potentials):")
+        print("  coexisting phases (model binodal; mutual solubilities are often off tenfold):")
         print(f"    {r.a} in the {r.b}-rich phase: {_pct(ab['vol_pct'])} vol %, {_pct(ab['wt_pct'])} wt %, "
               f"{_pct(ab['mol_pct'])} mol %")
         print(f"    {r.b} in the {r.a}-rich phase: {_pct(ba['vol_pct'])} vol %, {_pct(ba['wt_pct'])} wt %, "

@@ -882,6 +882,7 @@ class Miscibility:
     p_miscible: float = math.nan
     lcst_prone: bool = False
     reacts: str = ""
+    trend_doubtful: bool = False
 
     @property
     def miscible(self) -> bool:
@@ -892,15 +893,17 @@ class Miscibility:
         """The state as an answer to show first: ``state``, except for an LCST-prone pair (water with
         an amine, pyridine or glycol ether), where the model is not to be trusted either way
         (water and 1-methoxy-2-propanol mix in all proportions at 25 C, water and triethylamine
-        split; from memory): "uncertain (model: <state>)"; with ", but they react" appended for a
+        split; from memory), or a water pair whose model state at this temperature differs from its
+        state at 25 C (``trend_doubtful``): "uncertain (model: <state>)"; with ", but they react" appended for a
         pair of :data:`selector.cautions.PAIR_RULES` (``reacts`` names the reaction)."""
-        head = f"uncertain (model: {self.state})" if self.lcst_prone else self.state
+        doubt = self.lcst_prone or self.trend_doubtful
+        head = f"uncertain (model: {self.state})" if doubt else self.state
         return f"{head}, but they react" if self.reacts else head
 
     def as_dict(self) -> dict:
         d = {k: getattr(self, k) for k in ("a", "b", "temperature_c", "state", "chi", "chi_critical",
                                            "ucst_c", "lcst_c", "confidence", "p_miscible", "v_ref", "interaction_mpa",
-                                           "model", "lcst_prone", "reacts", "headline")}
+                                           "model", "lcst_prone", "trend_doubtful", "reacts", "headline")}
         d["spinodal"] = None if self.spinodal is None else list(self.spinodal)
         d["binodal"] = self.binodal
         d["notes"] = list(self.notes)
@@ -1162,7 +1165,24 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
                      "(water-triethylamine: miscible below about 19 C, from memory). This model only "
                      "knows gaps that close on heating, so its temperature trend (and any model UCST) "
                      "does not apply here: test the mix at the temperatures of use")
+    doubtful = False
+    if (wa != wb) and not lcst and abs(t - 25.0) > 1e-9:
+        # the model's temperature trend with water is rough (water-ethyl acetate: miscible above about
+        # 51 C in the model, two phases up to boiling in practice; common practice): a state that
+        # differs from the model's own state at 25 C is not an answer
+        try:
+            st25 = miscibility(a, b, temperature=25.0, library=library, model=model).state
+        except SelectorError:
+            st25 = state
+        if st25 != state:
+            doubtful = True
+            notes.append(f"with water the model's temperature trend is unreliable: it says {state} at {t:g} C "
+                         f"but {st25} at 25 C (water-ethyl acetate: model miscible above about 51 C, two "
+                         "phases up to boiling in practice; common practice); test the mix at the "
+                         "temperature of use")
     conf = _confidence(chi, cc, ra_, rb_, lcst, notes)
+    if doubtful:
+        conf = "low"
     for r in (ra_, rb_):
         if r["origin"] == "estimated":
             notes.append(f"{r['name']}: HSP and molar volume estimated from structure, not measured")
@@ -1189,7 +1209,7 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
                         "a planned reaction; read both safety data sheets")
     return Miscibility(ra_["name"], rb_["name"], t, state, chi, cc, ucst_c, bino, spin,
                        conf, notes, float(vr), a12, mdl.name, lcst_c, mdl.p_miscible(chi, cc), bool(lcst),
-                       reacts)
+                       reacts, doubtful)
 
 
 def _ranges(rec):
@@ -1384,7 +1404,16 @@ def miscibility_matrix(liquids, *, temperature: float = 25.0, library: pd.DataFr
     smiles = df["smiles"].astype("string").fillna("").astype(str).tolist() if "smiles" in df else [""] * len(df)
     water = [k for k in range(len(df)) if _is_water({"smiles": smiles[k], "name": str(names[k])})]
     prone = [k for k in range(len(df)) if _lcst_prone_smiles(smiles[k])]
-    out.attrs["uncertain_pairs"] = [(names[w], names[k]) for w in water for k in prone if k != w]
+    unsure = [(w, k) for w in water for k in prone if k != w]
+    if water and abs(float(temperature) - 25.0) > 1e-9:
+        # water pairs whose state differs from the model's own state at 25 C (Miscibility.trend_doubtful)
+        try:
+            st25 = state_matrix(df, 25.0, model)
+        except SelectorError:
+            st25 = st
+        unsure += [(w, k) for w in water for k in range(len(df))
+                   if k != w and k not in prone and k not in water and st[w, k] != st25[w, k]]
+    out.attrs["uncertain_pairs"] = [(names[w], names[k]) for w, k in unsure]
     return out
 
 

@@ -639,3 +639,24 @@ def test_replaced_liquid_is_at_ra_zero_from_itself_at_any_temperature():
     lib = selector.load_library()
     nmp = lib.loc[lib["cas"] == "872-50-4"]
     np.testing.assert_allclose(res.attrs["target"].hsp, corrected_hsp(nmp, 15.0)[0])
+
+
+def test_blend_with_an_unclassified_component_still_shows_a_known_worst_class():
+    # Reviewer's case: 1,2-dibromobenzene (no hazard data) + carbon disulfide read "unclassified"
+    # with flash point "no data", although CS2 is highly hazardous in the CHEM21 guide (Prat et al.
+    # 2016, from memory) and flashes at -30 C (chemicals). A blend is as bad as its worst part.
+    lib = selector.load_library()
+    rows = lib.loc[lib["name"].isin(["1,2-dibromobenzene", "carbon disulfide", "toluene"])]
+    res = find_blends((21.3, 5.8, 4.3, 12.7), library=rows, max_components=2, top=10, min_gain=0.0)
+    pair = res.loc[res["components"].map(set) == {"1,2-dibromobenzene", "carbon disulfide"}].iloc[0]
+    assert pair["hazard_class"] == "highly hazardous (+ unclassified)"
+    assert np.isnan(pair["lowest_flash_point_c"])       # unknown for the blend as a whole ...
+    fp_cs2 = float(selector.find_liquid("carbon disulfide", lib).flash_point_c)
+    # ... but the lowest known one is named
+    assert pair["lowest_flash_component"] == f"carbon disulfide at {fp_cs2:.0f} C; no data for 1,2-dibromobenzene"
+    # an unclassified liquid with a recommended one stays unclassified (nothing shows it is safe)
+    mild = find_blends((17.0, 2.0, 3.0, 8.0), library=lib.loc[lib["name"].isin(["1,2-dibromobenzene",
+                                                                                "ethyl acetate"])],
+                       max_components=2, top=5, min_gain=0.0)
+    both = mild.loc[mild["n_components"] == 2]
+    assert len(both) and (both["hazard_class"] == "unclassified").all()

@@ -616,3 +616,18 @@ def test_a_liquid_paired_with_itself_is_one_phase_without_model_talk():
     # a distinct pair keeps the model notes, worded without a made-up lower temperature
     r2 = miscibility("hexane", "toluene")
     assert r2.notes[0] == "no UCST in this model: one phase at every temperature where both are liquid"
+
+
+def test_water_pairs_whose_model_state_moves_with_temperature_are_uncertain():
+    # Common practice: water and ethyl acetate stay two phases up to boiling (the model's UCST is
+    # about 51 C), and water and THF mix in all proportions at 0-25 C (their gap lies at about
+    # 72-137 C; parameters/miscibility_pairs.csv). Where the model's state at T differs from its
+    # own 25 C state, the answer is "uncertain", not the model's state.
+    r = miscibility("water", "ethyl acetate", temperature=60)
+    assert r.trend_doubtful and r.headline == "uncertain (model: miscible)" and r.confidence == "low"
+    assert miscibility("water", "ethyl acetate").headline == "partially miscible"
+    assert miscibility("water", "tetrahydrofuran", temperature=5).headline.startswith("uncertain (model: ")
+    # a state that does not move keeps its answer (water-hexane, immiscible at any temperature)
+    assert miscibility("water", "hexane", temperature=60).headline == "immiscible"
+    m = miscibility_matrix(["water", "ethyl acetate", "hexane"], temperature=60)
+    assert m.attrs["uncertain_pairs"] == [("water", "ethyl acetate")]

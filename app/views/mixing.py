@@ -82,7 +82,7 @@ with tab1:
         state = str(getattr(r, "headline", getattr(r, "state", "?")))
         m = st.columns([2, 1, 1, 1, 1])
         short = ("they react" if getattr(r, "reacts", "") else
-                 "uncertain" if getattr(r, "lcst_prone", False) else state)
+                 "uncertain" if getattr(r, "lcst_prone", False) or getattr(r, "trend_doubtful", False) else state)
         m[0].metric("At this temperature", short, help=state)
         lcst_pair = bool(getattr(r, "lcst_prone", False))
         model_note = ("the model value; for water with an amine, pyridine or glycol ether it does not "
@@ -113,8 +113,11 @@ with tab1:
         if isinstance(bi, dict) and not lcst_pair:   # model solubilities mean nothing for such pairs
             sol = _solubilities(bi, r.a, r.b)
             if sol:
-                st.table(pd.DataFrame([{"": k, "wt %": f"{v['wt_pct']:.2g}", "vol %": f"{v['vol_pct']:.2g}",
-                                        "mol %": f"{v['mol_pct']:.2g}"} for k, v in sol]).set_index(""))
+                # one significant figure: the model's mutual solubilities are often off tenfold
+                st.table(pd.DataFrame([{"": k, "wt %": f"{v['wt_pct']:.1g}", "vol %": f"{v['vol_pct']:.1g}",
+                                        "mol %": f"{v['mol_pct']:.1g}"} for k, v in sol]).set_index(""))
+                st.caption("Model estimates to one figure: measured mutual solubilities are often ten times "
+                           "smaller or larger (see the notes).")
         sweep = None if lcst_pair else common.call(phase_sweep, a, b, common.lib_key())
         if lcst_pair:
             st.caption("No phase diagram or solubilities for this pair: the model only knows gaps that "
