@@ -125,9 +125,15 @@ def cmd_hazard(a) -> int:
         d.pop("caution")
         rows.append(d)
     df = pd.DataFrame(rows)
-    emit(df, a, None, caution=True,
-         header="CHEM21 scores 1 (best) to 10 (Prat et al., Green Chem. 18 (2016) 288; tables from memory). "
-                "Statements from memory: confirm with the supplier's safety data sheet.")
+    header = ("CHEM21 scores 1 (best) to 10 (Prat et al., Green Chem. 18 (2016) 288; tables from memory). "
+              "Statements from memory: confirm with the supplier's safety data sheet.")
+    if a.format == "table":
+        # a sentence the same on every row goes once into the header, so that a row fits a terminal
+        for col, label in (("statements_source", "Statements"), ("flash_point_basis", "Flash points")):
+            if col in df and df[col].astype(str).nunique() == 1:
+                header += f"\n{label}: {df[col].iloc[0]}"
+                df = df.drop(columns=col)
+    emit(df, a, None, caution=True, header=header)
     return 0
 
 

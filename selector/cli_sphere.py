@@ -112,8 +112,10 @@ def cmd_sphere(a) -> int:
                 "tests": fit.tests}[a.part]
         text = to_csv_text(part)
     else:
-        lines = [f"Sphere fitted to {len(fit.tests)} tests ({fit.method}); score {fit.score:.3f} "
-                 "(1 = every test classified right)"]
+        col = fit.tests.attrs.get("outcome_column")
+        lines = [f"Sphere fitted to {len(fit.tests)} tests ({fit.method}"
+                 + (f"; outcome read from the column '{col}'" if col else "")
+                 + f"); fit score {fit.score:.3f} (1 = every test classified right)"]
         for i, (s, iv) in enumerate(zip(fit.spheres, fit.all_intervals)):
             if len(fit.spheres) > 1:
                 lines.append(f"sphere {i + 1}:")
@@ -121,6 +123,8 @@ def cmd_sphere(a) -> int:
                                  [s.delta_d, s.delta_p, s.delta_h, s.radius]):
                 lo, hi = iv[k]
                 lines.append(f"  {lab:3s} {v:6.2f}   interval {lo:6.2f} .. {hi:6.2f} MPa^0.5")
+        if fit.surface_note():
+            lines.append("  " + fit.surface_note())
         if fit.warnings:
             lines.append("")
             lines += [f"note: {w}" for w in fit.warnings]

@@ -72,7 +72,8 @@ HAZARD_CLASSES = ("recommended", "problematic", "hazardous", "highly hazardous")
 UNCLASSIFIED = "unclassified"
 
 METHOD = ("CHEM21 (Prat et al., Green Chem. 18 (2016) 288-296), scoring tables from memory; "
-          "default ranking, revised after discussion where the guide did (from memory)")
+          "default ranking, revised after discussion where the guide did (from memory); suspected CMR "
+          "or H372 at best problematic (this project's rule)")
 
 #: Health score of each GHS statement (first four characters: H360FD counts as H360).
 HEALTH_SCORES = {

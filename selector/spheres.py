@@ -473,6 +473,7 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
     else:
         out.attrs.update(graded=False, threshold=None, scale=None)
     out.attrs["notes"] = notes
+    out.attrs["outcome_column"] = col
     return out
 
 
@@ -832,6 +833,22 @@ class SphereFit:
         for s in self.spheres:  # on the surface counts as inside, as in the fit
             inside |= np.sqrt(((h - s.hsp * SCALE) ** 2).sum(-1)) <= s.radius * (1 + 1e-9)
         return inside
+
+    def on_surface(self, tol: float = 0.005) -> list[str]:
+        """Good tests on the fitted surface (RED within ``tol`` of 1), one-sphere fits only: the fit
+        is the tightest sphere holding the good tests, so the true one may be larger."""
+        t = self.tests
+        if len(self.spheres) != 1 or "red" not in t:
+            return []
+        return t.loc[t["good"].astype(bool) & (t["red"] > 1 - tol), "label"].astype(str).tolist()
+
+    def surface_note(self) -> str:
+        """One sentence naming :meth:`on_surface` ("" when none)."""
+        edge = self.on_surface()
+        if not edge:
+            return ""
+        return (f"{', '.join(edge)} {'sits' if len(edge) == 1 else 'sit'} on the surface (RED 1.00): the fit "
+                "reports the tightest sphere that holds the good tests; the true one may be larger")
 
     def suggest_tests(self, n: int = 5, *, shelf=None, temperature: float = 25.0, **filters) -> pd.DataFrame:
         """Untested liquids whose result would shrink the fit's uncertainty most.

@@ -459,6 +459,12 @@ def test_cli_sphere(tmp_path, capsys):
     assert main(["sphere", demo, "--bootstrap", "0"]) == 0
     text = capsys.readouterr().out
     assert "R0" in text and "safety data sheet" in text
+    # the file has both a grade column and a dissolved column: the output says which one was read,
+    # and names the good tests on the fitted surface (the fit is the tightest sphere holding them)
+    assert "outcome read from the column 'dissolved'); fit score" in text
+    fit = selector.fit_sphere(demo, bootstrap=0)
+    edge = fit.on_surface()
+    assert edge and all(n in text.split("sit on the surface")[0] for n in edge)
     # the next-test table gives a missing flash point as "no data" (or "not flammable"), never NaN;
     # with the default bootstrap the demo's list holds phenyl acetate, which has no flash point
     # in the library

@@ -108,6 +108,8 @@ m[3].metric("R0 (MPa½)", f"{res.radius:.1f}")
 m[4].metric("Fit score (1 = all right)", f"{res.score:.3f}")
 st.markdown(f"<div id='lw-fit'>Fitted sphere: dD {res.delta_d:.2f}, dP {res.delta_p:.2f}, "
             f"dH {res.delta_h:.2f}, R0 {res.radius:.2f} MPa½</div>", unsafe_allow_html=True)
+if hasattr(res, "surface_note") and res.surface_note():
+    st.caption(res.surface_note() + ".")
 for w in getattr(res, "warnings", []) or []:
     st.warning(common.ui_units(w))
 iv = getattr(res, "intervals", None) or {}
