@@ -323,6 +323,26 @@ def _sig(v: float, n: int) -> float:
     return round(v, n - 1 - int(math.floor(math.log10(abs(v)))))
 
 
+VISCOSITIES_CSV = PARAMETERS_DIR / "viscosities.csv"
+
+
+def merge_viscosities(df: pd.DataFrame) -> pd.DataFrame:
+    """Fill viscosities at 25 C from ``parameters/viscosities.csv`` (values quoted from memory of
+    handbook tables, each with its source) where ``thermo`` has no data-based value: the liquid had
+    none, or only Joback's estimate. A data-based value is never replaced."""
+    if not VISCOSITIES_CSV.exists() or df.empty:
+        return df
+    tab = pd.read_csv(VISCOSITIES_CSV, dtype={"cas": str}).drop_duplicates("cas").set_index("cas")
+    df = df.copy()
+    val = df["cas"].map(tab["viscosity_mpa_s"]).to_numpy(float)
+    est = df["viscosity_estimated"].fillna(False).to_numpy(bool)
+    use = np.isfinite(val) & (~np.isfinite(df["viscosity_mpa_s"].to_numpy(float)) | est)
+    df.loc[use, "viscosity_mpa_s"] = val[use]
+    df.loc[use, "viscosity_estimated"] = False
+    df.loc[use, "viscosity_method"] = "parameters/viscosities.csv (from memory)"
+    return df
+
+
 def merge_flash_points(df: pd.DataFrame) -> pd.DataFrame:
     """Fill and check the flash points from ``chemicals`` with those of ``parameters/hazards.csv``.
 
@@ -755,7 +775,7 @@ def build(cas_subset: list[str] | None = None, processes: int = 2) -> pd.DataFra
                                       "hsp_sources_available", "hsp_spread", "sources_disagree",
                                       "hsp_note")})
         rows.append(rec)
-    df = merge_flash_points(apply_names(pd.DataFrame(rows)))
+    df = merge_viscosities(merge_flash_points(apply_names(pd.DataFrame(rows))))
     # Names must be unique for look-up: disambiguate rare clashes with the CAS number.
     dup = df["name"].str.lower().duplicated(keep=False)
     df.loc[dup, "name"] = df.loc[dup, "name"] + " (" + df.loc[dup, "cas"] + ")"

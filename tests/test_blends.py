@@ -472,19 +472,24 @@ def test_substitutes_are_strictly_safer(nmp_subs):
 
 
 def test_substitute_viscosity_match_ignores_corresponding_states_estimates(nmp_subs):
-    # NMP has no viscosity in the library (thermo has no data-based correlation for it, and the
-    # build does not keep Letsou-Stiel estimates). A Letsou-Stiel value given for it anyway (as a
-    # user row might) is shown, but not used to judge the match, so it changes no score.
+    # thermo has no data-based viscosity for NMP (the library's comes from parameters/viscosities.csv,
+    # from memory). Without any value, and with a Letsou-Stiel value given instead (as a user row
+    # might), the scores are the same: such an estimate is shown, but not used to judge the match.
     # Toluene's comes from a data-based correlation and does count. (Rule documented in
     # parameters/README.md.)
-    lib = LIB.copy()
-    nmp = lib["cas"] == "872-50-4"
-    assert lib.loc[nmp, "viscosity_mpa_s"].isna().all()
+    lib0 = LIB.copy()
+    nmp = lib0["cas"] == "872-50-4"
+    assert lib0.loc[nmp, "viscosity_method"].iloc[0] == "parameters/viscosities.csv (from memory)"
+    lib0.loc[nmp, "viscosity_mpa_s"] = np.nan
+    none = substitutes("NMP", top=10, library=lib0)
+    lib = lib0.copy()
     lib.loc[nmp, "viscosity_mpa_s"] = 5.0
     lib.loc[nmp, "viscosity_method"] = "LETSOU_STIEL"
     s = substitutes("NMP", top=10, library=lib)
     assert s["viscosity_mpa_s"].iloc[0] == pytest.approx(5.0)
-    np.testing.assert_allclose(s["score"].to_numpy(), nmp_subs["score"].to_numpy())
+    np.testing.assert_allclose(s["score"].to_numpy(), none["score"].to_numpy())
+    # the value from viscosities.csv does count
+    assert not np.allclose(nmp_subs["score"].to_numpy()[1:], none["score"].to_numpy()[1:])
     base = substitutes("toluene", top=5, max_components=1)
     lib2 = LIB.copy()
     tol = lib2["cas"] == "108-88-3"

@@ -792,3 +792,23 @@ def test_a_table_downloaded_from_a_ranking_imports_as_my_liquids(tmp_path, capsy
                                   hazard_columns(selector.load_library())["hazard_class"].to_numpy()[
                                       np.isin(selector.load_library()["name"], lib2.loc[lib_rows, "name"])])
     assert set(got["name"]) and len(got) == len(ref)
+
+
+def test_viscosities_from_memory_fill_only_gaps():
+    # parameters/viscosities.csv (handbook values from memory) fills a viscosity only where thermo
+    # has no data-based value; NMP, the solvent most often replaced, has none in thermo
+    from selector.build import VISCOSITIES_CSV, merge_viscosities
+
+    tab = pd.read_csv(VISCOSITIES_CSV, dtype={"cas": str})
+    lib = selector.load_library()
+    rows = lib.set_index("cas").loc[tab["cas"]]
+    assert (rows["viscosity_method"] == "parameters/viscosities.csv (from memory)").all()
+    assert np.allclose(rows["viscosity_mpa_s"].to_numpy(float), tab["viscosity_mpa_s"].to_numpy(float))
+    # a data-based value is never replaced; a Joback estimate or a gap is
+    df = pd.DataFrame({"cas": ["872-50-4"] * 3, "viscosity_mpa_s": [0.9, 0.61, np.nan],
+                       "viscosity_estimated": [False, True, False], "viscosity_method": ["DIPPR", "JOBACK", ""]})
+    out = merge_viscosities(df)
+    assert out["viscosity_mpa_s"].tolist()[0] == 0.9 and out["viscosity_method"].iloc[0] == "DIPPR"
+    assert out["viscosity_mpa_s"].iloc[1] == out["viscosity_mpa_s"].iloc[2] == float(
+        tab.set_index("cas").loc["872-50-4", "viscosity_mpa_s"])
+    assert not out["viscosity_estimated"].iloc[1]
