@@ -384,7 +384,7 @@ def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool
                              key=f"{prefix}_fp", placeholder="no limit",
                              help="liquids without flash-point data are dropped when set, except "
                                   "those known not to burn (water, dichloromethane, chloroform, ...)")
-        c5, c9, c6, c7, c8 = st.columns([1, 1, 2, 1, 1])
+        c5, c9, c6 = st.columns([1, 1, 2])
         mv = c5.number_input("Max molar volume (cm³/mol)", value=None, step=10.0,
                              key=f"{prefix}_mv", placeholder="no limit")
         from selector.hazards import HAZARD_CLASSES
@@ -396,6 +396,7 @@ def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool
                                "are dropped too, as nothing shows they are safer")
         exc = c6.multiselect("Never propose", liquid_names(), default=d.get("exclude", []),
                              key=f"{prefix}_exc")
+        c7, c8 = st.columns(2)
         agreed = c7.checkbox("Agreed sources only", value=False, key=f"{prefix}_agreed",
                              help="drop liquids whose published HSP differ by more than 1 MPa½")
         reactive = c8.checkbox("Include reagents", value=False, key=f"{prefix}_reactive",
