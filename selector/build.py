@@ -323,6 +323,27 @@ def _sig(v: float, n: int) -> float:
     return round(v, n - 1 - int(math.floor(math.log10(abs(v)))))
 
 
+DENSITIES_CSV = PARAMETERS_DIR / "densities.csv"
+
+
+def merge_densities(df: pd.DataFrame) -> pd.DataFrame:
+    """Replace an *estimated* molar volume (``molar_volume_estimated``) by the one from the density
+    at 25 C in ``parameters/densities.csv`` (supplier and handbook values quoted from memory, for
+    common solvents whose estimate was 1-10 % off). A data-based volume is never replaced; the
+    expansion coefficient of the estimate is kept."""
+    if not DENSITIES_CSV.exists() or df.empty:
+        return df
+    tab = pd.read_csv(DENSITIES_CSV, dtype={"cas": str}).drop_duplicates("cas").set_index("cas")
+    df = df.copy()
+    rho = df["cas"].map(tab["density_g_cm3"]).to_numpy(float)
+    use = np.isfinite(rho) & df["molar_volume_estimated"].fillna(False).to_numpy(bool)
+    df.loc[use, "density"] = np.round(rho[use], 4)
+    df.loc[use, "molar_volume"] = np.round(df.loc[use, "molar_mass"].to_numpy(float) / rho[use], 3)
+    df.loc[use, "molar_volume_estimated"] = False
+    df.loc[use, "volume_method"] = "parameters/densities.csv (from memory)"
+    return df
+
+
 VISCOSITIES_CSV = PARAMETERS_DIR / "viscosities.csv"
 
 
@@ -775,7 +796,7 @@ def build(cas_subset: list[str] | None = None, processes: int = 2) -> pd.DataFra
                                       "hsp_sources_available", "hsp_spread", "sources_disagree",
                                       "hsp_note")})
         rows.append(rec)
-    df = merge_viscosities(merge_flash_points(apply_names(pd.DataFrame(rows))))
+    df = merge_densities(merge_viscosities(merge_flash_points(apply_names(pd.DataFrame(rows)))))
     # Names must be unique for look-up: disambiguate rare clashes with the CAS number.
     dup = df["name"].str.lower().duplicated(keep=False)
     df.loc[dup, "name"] = df.loc[dup, "name"] + " (" + df.loc[dup, "cas"] + ")"

@@ -573,8 +573,8 @@ def test_estimated_densities_of_common_oxygenated_solvents():
     # Liquids without a data-based volume in thermo; densities at 25 C from memory (handbook
     # values): the estimate (median of COSTALD, MMSNM0 and Girolami) is within 6 % of each.
     lib = load_library()
-    ref = {"97-64-3": 1.03, "107-41-5": 0.92, "102-71-6": 1.12, "123-42-2": 0.94, "112-34-5": 0.953,
-           "123-79-5": 0.925}
+    # (diacetone alcohol, 0.94, left this list: parameters/densities.csv now gives its density)
+    ref = {"97-64-3": 1.03, "107-41-5": 0.92, "102-71-6": 1.12, "112-34-5": 0.953, "123-79-5": 0.925}
     for cas, rho in ref.items():
         r = lib.loc[lib["cas"] == cas].iloc[0]
         assert r["molar_volume_estimated"]
@@ -812,3 +812,24 @@ def test_viscosities_from_memory_fill_only_gaps():
     assert out["viscosity_mpa_s"].iloc[1] == out["viscosity_mpa_s"].iloc[2] == float(
         tab.set_index("cas").loc["872-50-4", "viscosity_mpa_s"])
     assert not out["viscosity_estimated"].iloc[1]
+
+
+def test_densities_from_memory_replace_only_estimated_volumes():
+    # parameters/densities.csv (supplier and handbook densities at 25 C, from memory) replaces a
+    # molar volume only where thermo had no data-based one: 2-MeTHF's estimate was 0.913 g/cm3
+    # against about 0.854. V = M / density.
+    from selector.build import DENSITIES_CSV, merge_densities
+
+    tab = pd.read_csv(DENSITIES_CSV, dtype={"cas": str}).set_index("cas")
+    lib = selector.load_library().set_index("cas")
+    rows = lib.loc[tab.index]
+    assert (rows["volume_method"] == "parameters/densities.csv (from memory)").all()
+    assert not rows["molar_volume_estimated"].any()
+    np.testing.assert_allclose(rows["molar_volume"].to_numpy(float),
+                               rows["molar_mass"].to_numpy(float) / tab["density_g_cm3"].to_numpy(float), rtol=1e-4)
+    df = pd.DataFrame({"cas": ["96-47-9", "96-47-9"], "molar_mass": [86.13, 86.13], "density": [0.9, 0.913],
+                       "molar_volume": [95.7, 94.3], "molar_volume_estimated": [False, True],
+                       "volume_method": ["DIPPR", "MMSNM0"]})
+    out = merge_densities(df)
+    assert out["molar_volume"].iloc[0] == 95.7 and out["volume_method"].iloc[0] == "DIPPR"
+    assert out["molar_volume"].iloc[1] == pytest.approx(86.13 / 0.854, rel=1e-4)
