@@ -676,6 +676,9 @@ def _table(tgt, cand, h, idx, f, rr, t_c, cost=None):
     out["bp_high_c"] = bph
     out["lowest_flash_point_c"] = low_fp
     out["lowest_flash_component"] = lf_comp
+    # where some flash points are unknown, the lowest known one: the blend's is at most that
+    kmin = known_min.min(1)
+    out["lowest_known_flash_point_c"] = np.where(np.isnan(low_fp) & np.isfinite(kmin), kmin, np.nan)
     # every component known not to burn (NaN lowest flash point, but not for want of data)
     out["not_flammable"] = np.all(np.isinf(fps), 1)
     if cost is not None:
@@ -1010,8 +1013,20 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
                      warnings=substitute_warnings(out, xname, bool(not_flammable(x).any()), tg.radius,
                                                   solute=solute is not None,
                                                   flash_floor=filt.get("min_flash_point_c") is not None)
-                     + ([energetic_note(energetic)] if energetic else []))
+                     + ([energetic_note(energetic)] if energetic else [])
+                     + _energetic_shown(out, hz_all, lib))
     return out
+
+
+def _energetic_shown(out: pd.DataFrame, hz_all: pd.DataFrame, lib: pd.DataFrame) -> list[str]:
+    """A warning naming energetic liquids that are in ``out`` (asked for with include_energetic)."""
+    hd = set(lib["name"].to_numpy(str)[hz_all["high_decomposition_energy"].to_numpy(bool)])
+    used = sorted({c for cs in out.loc[out.get("role", "") != "replaced", "components"] for c in cs} & hd)
+    if not used:
+        return []
+    return [f"Energetic liquids in these candidates: {', '.join(used)} (high energy of decomposition). Nitro "
+            "compounds can detonate when heated under confinement or mixed with amines or bases: use them only "
+            "after a process-safety review, never distil them to dryness."]
 
 
 def energetic_note(names) -> str:

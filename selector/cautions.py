@@ -330,6 +330,11 @@ def flash_point_text(frame: pd.DataFrame, column: str = "flash_point_c", fmt: st
     known = np.isfinite(v)
     out = np.where(nf & ~known, NOT_FLAMMABLE_TEXT, NO_FLASH_DATA_TEXT).astype(object)
     out[known] = [fmt.format(x) for x in v[known]]   # display only: the rows shown
+    if column == "lowest_flash_point_c" and "lowest_known_flash_point_c" in frame.columns:
+        # a blend with some flash points unknown: its flash point is at most the lowest known one
+        k = pd.to_numeric(frame["lowest_known_flash_point_c"], errors="coerce").to_numpy(float)
+        part = ~known & np.isfinite(k)
+        out[part] = [f"at most {fmt.format(x)} (part no data)" for x in k[part]]
     return pd.Series(out, index=frame.index, name=column, dtype=object)
 
 

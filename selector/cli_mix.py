@@ -29,7 +29,7 @@ def _fmt(x, nd=2):
     return "-" if x is None or (isinstance(x, float) and not math.isfinite(x)) else f"{x:.{nd}f}"
 
 
-def _pct(x):
+def one_figure(x) -> str:
     """A model percentage to one significant figure: the mutual solubilities are often off tenfold,
     so a second figure would claim what the model does not know."""
     if x is None or (isinstance(x, float) and not math.isfinite(x)):
@@ -68,10 +68,10 @@ def cmd_mix(a) -> int:
     if r.binodal:
         ab, ba = r.binodal["a_in_b"], r.binodal["b_in_a"]
         print("  coexisting phases (model binodal; mutual solubilities are often off tenfold):")
-        print(f"    {r.a} in the {r.b}-rich phase: {_pct(ab['vol_pct'])} vol %, {_pct(ab['wt_pct'])} wt %, "
-              f"{_pct(ab['mol_pct'])} mol %")
-        print(f"    {r.b} in the {r.a}-rich phase: {_pct(ba['vol_pct'])} vol %, {_pct(ba['wt_pct'])} wt %, "
-              f"{_pct(ba['mol_pct'])} mol %")
+        print(f"    {r.a} in the {r.b}-rich phase: {one_figure(ab['vol_pct'])} vol %, {one_figure(ab['wt_pct'])} wt %, "
+              f"{one_figure(ab['mol_pct'])} mol %")
+        print(f"    {r.b} in the {r.a}-rich phase: {one_figure(ba['vol_pct'])} vol %, {one_figure(ba['wt_pct'])} wt %, "
+              f"{one_figure(ba['mol_pct'])} mol %")
         lo, hi = r.spinodal
         print(f"  spinodal (volume fraction of {r.a}): {lo:.4f} .. {hi:.4f}")
     for n in r.notes:

@@ -107,6 +107,11 @@ REVISED_CLASSES = {
     "110-86-1": ("recommended", "hazardous"),     # pyridine
     "123-91-1": ("problematic", "hazardous"),     # 1,4-dioxane
     "121-44-8": ("problematic", "hazardous"),     # triethylamine
+    # xylenes: the guide scores them as one entry, problematic (from memory); p- and m-xylene boil
+    # just below the 140 C step of the environment score and would come out recommended alone,
+    # o-xylene (144 C) problematic
+    "106-42-3": ("recommended", "problematic"),   # p-xylene
+    "108-38-3": ("recommended", "problematic"),   # m-xylene
 }
 
 WATER_CAS = "7732-18-5"

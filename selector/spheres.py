@@ -411,7 +411,7 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
             if good is None:
                 g = _to_float(v)
                 hint = (" (numeric grades need a pass mark: threshold= in Python, --pass-mark on the "
-                        "command line, Use the score column as grades in the app)"
+                        "command line, Grades in the score column in the app)"
                         if g is not None else " (use good/bad, yes/no, true/false or 1/0)")
                 problems.append(f"{where}: cannot read the outcome {v!r}{hint}")
                 ok = False

@@ -270,7 +270,9 @@ def test_target_radius_is_checked_and_can_be_cleared(at):
     at.button[[b.label for b in at.button].index("Use these numbers")].click().run()
     assert not at.exception
     assert at.session_state["lw_target"]["radius"] is None
-    assert at.metric[3].value == "—" and at.metric[4].value == "typed numbers"
+    assert at.metric[3].value == "—"
+    assert any("set from typed numbers; a point (no R0)" in m.value for m in at.markdown)
+    assert any("as a point (no R0)" in m.value for m in at.success)
 
 
 def test_unknown_liquid_is_an_error_message(at):
@@ -410,7 +412,7 @@ def test_mixing_pair_matches_library_and_trade_fact(at):
     at.selectbox(key="mx_b").set_value("triethylamine").run()
     assert not at.exception
     assert selector.miscibility("water", "triethylamine").lcst_prone
-    assert at.metric[3].value == "does not apply"
+    assert at.metric[3].value == "n/a"
     assert any("No phase diagram or solubilities for this pair" in c.value for c in at.caption)
     assert not [c for c in at.get("plotly_chart") if "binodal" in c.proto.spec]
     # water and 1-methoxy-2-propanol mix in all proportions at 25 C (common practice): the model
@@ -590,6 +592,19 @@ def test_replace_page_says_a_non_flammable_liquid_is_not_flammable(at):
     # with the page's own filters)
     fire = [w.value for w in at.warning if "does not burn" in w.value]
     assert len(fire) == 1 and fire[0].startswith("dichloromethane does not burn, but ")
+
+
+def test_replace_page_finds_abbreviations(at):
+    # app review: typing "NMP" in the picker offered N-methylpyrrolidine, another compound; the box
+    # below it takes trade abbreviations (parameters/aliases.csv, common practice: NMP is
+    # 1-methyl-2-pyrrolidinone, CAS 872-50-4)
+    go(at, "replace")
+    at.text_input(key="rp_q").set_value("NMP").run()
+    assert not at.exception and not errors(at)
+    assert any("NMP = 1-methyl-2-pyrrolidinone" in c.value for c in at.caption)
+    assert any("**1-methyl-2-pyrrolidinone** today" in m.value for m in at.markdown)
+    at.text_input(key="rp_q").set_value("unobtainium").run()
+    assert any("unknown liquid" in e for e in errors(at))
 
 
 def test_replace_page_matches_substitutes(at):

@@ -627,6 +627,9 @@ def test_energetic_nitroalkanes_are_not_offered_as_safer_replacements():
     every = substitutes("toluene", include_energetic=True, **kw)
     assert "nitroethane" in {c for cs in every["components"] for c in cs}
     assert every.attrs["left_out"] == []
+    # asked for, they are shown with a standing warning that names them
+    assert any(w.startswith("Energetic liquids in these candidates: ") and "nitroethane" in w
+               for w in every.attrs["warnings"])
     # a window that nitroethane (bp 114 C) fails anyway does not name it (1-nitropropane, bp 131 C,
     # is inside it)
     hot = substitutes("toluene", top=5, boiling_point_c=(130, 200))
@@ -659,6 +662,10 @@ def test_blend_with_an_unclassified_component_still_shows_a_known_worst_class():
     fp_cs2 = float(selector.find_liquid("carbon disulfide", lib).flash_point_c)
     # ... but the lowest known one is named
     assert pair["lowest_flash_component"] == f"carbon disulfide at {fp_cs2:.0f} C; no data for 1,2-dibromobenzene"
+    from selector.cautions import with_flash_texts
+
+    shown = with_flash_texts(res.loc[[pair.name]], fmt="{:.0f}")["lowest_flash_point_c"].iloc[0]
+    assert shown == f"at most {fp_cs2:.0f} (part no data)"
     # an unclassified liquid with a recommended one stays unclassified (nothing shows it is safe)
     mild = find_blends((17.0, 2.0, 3.0, 8.0), library=lib.loc[lib["name"].isin(["1,2-dibromobenzene",
                                                                                 "ethyl acetate"])],

@@ -379,3 +379,13 @@ def test_suspected_cmr_and_repeated_organ_damage_cap_the_class_at_problematic():
         assert h.loc[name, "hazard_class"] == "problematic", name
     # a liquid without such a statement keeps its class (ethyl acetate, recommended in the guide)
     assert h.loc["ethyl acetate", "hazard_class"] == "recommended"
+
+
+def test_xylene_isomers_share_the_guides_class():
+    # CHEM21 lists xylenes as one entry, problematic (Prat et al. 2016, from memory); p-xylene
+    # (bp 138 C) falls below the 140 C step of the environment score where o-xylene (144 C) does
+    # not, so its default ranking alone would say recommended
+    lib = selector.load_library()
+    h = hazard_columns(lib).set_index(lib["name"])
+    assert h.loc["p-xylene", "hazard_class_default"] == "recommended"
+    assert h.loc["p-xylene", "hazard_class"] == h.loc["o-xylene", "hazard_class"] == "problematic"

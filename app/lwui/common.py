@@ -216,8 +216,11 @@ def md_escape(text) -> str:
 
 def ui_units(text: str) -> str:
     """A library message with its plain-text units as the pages write them (MPa½, cm³)."""
-    return (str(text).replace("MPa^0.5", "MPa½").replace("(cal/cm3)^0.5", "(cal/cm³)½")
+    import re
+
+    text = (str(text).replace("MPa^0.5", "MPa½").replace("(cal/cm3)^0.5", "(cal/cm³)½")
             .replace("cm3/mol", "cm³/mol"))
+    return re.sub(r"(\d) C\b", "\\1 °C", text)       # "99.97 C" -> "99.97 °C"
 
 
 def show_error(e: Exception) -> None:
@@ -486,6 +489,7 @@ def table(df: pd.DataFrame, **kw):
     d = with_flash_texts(d, fmt="{:.0f}")   # an empty cell would mean both "does not burn" and "no data"
     empty = [c for c in ("estimated", "hazard_notes", "hsp_note") if c in d.columns
              and d[c].fillna("").astype(str).str.strip().eq("").all()]
+    empty += [c for c in ("lowest_known_flash_point_c",) if c in d.columns]   # shown in the flash text
     return st.dataframe(d.drop(columns=empty), **kw)
 
 

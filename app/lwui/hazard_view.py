@@ -26,8 +26,18 @@ def show_hazard(h) -> None:
         st.markdown("**Forms peroxides** on storage (EUH019).")
     if d.get("regulatory_note"):
         st.markdown(f"**Regulation:** {d['regulatory_note']}")
-    src = d.get("sources") or {}
+    src = dict(d.get("sources") or {})
     if src:
-        st.caption("Sources: " + "; ".join(f"{k}: {v}" for k, v in src.items()))
+        method = src.pop("method", "")
+        words = {"statements": "Statements", "flash_point": "Flash point", "boiling_point": "Boiling point"}
+        parts = []
+        for k, v in src.items():
+            v = str(v)
+            if method and v.endswith("; scores: " + method):   # the method is said once, below
+                v = v[: -len("; scores: " + method)]
+            parts.append(f"{words.get(k, k.replace('_', ' ').capitalize())}: {v}")
+        if method:
+            parts.append(f"Scores: {method}")
+        st.caption("Sources. " + ". ".join(parts) + ".")
     if d.get("caution"):
         st.warning(d["caution"], icon=":material/warning:")

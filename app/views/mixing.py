@@ -90,13 +90,16 @@ with tab1:
         m[1].metric("chi", _num(getattr(r, "chi", None)), help=model_note)
         m[2].metric("chi_c (critical)", _num(getattr(r, "chi_critical", None)), help=model_note)
         if lcst_pair:
-            m[3].metric("UCST (°C)", "does not apply",
+            m[3].metric("UCST (°C)", "n/a",
                         help="water with an amine, pyridine or glycol ether: such a gap opens on heating, "
                         "so the model's UCST (a gap closing on heating) does not describe this pair")
+        elif getattr(r, "trend_doubtful", False):
+            m[3].metric("UCST (°C)", _num(getattr(r, "ucst_c", None), "{:.0f}") + " ?",
+                        help="the model's value; with water its temperature trend is unreliable (see the notes)")
         else:
             m[3].metric("UCST (°C)", _num(getattr(r, "ucst_c", None), "{:.0f}"))
         pm = getattr(r, "p_miscible", None)
-        m[4].metric("Confidence in the mixing answer", str(getattr(r, "confidence", "—")),
+        m[4].metric("Mixing confidence", str(getattr(r, "confidence", "—")),
                     help=None if pm is None or pm != pm else
                     f"probability of one phase in all proportions: {100 * pm:.0f} % "
                     "(logistic fit on the reference pairs at 25 °C)")
@@ -106,16 +109,18 @@ with tab1:
             st.warning(common.ui_units(w))
         for note in getattr(r, "notes", []) or []:
             if note.startswith("REACTIVE PAIR"):
-                st.error(str(note), icon=":material/warning:")
+                st.error(common.ui_units(note), icon=":material/warning:")
             else:
-                st.caption("• " + str(note))
+                st.caption("• " + common.ui_units(note))
         bi = getattr(r, "binodal", None)
         if isinstance(bi, dict) and not lcst_pair:   # model solubilities mean nothing for such pairs
             sol = _solubilities(bi, r.a, r.b)
             if sol:
                 # one significant figure: the model's mutual solubilities are often off tenfold
-                st.table(pd.DataFrame([{"": k, "wt %": f"{v['wt_pct']:.1g}", "vol %": f"{v['vol_pct']:.1g}",
-                                        "mol %": f"{v['mol_pct']:.1g}"} for k, v in sol]).set_index(""))
+                from selector.cli_mix import one_figure
+
+                st.table(pd.DataFrame([{"": k, "wt %": one_figure(v["wt_pct"]), "vol %": one_figure(v["vol_pct"]),
+                                        "mol %": one_figure(v["mol_pct"])} for k, v in sol]).set_index(""))
                 st.caption("Model estimates to one figure: measured mutual solubilities are often ten times "
                            "smaller or larger (see the notes).")
         sweep = None if lcst_pair else common.call(phase_sweep, a, b, common.lib_key())

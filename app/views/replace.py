@@ -18,8 +18,18 @@ if common.capability("blends") is None or common.capability("hazards") is None:
 names = common.liquid_names()
 default = common.demo().get("current_solvent", "toluene") if common.is_demo() else "toluene"
 c1, c2 = st.columns([2, 1])
+labels = common.liquid_labels()
 old = c1.selectbox("Liquid to replace", names, index=names.index(default) if default in names else 0,
-                   key="rp_old")
+                   key="rp_old", format_func=lambda n: labels.get(n, n),
+                   help="type to search by name or CAS number; abbreviations such as NMP in the box below")
+typed = c1.text_input("…or an abbreviation, synonym, CAS number or SMILES", key="rp_q",
+                      placeholder="e.g. NMP, DMF, 75-09-2")
+if typed.strip():
+    row = common.call(selector.find_liquid, typed.strip(), common.library())
+    if row is None:
+        st.stop()
+    old = str(row["name"])
+    st.caption(f"{typed.strip()} = {old}")
 keep = c2.checkbox("Must also dissolve the current target", value=common.is_demo(), key="rp_keep",
                    help="rank by RED to the target's sphere instead of the distance to the old liquid")
 if common.is_demo() and old == default:

@@ -86,7 +86,7 @@ boot = c1.select_slider("Bootstrap resamples (for the intervals)", sorted({0, 25
                         value=DEFAULT_BOOTSTRAP, key="sp_boot",
                         help="fewer is faster, but the intervals and the shares below then move from seed to seed")
 seed = c2.number_input("Random seed", value=0, step=1, key="sp_seed", help="a whole number of 0 or more")
-graded = c3.checkbox("Use the score column as grades", value=False, key="sp_graded",
+graded = c3.checkbox("Grades in the score column", value=False, key="sp_graded",
                      help="grade at or above the pass mark counts as good; higher grades = further inside")
 thr = c3.number_input("Pass mark", value=4.0, step=0.5, key="sp_thr", disabled=not graded)
 two = c4.checkbox("Allow two spheres", value=False, key="sp_two",
@@ -139,7 +139,7 @@ if nxt is not None:
     common.table(nxt[first + [c for c in nxt.columns if c not in first]], hide_index=True, width="stretch",
                  column_config=common.COLUMN_CONFIG)
     for note in nxt.attrs.get("notes", []):
-        st.caption(note)
+        st.caption(common.ui_units(note))
     lib = common.library()
     if "name" in getattr(nxt, "columns", []):
         common.cautions(lib.loc[lib["name"].isin(nxt["name"])], title="Safety notes for the suggested tests")

@@ -12,16 +12,16 @@ st.caption("The point (dD, dP, dH) and, if known, the interaction radius R0 of w
            "dissolve. All values in MPa½. The target stays set while you move between pages.")
 
 t = common.target()
-c = st.columns(5)
+c = st.columns(4)
 c[0].metric("dD (MPa½)", f"{t.delta_d:.1f}")
 c[1].metric("dP (MPa½)", f"{t.delta_p:.1f}")
 c[2].metric("dH (MPa½)", f"{t.delta_h:.1f}")
 c[3].metric("R0 (MPa½)", f"{t.radius:.1f}" if t.radius else "—")
-KIND_WORDS = {"demo": "invented demo", "typed": "typed numbers", "library": "library liquid",
-              "estimate": "structure estimate", "fitted": "fitted sphere", "mine": "my liquids"}
+KIND_WORDS = {"demo": "the invented demo", "typed": "typed numbers", "library": "a library liquid",
+              "estimate": "a structure estimate", "fitted": "a fitted sphere", "mine": "my liquids"}
 kind = common.target_spec().get("kind", "")
-c[4].metric("Set from", KIND_WORDS.get(kind, kind or "given"))
-st.markdown(f"**{common.md_escape(t.name)}** — {common.md_escape(t.source)}")
+st.markdown(f"**{common.md_escape(t.name)}** — {common.md_escape(t.source)}; set from "
+            f"{KIND_WORDS.get(kind, kind or 'given values')}" + ("" if t.radius else "; a point (no R0)"))
 common.demo_banner(on_target_page=True)
 if not common.is_demo() and st.button("Back to the invented demo resin", key="tg_demo"):
     common.set_target(common.demo_target_spec())
@@ -68,8 +68,8 @@ if way == WAYS[0]:
             except (selector.SelectorError, ValueError) as e:
                 common.show_error(e)
             else:
-                msg = (f"{label} is now the target, as a point: an R0 of 0 means no sphere, "
-                       "so liquids are ranked by Ra." if r0 == 0 else f"{label} is now the target.")
+                msg = (f"{label} is now the target, as a point (no R0): liquids are ranked by Ra."
+                       if not r0 else f"{label} is now the target.")
                 common.set_target_and_rerun({"kind": "typed", "name": label, "delta_d": dd,
                                              "delta_p": dp, "delta_h": dh, "radius": r0 or None,
                                              "source": "typed by the user"}, msg)
