@@ -1014,8 +1014,20 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
                                                   solute=solute is not None,
                                                   flash_floor=filt.get("min_flash_point_c") is not None)
                      + ([energetic_note(energetic)] if energetic else [])
-                     + _energetic_shown(out, hz_all, lib))
+                     + _energetic_shown(out, hz_all, lib) + _outside_window(x, filt))
     return out
+
+
+def _outside_window(x: pd.DataFrame, filt: dict) -> list[str]:
+    """A note when the replaced liquid itself lies outside the boiling-point window in force, so
+    that no like-for-like candidate can pass it."""
+    lo, hi = (list(filt.get("boiling_point_c") or (None, None)) + [None, None])[:2]
+    bp = float(x["boiling_point_c"].iloc[0])
+    if not math.isfinite(bp) or not ((lo is not None and bp < lo) or (hi is not None and bp > hi)):
+        return []
+    win = f"{'-' if lo is None else f'{lo:g}'} to {'-' if hi is None else f'{hi:g}'} C"
+    return [f"{x['name'].iloc[0]} itself boils at {bp:.0f} C, outside the boiling-point window in force "
+            f"({win}): candidates boiling like it are filtered out; widen the window for like-for-like ones."]
 
 
 def _energetic_shown(out: pd.DataFrame, hz_all: pd.DataFrame, lib: pd.DataFrame) -> list[str]:

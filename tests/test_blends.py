@@ -672,3 +672,13 @@ def test_blend_with_an_unclassified_component_still_shows_a_known_worst_class():
                        max_components=2, top=5, min_gain=0.0)
     both = mild.loc[mild["n_components"] == 2]
     assert len(both) and (both["hazard_class"] == "unclassified").all()
+
+
+def test_replacing_a_liquid_outside_the_boiling_window_says_so():
+    # NMP boils at about 202-204 C (chemicals; common practice): a 100-200 C window cannot pass a
+    # like-for-like candidate, and the warnings say so; without the window they do not
+    w = substitutes("NMP", boiling_point_c=(100, 200), top=3).attrs["warnings"]
+    bp = float(selector.find_liquid("NMP").boiling_point_c)
+    assert f"1-methyl-2-pyrrolidinone itself boils at {bp:.0f} C, outside the boiling-point window in force " \
+           "(100 to 200 C)" in " ".join(w)
+    assert not any("outside the boiling-point window" in x for x in substitutes("NMP", top=3).attrs["warnings"])

@@ -42,7 +42,7 @@ if left_out:
 cols = [c for c in common.RANK_COLUMNS if c in res.columns and (has_r or c != "red")]
 st.subheader("Top five")
 common.readable_top(res, ["rank", "name", "red" if has_r else "ra", "score", "boiling_point_c",
-                          "flash_point_c", "hazard_class"], 5)
+                          "flash_point_c", "hazard_class", "hazard_notes"], 5)
 st.subheader(f"First {min(n_show, len(res))} of {len(res)}")
 common.table(res.head(n_show)[cols], hide_index=True, width="stretch", column_config=common.COLUMN_CONFIG)
 
