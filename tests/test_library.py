@@ -833,3 +833,12 @@ def test_densities_from_memory_replace_only_estimated_volumes():
     out = merge_densities(df)
     assert out["molar_volume"].iloc[0] == 95.7 and out["volume_method"].iloc[0] == "DIPPR"
     assert out["molar_volume"].iloc[1] == pytest.approx(86.13 / 0.854, rel=1e-4)
+
+
+def test_a_flash_point_above_the_boiling_point_of_a_volatile_liquid_is_overridden():
+    # cis-1,2-dichloroethene boils at about 60 C (chemicals); NFPA 497's 97 C flash point cannot
+    # hold for it (a flash point lies below the boiling point; common practice). hazards.csv gives
+    # about 6 C (from memory), and the lower value is kept.
+    r = selector.find_liquid("156-59-2")
+    assert r["flash_point_c"] < r["boiling_point_c"]
+    assert r["flash_point_c"] == pytest.approx(6.0) and "NFPA 497" in r["flash_point_source"]
