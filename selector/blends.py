@@ -650,8 +650,9 @@ def _table(tgt, cand, h, idx, f, rr, t_c, cost=None):
         at = np.argmin(known_min, 1)
         first = names[safe[np.arange(len(safe)), at]]
         lf_comp = np.where(np.isnan(fps).any(1) | np.all(np.isinf(fps), 1), "", first).astype(object)
+    kmin = known_min.min(1)
     # some flash points unknown: name the lowest known one (the blend's is at most that)
-    for i in np.flatnonzero(np.isnan(fps).any(1) & np.isfinite(known_min.min(1))):
+    for i in np.flatnonzero(np.isnan(fps).any(1) & np.isfinite(kmin)):
         miss = ", ".join(names[safe[i, j]] for j in np.flatnonzero(np.isnan(fps[i])))
         lf_comp[i] = f"{first[i]} at {known_min[i, at[i]]:.0f} C; no data for {miss}"
     comp_ra = _ra(h[safe], tgt.hsp)
@@ -677,7 +678,6 @@ def _table(tgt, cand, h, idx, f, rr, t_c, cost=None):
     out["lowest_flash_point_c"] = low_fp
     out["lowest_flash_component"] = lf_comp
     # where some flash points are unknown, the lowest known one: the blend's is at most that
-    kmin = known_min.min(1)
     out["lowest_known_flash_point_c"] = np.where(np.isnan(low_fp) & np.isfinite(kmin), kmin, np.nan)
     # every component known not to burn (NaN lowest flash point, but not for want of data)
     out["not_flammable"] = np.all(np.isinf(fps), 1)
@@ -1021,13 +1021,19 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
 def _outside_window(x: pd.DataFrame, filt: dict) -> list[str]:
     """A note when the replaced liquid itself lies outside the boiling-point window in force, so
     that no like-for-like candidate can pass it."""
-    lo, hi = (list(filt.get("boiling_point_c") or (None, None)) + [None, None])[:2]
+    from .filters import _window, filter_phrases
+
+    lo, hi = _window(filt.get("boiling_point_c"), "boiling-point window")
     bp = float(x["boiling_point_c"].iloc[0])
     if not math.isfinite(bp) or not ((lo is not None and bp < lo) or (hi is not None and bp > hi)):
         return []
-    win = f"{'-' if lo is None else f'{lo:g}'} to {'-' if hi is None else f'{hi:g}'} C"
+    win = filter_phrases({"boiling_point_c": (lo, hi)})[0].removeprefix("boiling point ")
     return [f"{x['name'].iloc[0]} itself boils at {bp:.0f} C, outside the boiling-point window in force "
             f"({win}): candidates boiling like it are filtered out; widen the window for like-for-like ones."]
+
+
+#: What makes the nitro compounds energetic (from memory; common practice in process safety).
+NITRO_CAUTION = "nitro compounds can detonate when heated under confinement or mixed with amines or bases"
 
 
 def _energetic_shown(out: pd.DataFrame, hz_all: pd.DataFrame, lib: pd.DataFrame) -> list[str]:
@@ -1036,17 +1042,17 @@ def _energetic_shown(out: pd.DataFrame, hz_all: pd.DataFrame, lib: pd.DataFrame)
     used = sorted({c for cs in out.loc[out.get("role", "") != "replaced", "components"] for c in cs} & hd)
     if not used:
         return []
-    return [f"Energetic liquids in these candidates: {', '.join(used)} (high energy of decomposition). Nitro "
-            "compounds can detonate when heated under confinement or mixed with amines or bases: use them only "
-            "after a process-safety review, never distil them to dryness."]
+    return [f"Energetic liquids in these candidates: {', '.join(used)} (high energy of decomposition). "
+            f"{NITRO_CAUTION[0].upper() + NITRO_CAUTION[1:]}: use them only after a process-safety review, "
+            "never distil them to dryness."]
 
 
 def energetic_note(names) -> str:
     """The line that says which energetic liquids :func:`substitutes` left out."""
     names = list(names)
     return (f"Left out as energetic (high energy of decomposition): {', '.join(names)}. "
-            f"{'It has' if len(names) == 1 else 'They have'} a better CHEM21 class, but nitro compounds can "
-            "detonate when heated under confinement or mixed with amines or bases. Bring them back "
+            f"{'It has' if len(names) == 1 else 'They have'} a better CHEM21 class, but {NITRO_CAUTION}. "
+            "Bring them back "
             "(include_energetic, --include-energetic or the app's Include energetic liquids) only after a "
             "process-safety review.")
 

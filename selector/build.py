@@ -323,6 +323,13 @@ def _sig(v: float, n: int) -> float:
     return round(v, n - 1 - int(math.floor(math.log10(abs(v)))))
 
 
+def _by_cas(df: pd.DataFrame, path, column: str) -> np.ndarray:
+    """``column`` of the hand-written table ``path`` (one row per CAS) for each row of ``df``
+    (NaN where the table has none)."""
+    tab = pd.read_csv(path, dtype={"cas": str}).drop_duplicates("cas").set_index("cas")
+    return df["cas"].map(tab[column]).to_numpy(float)
+
+
 DENSITIES_CSV = PARAMETERS_DIR / "densities.csv"
 
 
@@ -333,9 +340,8 @@ def merge_densities(df: pd.DataFrame) -> pd.DataFrame:
     expansion coefficient of the estimate is kept."""
     if not DENSITIES_CSV.exists() or df.empty:
         return df
-    tab = pd.read_csv(DENSITIES_CSV, dtype={"cas": str}).drop_duplicates("cas").set_index("cas")
     df = df.copy()
-    rho = df["cas"].map(tab["density_g_cm3"]).to_numpy(float)
+    rho = _by_cas(df, DENSITIES_CSV, "density_g_cm3")
     use = np.isfinite(rho) & df["molar_volume_estimated"].fillna(False).to_numpy(bool)
     df.loc[use, "density"] = np.round(rho[use], 4)
     df.loc[use, "molar_volume"] = np.round(df.loc[use, "molar_mass"].to_numpy(float) / rho[use], 3)
@@ -353,9 +359,8 @@ def merge_viscosities(df: pd.DataFrame) -> pd.DataFrame:
     none, or only Joback's estimate. A data-based value is never replaced."""
     if not VISCOSITIES_CSV.exists() or df.empty:
         return df
-    tab = pd.read_csv(VISCOSITIES_CSV, dtype={"cas": str}).drop_duplicates("cas").set_index("cas")
     df = df.copy()
-    val = df["cas"].map(tab["viscosity_mpa_s"]).to_numpy(float)
+    val = _by_cas(df, VISCOSITIES_CSV, "viscosity_mpa_s")
     est = df["viscosity_estimated"].fillna(False).to_numpy(bool)
     use = np.isfinite(val) & (~np.isfinite(df["viscosity_mpa_s"].to_numpy(float)) | est)
     df.loc[use, "viscosity_mpa_s"] = val[use]

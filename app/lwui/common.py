@@ -8,6 +8,7 @@ from __future__ import annotations
 import importlib
 import importlib.util
 import os
+import re
 import threading
 import time
 from pathlib import Path
@@ -215,9 +216,7 @@ def md_escape(text) -> str:
 
 
 def ui_units(text: str) -> str:
-    """A library message with its plain-text units as the pages write them (MPa½, cm³)."""
-    import re
-
+    """A library message with its plain-text units as the pages write them (MPa½, cm³, °C)."""
     text = (str(text).replace("MPa^0.5", "MPa½").replace("(cal/cm3)^0.5", "(cal/cm³)½")
             .replace("cm3/mol", "cm³/mol"))
     return re.sub(r"(\d) C\b", "\\1 °C", text)       # "99.97 C" -> "99.97 °C"

@@ -82,7 +82,7 @@ with tab1:
         state = str(getattr(r, "headline", getattr(r, "state", "?")))
         m = st.columns([2, 1, 1, 1, 1])
         short = ("they react" if getattr(r, "reacts", "") else
-                 "uncertain" if getattr(r, "lcst_prone", False) or getattr(r, "trend_doubtful", False) else state)
+                 "uncertain" if state.startswith("uncertain") else state)
         m[0].metric("At this temperature", short, help=state)
         lcst_pair = bool(getattr(r, "lcst_prone", False))
         model_note = ("the model value; for water with an amine, pyridine or glycol ether it does not "
