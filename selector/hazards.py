@@ -37,7 +37,7 @@ H314 was scored 4 here before (corrosive amines and acids came out "recommended"
 
 Environment: boiling point 70..139 C: 3; 50..69 or 140..200 C: 5; < 50 or > 200 C: 7 (hard to
 contain, or energy-hungry to recycle); aquatic H412/H413: at least 5; H400/H410/H411: 7;
-ozone layer (EUH420/H420): 10. Water scores 1 (the guide's own value).
+ozone layer (H420; EUH420 is accepted as a spelling): 10. Water scores 1 (the guide's own value).
 
 Combination (the guide's "ranking by default"; colours green 1-3, yellow 4-6, red 7-10): one
 score >= 8 or two red scores -> *hazardous*; one score of 7 or two yellow scores ->

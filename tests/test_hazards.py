@@ -193,6 +193,10 @@ def test_statement_table_shape_and_sources():
     assert st["source"].str.contains("safety data sheet").all()
     codes = {c for t in st["statements"] for c in t}
     assert all(re.fullmatch(r"(H[2-4]\d\d[A-Za-z]{0,2}|EUH\d{3})", c) for c in codes), codes
+    # CLP (Regulation 1272/2008, as amended) writes the ozone-layer statement H420; EUH420 is no
+    # code of its own (common practice)
+    assert "EUH420" not in codes and "H420" in codes
+    assert "H420" in selector.hazard("carbon tetrachloride").statements
 
 
 def test_statement_table_names_agree_with_reference_library():
