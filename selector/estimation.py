@@ -398,8 +398,10 @@ class HSPEstimator:
             def rows(mask):
                 at = np.flatnonzero(mask)
                 return ", ".join(str(i) for i in at[:10]) + (f" and {len(at) - 10} more" if len(at) > 10 else "")
-            parts = ([f"NaN or infinite values in row(s) {rows(bad)}"] if bad.any() else []) + (
-                [f"negative HSP in row(s) {rows(neg)}"] if neg.any() else [])
+            def word(mask):
+                return "row" if mask.sum() == 1 else "rows"
+            parts = ([f"NaN or infinite values in {word(bad)} {rows(bad)}"] if bad.any() else []) + (
+                [f"negative HSP in {word(neg)} {rows(neg)}"] if neg.any() else [])
             raise SelectorError("y: " + "; ".join(parts) + " (rows counted from 0); drop or fix them")
         if len(mols) < 10:
             raise SelectorError(f"need at least 10 training molecules, got {len(mols)}")
@@ -1016,7 +1018,8 @@ def estimate(smiles, library=None, names=None, progress=False, domain_threshold=
         out.loc[vidx, "molar_volume_high"] = vol * np.exp(lf)
         for k, i in enumerate(vol_rows):
             if unseen[k]:
-                notes[i].append("molar volume less certain: atom type(s) " + ", ".join(unseen[k]) +
+                notes[i].append("molar volume less certain: " + ("atom type " if len(unseen[k]) == 1 else "atom types ")
+                                + ", ".join(unseen[k]) +
                                 " not in the volume training set")
 
     if est_rows:

@@ -78,7 +78,7 @@ def check_filter_keys(filters: dict, extra: tuple[str, ...] = ()) -> None:
     """Raise a clear error for an unknown filter keyword."""
     bad = [k for k in filters if k not in FILTER_KEYS and k not in extra]
     if bad:
-        raise SelectorError(f"unknown filter(s): {', '.join(bad)}; known: "
+        raise SelectorError(f"unknown {'filter' if len(bad) == 1 else 'filters'}: {', '.join(bad)}; known: "
                             f"{', '.join(FILTER_KEYS + tuple(extra))}")
 
 
