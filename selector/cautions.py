@@ -24,7 +24,8 @@ agents):
 
 Pairs that react with each other are screened too (:func:`reactive_pair_matrix`,
 :data:`PAIR_RULES`): an acid with an amine or pyridine, an amine with a nitroalkane, a primary
-amine with an aldehyde or ketone. Blends and substitutes never pair them unless
+or secondary amine with an aldehyde or ketone, or with an ester, lactone or carbonate, an aromatic
+amine with an aldehyde, an amine with a polyhalogenated alkane. Blends and substitutes never pair them unless
 ``include_reactive=True``, and then ``hazard_notes`` says "REACTIVE PAIR".
 
 This is a screen, not a hazard assessment: a liquid without a reason can still be dangerous,
@@ -110,12 +111,20 @@ REACTIVE_GROUPS = (
     ("disulfide", "[#6][SX2][SX2][#6]", "stench, toxic"),
     # Monomers made to polymerise, and other unstable reagents (common practice: sold inhibited,
     # stored cold, never used as a thinner; acrylonitrile is a carcinogen, acrylic acid corrosive;
-    # EU CLP, from memory). Acrylate esters and vinyl ethers are left in: radiation-curing inks
-    # and coatings use them as reactive diluents, chosen like solvents.
+    # EU CLP, from memory). The heavier acrylate esters and vinyl ethers are left in:
+    # radiation-curing inks and coatings use them as reactive diluents, chosen like solvents.
     ("cyanoacrylate", "[CH2]=C(C#N)C(=O)O", "instant-adhesive monomer: polymerises on moisture, bonds skin"),
     ("acrylic nitrile", "[CH2]=[CX3]C#N", "monomer: polymerises, toxic; acrylonitrile is a carcinogen"),
     ("acrylic acid", "[CH2]=[CX3]C(=O)[OX2H]", "monomer: may polymerise violently, corrosive"),
     ("vinyl ester", "[CH2]=[CH1]OC(=O)", "monomer: polymerises"),
+    # the volatile C1-C4 alkyl acrylates and methacrylates (methyl methacrylate, ethyl and butyl
+    # acrylate) are monomers and skin sensitisers with a strong smell, not reactive diluents
+    # (common practice; H317 in EU CLP, from memory); the heavier ones stay in
+    ("volatile acrylic ester",
+     "[CH2]=[CX3;$([CH1]),$(C[CH3])]C(=O)O[$([CH3]),$([CH2][CH3]),$([CH2][CH2][CH3]),"
+     "$([CH2][CH2][CH2][CH3]),$([CH1]([CH3])[CH3]),$([CH2][CH1]([CH3])[CH3]),"
+     "$([CH1]([CH3])[CH2][CH3]),$([CX4]([CH3])([CH3])[CH3])]",
+     "monomer: polymerises, skin sensitiser; sold inhibited, not a thinner"),
     ("vinyl ketone", "[CH2]=[CX3]C(=O)[#6]", "monomer: very toxic, lachrymator (methyl vinyl ketone)"),
     ("halodiene", "[CH2]=C([Cl,Br])C=C", "monomer: polymerises; chloroprene is a carcinogen"),
     ("ketene or beta-lactone", "[$([CX3]=[CX2]=O),$(O=C1CCO1),$(O=C1C(=C)CO1),$(C=C1CC(=O)O1)]",
@@ -365,19 +374,38 @@ PAIR_CLASSES = (
     ("secondary amine", "[NX3;H1;!$(N-[C,S,P]=[O,S,N]);!$(N-a);!$(N-[N,O])]([CX4])[CX4]"),
     ("carbonyl", "[CX3;$([CH1](=O)[#6,#1]),$(C(=O)([#6])[#6])]=O"),
     ("nitroalkane", "[CX4][$([N+](=O)[O-]),$(N(=O)=O)]"),
+    # carboxylic esters, lactones, organic carbonates and anhydrides (not acids)
+    ("ester", "[CX3](=O)[OX2][#6]"),
+    # amino groups on an aromatic ring (aniline, toluidines; not amides)
+    ("aryl amine", "[NX3;H2,H1;!$(N-[C,S,P]=[O,S,N]);!$(N-[N,O])]c"),
+    ("aldehyde", "[CX3H1](=O)[#6]"),
+    # two or more Cl/Br/I on one carbon (dichloromethane, chloroform, carbon tetrachloride,
+    # pentachloroethane) or on neighbouring carbons (1,2-dichloroethane)
+    ("polyhaloalkane", "[$([CX4]([Cl,Br,I])[Cl,Br,I]),$([CX4]([Cl,Br,I])[CX4][Cl,Br,I])]"),
 )
 
 #: Pairs of classes that should not be blended: (class a, class b, why). Common practice (acid and
 #: base: salt formation and heat; primary amines condense with aldehydes and ketones, giving
 #: imines and water; secondary amines give enamines or aminals and water, more slowly with
-#: ketones, faster warm or acid-catalysed); amines sensitising nitroalkanes to detonation is from
-#: memory (nitromethane).
+#: ketones, faster warm or acid-catalysed; primary and secondary amines open cyclic carbonates
+#: and lactones and slowly aminolyse ordinary esters, which is why ketones and esters are kept
+#: out of amine hardeners; aniline and furfural condense, the old colour test for furfural);
+#: amines sensitising nitroalkanes to detonation, and amines reacting with polyhalogenated
+#: alkanes (ethylenediamine with carbon tetrachloride; pyridine and triethylamine quaternise in
+#: dichloromethane on standing), are from memory.
 PAIR_RULES = (
     ("acid", "base", "acid + base: they react (salt, heat)"),
     ("base", "nitroalkane", "amine + nitroalkane: the amine sensitises the nitro compound to detonation"),
     ("primary amine", "carbonyl", "primary amine + aldehyde or ketone: they condense (imine and water)"),
     ("secondary amine", "carbonyl", "secondary amine + aldehyde or ketone: they condense on standing, "
                                     "faster when warm or acid-catalysed (enamine or aminal and water)"),
+    ("primary amine", "ester", "primary amine + ester, lactone or carbonate: aminolysis on standing "
+                               "(amide, hydroxy amide or carbamate), fast with cyclic carbonates and lactones"),
+    ("secondary amine", "ester", "secondary amine + ester, lactone or carbonate: aminolysis on standing "
+                                 "(amide, hydroxy amide or carbamate), fast with cyclic carbonates and lactones"),
+    ("aryl amine", "aldehyde", "aromatic amine + aldehyde: they condense (imine and water)"),
+    ("base", "polyhaloalkane", "amine + polyhalogenated alkane: they can react, sometimes violently "
+                               "(alkylation, loss of HCl or HBr)"),
 )
 
 

@@ -1,5 +1,6 @@
 """Reagents that are not solvents, and liquids that do not burn (selector.cautions)."""
 import numpy as np
+import pandas as pd
 import pytest
 
 import selector
@@ -48,6 +49,10 @@ def _reason(name):
     # an instant adhesive (common practice)
     ("chloroprene", "halodiene"), ("methyl vinyl ketone", "vinyl ketone"),
     ("ethyl 2-cyanoacrylate", "cyanoacrylate"),
+    # numbers review: methyl methacrylate came up among the replacements for toluene; the C1-C4
+    # (meth)acrylates are volatile monomers and skin sensitisers, not thinners (common practice)
+    ("methyl methacrylate", "volatile acrylic ester"), ("ethyl acrylate", "volatile acrylic ester"),
+    ("butyl acrylate", "volatile acrylic ester"), ("butyl methacrylate", "volatile acrylic ester"),
     # app review: alkyl hypochlorites decompose explosively; benzal chloride and benzotrichloride
     # are benzylic halides that hydrolyse to HCl (benzotrichloride a carcinogen, EU CLP from
     # memory); chloroacetone is a lachrymator that alkylates; aldehydes on a saturated carbon
@@ -93,7 +98,7 @@ def test_very_low_exposure_limit_is_flagged():
 
 
 @pytest.mark.parametrize("name", ["toluene", "acetone", "ethanol", "ethyl acetate", "NMP", "DMSO", "water",
-                                  "hexane", "dibutyl phthalate", "nitromethane", "butyl acrylate",
+                                  "hexane", "dibutyl phthalate", "nitromethane", "2-ethylhexyl acrylate",
                                   "propylene carbonate", "dichloromethane", "cinnamaldehyde", "benzaldehyde",
                                   "chlorobenzene", "pyridine", "thiophene", "3-methylsulfolane", "dimethyl sulfide",
                                   "tetrahydrothiophene", "2-chloroethyl acetate",
@@ -242,6 +247,53 @@ def test_reacting_pairs_are_never_blended_unless_asked():
     assert mixed and all("REACTIVE PAIR" in n for n in mixed)
     for cs in substitutes("toluene", top=40)["components"]:
         assert not (set(cs) & acids and set(cs) & bases), cs
+
+
+def test_amine_pairs_with_esters_aldehydes_and_halocarbons():
+    # Common practice: primary and secondary amines open cyclic carbonates and lactones and slowly
+    # aminolyse esters (so amine hardeners are kept free of esters); aniline condenses with
+    # furfural (the aniline acetate colour test). From memory: amines react with polyhalogenated
+    # alkanes (ethylenediamine with carbon tetrachloride; triethylamine quaternises in
+    # dichloromethane). A numbers review found ethylenediamine + propylene carbonate and
+    # ethylenediamine + gamma-butyrolactone among the DMF replacements, unflagged.
+    from selector.cautions import pair_reasons, reactive_pair_matrix
+
+    names = ["ethylenediamine", "propylene carbonate", "gamma-butyrolactone", "butylamine", "ethyl acetate",
+             "aniline", "2-furaldehyde", "triethylamine", "dichloromethane", "pentachloroethane",
+             "morpholine", "toluene", "acetone"]
+    rows = pd.concat([LIB.loc[[selector.find_liquid(n, LIB).name]] for n in names]).reset_index(drop=True)
+    pos = {n: i for i, n in enumerate(names)}
+    m = reactive_pair_matrix(rows)
+
+    def reacts(a, b):
+        return bool(m[pos[a], pos[b]]) and bool(m[pos[b], pos[a]])
+
+    assert reacts("ethylenediamine", "propylene carbonate") and reacts("ethylenediamine", "gamma-butyrolactone")
+    assert reacts("butylamine", "ethyl acetate") and reacts("morpholine", "ethyl acetate")
+    assert reacts("aniline", "2-furaldehyde")
+    assert reacts("triethylamine", "dichloromethane") and reacts("ethylenediamine", "pentachloroethane")
+    # a tertiary amine cannot aminolyse an ester; aniline + a ketone and toluene + anything pass
+    assert not reacts("triethylamine", "ethyl acetate") and not reacts("aniline", "acetone")
+    assert not m[pos["toluene"]].any()
+    text = " ".join(pair_reasons(rows))
+    assert "primary amine + ester, lactone or carbonate" in text and "aromatic amine + aldehyde" in text
+    assert "amine + polyhalogenated alkane" in text
+
+
+def test_replacements_for_dmf_pair_no_amine_with_an_ester():
+    # the review's case: DMF's replacements had ethylenediamine with propylene carbonate or
+    # gamma-butyrolactone (common practice: they react)
+    from selector.blends import substitutes
+    from selector.cautions import pair_classes, PAIR_CLASSES
+
+    res = substitutes("DMF", top=40)
+    k = [n for n, _ in PAIR_CLASSES]
+    cls = pair_classes(LIB)
+    amine = set(LIB["name"][cls[:, k.index("primary amine")] | cls[:, k.index("secondary amine")]])
+    ester = set(LIB["name"][cls[:, k.index("ester")]])
+    comps = [set(c) for c in res["components"]]
+    assert len(comps) > 10
+    assert not [c for c in comps if c & amine and c & ester]
 
 
 def test_flash_point_text_tells_not_flammable_from_no_data(capsys):
