@@ -1014,8 +1014,28 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
                                                   solute=solute is not None,
                                                   flash_floor=filt.get("min_flash_point_c") is not None)
                      + ([energetic_note(energetic)] if energetic else [])
-                     + _energetic_shown(out, hz_all, lib) + _outside_window(x, filt))
+                     + _energetic_shown(out, hz_all, lib) + _outside_window(x, filt)
+                     + _halogenated_shown(out, x, pd.concat([x, cand]), filt))
     return out
+
+
+def _halogenated_shown(out: pd.DataFrame, x: pd.DataFrame, table: pd.DataFrame, filt: dict) -> list[str]:
+    """A note when a halogenated liquid is replaced by substitutes that are halogenated too (a
+    move within the same waste stream and, often, the same restrictions; common practice), with
+    the filter that leaves them out."""
+    from .filters import halogenated
+
+    if filt.get("halogen_free") or not halogenated(x)[0]:
+        return []
+    hal = set(table["name"].to_numpy(str)[halogenated(table)])
+    subs = out.loc[out["role"] == "substitute", "components"]
+    n = sum(bool(set(cs) & hal) for cs in subs)
+    if not n:
+        return []
+    name = str(x["name"].iloc[0])
+    return [f"{n} of the {len(subs)} substitutes shown contain a halogenated liquid, as {name} is one: "
+            "they go to the same halogenated waste and may meet the same restrictions. halogen_free=True "
+            "(--halogen-free, the app's No halogenated liquids) leaves them out."]
 
 
 def _outside_window(x: pd.DataFrame, filt: dict) -> list[str]:
@@ -1093,6 +1113,8 @@ def substitute_warnings(table: pd.DataFrame, replaced: str, replaced_burns_not: 
         where = f"more than Ra {REFERENCE_RADIUS:g} MPa^0.5 from {'the solute' if solute else replaced}"
     if far.any():
         what = "the solute" if solute else f"what {replaced} dissolves"
-        out.append(f"{int(far.sum())} of the {len(subs)} substitutes shown lie {where}: they are unlikely to "
-                   f"dissolve {what}; test them before use.")
+        nf = int(far.sum())
+        out.append(f"{nf} of the {len(subs)} substitutes shown {'lies' if nf == 1 else 'lie'} {where}: "
+                   f"{'it is' if nf == 1 else 'they are'} unlikely to dissolve {what}; test "
+                   f"{'it' if nf == 1 else 'them'} before use.")
     return out

@@ -29,6 +29,8 @@ def add_filter_args(p: argparse.ArgumentParser) -> None:
     g.add_argument("--max-volume", type=float, metavar="CM3", help="maximum molar volume, cm3/mol")
     g.add_argument("--agreed-only", action="store_true",
                    help="only liquids whose published HSP sources agree within 1 MPa^0.5")
+    g.add_argument("--halogen-free", action="store_true",
+                   help="no liquids containing fluorine, chlorine, bromine or iodine (halogenated waste)")
     g.add_argument("--include-reactive", action="store_true",
                    help="also propose reagents that are not solvents: reactive, explosive or very toxic "
                    "liquids (acid chlorides, isocyanates, epoxides, benzene, ...); left out by default")
@@ -69,6 +71,8 @@ def filters_from_args(a) -> dict:
         f["max_molar_volume"] = a.max_volume
     if getattr(a, "agreed_only", False):
         f["consistent_sources_only"] = True
+    if getattr(a, "halogen_free", False):
+        f["halogen_free"] = True
     if getattr(a, "include_reactive", False):
         f["include_reactive"] = True
     return f

@@ -17,6 +17,8 @@ Keyword arguments (all optional):
 * ``max_hazard_class``: worst CHEM21 class allowed (``"recommended"``, ``"problematic"``,
   ``"hazardous"``, ``"highly hazardous"``; see :mod:`selector.hazards`). Unclassified liquids
   (no hazard data) do not pass;
+* ``halogen_free``: drop liquids containing fluorine, chlorine, bromine or iodine
+  (:func:`halogenated`);
 * ``include_reactive``: also offer reagents that are not solvents - reactive, explosive or very
   toxic at low exposure (:mod:`selector.cautions`). Default False: they are never candidates,
   except the liquids named in ``include`` (named on purpose).
@@ -36,7 +38,8 @@ from .errors import SelectorError
 from .library import locate_many
 
 FILTER_KEYS = ("include", "exclude", "boiling_point_c", "min_flash_point_c", "max_molar_volume",
-               "consistent_sources_only", "flash_point_c", "max_hazard_class", "include_reactive")
+               "consistent_sources_only", "flash_point_c", "max_hazard_class", "include_reactive",
+               "halogen_free")
 
 
 def _as_list(v, what):
@@ -82,6 +85,33 @@ def check_filter_keys(filters: dict, extra: tuple[str, ...] = ()) -> None:
                             f"{', '.join(FILTER_KEYS + tuple(extra))}")
 
 
+#: A halogen symbol in a Hill formula or a SMILES (F, Cl, Br, I; not Fe, Ir, In, Si, ...).
+_HALOGEN = r"(?:F|Cl|Br|I)(?![a-z])"
+
+
+def halogenated(library: pd.DataFrame) -> np.ndarray:
+    """True for liquids with fluorine, chlorine, bromine or iodine in their formula (or, without
+    one, their SMILES); liquids with neither count as halogenated, since nothing shows they are
+    free of it. Halogenated solvents go to their own waste stream and many sites restrict them
+    (common practice); this is what ``halogen_free=True`` leaves out.
+
+    >>> import pandas as pd
+    >>> halogenated(pd.DataFrame({"formula": ["CH2Cl2", "C7H8", "C8H4F6", "FeC10H10", ""],
+    ...                           "smiles": ["ClCCl", "Cc1ccccc1", "", "", ""]})).tolist()
+    [True, False, True, False, True]
+    """
+    n = len(library)
+
+    def col(name):
+        if name not in library.columns:
+            return pd.Series([""] * n, index=library.index, dtype=str)
+        return library[name].astype("string").fillna("").astype(str)
+
+    formula, smiles = col("formula"), col("smiles")
+    text = formula.where(formula.str.strip() != "", smiles)
+    return (text.str.contains(_HALOGEN, regex=True) | (text.str.strip() == "")).to_numpy(bool)
+
+
 def filter_mask(library: pd.DataFrame, **filters) -> np.ndarray:
     """Boolean mask over ``library`` rows that pass every filter (see module doc)."""
     return masks_and_reagents(library, **filters)[0]
@@ -114,6 +144,8 @@ def filter_phrases(filters: dict, *, fixes: bool = False, deg: str = "C", vol: s
         parts.append(f"hazard class at most {filters['max_hazard_class']}{fix('allow a worse one')}")
     if filters.get("consistent_sources_only"):
         parts.append(f"agreed HSP sources only{fix('drop it')}")
+    if filters.get("halogen_free"):
+        parts.append(f"no halogenated liquids{fix('drop it')}")
     exc = filters.get("exclude")
     if exc:
         exc = [exc] if isinstance(exc, str) else list(exc)
@@ -154,7 +186,8 @@ def masks_and_reagents(library: pd.DataFrame, **filters) -> tuple[np.ndarray, in
 
 def _mask(library: pd.DataFrame, *, temperature: float = 25.0, include=None, exclude=None,
                 boiling_point_c=None, min_flash_point_c=None, max_molar_volume=None,
-                consistent_sources_only=False, flash_point_c=None, max_hazard_class=None) -> np.ndarray:
+                consistent_sources_only=False, flash_point_c=None, max_hazard_class=None,
+                halogen_free=False) -> np.ndarray:
     """Mask of every filter except the reagent screen."""
     n = len(library)
     mask = np.ones(n, dtype=bool)
@@ -195,6 +228,8 @@ def _mask(library: pd.DataFrame, *, temperature: float = 25.0, include=None, exc
             mask &= library["molar_volume"].to_numpy(float) <= v
     if consistent_sources_only:
         mask &= ~library["sources_disagree"].to_numpy(bool)
+    if halogen_free:
+        mask &= ~halogenated(library)
     if flash_point_c is not None:
         flo, fhi = _window(flash_point_c, "flash-point window")
         fp = library["flash_point_c"].to_numpy(float)

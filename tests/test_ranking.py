@@ -93,6 +93,30 @@ def test_filters_are_obeyed():
     assert only["name"].tolist() == ["toluene", "ethanol", "water"]
 
 
+def test_halogen_free_filter():
+    # Common practice: halogenated solvents (any F, Cl, Br or I) go to a separate waste stream.
+    # Formulae from the library (chemicals): dichloromethane CH2Cl2, benzotrifluoride C7H5F3,
+    # iodomethane CH3I; ferrocene-like symbols (Fe) and silicon (Si) are no halogens.
+    from selector.filters import halogenated
+
+    lib = selector.load_library()
+    hal = halogenated(lib)
+    by = dict(zip(lib["name"], hal))
+    assert by["dichloromethane"] and by["benzotrifluoride"] and by["chloroform"] and by["bromobenzene"]
+    assert not by["toluene"] and not by["water"] and not by["hexamethyldisiloxane"]
+    r = selector.rank((18.0, 5.0, 6.0), halogen_free=True)
+    assert not halogenated(r).any() and len(r) > 300
+    full = selector.rank((18.0, 5.0, 6.0))
+    assert halogenated(full).sum() > 50
+    # replacing a halogenated liquid: the warning names the filter, which then removes them all
+    sub = selector.substitutes("dichloromethane", top=15)
+    assert any("--halogen-free" in w for w in sub.attrs["warnings"])
+    free = selector.substitutes("dichloromethane", top=15, halogen_free=True)
+    parts = {c for cs in free["components"].iloc[1:] for c in cs}
+    assert parts and not (parts & set(lib["name"][hal]))
+    assert not any("--halogen-free" in w for w in free.attrs["warnings"])
+
+
 def test_temperature_correction_applied():
     cold = selector.rank(PS, include=["toluene", "ethanol"])
     hot = selector.rank(PS, include=["toluene", "ethanol"], temperature=60)
@@ -205,3 +229,16 @@ def test_a_one_row_estimate_is_a_target_and_a_bigger_table_is_refused():
     bad = selector.estimate(["CCO", "xx("]).iloc[[1]]
     with pytest.raises(SelectorError, match="no HSP to use as a target: not a valid SMILES"):
         selector.rank(bad)
+
+
+def test_halogen_free_on_the_command_line(capsys):
+    # the same filter as halogen_free=True (common practice: halogenated waste is kept apart)
+    from selector.cli import main
+
+    assert main(["replace", "dichloromethane", "--halogen-free", "--top", "8"]) == 0
+    out = capsys.readouterr().out
+    rows = [ln for ln in out.splitlines() if ln.strip().startswith("substitute")]
+    assert len(rows) == 8
+    assert not [ln for ln in rows if any(h in ln.lower() for h in ("chloro", "bromo", "fluoro", "iodo"))]
+    assert "--halogen-free" not in out
+
