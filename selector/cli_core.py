@@ -266,6 +266,10 @@ def show_footer(rows) -> str:
         hit = (origin == kind).to_numpy()
         if hit.any():
             lines.append(f"{', '.join(names[hit])}: {text}.")
+    if "exposure_limit" in rows.columns and pd.to_numeric(rows["exposure_limit"], errors="coerce").notna().any():
+        from .report import EXPOSURE_NOTE
+
+        lines.append(EXPOSURE_NOTE)
     lines.append("Missing values are blank: no data, not zero.")
     return "\n".join(lines)
 

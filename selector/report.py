@@ -33,6 +33,13 @@ GENERAL_CAUTION = (
     "The safety data sheet and local regulation come first; this report is a starting point for "
     "laboratory tests, not a safety assessment.")
 
+#: Whose exposure limits the library carries, and that they are not everyone's.
+EXPOSURE_NOTE = (
+    "Exposure limits are Ontario's (Canada) 8-hour averages, the set the reference library "
+    "(chemicals) carries. The limit where you work may be much lower (from memory, the EU's is "
+    "10 ppm for NMP against Ontario's 98.7, and 20 ppm for n-hexane against 50): use the one on "
+    "the supplier's safety data sheet (section 8) and in your local regulation.")
+
 UNCLASSIFIED = "unclassified (no flash point in the library)"
 
 #: Column labels with units for the tables of a report.
@@ -78,6 +85,8 @@ def _exposure_text(df: pd.DataFrame) -> np.ndarray:
     unit = df.get("exposure_limit_unit", pd.Series([""] * n, index=df.index)).astype(str).to_numpy()
     src = df.get("exposure_limit_source", pd.Series([""] * n, index=df.index)).astype(str).to_numpy()
     txt = pd.Series(v).map(lambda x: f"{x:.4g}").to_numpy(object) + " " + unit
+    src = pd.Series(src, dtype=object).astype(str).str.replace("Ontario Limits", "Ontario, Canada",
+                                                              regex=False).to_numpy(object)
     txt = np.where(src != "", txt + " (" + src + ")", txt)
     none = "no exposure limit in the library"
     if "short_term_limit" in df:
@@ -232,6 +241,8 @@ def build_report(title: str, *, target=None, inputs: dict | None = None,
             h, r = _table_cells(caut, caut_cols)
             parts += ["## Safety notes per liquid", "", _md_table(h, r), ""]
         parts += ["## Cautions", "", _md_escape(GENERAL_CAUTION), ""]
+        if caut is not None:
+            parts += [_md_escape(EXPOSURE_NOTE), ""]
         for n in notes or []:
             parts += [f"- {_md_escape(n)}"]
         if notes:
@@ -258,6 +269,8 @@ def build_report(title: str, *, target=None, inputs: dict | None = None,
         h, r = _table_cells(caut, caut_cols)
         parts += ["<h2>Safety notes per liquid</h2>", _html_table(h, r)]
     parts += ["<h2>Cautions</h2>", f"<p class='caution'>{e(GENERAL_CAUTION)}</p>"]
+    if caut is not None:
+        parts.append(f"<p>{e(EXPOSURE_NOTE)}</p>")
     if notes:
         parts += ["<ul>"] + [f"<li>{e(n)}</li>" for n in notes] + ["</ul>"]
     if sources:

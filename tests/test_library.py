@@ -597,6 +597,23 @@ def test_exposure_limits_for_isomers_and_short_term_only(lib):
     txt = caution_table(eth)["exposure"].iloc[0]
     assert txt == "no 8-h limit; short-term (15 min) 1000 ppm"
 
+    # the limits are one jurisdiction's (Ontario, chemicals.safety): every text and report says
+    # whose, and that the local one may be lower (the EU's 10 ppm for NMP, from memory)
+    from selector.report import build_report
+
+    nmp = lib.loc[lib["cas"] == "872-50-4"]
+    assert caution_table(nmp)["exposure"].iloc[0] == "98.7 ppm (Ontario, Canada)"
+    rep = build_report("t", target=selector.as_target((18.0, 12.3, 7.2)), liquids=nmp)
+    assert "Ontario's (Canada) 8-hour averages" in rep and "10 ppm for NMP" in rep
+
+
+def test_show_says_whose_exposure_limit(capsys):
+    from selector.cli import main
+
+    assert main(["show", "NMP"]) == 0
+    out = capsys.readouterr().out
+    assert "Ontario Limits" in out and "may be much lower" in out
+
 
 def test_non_flammable_chlorinated_solvents_have_no_flash_point(lib):
     # tetrachloroethylene does not burn (common practice: the dry-cleaning solvent chosen for it;

@@ -20,7 +20,7 @@ import streamlit as st
 import selector
 from selector.errors import SelectorError
 from selector.library import user_liquids_file
-from selector.report import GENERAL_CAUTION, caution_table
+from selector.report import EXPOSURE_NOTE, GENERAL_CAUTION, caution_table
 from selector.targets import Target
 
 TARGET_KEY = "lw_target"
@@ -46,7 +46,10 @@ COLUMN_CONFIG = {
     "molar_volume": st.column_config.NumberColumn("V (cm³/mol)", format="%.1f"),
     "boiling_point_c": st.column_config.NumberColumn("Boiling point (°C)", format="%.0f"),
     "flash_point_c": st.column_config.NumberColumn("Flash point (°C)", format="%.0f"),
-    "exposure_limit": st.column_config.NumberColumn("Exposure limit", format="%.4g"),
+    "exposure_limit": st.column_config.NumberColumn("Exposure limit", format="%.4g",
+                                                    help="8-h average, Ontario (Canada), via chemicals; "
+                                                         "where you work it may be lower: see the safety "
+                                                         "data sheet, section 8"),
     "exposure_limit_unit": st.column_config.TextColumn("unit"),
     "hsp_source": st.column_config.TextColumn("HSP source"),
     "hazard_notes": st.column_config.TextColumn("Hazard notes", help="for a blend, per component: fatal, toxic, "
@@ -398,9 +401,13 @@ def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool
                                "are dropped too, as nothing shows they are safer")
         exc = c6.multiselect("Never propose", liquid_names(), default=d.get("exclude", []),
                              key=f"{prefix}_exc")
-        c7, c8 = st.columns(2)
+        c7, c10, c8 = st.columns(3)
         agreed = c7.checkbox("Agreed sources only", value=False, key=f"{prefix}_agreed",
                              help="drop liquids whose published HSP differ by more than 1 MPa½")
+        nohal = c10.checkbox("No halogenated liquids", value=bool(d.get("halogen_free", False)),
+                             key=f"{prefix}_nohal",
+                             help="drop liquids containing fluorine, chlorine, bromine or iodine "
+                                  "(they go to a separate waste stream; many sites restrict them)")
         reactive = c8.checkbox("Include reagents", value=False, key=f"{prefix}_reactive",
                                help="also propose reactive, explosive or very toxic liquids that are "
                                     "reagents rather than solvents (acid chlorides, isocyanates, "
@@ -418,6 +425,8 @@ def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool
         f["max_hazard_class"] = hz
     if agreed:
         f["consistent_sources_only"] = True
+    if nohal:
+        f["halogen_free"] = True
     if reactive:
         f["include_reactive"] = True
     if not expanded:
@@ -505,7 +514,7 @@ def cautions(liquids: pd.DataFrame, *, title: str = "Safety notes for the liquid
         st.caption("Flammability is classed from the library flash point and boiling point by the "
                    "GHS criteria; hazard classes by the CHEM21 guide (Prat et al., Green Chem. 2016) "
                    "from statements quoted from memory. *Unclassified* means no data, not safe. "
-                   "Confirm every value against the supplier's safety data sheet.")
+                   "Confirm every value against the supplier's safety data sheet. " + EXPOSURE_NOTE)
     return ct
 
 
@@ -557,7 +566,7 @@ def filters_as_inputs(filters: dict, temperature: float) -> dict:
              "max_molar_volume": "maximum molar volume (cm3/mol)", "exclude": "never propose",
              "include": "only these", "consistent_sources_only": "agreed HSP sources only",
              "include_reactive": "reagents (reactive, very toxic) included",
-             "max_hazard_class": "worst CHEM21 hazard class"}
+             "max_hazard_class": "worst CHEM21 hazard class", "halogen_free": "no halogenated liquids"}
     for k, v in filters.items():
         if k == "boiling_point_c":
             v = f"{'-' if v[0] is None else f'{v[0]:g}'} to {'-' if v[1] is None else f'{v[1]:g}'}"
