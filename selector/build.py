@@ -369,6 +369,81 @@ def merge_viscosities(df: pd.DataFrame) -> pd.DataFrame:
     return df
 
 
+#: Boiling points (C) within this of each other, with the same InChIKey skeleton: the same
+#: compound but for its stereochemistry (enantiomers, a racemate, a named and an unnamed isomer).
+STEREO_BP_C = 2.0
+
+
+def _same_but_chirality(a: str, b: str) -> bool:
+    """True when two SMILES are one compound once tetrahedral centres are ignored: enantiomers,
+    a racemate and its forms. Any cis/trans difference, or cis/trans given on one side only,
+    keeps them apart (the library's dibutyl fumarate SMILES leaves it open beside the maleate)."""
+    from rdkit import Chem
+
+    def canon(smi):
+        m = Chem.MolFromSmiles(str(smi or ""))
+        if m is None:
+            return None
+        for at in m.GetAtoms():
+            at.SetChiralTag(Chem.ChiralType.CHI_UNSPECIFIED)
+        return Chem.MolToSmiles(m)
+
+    ca, cb = canon(a), canon(b)
+    return ca is not None and ca == cb
+
+
+def merge_stereo_partners(df: pd.DataFrame) -> pd.DataFrame:
+    """Give a liquid whose vapour pressure is only a corresponding-states estimate
+    (:data:`VP_ESTIMATES`), or whose viscosity is Joback's estimate or missing, the data-based
+    value of a library liquid that is the same compound but for its stereochemistry: the same
+    first InChIKey block (connectivity), a boiling point within :data:`STEREO_BP_C`, and the
+    same structure once tetrahedral centres are ignored (:func:`_same_but_chirality`: dibutyl
+    maleate and fumarate are two compounds).
+    Enantiomers have the same vapour pressure and viscosity, and a racemic liquid practically so
+    (common practice). Racemic ethyl lactate had an estimate of 0.067 kPa where ethyl (S)-lactate's
+    Landolt correlation gives 0.29, and the (S) form a Joback viscosity of 6.2 mPa s where the
+    racemate's data give 2.4. The method column names the liquid the value comes from."""
+    if df.empty or "inchikey" not in df.columns:
+        return df
+    df = df.copy()
+    key = df["inchikey"].fillna("").astype(str).str[:14]
+    bp = df["boiling_point_c"].to_numpy(float)
+    vpm = df["vapour_pressure_method"].fillna("").astype(str)
+    vp_est = vpm.str.split(" ").str[0].isin(VP_ESTIMATES).to_numpy() & df["vapour_pressure_kpa"].notna().to_numpy()
+    vp_data = ~vpm.str.split(" ").str[0].isin(VP_ESTIMATES | {""}).to_numpy() & df["vapour_pressure_kpa"].notna().to_numpy()
+    mu = df["viscosity_mpa_s"].to_numpy(float)
+    mu_est = df["viscosity_estimated"].fillna(False).to_numpy(bool) | ~np.isfinite(mu)
+    vp_cols = ["vapour_pressure_kpa", "antoine_a", "antoine_b", "antoine_c", "antoine_tmin_c", "antoine_tmax_c"]
+    pos = np.arange(len(df))
+    for k, idx in pd.Series(pos).groupby(key.to_numpy()):
+        idx = idx.to_numpy()
+        if len(idx) < 2 or not k:
+            continue
+        for i in idx:
+            mates = [j for j in idx if j != i and abs(bp[i] - bp[j]) <= STEREO_BP_C
+                     and _same_but_chirality(df["smiles"].iat[i], df["smiles"].iat[j])]
+            if not mates:
+                continue
+            name = lambda j: df["name"].iat[j]  # noqa: E731
+            if vp_est[i]:
+                j = next((j for j in mates if vp_data[j]), None)
+                if j is not None:
+                    for c in vp_cols:
+                        df.iat[i, df.columns.get_loc(c)] = df.iat[j, df.columns.get_loc(c)]
+                    df.iat[i, df.columns.get_loc("vapour_pressure_method")] = (
+                        f"{vpm.iat[j].split(' ')[0]}, of {name(j)} (the same compound but for its "
+                        f"stereochemistry; thermo's {vpm.iat[i].split(' ')[0]} is an estimate)")
+            if mu_est[i]:
+                j = next((j for j in mates if not mu_est[j]), None)
+                if j is not None:
+                    df.iat[i, df.columns.get_loc("viscosity_mpa_s")] = mu[j]
+                    df.iat[i, df.columns.get_loc("viscosity_estimated")] = False
+                    df.iat[i, df.columns.get_loc("viscosity_method")] = (
+                        f"{df['viscosity_method'].iat[j]}, of {name(j)} (the same compound but for its "
+                        "stereochemistry)")
+    return df
+
+
 def merge_flash_points(df: pd.DataFrame) -> pd.DataFrame:
     """Fill and check the flash points from ``chemicals`` with those of ``parameters/hazards.csv``.
 
@@ -585,7 +660,10 @@ def boiling_point_and_vapour_pressure(cas: str, c) -> tuple[float | None, str, s
     differs from it by more than 10 C. The
     vapour-pressure method is thermo's default if its boiling point agrees with the kept one
     within 10 C, else the first of thermo's other methods that does. Where none does, the
-    default is kept and the note says the two disagree."""
+    default is kept and the note says the two disagree. Of the methods that agree, one fitted over
+    a range that includes 25 C is preferred to one extrapolated down to it (thermo's default for
+    benzyl alcohol, WAGNER_MCGARRY, is fitted from 123 C and gives twice the 25 C vapour pressure
+    of its DIPPR, VDI and Poling correlations)."""
     import chemicals
 
     methods = [m for m in (chemicals.Tb_methods(cas) or []) if m != "JOBACK"]
@@ -634,10 +712,29 @@ def boiling_point_and_vapour_pressure(cas: str, c) -> tuple[float | None, str, s
         p = p_at_tb(m)
         return p is not None and 101325.0 / 1.5 <= p <= 101325.0 * 1.5
 
+    def covering(kept):
+        """A data-based method that, unlike ``kept``, is fitted over a range including 25 C and
+        also boils at the boiling point (thermo's ranking first); None if ``kept`` covers 25 C
+        or there is no such method. A correlation extrapolated 100 C below its range can be off
+        twofold at 25 C (benzyl alcohol's WAGNER_MCGARRY from 123 C)."""
+        lim = getattr(vp, "T_limits", {}) or {}
+        if kept not in lim or lim[kept][0] <= T25 <= lim[kept][1]:
+            return None
+        return next((m for m in ranked if m != kept and m not in VP_ESTIMATES and m in lim
+                     and lim[m][0] <= T25 <= lim[m][1] and agrees(m)), None)
+
+    def from_c(m):
+        return f"{(vp.T_limits[m][0] - 273.15):.0f} C"
+
     if default is None or p_at_tb(default) is None or agrees(default):
         # kept: it agrees, or it cannot be checked at the boiling point
+        cov = covering(default) if default is not None and p_at_tb(default) is not None else None
+        if cov:
+            return tb, src, cov, f"{cov} (thermo's default {default} is fitted from {from_c(default)} up)", note
         return tb, src, default, default or "", note
     other = next((m for m in order if agrees(m)), None)
+    if other is not None and covering(other):
+        other = covering(other)
     d = implied.get(default)
     if other is None:
         note = (f"vapour pressure ({default}) boils at {d - 273.15:.0f} C, not {tb - 273.15:.1f} C: "
@@ -649,6 +746,10 @@ def boiling_point_and_vapour_pressure(cas: str, c) -> tuple[float | None, str, s
     label = (f"{other} (thermo's default {default} boils at {d - 273.15:.0f} C)" if d else
              f"{other} (thermo's default {default} disagrees with the boiling point)")
     return tb, src, other, label, note
+
+
+#: thermo's corresponding-states vapour-pressure estimates (no data of the compound behind them).
+VP_ESTIMATES = frozenset({"AMBROSE_WALTON", "LEE_KESLER_PSAT", "EDALAT", "SANJARI", "BOILING_CRITICAL", "EOS"})
 
 
 #: Isomers without an exposure limit of their own that take the limit set for the commercial
@@ -801,7 +902,7 @@ def build(cas_subset: list[str] | None = None, processes: int = 2) -> pd.DataFra
                                       "hsp_sources_available", "hsp_spread", "sources_disagree",
                                       "hsp_note")})
         rows.append(rec)
-    df = merge_densities(merge_viscosities(merge_flash_points(apply_names(pd.DataFrame(rows)))))
+    df = merge_stereo_partners(merge_densities(merge_viscosities(merge_flash_points(apply_names(pd.DataFrame(rows))))))
     # Names must be unique for look-up: disambiguate rare clashes with the CAS number.
     dup = df["name"].str.lower().duplicated(keep=False)
     df.loc[dup, "name"] = df.loc[dup, "name"] + " (" + df.loc[dup, "cas"] + ")"

@@ -103,7 +103,8 @@ def caution_table(liquids: pd.DataFrame) -> pd.DataFrame:
     Returns ``name, flash_point_c, boiling_point_c, flammability`` (GHS category, see
     :func:`flammability_category`), ``exposure`` (limit, unit and source from the library, or a
     note that there is none) and ``hazard_class`` (the column of the input if present, otherwise
-    ``"unclassified"``; empty values are shown as ``"unclassified"``) and, when the input has
+    looked up in the bundled library by CAS or name; empty values and liquids without hazard data
+    are shown as ``"unclassified"``) and, when the input has
     it, ``h_statements`` (GHS hazard statements as stored in the input).
     """
     n = len(liquids)
@@ -121,6 +122,11 @@ def caution_table(liquids: pd.DataFrame) -> pd.DataFrame:
     if "cas" in liquids:
         nf = not_flammable(liquids.assign(flash_point_c=fp.to_numpy(float)))
         out.loc[nf, "flammability"] = "not flammable (parameters/hazards.csv, from memory; check the SDS)"
+    if "hazard_class" not in liquids and "name" in liquids:
+        # rows straight from rank() and the like carry no class: look it up (CAS, then name)
+        from .hazards import attach_hazards
+
+        liquids = attach_hazards(liquids.reset_index(drop=True))
     if "hazard_class" in liquids:
         hc = liquids["hazard_class"].astype(object).to_numpy()
         out["hazard_class"] = np.where(pd.isna(hc) | (pd.Series(hc).astype(str).str.strip() == "").to_numpy(),

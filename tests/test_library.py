@@ -116,6 +116,14 @@ def test_molar_volume_against_handbook(lib, name, v):
 def test_rebuild_sample_matches_committed(lib):
     # Drift check: rebuild a sample of 20 liquids from chemicals/thermo and compare.
     sample = lib.sample(20, random_state=7)["cas"].tolist() + ["108-88-3", "7732-18-5"]
+    # a liquid that takes a value from its stereo partner (build.merge_stereo_partners) needs the
+    # partner in the sample too
+    by_name = dict(zip(lib["name"], lib["cas"]))
+    meth = lib.set_index("cas").loc[sample, ["vapour_pressure_method", "viscosity_method"]].fillna("")
+    for text in meth.to_numpy().ravel():
+        if ", of " in text:
+            partner = text.split(", of ", 1)[1].split(" (the same compound", 1)[0]
+            sample.append(by_name[partner])
     fresh = build.build(sample, processes=1).set_index("cas")
     old = lib.set_index("cas").loc[fresh.index]
     for c in ["delta_d", "delta_p", "delta_h", "molar_volume", "boiling_point_c", "melting_point_c",
@@ -218,6 +226,45 @@ def test_vapour_pressure_against_thermo(lib):
         ref = Chemical(r.cas, T=323.15).Psat / 1000.0
         got = selector.library.vapour_pressure_kpa(lib.loc[lib.cas == r.cas], 50.0)[0]
         assert got == pytest.approx(ref, rel=0.03), name
+
+
+def test_vapour_pressure_from_a_correlation_fitted_at_25_c(lib):
+    # thermo's default for benzyl alcohol (WAGNER_MCGARRY) is fitted from 123 C and, extrapolated
+    # to 25 C, gives twice the value of its DIPPR (Perry 8th ed.) and VDI correlations, which are
+    # fitted down to -15 C. Source: thermo's own correlations, evaluated here.
+    from thermo import Chemical
+
+    for name in ["benzyl alcohol", "1-decanol", "m-cresol"]:
+        r = find_liquid(name, lib)
+        vp = Chemical(r.cas, T=298.15).VaporPressure
+        fitted = [vp.calculate(298.15, m) / 1000.0 for m in ("DIPPR_PERRY_8E", "VDI_PPDS", "WAGNER_POLING")
+                  if m in vp.T_limits and vp.T_limits[m][0] <= 298.15]
+        assert len(fitted) >= 2, name
+        assert min(fitted) * 0.99 <= r["vapour_pressure_kpa"] <= max(fitted) * 1.01, name
+        assert vp(298.15) / 1000.0 > 1.3 * max(fitted), name    # thermo's default, extrapolated
+        assert "is fitted from" in r["vapour_pressure_method"], name
+    # the ones fitted at 25 C stay thermo's default
+    assert find_liquid("toluene", lib)["vapour_pressure_method"] == Chemical("108-88-3").VaporPressure.method
+
+
+def test_stereo_partners_share_data_based_values(lib):
+    # Common practice: enantiomers have the same vapour pressure and viscosity, a racemate
+    # practically so; cis/trans isomers are different compounds. thermo has only a
+    # corresponding-states vapour pressure for racemic ethyl lactate and only Joback's viscosity for
+    # the (S) form, and Landolt / Viswanath-Natarajan data for the other.
+    rac, s_form = find_liquid("97-64-3", lib), find_liquid("687-47-8", lib)
+    assert rac["vapour_pressure_kpa"] == s_form["vapour_pressure_kpa"]
+    assert 0.15 < rac["vapour_pressure_kpa"] < 0.5     # about 0.3 kPa at 25 C (from memory)
+    assert "ethyl (S)-lactate" in rac["vapour_pressure_method"]
+    assert s_form["viscosity_mpa_s"] == rac["viscosity_mpa_s"] and not s_form["viscosity_estimated"]
+    assert 2.0 < s_form["viscosity_mpa_s"] < 3.0        # about 2.4-2.6 mPa s (from memory)
+    fum = find_liquid("dibutyl fumarate", lib)
+    assert "maleate" not in str(fum["vapour_pressure_method"])
+    from selector.build import _same_but_chirality
+
+    assert _same_but_chirality("CCOC(=O)[C@H](C)O", "CCOC(=O)C(C)O")
+    assert not _same_but_chirality("CCCCOC(=O)/C=C\\C(=O)OCCCC", "CCCCOC(=O)/C=C/C(=O)OCCCC")
+    assert not _same_but_chirality("CCCCOC(=O)/C=C\\C(=O)OCCCC", "CCCCOC(=O)C=CC(=O)OCCCC")
 
 
 # ---------------------------------------------------------------- look-up
@@ -605,6 +652,18 @@ def test_exposure_limits_for_isomers_and_short_term_only(lib):
     assert caution_table(nmp)["exposure"].iloc[0] == "98.7 ppm (Ontario, Canada)"
     rep = build_report("t", target=selector.as_target((18.0, 12.3, 7.2)), liquids=nmp)
     assert "Ontario's (Canada) 8-hour averages" in rep and "10 ppm for NMP" in rep
+
+
+def test_caution_table_looks_up_the_class_of_ranked_rows():
+    # rank() rows carry no hazard_class; the report's safety table must not call them all
+    # "unclassified" (README walk-through). Classes: toluene problematic, ethyl acetate
+    # recommended (CHEM21, Prat et al. 2016, from memory, as in parameters/hazards.md).
+    from selector.report import caution_table
+
+    res = selector.rank((18.0, 4.0, 5.0), include=["toluene", "ethyl acetate"])
+    assert "hazard_class" not in res.columns
+    ct = caution_table(res).set_index("name")["hazard_class"]
+    assert ct["toluene"] == "problematic" and ct["ethyl acetate"] == "recommended"
 
 
 def test_show_says_whose_exposure_limit(capsys):
