@@ -8,7 +8,8 @@ from .cli_common import CAUTION, add_filter_args, add_output_args, emit, filters
 
 PAIR_COLUMNS = ["a", "b", "temperature_c", "state", "chi", "chi_critical", "ucst_c", "lcst_c", "lcst_prone", "trend_doubtful",
                 "confidence", "p_miscible", "a_in_b_vol_pct", "a_in_b_wt_pct", "a_in_b_mol_pct", "b_in_a_vol_pct", "b_in_a_wt_pct",
-                "b_in_a_mol_pct", "spinodal_low", "spinodal_high", "v_ref", "interaction_mpa", "model", "notes"]
+                "b_in_a_mol_pct", "spinodal_low", "spinodal_high", "v_ref", "interaction_mpa", "model",
+                "headline", "unifac_state", "unifac_method", "reference_state", "reference_source", "notes"]
 
 SHORT = {"miscible": "mix", "partially miscible": "part", "immiscible": "no"}
 
@@ -21,6 +22,10 @@ def _pair_row(r) -> dict:
         for unit in ("vol_pct", "wt_pct", "mol_pct"):
             d[f"{side}_{unit}"] = r.binodal[side][unit] if r.binodal else None
     d["spinodal_low"], d["spinodal_high"] = r.spinodal if r.spinodal else (None, None)
+    d["headline"] = r.headline
+    so, ref = r.second_opinion or {}, r.reference or {}
+    d["unifac_state"], d["unifac_method"] = so.get("state", ""), so.get("method", "")
+    d["reference_state"], d["reference_source"] = ref.get("state", ""), ref.get("source", "")
     d["notes"] = " | ".join(r.notes)
     return d
 

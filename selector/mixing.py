@@ -767,8 +767,17 @@ def _record(row, name) -> dict:
     rec["smiles"] = "" if smi is None or (isinstance(smi, float) and math.isnan(smi)) else str(smi).strip()
     if rec["smiles"] and math.isnan(site_counts(rec["smiles"])[0]):
         raise SelectorError(f"{name}: {rec['smiles']!r} is not a valid SMILES string")
+    key = get("inchikey", "")
+    rec["inchikey"] = "" if key is None or (isinstance(key, float) and math.isnan(key)) else str(key).strip()
+    if not rec["inchikey"] and rec["smiles"]:
+        from rdkit import Chem
+
+        mol = Chem.MolFromSmiles(rec["smiles"])
+        rec["inchikey"] = (Chem.MolToInchiKey(mol) or "") if mol is not None else ""
     rec["sources_disagree"] = str(get("sources_disagree", False)).lower() == "true"
     rec["origin"] = str(get("origin", "") or "")
+    cas = get("cas", "")
+    rec["cas"] = "" if cas is None or (isinstance(cas, float) and math.isnan(cas)) else str(cas).strip()
     rec["hsp_source"] = str(get("hsp_source", "") or "")
     # 90 % intervals of an estimated liquid (delta_*_low/_high, molar_volume_low/_high), if any
     for k in _NUM_FIELDS:
@@ -861,7 +870,12 @@ class Miscibility:
     without one); ``notes``: list of plain-language remarks; ``lcst_prone``: water with an amine,
     pyridine or glycol ether, a pair whose gap opens on heating in practice, so that the model's
     UCST trend does not apply to it; ``reacts``: why the two react with each other (an acid and an
-    amine, ...; :data:`selector.cautions.PAIR_RULES`), "" when no rule applies.
+    amine, ...; :data:`selector.cautions.PAIR_RULES`), "" when no rule applies; ``second_opinion``:
+    UNIFAC's state (:func:`selector.unifac.second_opinion`: ``method``, ``state``, ``why``;
+    ``state`` "" where UNIFAC does not cover the pair); ``models_disagree``: UNIFAC and this model
+    differ on one phase or two; ``reference``: at 25 C, the pair's entry in
+    ``parameters/miscibility_pairs.csv`` (``state``, ``source``) where it has one, which then
+    gives the answer (:attr:`headline`) ahead of both models.
     """
 
     a: str
@@ -883,6 +897,9 @@ class Miscibility:
     lcst_prone: bool = False
     reacts: str = ""
     trend_doubtful: bool = False
+    second_opinion: dict = field(default_factory=dict)
+    models_disagree: bool = False
+    reference: dict = field(default_factory=dict)
 
     @property
     def miscible(self) -> bool:
@@ -894,16 +911,26 @@ class Miscibility:
         an amine, pyridine or glycol ether), where the model is not to be trusted either way
         (water and 1-methoxy-2-propanol mix in all proportions at 25 C, water and triethylamine
         split; from memory), or a water pair whose model state at this temperature differs from its
-        state at 25 C (``trend_doubtful``): "uncertain (model: <state>)"; with ", but they react" appended for a
-        pair of :data:`selector.cautions.PAIR_RULES` (``reacts`` names the reaction)."""
-        doubt = self.lcst_prone or self.trend_doubtful
-        head = f"uncertain (model: {self.state})" if doubt else self.state
+        state at 25 C (``trend_doubtful``), or a pair on which UNIFAC says otherwise
+        (``models_disagree``): "uncertain (model: <state>)", with UNIFAC's state beside it where it
+        has one; with ", but they react" appended for a pair of :data:`selector.cautions.PAIR_RULES`
+        (``reacts`` names the reaction)."""
+        if self.reference:
+            head = f"{self.reference['state']} (reference data)"
+            return f"{head}, but they react" if self.reacts else head
+        doubt = self.lcst_prone or self.trend_doubtful or self.models_disagree
+        second = self.second_opinion.get("state", "") if self.second_opinion else ""
+        other = f"; {self.second_opinion['method']}: {second}" if second and second != self.state else ""
+        head = f"uncertain (model: {self.state}{other})" if doubt else self.state
         return f"{head}, but they react" if self.reacts else head
 
     def as_dict(self) -> dict:
         d = {k: getattr(self, k) for k in ("a", "b", "temperature_c", "state", "chi", "chi_critical",
                                            "ucst_c", "lcst_c", "confidence", "p_miscible", "v_ref", "interaction_mpa",
-                                           "model", "lcst_prone", "trend_doubtful", "reacts", "headline")}
+                                           "model", "lcst_prone", "trend_doubtful", "reacts", "headline",
+                                           "models_disagree")}
+        d["second_opinion"] = dict(self.second_opinion or {})
+        d["reference"] = dict(self.reference or {})
         d["spinodal"] = None if self.spinodal is None else list(self.spinodal)
         d["binodal"] = self.binodal
         d["notes"] = list(self.notes)
@@ -1071,7 +1098,7 @@ def _classify(pa, pb, v1, v2, m1, m2):
 
 
 def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None = None,
-                model=None) -> Miscibility:
+                model=None, unifac: bool = True) -> Miscibility:
     """Whether liquids ``a`` and ``b`` mix at ``temperature`` (C), with chi, UCST and binodal.
 
     ``a``, ``b``: library names/CAS/SMILES, or dicts/Series with ``delta_d, delta_p, delta_h``
@@ -1079,7 +1106,10 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     ``melting_point_c``, ``boiling_point_c`` (C) and ``expansion_coeff`` (1/K). ``model``:
     "hbond" (default) or "plain". Method: see the module docstring (Flory-Huggins with Hansen
     parameters and a donor/acceptor term; HSP moved to the temperature by Hansen-Beerbower).
-    The result is symmetric in ``a`` and ``b`` (the binodal is given for ``a``).
+    The result is symmetric in ``a`` and ``b`` (the binodal is given for ``a``). With ``unifac``
+    (default), UNIFAC's phase split at the same temperature is worked out as a second opinion
+    (:mod:`selector.unifac`: Dortmund where it covers the pair, else the original); where it
+    disagrees on one phase or two, the answer is "uncertain" and the confidence low.
 
     >>> r = miscibility("water", "hexane")
     >>> r.state, r.chi > r.chi_critical
@@ -1171,7 +1201,7 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
         # 51 C in the model, two phases up to boiling in practice; common practice): a state that
         # differs from the model's own state at 25 C is not an answer
         try:
-            st25 = miscibility(a, b, temperature=25.0, library=library, model=model).state
+            st25 = miscibility(a, b, temperature=25.0, library=library, model=model, unifac=False).state
         except SelectorError:
             st25 = state
         if st25 != state:
@@ -1200,6 +1230,37 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     else:
         notes.append("a model estimate: confirm with a small test mix, and read the safety data sheets "
                      "of both liquids first")
+    second, disagree = {}, False
+    same = ra_["name"] == rb_["name"] and np.allclose(h1, h2) and v1 == v2
+    if unifac and not same:
+        from .unifac import second_opinion
+
+        m1k = m1 if math.isfinite(m1) else math.nan
+        second = second_opinion(ra_["inchikey"], rb_["inchikey"], m1k, m2, t) if (
+            math.isfinite(m1) and math.isfinite(m2)) else {"method": "", "state": "",
+                                                          "why": "no molar mass for a liquid"}
+        if second["state"]:
+            disagree = (second["state"] == "miscible") != (state == "miscible")
+            if disagree:
+                conf = "low"
+                notes.insert(0, f"second opinion: {second['method']} (parameters and groups as carried by "
+                             f"thermo) says {second['state']} at {t:g} C, this model {state}: the two disagree, "
+                             "so test a small mix before relying on either")
+            else:
+                notes.append(f"second opinion: {second['method']} (thermo) also says "
+                             f"{'one phase' if state == 'miscible' else 'two phases'} ({second['state']})")
+        else:
+            notes.append(f"no UNIFAC second opinion for this pair ({second['why']})")
+    ref = reference_state(ra_.get("cas", ""), rb_.get("cas", "")) if abs(t - 25.0) < 1e-9 and not same else {}
+    if ref:
+        conf = "high"
+        ref_one = ref["state"] == "miscible"
+        if ref_one != (state == "miscible"):
+            notes.insert(0, f"reference data ({ref['source']}) say {ref['state']} at 25 C, and that is the "
+                         f"answer; this model says {state}, one of the reference pairs it gets wrong, so its "
+                         "numbers here (chi, UCST, solubilities) are its own and not to be trusted")
+        else:
+            notes.insert(0, f"reference data ({ref['source']}) agree: {ref['state']} at 25 C")
     from .cautions import pair_reasons
 
     reacts = "; ".join(w.split(": ", 1)[1] for w in pair_reasons(
@@ -1209,7 +1270,30 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
                         "a planned reaction; read both safety data sheets")
     return Miscibility(ra_["name"], rb_["name"], t, state, chi, cc, ucst_c, bino, spin,
                        conf, notes, float(vr), a12, mdl.name, lcst_c, mdl.p_miscible(chi, cc), bool(lcst),
-                       reacts, doubtful)
+                       reacts, doubtful, second, bool(disagree), ref)
+
+
+@functools.lru_cache(maxsize=1)
+def _reference_pairs() -> dict:
+    from .mixing_fit import load_pairs
+
+    out = {}
+    for r in load_pairs().itertuples():
+        if r.state_25c in STATES:    # entries that only say "not miscible" do not answer the question
+            out[frozenset((r.cas_a, r.cas_b))] = {"state": r.state_25c, "source": r.source}
+    return out
+
+
+def reference_state(cas_a: str, cas_b: str) -> dict:
+    """The entry of ``parameters/miscibility_pairs.csv`` for a pair of CAS numbers at 25 C
+    (``{"state", "source"}``), or {} when the pair is not in it or the entry gives no state.
+
+    >>> reference_state("7732-18-5", "110-54-3")["state"]    # water, hexane
+    'immiscible'
+    """
+    if not cas_a or not cas_b:
+        return {}
+    return dict(_reference_pairs().get(frozenset((str(cas_a).strip(), str(cas_b).strip())), {}))
 
 
 def _ranges(rec):
@@ -1378,7 +1462,9 @@ def miscibility_matrix(liquids, *, temperature: float = 25.0, library: pd.DataFr
     library). Index and columns are the liquid names. ``attrs["reactive_pairs"]``: the pairs
     ``(a, b)`` that react with each other (:func:`selector.cautions.reactive_pair_matrix`);
     ``attrs["uncertain_pairs"]``: water with an amine, pyridine or glycol ether, whose state the
-    model cannot be trusted on (:attr:`Miscibility.headline` says "uncertain").
+    model cannot be trusted on (:attr:`Miscibility.headline` says "uncertain"); at 25 C, pairs of
+    ``parameters/miscibility_pairs.csv`` take their recorded state (``attrs["reference_pairs"]``).
+    The UNIFAC second opinion of :func:`miscibility` is left out here (it costs about 20 ms a pair).
 
     >>> m = miscibility_matrix(["water", "hexane", "acetone"])
     >>> m.loc["water", "hexane"], m.loc["water", "acetone"]
@@ -1392,6 +1478,10 @@ def miscibility_matrix(liquids, *, temperature: float = 25.0, library: pd.DataFr
         df = library.iloc[locate_many(liquids, library)].reset_index(drop=True)
     else:
         df = _rows(liquids, library)
+    if "name" in df.columns and df["name"].astype(str).duplicated().any():
+        twice = sorted(set(df["name"].astype(str)[df["name"].astype(str).duplicated()]))
+        raise SelectorError(f"{', '.join(twice)} {'is' if len(twice) == 1 else 'are'} listed twice (perhaps "
+                            "under another name or its CAS number): give each liquid once")
     st = state_matrix(df, temperature, model)
     names = df["name"].astype(str).tolist() if "name" in df.columns else list(range(len(df)))
     out = pd.DataFrame(st, index=names, columns=names)
@@ -1413,7 +1503,20 @@ def miscibility_matrix(liquids, *, temperature: float = 25.0, library: pd.DataFr
             st25 = st
         unsure += [(w, k) for w in water for k in range(len(df))
                    if k != w and k not in prone and k not in water and st[w, k] != st25[w, k]]
-    out.attrs["uncertain_pairs"] = [(names[w], names[k]) for w, k in unsure]
+    # at 25 C a pair of the reference table takes its recorded state (Miscibility.reference)
+    known = []
+    if abs(float(temperature) - 25.0) < 1e-9 and "cas" in df.columns:
+        cas = df["cas"].astype("string").fillna("").astype(str).tolist()
+        for p in range(len(df)):
+            for q in range(p + 1, len(df)):
+                ref = reference_state(cas[p], cas[q])
+                if ref and cas[p] != cas[q]:
+                    out.iat[p, q] = out.iat[q, p] = ref["state"]
+                    known.append((names[p], names[q]))
+    done = set(map(frozenset, known))
+    out.attrs["reference_pairs"] = known
+    out.attrs["uncertain_pairs"] = [(names[w], names[k]) for w, k in unsure
+                                    if frozenset((names[w], names[k])) not in done]
     return out
 
 

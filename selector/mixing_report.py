@@ -91,69 +91,7 @@ def leave_one_liquid_out(f, gs: GridScores):
 
 # ---------------------------------------------------------------- UNIFAC
 
-def _unifac_tables(version):
-    from thermo import unifac as U
-
-    if version == 0:
-        return U.UFSG, U.UFIP
-    return U.DOUFSG, U.DOUFIP2016
-
-
-def _covered(groups, version) -> str | None:
-    """None if every group and group pair has parameters, else the reason."""
-    sg, ip = _unifac_tables(version)
-    if not groups or any(not g for g in groups):
-        return "no group assignment"
-    mains = set()
-    for g in groups:
-        for k in g:
-            if k not in sg:
-                return f"subgroup {k} without parameters"
-            mains.add(sg[k].main_group_id)
-    for a in mains:
-        for b in mains:
-            if a != b and (a not in ip or b not in ip[a]):
-                return f"no interaction parameters for main groups {a}-{b}"
-    return None
-
-
-def _lower_hull(x, y):
-    """Indices of the lower convex hull of points sorted by x (Andrew's monotone chain)."""
-    hull: list[int] = []
-    for i in range(len(x)):
-        while len(hull) >= 2:
-            i1, i2 = hull[-2], hull[-1]
-            if (x[i2] - x[i1]) * (y[i] - y[i1]) - (y[i2] - y[i1]) * (x[i] - x[i1]) <= 0:
-                hull.pop()
-            else:
-                break
-        hull.append(i)
-    return hull
-
-
-#: Mole-fraction grid for the tangent construction: logit-spaced, 1e-8 .. 1 - 1e-8.
-_XGRID = 1.0 / (1.0 + np.exp(-np.linspace(-18.4, 18.4, 401)))
-
-
-def unifac_split(groups, T=298.15, version=0):
-    """(x_a, x_b) coexisting mole fractions of liquid 1 by the convex-hull construction, or None."""
-    from thermo.unifac import UNIFAC
-
-    model = UNIFAC.from_subgroups(T=T, xs=[0.5, 0.5], chemgroups=groups, version=version)
-    x = _XGRID
-    ge = np.array([model.to_T_xs(T, [xi, 1.0 - xi]).GE() for xi in x])
-    g = ge / (8.314462618 * T) + x * np.log(x) + (1 - x) * np.log1p(-x)
-    hull = _lower_hull(x, g)
-    best = None
-    for i1, i2 in zip(hull[:-1], hull[1:]):
-        if i2 - i1 < 2:
-            continue
-        seg = slice(i1 + 1, i2)
-        line = g[i1] + (g[i2] - g[i1]) * (x[seg] - x[i1]) / (x[i2] - x[i1])
-        if np.max(g[seg] - line) > 1e-7:
-            if best is None or x[i2] - x[i1] > best[1] - best[0]:
-                best = (x[i1], x[i2])
-    return best
+from .unifac import covered as _covered, unifac_split  # noqa: E402  (one implementation, shared)
 
 
 def unifac_states(f, version) -> pd.DataFrame:

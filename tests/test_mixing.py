@@ -243,7 +243,7 @@ def test_lcst_pairs_get_a_note():
     # Water-triethylamine has a lower critical solution temperature near 18.7 C (Sorensen & Arlt
     # 1979, from memory), outside a UCST model.
     r = miscibility("water", "triethylamine")
-    assert r.confidence == "low"
+    assert r.confidence == "low" and r.headline.startswith("uncertain (model: ")
     assert any("lower critical" in n for n in r.notes)
     # the model's own UCST trend ("the gap narrows on heating") is the opposite of such a pair's
     # and must not be printed beside it (a reviewer read the two as a contradiction)
@@ -263,15 +263,20 @@ def test_glycol_ethers_with_water_are_flagged_as_lcst_prone():
     # parameters/miscibility_pairs.csv). The model's UCST trend does not apply to them, so the
     # result must say so: the flag, the LCST note and low confidence. Water-hexane is no such pair.
     for partner in ("1-methoxy-2-propanol", "2-butoxyethanol", "2-methoxyethanol"):
-        r = miscibility("water", partner)
+        r = miscibility("water", partner, temperature=30)
         assert r.lcst_prone, partner
         assert r.confidence == "low" and any("lower critical" in n for n in r.notes), partner
         assert r.as_dict()["lcst_prone"] is True
         # app review: the headline said "partially miscible" for water + 1-methoxy-2-propanol,
         # which mix in all proportions; the answer shown first is "uncertain" for such pairs
         assert r.headline.startswith("uncertain (model: "), partner
+        # at 25 C the two in the reference table answer with its recorded state; the LCST note stays
+        r25 = miscibility("water", partner)
+        assert r25.lcst_prone and any("lower critical" in n for n in r25.notes), partner
+        if partner != "1-methoxy-2-propanol":
+            assert r25.headline == "miscible (reference data)", partner
     assert not miscibility("water", "hexane").lcst_prone
-    assert miscibility("water", "hexane").headline == "immiscible"
+    assert miscibility("water", "hexane").headline == "immiscible (reference data)"
     assert not miscibility("toluene", "2-butoxyethanol").lcst_prone   # no water: no such note
 
 
@@ -615,7 +620,8 @@ def test_a_liquid_paired_with_itself_is_one_phase_without_model_talk():
     assert r.notes == ["the same liquid on both sides: it forms one phase with itself, there is nothing to predict"]
     # a distinct pair keeps the model notes, worded without a made-up lower temperature
     r2 = miscibility("hexane", "toluene")
-    assert r2.notes[0] == "no UCST in this model: one phase at every temperature where both are liquid"
+    assert "no UCST in this model: one phase at every temperature where both are liquid" in r2.notes
+    assert not any("nothing to predict" in n for n in r2.notes)
 
 
 def test_water_pairs_whose_model_state_moves_with_temperature_are_uncertain():
@@ -624,10 +630,76 @@ def test_water_pairs_whose_model_state_moves_with_temperature_are_uncertain():
     # 72-137 C; parameters/miscibility_pairs.csv). Where the model's state at T differs from its
     # own 25 C state, the answer is "uncertain", not the model's state.
     r = miscibility("water", "ethyl acetate", temperature=60)
-    assert r.trend_doubtful and r.headline == "uncertain (model: miscible)" and r.confidence == "low"
-    assert miscibility("water", "ethyl acetate").headline == "partially miscible"
+    assert r.trend_doubtful and r.headline.startswith("uncertain (model: miscible") and r.confidence == "low"
+    assert miscibility("water", "ethyl acetate").headline == "partially miscible (reference data)"
+    assert miscibility("water", "ethyl acetate", unifac=False, temperature=60).headline == "uncertain (model: miscible)"
     assert miscibility("water", "tetrahydrofuran", temperature=5).headline.startswith("uncertain (model: ")
     # a state that does not move keeps its answer (water-hexane, immiscible at any temperature)
     assert miscibility("water", "hexane", temperature=60).headline == "immiscible"
     m = miscibility_matrix(["water", "ethyl acetate", "hexane"], temperature=60)
     assert m.attrs["uncertain_pairs"] == [("water", "ethyl acetate")]
+
+
+def test_unifac_second_opinion_flags_disagreement():
+    # From memory (producer data sheets): about 18-20 wt % PGMEA dissolves in water, so the pair
+    # is partially miscible; PGME mixes with water in all proportions (common practice). The HSP
+    # model gets both wrong; Dortmund UNIFAC (Weidlich & Gmehling 1987, parameters and DDBST
+    # groups as carried by thermo) gets both right, so the answer is "uncertain", not the model's.
+    r = miscibility("water", "1-methoxy-2-propyl acetate")
+    assert r.state == "miscible"                                    # the HSP model's own answer
+    assert r.second_opinion == {"method": "UNIFAC (Dortmund)", "state": "partially miscible", "why": ""}
+    assert r.models_disagree and r.confidence == "low"
+    assert r.headline == "uncertain (model: miscible; UNIFAC (Dortmund): partially miscible)"
+    assert r.notes[0].startswith("second opinion: UNIFAC (Dortmund)")
+    pgme = miscibility("water", "1-methoxy-2-propanol")
+    assert pgme.second_opinion["state"] == "miscible" and pgme.models_disagree
+    # agreement keeps the model's answer and says so (water-toluene: two phases, common practice)
+    tol = miscibility("water", "toluene", temperature=30)
+    assert not tol.models_disagree and tol.headline == "immiscible"
+    assert any(n.startswith("second opinion: UNIFAC (Dortmund) (thermo) also says two phases") for n in tol.notes)
+    # off on request, and for a pair neither UNIFAC covers (dimethyl carbonate has no Dortmund
+    # interaction parameters with water and no original-UNIFAC groups in thermo)
+    off = miscibility("water", "1-methoxy-2-propyl acetate", unifac=False)
+    assert off.second_opinion == {} and off.headline == "miscible"
+    dmc = miscibility("water", "dimethyl carbonate")
+    assert dmc.second_opinion["state"] == "" and "no group assignment" in dmc.second_opinion["why"]
+    assert any(n.startswith("no UNIFAC second opinion") for n in dmc.notes)
+
+
+def test_reference_pairs_answer_with_their_recorded_state():
+    # parameters/miscibility_pairs.csv: water-methyl acetate about 24 wt % (Riddick et al. 1986, from
+    # memory) - partially miscible; the model says miscible, one of the pairs it gets wrong.
+    r = miscibility("methyl acetate", "water")
+    assert r.state == "miscible" and r.reference["state"] == "partially miscible"
+    assert r.headline == "partially miscible (reference data)" and r.confidence == "high"
+    assert "one of the reference pairs it gets wrong" in r.notes[0]
+    assert r.as_dict()["reference"]["source"].startswith("about 24 wt%")
+    # only at 25 C, the temperature of the table
+    assert miscibility("methyl acetate", "water", temperature=40).reference == {}
+    # the matrix takes the same states and names the pairs
+    m = miscibility_matrix(["water", "methyl acetate", "hexane", "1-methoxy-2-propyl acetate"])
+    assert m.loc["water", "methyl acetate"] == m.loc["methyl acetate", "water"] == "partially miscible"
+    assert ("water", "methyl acetate") in m.attrs["reference_pairs"]
+    assert ("water", "1-methoxy-2-propyl acetate") not in m.attrs["reference_pairs"]
+
+
+def test_mix_command_shows_the_second_opinion(capsys):
+    from selector.cli import main
+
+    assert main(["mix", "water", "PGMEA"]) == 0
+    out = capsys.readouterr().out
+    assert "UNCERTAIN (model: miscible; UNIFAC (Dortmund): partially miscible)" in out
+    assert main(["mix", "water", "PGMEA", "--format", "csv"]) == 0
+    row = capsys.readouterr().out.splitlines()
+    head = row[0].split(",")
+    assert "unifac_state" in head and "reference_state" in head
+
+
+def test_matrix_refuses_a_liquid_named_twice(capsys):
+    # README walk-through: `mix-grid water,water,hexane` crashed with a traceback
+    from selector.cli import main
+
+    with pytest.raises(SelectorError, match="water is listed twice"):
+        miscibility_matrix(["water", "7732-18-5", "hexane"])
+    assert main(["mix-grid", "NMP,1-methyl-2-pyrrolidinone"]) == 2
+    assert "listed twice" in capsys.readouterr().err

@@ -11,7 +11,9 @@ st.caption("Flory-Huggins with Hansen parameters: chi = V_r A12 / (RT), where th
            "model weights the dD, dP and hydrogen-bond differences (fitted on published pairs) and credits "
            "cross hydrogen bonds; the plain model uses A12 = Ra² / 4. A pair splits into two liquid phases "
            "when chi exceeds chi_c. Rough for water and strongly hydrogen-bonded pairs: read the confidence "
-           "and test before you rely on it.")
+           "and test before you rely on it. At 25 °C a pair of the reference table answers with its recorded "
+           "state; UNIFAC (Dortmund, else original; as carried by thermo) gives a second opinion, and where "
+           "the two models disagree the answer is *uncertain*.")
 mod = common.capability("mixing")
 if mod is None:
     st.stop()
@@ -82,7 +84,7 @@ with tab1:
         state = str(getattr(r, "headline", getattr(r, "state", "?")))
         m = st.columns([2, 1, 1, 1, 1])
         short = ("they react" if getattr(r, "reacts", "") else
-                 "uncertain" if state.startswith("uncertain") else state)
+                 "uncertain" if state.startswith("uncertain") else state.split(" (")[0])
         m[0].metric("At this temperature", short, help=state)
         lcst_pair = bool(getattr(r, "lcst_prone", False))
         model_note = ("the model value; for water with an amine, pyridine or glycol ether it does not "
@@ -170,10 +172,16 @@ with tab2:
             st.caption("○ miscible · ◐ partially miscible · ● immiscible (colour and symbol both carry the state); "
                        "! = the two react; ? = uncertain (water with a glycol ether, amine or pyridine: the "
                        "model cannot be trusted on such pairs, test them).")
+            known = mat.attrs.get("reference_pairs", [])
+            if known:
+                st.caption(f"{len(known)} of these pairs are in the reference table (published or common-practice "
+                           "facts at 25 °C) and show its state, not the model's: "
+                           + ", ".join(f"{x} + {y}" for x, y in known) + ". The pair view shows a "
+                           "second opinion from UNIFAC as well.")
             pairs = mat.attrs.get("reactive_pairs", [])
             if pairs:
                 st.warning("These pairs react with each other whatever their phase behaviour (amine + acid, "
-                           "amine + ketone or aldehyde, amine + nitroalkane): do not mix them except as a "
+                           "amine + ketone, aldehyde or ester, amine + nitroalkane or halocarbon): do not mix them except as a "
                            "planned reaction - " + ", ".join(f"{x} + {y}" for x, y in pairs) + ".",
                            icon=":material/warning:")
             from selector.io import to_csv_text
