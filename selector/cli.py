@@ -38,6 +38,30 @@ def build_parser() -> argparse.ArgumentParser:
     return p
 
 
+#: Library keyword -> the command-line option that sets it, for messages that name the keyword.
+FLAG_OF = {"min_flash_point_c": "--min-flash", "max_molar_volume": "--max-volume",
+           "polarity_weight": "--polarity-weight", "min_fraction": "--min-share", "max_uses": "--max-uses",
+           "bootstrap": "--bootstrap", "threshold": "--pass-mark", "must_stay_until": "--keep-until",
+           "relative_humidity": "--humidity"}
+
+
+def with_flags(msg: str) -> str:
+    """``msg`` with each library keyword it names followed by the option a command-line user typed:
+    "min_flash_point_c must not be NaN" -> "--min-flash (min_flash_point_c) must not be NaN".
+
+    >>> with_flags("max_uses must be a positive whole number, got 0")
+    '--max-uses (max_uses) must be a positive whole number, got 0'
+    """
+    import re
+
+    for key, flag in FLAG_OF.items():
+        if flag not in msg:
+            msg = msg.replace(f"({key})", f"({flag}, {key})", 1)
+        if flag not in msg:
+            msg = re.sub(rf"(?<![\w(-]){key}\b(?!\))", f"{flag} ({key})", msg, count=1)
+    return msg
+
+
 def main(argv=None) -> int:
     parser = build_parser()
     a = parser.parse_args(argv)
@@ -49,7 +73,13 @@ def main(argv=None) -> int:
     try:
         return int(a.func(a) or 0)
     except (SelectorError, ValueError, FileNotFoundError, PermissionError, IsADirectoryError) as e:
-        msg = str(e).strip() or type(e).__name__
+        from .errors import UnknownLiquidError
+
+        if isinstance(e, UnknownLiquidError):
+            from .cli_core import unknown_liquid_hint
+
+            e = unknown_liquid_hint(e.query, e, target=False)   # a SMILES: how to estimate it
+        msg = with_flags(str(e).strip() or type(e).__name__)
         print(f"likewise {a.command}: error: {msg}", file=sys.stderr)
         return 2
     except KeyboardInterrupt:

@@ -83,6 +83,9 @@ def unknown_liquid_hint(text: str, err, target: bool = True) -> Exception:
         return SelectorError(f"unknown liquid {text!r}: it reads as a SMILES that is not in the library; "
                              f"estimate its HSP with  likewise guess '{text}' --save-mine my_liquids.csv  "
                              "and then add --mine my_liquids.csv")
+    if " " not in text.strip() and re.search(r"[=#\[\]@()]|[A-Za-z][0-9]", text) and Chem.MolFromSmiles(text) is None:
+        return SelectorError(f"{err}; read as a SMILES it is not valid either (check ring-closure digits, "
+                             "brackets and bond symbols)")
     return err
 
 

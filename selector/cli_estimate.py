@@ -4,7 +4,7 @@ from __future__ import annotations
 import argparse
 
 from .cli_core import INTERVAL_FIELDS
-from .errors import plural
+from .errors import SelectorError, plural
 
 GUESS_COLUMNS = ["name", "smiles", "source", "hsp_source", "delta_d", "delta_d_low", "delta_d_high",
                  "delta_p", "delta_p_low", "delta_p_high", "delta_h", "delta_h_low", "delta_h_high",
@@ -101,6 +101,8 @@ def cmd_guess(a) -> int:
     from .estimation import _looks_like_path, estimate
 
     check_file_args(a)   # refuse a bad -o / --save-mine before the model trains
+    if a.save_mine:
+        _mine_table(a.save_mine)
     batch = _looks_like_path(a.smiles)
     names = [a.name] if (a.name and not batch) else None
     res = estimate(a.smiles, names=names, progress=batch)
@@ -121,6 +123,25 @@ def cmd_guess(a) -> int:
     if failed == len(res):
         raise SelectorError("no row could be estimated")
     return status
+
+
+def _mine_table(path):
+    """The user-liquid table already at ``path`` (None for a new or empty file); a file that is
+    not one (no name/delta_d/delta_p/delta_h columns) is refused before anything is written."""
+    from pathlib import Path
+
+    from .library import _as_frame
+
+    path = Path(path)
+    if not path.exists() or path.stat().st_size == 0:
+        return None
+    old = _as_frame(path)
+    missing = [c for c in ("name", "delta_d", "delta_p", "delta_h") if c not in old.columns]
+    if missing:
+        raise SelectorError(f"{path} is not a table of your liquids (no {', '.join(missing)} "
+                            f"{'column' if len(missing) == 1 else 'columns'}): nothing was saved and "
+                            "the file is as it was; give --save-mine a new file or your liquids CSV")
+    return old
 
 
 def _save_mine(res, path) -> int:
@@ -144,7 +165,8 @@ def _save_mine(res, path) -> int:
     # overwritten; save_user_liquids validates (a table the other commands could not read is
     # refused) and writes atomically
     fp = file_fingerprint(path)
-    table, replaced = with_user_rows(_as_frame(path) if path.exists() else None, good)
+    old = _mine_table(path)
+    table, replaced = with_user_rows(old, good)
     save_user_liquids(guard_cells(table), path, unchanged_since=fp)
     kinds = good["origin"].value_counts()
     detail = ", ".join(f"{n} {k}" for k, n in kinds.items())

@@ -297,3 +297,25 @@ def test_rank_lists_each_liquids_hazard_notes(capsys):
     # the table keeps the meaning in a shorter form (its header explains unclassified)
     rc, out, _ = run(["rank", "toluene", "--top", "40"], capsys)
     assert "no hazard data (treat as hazardous)" in out and "until the safety data sheet" not in out
+
+
+@pytest.mark.parametrize("argv,flag", [
+    (["rank", "toluene", "--min-flash", "nan"], "--min-flash (min_flash_point_c)"),
+    (["rank", "toluene", "--max-volume", "-5"], "--max-volume (max_molar_volume)"),
+    (["dry", "toluene,butyl acetate", "--shares", "0.4,0.6", "--keep-until", "2"], "--keep-until (must_stay_until)"),
+    (["blend", "18,5,6", "--min-share", "0.7"], "(--min-share, min_fraction)"),
+])
+def test_errors_name_the_option_typed(argv, flag, capsys):
+    # README walk-through: messages named the library keyword the user never typed
+    assert main(argv) == 2
+    assert flag in capsys.readouterr().err
+
+
+def test_unknown_text_that_is_a_broken_smiles_says_so(capsys):
+    # "C1CC" has an unclosed ring (RDKit cannot parse it); "c1ccccc1O" (phenol) parses but is no
+    # library liquid: each command says which, not only "unknown liquid"
+    for cmd in (["rank", "C1CC"], ["hazard", "C1CC"], ["replace", "C1CC"]):
+        assert main(cmd) == 2
+        assert "read as a SMILES it is not valid either" in capsys.readouterr().err, cmd
+    assert main(["hazard", "c1ccccc1O"]) == 2
+    assert "likewise guess 'c1ccccc1O'" in capsys.readouterr().err

@@ -134,6 +134,16 @@ def test_save_mine_gets_the_folder_and_read_only_checks(tmp_path):
         p.chmod(0o644)
 
 
+def test_save_mine_refuses_a_file_that_is_no_liquid_table(tmp_path, capsys):
+    # README walk-through: a one-line text file was rewritten as a liquids table with an extra
+    # empty column; it must be left as it was, before any model is trained
+    p = tmp_path / "exists.txt"
+    p.write_text("existing\n")
+    rc, out, err = run(["guess", "CCOC(=O)CCC(C)=O", "--save-mine", str(p)], capsys)
+    assert rc == 2 and "is not a table of your liquids" in err and "no name, delta_d" in err
+    assert p.read_text() == "existing\n" and out == ""
+
+
 def test_check_output_path_new_file_ok(tmp_path):
     assert check_output_path(tmp_path / "new.csv", overwrite=False) == tmp_path / "new.csv"
 
