@@ -151,7 +151,8 @@ def cmd_rank(a) -> int:
                polarity_weight=a.polarity_weight, **filters_from_args(a))
     tgt = res.attrs["target"]
     cols = RANK_COLUMNS if res["red"].notna().any() else [c for c in RANK_COLUMNS if c != "red"]
-    header = (f"Target {describe_target(tgt, lib)} at {a.at:g} C; {len(res)} candidates; "
+    liquid_at = "" if abs(a.at - 25.0) < 1e-9 else f" (only those liquid at {a.at:g} C)"
+    header = (f"Target {describe_target(tgt, lib)} at {a.at:g} C; {len(res)} candidates{liquid_at}; "
               "score = distance + polarity weight x (1 - polarity match), lower is better; "
               "hazard class: CHEM21 (unclassified = no hazard data here, not safe)"
               + _reagent_note(res) + target_notes(tgt))

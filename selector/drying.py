@@ -149,6 +149,15 @@ def drying_path(components, fractions, *, temperature: float = 25.0, target=None
             raise SelectorError(f"{nm} must be a fraction between 0 and 1, got {v!r}")
     if not isinstance(points, (int, np.integer)) or points < 2 or points > 100000:
         raise SelectorError("points must be a whole number between 2 and 100000")
+    bp = rows["boiling_point_c"].to_numpy(float) if "boiling_point_c" in rows else np.full(len(rows), np.nan)
+    mp = rows["melting_point_c"].to_numpy(float) if "melting_point_c" in rows else np.full(len(rows), np.nan)
+    with np.errstate(invalid="ignore"):
+        boils, frozen = bp <= t_c, mp > t_c
+    if boils.any() or frozen.any():
+        why = [f"{n} boils at {b:.0f} C" for n, b, k in zip(names, bp, boils) if k] + [
+            f"{n} melts at {m:.0f} C" for n, m, k in zip(names, mp, frozen) if k]
+        raise SelectorError(f"cannot follow the drying at {t_c:g} C: " + "; ".join(why)
+                            + " (evaporation of a liquid film is modelled between the melting and boiling points)")
     P = vapour_pressure_kpa(rows, t_c)
     v = rows["molar_volume"].to_numpy(float)
     no_p = ~(np.isfinite(P) & (P > 0))

@@ -1098,7 +1098,7 @@ def _classify(pa, pb, v1, v2, m1, m2):
 
 
 def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None = None,
-                model=None, unifac: bool = True) -> Miscibility:
+                model=None, unifac: bool = True, reference: bool = True) -> Miscibility:
     """Whether liquids ``a`` and ``b`` mix at ``temperature`` (C), with chi, UCST and binodal.
 
     ``a``, ``b``: library names/CAS/SMILES, or dicts/Series with ``delta_d, delta_p, delta_h``
@@ -1109,7 +1109,10 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     The result is symmetric in ``a`` and ``b`` (the binodal is given for ``a``). With ``unifac``
     (default), UNIFAC's phase split at the same temperature is worked out as a second opinion
     (:mod:`selector.unifac`: Dortmund where it covers the pair, else the original); where it
-    disagrees on one phase or two, the answer is "uncertain" and the confidence low.
+    disagrees on one phase or two, the answer is "uncertain" and the confidence low. With
+    ``reference`` (default), a pair of ``parameters/miscibility_pairs.csv`` at 25 C answers with
+    its recorded state (:attr:`Miscibility.reference`); ``reference=False`` gives the models'
+    answer alone (how the accuracy report scores them).
 
     >>> r = miscibility("water", "hexane")
     >>> r.state, r.chi > r.chi_critical
@@ -1251,7 +1254,8 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
                              f"{'one phase' if state == 'miscible' else 'two phases'} ({second['state']})")
         else:
             notes.append(f"no UNIFAC second opinion for this pair ({second['why']})")
-    ref = reference_state(ra_.get("cas", ""), rb_.get("cas", "")) if abs(t - 25.0) < 1e-9 and not same else {}
+    ref = (reference_state(ra_.get("cas", ""), rb_.get("cas", ""))
+           if reference and abs(t - 25.0) < 1e-9 and not same else {})
     if ref:
         conf = "high"
         ref_one = ref["state"] == "miscible"

@@ -195,6 +195,23 @@ def build_report(with_unifac: bool = True) -> str:
             hb_same = _acc(st_h[sub["pair"]], f.miscible[sub["pair"]])
             lines.append(f"| {label} | {int(cov.sum())} of {n} | {_pct(acc)} (bundled donor/acceptor model on the same "
                          f"pairs: {_pct(hb_same)}) | {_pct(a3)} ({n3u} pairs) |")
+    if with_unifac and len(unifac_rows) == 2:
+        # the second opinion of selector.miscibility: Dortmund where it covers the pair, else the original
+        d, o = unifac_rows[1].set_index("pair"), unifac_rows[0].set_index("pair")
+        second = np.array([d.at[k, "state"] if d.at[k, "covered"] else (o.at[k, "state"] if o.at[k, "covered"] else "")
+                           for k in range(n)], dtype=object)
+        has = second != ""
+        model_one = st_h == "miscible"
+        dis = has & ((second == "miscible") != model_one)
+        model_right = model_one == f.miscible
+        agree = has & ~dis
+        lines += ["", "Second opinion (`selector.unifac.second_opinion`, as `selector.miscibility` uses it: Dortmund "
+                  f"UNIFAC where it covers the pair, else the original): covers {int(has.sum())} of {n} pairs and "
+                  f"disagrees with the bundled model on {int(dis.sum())} "
+                  f"({', '.join(f'{a} - {b}' for a, b in zip(pairs.liquid_a[dis], pairs.liquid_b[dis]))}); "
+                  f"{int((dis & ~model_right).sum())} of these are among the model's {int((~model_right).sum())} misses. "
+                  f"Where the two agree ({int(agree.sum())} pairs) the model is right on "
+                  f"{_pct(float(model_right[agree].mean()))}."]
     lines += ["", f"Bundled numbers (`selector.mixing.HBOND`): fitted w_p = {HBOND.w_p:g}, w_h = {HBOND.w_h:g}, "
               f"polyol_c = {HBOND.polyol_c:g}, probability scale tau = {HBOND.tau:g} (a fit on all pairs now gives "
               f"w_p = {fitted_all[0]:g}, w_h = {fitted_all[1]:g}, polyol_c = {fitted_all[2]:g}, tau = {tau_all:.4f}; "
@@ -272,10 +289,11 @@ def build_report(with_unifac: bool = True) -> str:
 
     conf = []
     for r in pairs.itertuples():
-        res = miscibility(r.cas_a, r.cas_b)
+        res = miscibility(r.cas_a, r.cas_b, reference=False)   # the models' own answer, not the table's
         conf.append((res.confidence, (res.state == "miscible") == (r.miscible_25c == "yes")))
     cdf = pd.DataFrame(conf, columns=["confidence", "right"])
-    lines += ["Confidence levels of `miscibility()` against the reference pairs (bundled numbers):", "",
+    lines += ["Confidence levels of `miscibility(..., reference=False)` (the models' own answer, with the "
+              "UNIFAC second opinion) against the reference pairs (bundled numbers):", "",
               "| confidence | pairs | right |", "|---|---|---|"]
     for lev in ("high", "medium", "low"):
         s = cdf[cdf.confidence == lev]

@@ -312,6 +312,7 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
 
     lib_estimated = hsp_estimated(lib)   # a liquid of your own whose HSP are estimated from structure
     no_alpha = []
+    boiling = []
     for i, r in enumerate(df.to_dict(orient="records")):
         where = f"row {i + 2}"
         label = "" if "solvent" not in df.columns or _blank(r.get("solvent")) else str(r["solvent"]).strip()
@@ -377,6 +378,9 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
                             no_alpha.append(label)
                     kind, lib_index = ("estimated" if lib_estimated[p] else "library"), int(p)
                     key = ("library", int(p), round(t, 3))
+                    bp_p = float(lib["boiling_point_c"].iat[p]) if "boiling_point_c" in lib else math.nan
+                    if math.isfinite(bp_p) and t >= bp_p:
+                        boiling.append(f"{label} (boils at {bp_p:.0f} C, tested at {t:g} C)")
                 if not np.all(np.isfinite(hsp)):
                     problems.append(f"{where}: the library has no HSP for this liquid")
                     ok = False
@@ -462,6 +466,9 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
         raise InputTableError("lab tests", problems)
     if no_alpha:
         notes.append("no expansion coefficient, 25 C HSP used for: " + ", ".join(sorted(set(no_alpha))))
+    if boiling:
+        notes.append("tested at or above their boiling point (only possible under pressure; their HSP there is "
+                     "an extrapolation, so check these rows): " + ", ".join(sorted(set(boiling))))
     out = pd.DataFrame(merged).drop(columns=["_key", "_row"])
     if graded:
         g = out["grade"].to_numpy(float)

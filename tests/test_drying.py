@@ -172,3 +172,11 @@ def test_missing_vapour_pressure_is_named_per_liquid():
     msg = str(e.value)
     assert "house solvent W has no vapour pressure" in msg and "molar volume" not in msg.split("(")[0]
     assert "toluene" not in msg
+
+
+def test_no_drying_path_above_a_boiling_point():
+    # README walk-through: `dry toluene,butyl acetate --at 150` ran; both boil below 150 C
+    # (toluene 110.6 C, butyl acetate 126 C: chemicals, via the library)
+    with pytest.raises(SelectorError, match=r"toluene boils at 111 C; butyl acetate boils at 126 C"):
+        drying_path(["toluene", "butyl acetate"], [0.4, 0.6], temperature=150)
+    assert len(drying_path(["toluene", "butyl acetate"], [0.4, 0.6], temperature=60)) > 10

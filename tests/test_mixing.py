@@ -674,8 +674,10 @@ def test_reference_pairs_answer_with_their_recorded_state():
     assert r.headline == "partially miscible (reference data)" and r.confidence == "high"
     assert "one of the reference pairs it gets wrong" in r.notes[0]
     assert r.as_dict()["reference"]["source"].startswith("about 24 wt%")
-    # only at 25 C, the temperature of the table
+    # only at 25 C, the temperature of the table, and not when the models alone are asked for
     assert miscibility("methyl acetate", "water", temperature=40).reference == {}
+    alone = miscibility("methyl acetate", "water", reference=False)
+    assert alone.reference == {} and alone.headline.startswith("uncertain (model: miscible")
     # the matrix takes the same states and names the pairs
     m = miscibility_matrix(["water", "methyl acetate", "hexane", "1-methoxy-2-propyl acetate"])
     assert m.loc["water", "methyl acetate"] == m.loc["methyl acetate", "water"] == "partially miscible"

@@ -376,6 +376,13 @@ def test_blend_and_temperature():
     assert np.all(t60[HSP].to_numpy(float) < tol)
     alpha = float(LIB.loc[LIB.name == "toluene", "expansion_coeff"].iloc[0])
     np.testing.assert_allclose(t60[HSP].to_numpy(float), hsp_at_temperature(tol, alpha, 60.0))
+    assert not any("boiling point" in n for n in tab.attrs.get("notes", []))
+    # a test at or above a liquid's boiling point (hexane 68.7 C, chemicals) is possible only under
+    # pressure: the rows are named (README walk-through: --at 150 passed silently)
+    hot = read_tests(pd.DataFrame({"solvent": ["hexane", "toluene", "water", "benzene", "ethanol"],
+                                   "outcome": ["bad", "good", "bad", "good", "bad"]}), temperature=90)
+    note = [n for n in hot.attrs["notes"] if "boiling point" in n]
+    assert note and "hexane (boils at 69 C, tested at 90 C)" in note[0] and "toluene" not in note[0]
     for bad in ["toluene [x] & ethanol [1]", "toluene [1]", "toluene [1] & tolune [1]", "toluene & ethanol"]:
         with pytest.raises(SelectorError):
             parse_blend(bad, LIB)
