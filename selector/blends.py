@@ -952,8 +952,20 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     if k is None:
         raise SelectorError(f"max_components must be 1, 2 or 3, got {max_components!r}")
     pool_top = max(200, 10 * (top or 20))
-    tg, cand, h, t_c, _ = _target_and_candidates(
-        Target(*tgt.hsp.tolist(), tgt.radius, name=tgt.name, source=tgt.source), lib, temperature, filt)
+    try:
+        tg, cand, h, t_c, _ = _target_and_candidates(
+            Target(*tgt.hsp.tolist(), tgt.radius, name=tgt.name, source=tgt.source), lib, temperature, filt)
+    except SelectorError as err:
+        if not str(err).startswith("no liquid passes the filters"):
+            raise
+        # the message names the user's own filters, not the exclusions added here (the replaced
+        # liquid itself, the energetic liquids)
+        from .filters import nothing_passes
+
+        own = {k_: v for k_, v in filters.items() if k_ != "max_hazard_class"}
+        raise SelectorError(nothing_passes(own, 0, f"a CHEM21 class of at most {worst_allowed} (better than "
+                                                   f"{HAZARD_CLASSES[int(xr)]}, {xname}'s)") + (
+            f"; {', '.join(energetic)} left out as energetic" if energetic else "")) from None
     mis = _allowed_pairs(cand, t_c, k, require_miscible, bool(filt.get("include_reactive")))
     res = search_arrays(h * SCALE, tg.hsp * SCALE, max_components=k,
                         min_fraction=_check_min_fraction(min_fraction, max(k, 2)), miscible=mis,

@@ -55,6 +55,8 @@ def parse_window(s, option="--bp"):
 
 def filters_from_args(a) -> dict:
     f = {}
+    if getattr(a, "only", None) is not None and not _names(a.only):
+        raise ValueError(f"--only {a.only!r} names no liquid: give comma-separated names or CAS numbers")
     if getattr(a, "only", None):
         f["include"] = _names(a.only)
     if getattr(a, "without", None):
@@ -202,8 +204,8 @@ def add_output_args(p: argparse.ArgumentParser, default_top: int | None = 20) ->
     g.add_argument("--format", choices=["table", "csv", "json"], default="table",
                    help="table (default, for reading), csv or json (for other programs)")
     g.add_argument("--output", "-o", metavar="FILE", action=_OutputAction, all_rows=all_rows,
-                   help="write to FILE (atomically) instead of the screen; FILE must not exist "
-                   "(see --overwrite), its folder must")
+                   help="write to FILE (atomically) instead of the screen; FILE must not exist yet "
+                   "(see --overwrite) and its folder must exist")
     g.add_argument("--overwrite", action="store_true",
                    help="let -o replace an existing file (never an input file or a read-only one)")
     if default_top is None:

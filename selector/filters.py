@@ -146,6 +146,10 @@ def filter_phrases(filters: dict, *, fixes: bool = False, deg: str = "C", vol: s
         parts.append(f"agreed HSP sources only{fix('drop it')}")
     if filters.get("halogen_free"):
         parts.append(f"no halogenated liquids{fix('drop it')}")
+    inc = filters.get("include")
+    if inc:
+        inc = [inc] if isinstance(inc, str) else list(inc)
+        parts.append(f"only {', '.join(map(str, inc[:5]))}{' and more' if len(inc) > 5 else ''}{fix('name more')}")
     exc = filters.get("exclude")
     if exc:
         exc = [exc] if isinstance(exc, str) else list(exc)

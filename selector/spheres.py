@@ -296,6 +296,10 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
             raise SelectorError(f"scale must be (lowest grade, highest grade), got {scale!r}") from None
         if not all(map(math.isfinite, lo_hi)) or lo_hi[0] >= lo_hi[1]:
             raise SelectorError(f"scale must be (lowest, highest) with lowest < highest, got {scale!r}")
+        if graded and not (lo_hi[0] < thr <= lo_hi[1]):
+            raise SelectorError(f"the pass mark (threshold) {thr:g} does not fit the scale {lo_hi[0]:g}..{lo_hi[1]:g}: "
+                                + ("no grade could reach it" if thr > lo_hi[1] else "every grade would pass")
+                                + "; give one above the lowest grade and at most the highest")
     try:
         t_default = float(temperature)
     except (TypeError, ValueError):

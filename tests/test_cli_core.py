@@ -319,3 +319,19 @@ def test_unknown_text_that_is_a_broken_smiles_says_so(capsys):
         assert "read as a SMILES it is not valid either" in capsys.readouterr().err, cmd
     assert main(["hazard", "c1ccccc1O"]) == 2
     assert "likewise guess 'c1ccccc1O'" in capsys.readouterr().err
+
+
+def test_empty_only_list_and_bad_pass_mark_are_refused(capsys):
+    # README walk-through: `--only ""` was ignored; a pass mark above the scale said "only 0 good
+    # results"; `replace toluene --only toluene` blamed a never-propose list the user did not give
+    assert main(["rank", "toluene", "--only", ""]) == 2
+    assert "names no liquid" in capsys.readouterr().err
+    from pathlib import Path
+
+    demo = str(Path(__file__).resolve().parent.parent / "parameters" / "demo" / "lab_tests.csv")
+    assert main(["sphere", demo, "--outcome", "score", "--pass-mark", "9",
+                 "--scale", "1:6"]) == 2
+    assert "does not fit the scale 1..6: no grade could reach it" in capsys.readouterr().err
+    assert main(["replace", "toluene", "--only", "toluene"]) == 2
+    err = capsys.readouterr().err
+    assert "only toluene (name more)" in err and "never to propose" not in err
