@@ -657,7 +657,7 @@ class _Bundle:
         df, mols = _training_cached()
         if verbose:
             _progress(f"likewise: training the HSP estimator on {len(df)} published values "
-                      "(first use in this session, about 10-20 s)...")
+                      "(first use in this session, about 5-20 s)...")
         X = training_features(df, mols)
         if cal.get("model") != MODEL_TAG:
             cal = {}
