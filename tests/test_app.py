@@ -594,6 +594,44 @@ def test_replace_page_says_a_non_flammable_liquid_is_not_flammable(at):
     assert len(fire) == 1 and fire[0].startswith("dichloromethane does not burn, but ")
 
 
+@pytest.mark.skipif(not has("blends"), reason="selector.blends not installed")
+def test_replace_page_halogen_free_box(at):
+    # common practice: halogenated solvents go to their own waste stream; replacing
+    # dichloromethane by other chlorinated liquids moves within it. The page warns, and the box
+    # leaves them out (selector.filters.halogenated: F, Cl, Br or I in the formula)
+    from selector.filters import halogenated
+
+    lib = selector.load_library()
+    hal = set(lib["name"][halogenated(lib)])
+    go(at, "replace")
+    at.selectbox(key="rp_old").set_value("dichloromethane").run()
+    at.checkbox(key="rp_nohal").check().run()
+    assert not at.exception and not errors(at)
+    shown = at.dataframe[0].value
+    subs = shown.loc[shown["role"] == "substitute", "candidate"] if "role" in shown else shown["candidate"].iloc[1:]
+    assert len(subs) > 3
+    assert not [c for c in subs if any(h in str(c) for h in hal)]
+    assert not any("--halogen-free" in w.value for w in at.warning)
+    # the collapsed filter panel says the filter is in force (selector.filters.filter_phrases)
+    assert any("no halogenated liquids" in c.value for c in at.caption)
+
+
+@pytest.mark.skipif(not has("mixing"), reason="selector.mixing not installed")
+def test_mixing_page_shows_reference_answers_and_the_second_opinion(at):
+    # water-methyl acetate: about 24 wt % (Riddick et al. 1986, from memory; the reference table),
+    # a pair the HSP model gets wrong; water-PGMEA: about 18-20 wt % PGMEA dissolves (producer data,
+    # from memory), which Dortmund UNIFAC (thermo) gets right and the HSP model not
+    go(at, "mixing")
+    at.selectbox(key="mx_a").set_value("water")
+    at.selectbox(key="mx_b").set_value("methyl acetate").run()
+    assert not at.exception
+    assert at.metric[0].value == "partially miscible"
+    assert any("reference data" in c.value and "gets wrong" in c.value for c in at.caption)
+    at.selectbox(key="mx_b").set_value("1-methoxy-2-propyl acetate").run()
+    assert at.metric[0].value == "uncertain" and at.metric[4].value == "low"
+    assert any("UNIFAC (Dortmund)" in c.value and "disagree" in c.value for c in at.caption)
+
+
 def test_replace_page_finds_abbreviations(at):
     # app review: typing "NMP" in the picker offered N-methylpyrrolidine, another compound; the box
     # below it takes trade abbreviations (parameters/aliases.csv, common practice: NMP is
