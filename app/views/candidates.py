@@ -33,7 +33,7 @@ m1, m2, m3 = st.columns(3)
 m1.metric("Candidates after filters", len(res))
 if has_r:
     m2.metric("Inside the sphere (RED < 1)", inside)
-m3.metric("Best match", res["name"].iloc[0])
+m3.metric("Best match", res["name"].iloc[0], help=f"{res['name'].iloc[0]} (a long name is cut short in the box; the tables give it whole)")
 
 if left_out:
     st.caption(f"{left_out} reagents (reactive, explosive or very toxic liquids such as acid chlorides, "
