@@ -392,12 +392,17 @@ def test_estimate_added_to_my_liquids_is_a_marked_candidate(at, home):
 
 # ---------------------------------------------------------------- miscibility
 
+def _mix_pair(at, a, b):
+    """The pair view of the mixing page with ``a`` and ``b`` chosen (no exception)."""
+    go(at, "mixing")
+    at.selectbox(key="mx_a").set_value(a)
+    at.selectbox(key="mx_b").set_value(b).run()
+    assert not at.exception
+
+
 @pytest.mark.skipif(not has("mixing"), reason="selector.mixing not installed")
 def test_mixing_pair_matches_library_and_trade_fact(at):
-    go(at, "mixing")
-    at.selectbox(key="mx_a").set_value("water")
-    at.selectbox(key="mx_b").set_value("hexane").run()
-    assert not at.exception
+    _mix_pair(at, "water", "hexane")
     ref = selector.miscibility("water", "hexane")
     state = at.metric[0].value
     assert state == ref.state
@@ -621,10 +626,7 @@ def test_mixing_page_shows_reference_answers_and_the_second_opinion(at):
     # water-methyl acetate: about 24 wt % (Riddick et al. 1986, from memory; the reference table),
     # a pair the HSP model gets wrong; water-PGMEA: about 18-20 wt % PGMEA dissolves (producer data,
     # from memory), which Dortmund UNIFAC (thermo) gets right and the HSP model not
-    go(at, "mixing")
-    at.selectbox(key="mx_a").set_value("water")
-    at.selectbox(key="mx_b").set_value("methyl acetate").run()
-    assert not at.exception
+    _mix_pair(at, "water", "methyl acetate")
     assert at.metric[0].value == "partially miscible"
     assert any("reference data" in c.value and "gets wrong" in c.value for c in at.caption)
     at.selectbox(key="mx_b").set_value("1-methoxy-2-propyl acetate").run()
