@@ -1082,7 +1082,9 @@ def fit_sphere(tests, *, seed: int = 0, bootstrap: int = DEFAULT_BOOTSTRAP, outc
     bic = {"one_sphere": bic1}
     parts = [(one, np.arange(n))]
     if two_spheres:
-        two = _fit_two(P, w, good, m, rng)
+        # a stream of its own: trying two spheres must not change the bootstrap of the one kept
+        rng2 = np.random.default_rng((seed, 2))
+        two = _fit_two(P, w, good, m, rng2)
         if two is None:
             msgs.append("two spheres not tried: fewer than four good results")
         else:
@@ -1094,7 +1096,7 @@ def fit_sphere(tests, *, seed: int = 0, bootstrap: int = DEFAULT_BOOTSTRAP, outc
                 parts = []
                 for j in np.argsort([-np.sum(lab == 0), -np.sum(lab == 1)], kind="stable"):
                     sel = np.concatenate([gi[lab == j], np.flatnonzero(~good)])
-                    fj = _fit_one(P[sel], w[sel], good[sel], m[sel], rng)
+                    fj = _fit_one(P[sel], w[sel], good[sel], m[sel], rng2)
                     parts.append((fj, sel))
                 msgs.append(f"two spheres adopted: BIC {bic2:.1f} against {bic1:.1f} for one sphere; "
                             "used as a ranking target the fit stands for sphere 1 (more good results)")
