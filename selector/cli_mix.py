@@ -60,7 +60,8 @@ def cmd_mix(a) -> int:
     print(f"{r.a} + {r.b} at {r.temperature_c:g} C: {word.upper()}{' (' + rest if rest else ''} "
           f"(confidence {r.confidence})")
     if math.isfinite(r.p_miscible):
-        print(f"  probability of one phase in all proportions: {100 * r.p_miscible:.0f} % "
+        print(f"  {'the model' + chr(39) + 's ' if r.reference else ''}probability of one phase in all proportions: "
+              f"{100 * r.p_miscible:.0f} % "
               + ("(logistic fit on the reference pairs at 25 C)" if abs(r.temperature_c - 25.0) < 1e-9 else
                  f"(at {r.temperature_c:g} C, from a logistic fit calibrated on reference pairs at 25 C)"))
     print(f"  chi {r.chi:.3f} (per {r.v_ref:.1f} cm3/mol), critical chi {r.chi_critical:.3f}; "
@@ -72,7 +73,10 @@ def cmd_mix(a) -> int:
         print(f"  LCST: {_fmt(r.lcst_c, 1)} C (a gap opens on heating)")
     if r.binodal:
         ab, ba = r.binodal["a_in_b"], r.binodal["b_in_a"]
-        print("  coexisting phases (model binodal; mutual solubilities are often off tenfold):")
+        contradicted = (r.reference or {}).get("state") == "miscible"
+        print("  coexisting phases (model binodal; mutual solubilities are often off tenfold"
+              + ("; the reference data say one phase, so this gap is the model's error" if contradicted else "")
+              + "):")
         print(f"    {r.a} in the {r.b}-rich phase: {one_figure(ab['vol_pct'])} vol %, {one_figure(ab['wt_pct'])} wt %, "
               f"{one_figure(ab['mol_pct'])} mol %")
         print(f"    {r.b} in the {r.a}-rich phase: {one_figure(ba['vol_pct'])} vol %, {one_figure(ba['wt_pct'])} wt %, "

@@ -1279,18 +1279,24 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
 
 @functools.lru_cache(maxsize=1)
 def _reference_pairs() -> dict:
-    from .mixing_fit import load_pairs
+    from .mixing_fit import FACTS_CSV, PAIRS_CSV, load_pairs
 
     out = {}
-    for r in load_pairs().itertuples():
-        if r.state_25c in STATES:    # entries that only say "not miscible" do not answer the question
-            out[frozenset((r.cas_a, r.cas_b))] = {"state": r.state_25c, "source": r.source}
+    for path in (PAIRS_CSV, FACTS_CSV):
+        if not path.exists():
+            continue
+        for r in load_pairs(path).itertuples():
+            if r.state_25c in STATES:    # entries that only say "not miscible" do not answer the question
+                out.setdefault(frozenset((r.cas_a, r.cas_b)), {"state": r.state_25c, "source": r.source,
+                                                               "table": path.name})
     return out
 
 
 def reference_state(cas_a: str, cas_b: str) -> dict:
-    """The entry of ``parameters/miscibility_pairs.csv`` for a pair of CAS numbers at 25 C
-    (``{"state", "source"}``), or {} when the pair is not in it or the entry gives no state.
+    """The entry of ``parameters/miscibility_pairs.csv`` (the fitted reference pairs) or
+    ``parameters/miscibility_facts.csv`` (check pairs, never fitted) for a pair of CAS numbers at
+    25 C (``{"state", "source", "table"}``), or {} when the pair is in neither or the entry gives
+    no state.
 
     >>> reference_state("7732-18-5", "110-54-3")["state"]    # water, hexane
     'immiscible'

@@ -45,6 +45,8 @@ from .hansen import R_GAS
 from .library import PARAMETERS_DIR, load_library, locate
 
 PAIRS_CSV = PARAMETERS_DIR / "miscibility_pairs.csv"
+#: Check pairs: known from the trade, never used in a fit (scored apart by the accuracy report).
+FACTS_CSV = PARAMETERS_DIR / "miscibility_facts.csv"
 
 #: Pairs whose published UCST is kept out of every fit (independent test check).
 UCST_HELD_OUT = {frozenset(("67-56-1", "110-54-3"))}   # methanol-hexane

@@ -607,9 +607,16 @@ def test_matrix_names_the_pairs_whose_state_is_uncertain():
     import selector
 
     m = selector.miscibility_matrix(["water", "1-methoxy-2-propanol", "triethylamine", "hexane"])
-    assert m.attrs["uncertain_pairs"] == [("water", "1-methoxy-2-propanol"), ("water", "triethylamine")]
+    assert m.attrs["uncertain_pairs"] == [("water", "triethylamine")]
     for a, b in m.attrs["uncertain_pairs"]:
         assert selector.miscibility(a, b).headline.startswith("uncertain")
+    # water + PGME is a check pair (parameters/miscibility_facts.csv: miscible, common practice):
+    # the heat map shows the recorded state, like the pair answer
+    assert m.loc["water", "1-methoxy-2-propanol"] == "miscible"
+    assert ("water", "1-methoxy-2-propanol") in m.attrs["reference_pairs"]
+    assert selector.miscibility("water", "1-methoxy-2-propanol").headline == "miscible (reference data)"
+    no_table = selector.miscibility("water", "1-methoxy-2-propanol", reference=False)
+    assert no_table.headline.startswith("uncertain (model: ")
 
 
 def test_a_liquid_paired_with_itself_is_one_phase_without_model_talk():
@@ -645,13 +652,15 @@ def test_unifac_second_opinion_flags_disagreement():
     # is partially miscible; PGME mixes with water in all proportions (common practice). The HSP
     # model gets both wrong; Dortmund UNIFAC (Weidlich & Gmehling 1987, parameters and DDBST
     # groups as carried by thermo) gets both right, so the answer is "uncertain", not the model's.
-    r = miscibility("water", "1-methoxy-2-propyl acetate")
+    # (both pairs are check pairs of parameters/miscibility_facts.csv, answered from the table at
+    # 25 C; reference=False gives the models' answer)
+    r = miscibility("water", "1-methoxy-2-propyl acetate", reference=False)
     assert r.state == "miscible"                                    # the HSP model's own answer
     assert r.second_opinion == {"method": "UNIFAC (Dortmund)", "state": "partially miscible", "why": ""}
     assert r.models_disagree and r.confidence == "low"
     assert r.headline == "uncertain (model: miscible; UNIFAC (Dortmund): partially miscible)"
     assert r.notes[0].startswith("second opinion: UNIFAC (Dortmund)")
-    pgme = miscibility("water", "1-methoxy-2-propanol")
+    pgme = miscibility("water", "1-methoxy-2-propanol", reference=False)
     assert pgme.second_opinion["state"] == "miscible" and pgme.models_disagree
     # agreement keeps the model's answer and says so (water-toluene: two phases, common practice)
     tol = miscibility("water", "toluene", temperature=30)
@@ -659,9 +668,14 @@ def test_unifac_second_opinion_flags_disagreement():
     assert any(n.startswith("second opinion: UNIFAC (Dortmund) (thermo) also says two phases") for n in tol.notes)
     # off on request, and for a pair neither UNIFAC covers (dimethyl carbonate has no Dortmund
     # interaction parameters with water and no original-UNIFAC groups in thermo)
-    off = miscibility("water", "1-methoxy-2-propyl acetate", unifac=False)
+    off = miscibility("water", "1-methoxy-2-propyl acetate", unifac=False, reference=False)
     assert off.second_opinion == {} and off.headline == "miscible"
-    dmc = miscibility("water", "dimethyl carbonate")
+    # outside both tables: glycerol + acetone (two layers, from memory): the HSP model says
+    # miscible, original UNIFAC (thermo) two phases
+    ga = miscibility("glycerol", "acetone")
+    assert ga.reference == {} and ga.models_disagree
+    assert ga.headline == "uncertain (model: miscible; UNIFAC (original): partially miscible)"
+    dmc = miscibility("water", "dimethyl carbonate", reference=False)
     assert dmc.second_opinion["state"] == "" and "no group assignment" in dmc.second_opinion["why"]
     assert any(n.startswith("no UNIFAC second opinion") for n in dmc.notes)
 
@@ -679,18 +693,24 @@ def test_reference_pairs_answer_with_their_recorded_state():
     alone = miscibility("methyl acetate", "water", reference=False)
     assert alone.reference == {} and alone.headline.startswith("uncertain (model: miscible")
     # the matrix takes the same states and names the pairs
-    m = miscibility_matrix(["water", "methyl acetate", "hexane", "1-methoxy-2-propyl acetate"])
+    m = miscibility_matrix(["water", "methyl acetate", "hexane", "glycerol", "acetone"])
     assert m.loc["water", "methyl acetate"] == m.loc["methyl acetate", "water"] == "partially miscible"
     assert ("water", "methyl acetate") in m.attrs["reference_pairs"]
-    assert ("water", "1-methoxy-2-propyl acetate") not in m.attrs["reference_pairs"]
+    assert ("glycerol", "acetone") not in m.attrs["reference_pairs"]
+    # the check pairs (never fitted) answer too, and say which table they come from
+    pgmea = miscibility("water", "1-methoxy-2-propyl acetate")
+    assert pgmea.headline == "partially miscible (reference data)"
+    assert pgmea.reference["table"] == "miscibility_facts.csv" and "18-20 wt%" in pgmea.reference["source"]
 
 
 def test_mix_command_shows_the_second_opinion(capsys):
     from selector.cli import main
 
-    assert main(["mix", "water", "PGMEA"]) == 0
+    assert main(["mix", "glycerol", "acetone"]) == 0
     out = capsys.readouterr().out
-    assert "UNCERTAIN (model: miscible; UNIFAC (Dortmund): partially miscible)" in out
+    assert "UNCERTAIN (model: miscible; UNIFAC (original): partially miscible)" in out
+    assert main(["mix", "water", "PGMEA"]) == 0
+    assert "PARTIALLY MISCIBLE (reference data)" in capsys.readouterr().out
     assert main(["mix", "water", "PGMEA", "--format", "csv"]) == 0
     row = capsys.readouterr().out.splitlines()
     head = row[0].split(",")

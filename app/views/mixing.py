@@ -115,6 +115,12 @@ with tab1:
             else:
                 st.caption("• " + common.ui_units(note))
         bi = getattr(r, "binodal", None)
+        ref = getattr(r, "reference", {}) or {}
+        if isinstance(bi, dict) and ref.get("state") == "miscible":
+            # the recorded answer is one phase: the model's gap is its own error, not a result
+            st.caption("No model solubilities: the reference data say the two mix in all proportions at 25 °C, "
+                       "so the gap the model draws for this pair is its error.")
+            bi = None
         if isinstance(bi, dict) and not lcst_pair:   # model solubilities mean nothing for such pairs
             sol = _solubilities(bi, r.a, r.b)
             if sol:
