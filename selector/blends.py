@@ -1032,12 +1032,12 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
 
 
 def _halogenated_shown(out: pd.DataFrame, x: pd.DataFrame, table: pd.DataFrame, filt: dict) -> list[str]:
-    """A note when a halogenated liquid is replaced by substitutes that are halogenated too (a
-    move within the same waste stream and, often, the same restrictions; common practice), with
-    the filter that leaves them out."""
+    """A note when substitutes contain a halogenated liquid: for a halogenated liquid replaced, a
+    move within the same waste stream and, often, the same restrictions; for another, halogens
+    brought into the process (common practice); with the filter that leaves them out."""
     from .filters import halogenated
 
-    if filt.get("halogen_free") or not halogenated(x)[0]:
+    if filt.get("halogen_free"):
         return []
     hal = set(table["name"].to_numpy(str)[halogenated(table)])
     subs = out.loc[out["role"] == "substitute", "components"]
@@ -1045,9 +1045,14 @@ def _halogenated_shown(out: pd.DataFrame, x: pd.DataFrame, table: pd.DataFrame, 
     if not n:
         return []
     name = str(x["name"].iloc[0])
-    return [f"{n} of the {len(subs)} substitutes shown contain a halogenated liquid, as {name} is one: "
-            "they go to the same halogenated waste and may meet the same restrictions. halogen_free=True "
-            "(--halogen-free, the app's No halogenated liquids) leaves them out."]
+    how = "halogen_free=True (--halogen-free, the app's No halogenated liquids) leaves them out."
+    if halogenated(x)[0]:
+        return [f"{n} of the {len(subs)} substitutes shown contain a halogenated liquid, as {name} is one: "
+                f"they go to the same halogenated waste and may meet the same restrictions. {how}"]
+    used = sorted({c for cs in subs for c in cs} & hal)
+    return [f"{n} of the {len(subs)} substitutes shown bring in a halogenated liquid ({', '.join(used[:4])}"
+            f"{', ...' if len(used) > 4 else ''}), which {name} is not: halogenated waste goes to its own "
+            f"stream and many sites restrict it. {how}"]
 
 
 def _outside_window(x: pd.DataFrame, filt: dict) -> list[str]:
@@ -1117,6 +1122,23 @@ def substitute_warnings(table: pd.DataFrame, replaced: str, replaced_burns_not: 
                    "changes the fire protection the process needs (equipment, ventilation, storage). "
                    "Check the safety data sheets and local codes"
                    + ("." if flash_floor else ", or set a minimum flash point."))
+    xrow = table.loc[table["role"] == "replaced"] if "role" in table else table.iloc[:0]
+    x_fp = float(xrow["lowest_flash_point_c"].iloc[0]) if len(xrow) else math.nan
+    if math.isfinite(x_fp) and burns.any():
+        # a replacement that moves the process into a more flammable class (GHS flash-point
+        # limits 23 C and 60 C; common practice) changes what the equipment and storage must meet
+        def band(v):
+            return np.where(v < 23.0, 0, np.where(v <= 60.0, 1, 2))
+
+        worse = burns & (band(np.where(burns, fp, 1e9)) < band(np.array([x_fp]))[0])
+        if worse.any():
+            nw = int(worse.sum())
+            lim = 23 if x_fp >= 23.0 and x_fp <= 60.0 else (60 if x_fp > 60.0 else None)
+            out.append(f"{nw} of the {len(subs)} substitutes shown {'has' if nw == 1 else 'have'} a flash point "
+                       f"below {lim} C where {replaced}'s is {x_fp:.0f} C (lowest {np.nanmin(fp[worse]):.0f} C): "
+                       "a more flammable class changes the fire protection the process needs (equipment, "
+                       "ventilation, storage). Check the safety data sheets and local codes"
+                       + ("." if flash_floor else f", or set a minimum flash point of {lim} C."))
     if radius is not None:
         far = subs["red"].to_numpy(float) > 1.0
         where = "outside the solute's sphere (RED > 1)"

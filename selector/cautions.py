@@ -25,7 +25,8 @@ agents):
 Pairs that react with each other are screened too (:func:`reactive_pair_matrix`,
 :data:`PAIR_RULES`): an acid with an amine or pyridine, an amine with a nitroalkane, a primary
 or secondary amine with an aldehyde or ketone, or with an ester, lactone or carbonate, an aromatic
-amine with an aldehyde, an amine with a polyhalogenated alkane. Blends and substitutes never pair them unless
+amine with an aldehyde, an amine with a polyhalogenated alkane or an alkyl bromide, a primary or
+secondary amine with carbon disulfide. Blends and substitutes never pair them unless
 ``include_reactive=True``, and then ``hazard_notes`` says "REACTIVE PAIR".
 
 This is a screen, not a hazard assessment: a liquid without a reason can still be dangerous,
@@ -369,7 +370,7 @@ def with_flash_texts(df: pd.DataFrame, fmt: str = "{:.1f}") -> pd.DataFrame:
 PAIR_CLASSES = (
     ("acid", "[CX3](=O)[OX2H1]"),
     ("base", "[$([NX3;!$(N-[C,S,P]=[O,S,N]);!$(N-a);!$(N-[N,O]);!$([N+]);!$(N#*);!$(N=*)]),"
-             "$([nX2;r6;!$(n(:a):n)])]"),
+             "$([nX2;r6;!$(n(:a):n)]),$([nX2;r5]:c:[nX3;r5])]"),
     ("primary amine", "[NX3;H2;!$(N-[C,S,P]=[O,S,N]);!$(N-a)][CX4]"),
     ("secondary amine", "[NX3;H1;!$(N-[C,S,P]=[O,S,N]);!$(N-a);!$(N-[N,O])]([CX4])[CX4]"),
     ("carbonyl", "[CX3;$([CH1](=O)[#6,#1]),$(C(=O)([#6])[#6])]=O"),
@@ -380,8 +381,10 @@ PAIR_CLASSES = (
     ("aryl amine", "[NX3;H2,H1;!$(N-[C,S,P]=[O,S,N]);!$(N-[N,O])]c"),
     ("aldehyde", "[CX3H1](=O)[#6]"),
     # two or more Cl/Br/I on one carbon (dichloromethane, chloroform, carbon tetrachloride,
-    # pentachloroethane) or on neighbouring carbons (1,2-dichloroethane)
-    ("polyhaloalkane", "[$([CX4]([Cl,Br,I])[Cl,Br,I]),$([CX4]([Cl,Br,I])[CX4][Cl,Br,I])]"),
+    # pentachloroethane) or on neighbouring carbons (1,2-dichloroethane), and primary or
+    # secondary alkyl bromides and iodides (bromoethane, 1-bromopropane): they alkylate amines
+    ("halocarbon", "[$([CX4]([Cl,Br,I])[Cl,Br,I]),$([CX4]([Cl,Br,I])[CX4][Cl,Br,I]),$([CX4;H2,H1][Br,I])]"),
+    ("carbon disulfide", "S=C=S"),
 )
 
 #: Pairs of classes that should not be blended: (class a, class b, why). Common practice (acid and
@@ -390,9 +393,11 @@ PAIR_CLASSES = (
 #: ketones, faster warm or acid-catalysed; primary and secondary amines open cyclic carbonates
 #: and lactones and slowly aminolyse ordinary esters, which is why ketones and esters are kept
 #: out of amine hardeners; aniline and furfural condense, the old colour test for furfural);
-#: amines sensitising nitroalkanes to detonation, and amines reacting with polyhalogenated
-#: alkanes (ethylenediamine with carbon tetrachloride; pyridine and triethylamine quaternise in
-#: dichloromethane on standing), are from memory.
+#: primary and secondary amines add to carbon disulfide (dithiocarbamates, the rubber-accelerator
+#: chemistry); amines sensitising nitroalkanes to detonation, and amines reacting with
+#: polyhalogenated alkanes and alkyl bromides (ethylenediamine with carbon tetrachloride;
+#: pyridine and triethylamine quaternise in dichloromethane on standing; the Menshutkin
+#: reaction), are from memory.
 PAIR_RULES = (
     ("acid", "base", "acid + base: they react (salt, heat)"),
     ("base", "nitroalkane", "amine + nitroalkane: the amine sensitises the nitro compound to detonation"),
@@ -404,8 +409,13 @@ PAIR_RULES = (
     ("secondary amine", "ester", "secondary amine + ester, lactone or carbonate: aminolysis on standing "
                                  "(amide, hydroxy amide or carbamate), fast with cyclic carbonates and lactones"),
     ("aryl amine", "aldehyde", "aromatic amine + aldehyde: they condense (imine and water)"),
-    ("base", "polyhaloalkane", "amine + polyhalogenated alkane: they can react, sometimes violently "
-                               "(alkylation, loss of HCl or HBr)"),
+    ("base", "halocarbon", "amine + polyhalogenated alkane or alkyl bromide: they react (alkylation, "
+                           "loss of HCl or HBr), slowly on standing with dichloromethane, fast and hot "
+                           "with carbon tetrachloride and polyamines"),
+    ("primary amine", "carbon disulfide", "primary amine + carbon disulfide: they react exothermically "
+                                          "(dithiocarbamate)"),
+    ("secondary amine", "carbon disulfide", "secondary amine + carbon disulfide: they react exothermically "
+                                            "(dithiocarbamate)"),
 )
 
 
@@ -462,4 +472,5 @@ def pair_reasons(rows: pd.DataFrame) -> list[str]:
                 ia, ib = names.index(a), names.index(b)
                 if (c[i, ia] and c[j, ib]) or (c[i, ib] and c[j, ia]):
                     out.append(f"{liq[i]} + {liq[j]}: {why}")
+                    break               # one reason per pair (diethylenetriamine is both amines)
     return out

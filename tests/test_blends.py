@@ -682,3 +682,21 @@ def test_replacing_a_liquid_outside_the_boiling_window_says_so():
     assert f"1-methyl-2-pyrrolidinone itself boils at {bp:.0f} C, outside the boiling-point window in force " \
            "(100 to 200 C)" in " ".join(w)
     assert not any("outside the boiling-point window" in x for x in substitutes("NMP", top=3).attrs["warnings"])
+
+
+def test_substitutes_warn_of_a_more_flammable_class_and_of_halogens_brought_in():
+    # Flash points (chemicals, via the library): o-xylene 30 C; the GHS limits are 23 C and 60 C
+    # (common practice). A numbers review found ethylbenzene (15 C) blends offered for xylene, and
+    # 1-chlorobutane / dibromomethane blends for toluene, without a word.
+    sub = substitutes("o-xylene", top=10)
+    fire = [w for w in sub.attrs["warnings"] if "a more flammable class" in w]
+    assert len(fire) == 1 and "below 23 C where o-xylene's is 30 C" in fire[0]
+    fps = sub.loc[sub["role"] == "substitute", "lowest_flash_point_c"].to_numpy(float)
+    assert f"{int((fps < 23).sum())} of the 10 substitutes" in fire[0]
+    # a minimum flash point of 23 C removes the cause and the warning
+    safe = substitutes("o-xylene", top=10, min_flash_point_c=23)
+    assert not any("a more flammable class" in w for w in safe.attrs["warnings"])
+    tol = substitutes("toluene", top=10)
+    hal = [w for w in tol.attrs["warnings"] if "bring in a halogenated liquid" in w]
+    assert len(hal) == 1 and "which toluene is not" in hal[0] and "--halogen-free" in hal[0]
+    assert not any("halogenated" in w for w in substitutes("toluene", top=10, halogen_free=True).attrs["warnings"])

@@ -274,6 +274,18 @@ def test_amine_pairs_with_esters_aldehydes_and_halocarbons():
     assert reacts("triethylamine", "dichloromethane") and reacts("ethylenediamine", "pentachloroethane")
     # a tertiary amine cannot aminolyse an ester; aniline + a ketone and toluene + anything pass
     assert not reacts("triethylamine", "ethyl acetate") and not reacts("aniline", "acetone")
+    # numbers review, round 3 (common practice: amines add to carbon disulfide, dithiocarbamates;
+    # 1-methylimidazole is a base like pyridine; from memory: alkyl bromides quaternise amines)
+    more = ["carbon disulfide", "butylamine", "1-methylimidazole", "acetic acid", "bromoethane",
+            "triethylamine", "toluene"]
+    r2 = pd.concat([LIB.loc[[selector.find_liquid(n, LIB).name]] for n in more]).reset_index(drop=True)
+    m2, p2 = reactive_pair_matrix(r2), {n: i for i, n in enumerate(more)}
+    assert m2[p2["carbon disulfide"], p2["butylamine"]] and m2[p2["1-methylimidazole"], p2["acetic acid"]]
+    assert m2[p2["bromoethane"], p2["triethylamine"]] and not m2[p2["carbon disulfide"], p2["triethylamine"]]
+    assert not m2[p2["toluene"]].any()
+    # one reason per pair, though diethylenetriamine is a primary and a secondary amine
+    deta = pd.concat([LIB.loc[[selector.find_liquid(n, LIB).name]] for n in ["diethylenetriamine", "acetone"]])
+    assert len(pair_reasons(deta.reset_index(drop=True))) == 1
     assert not m[pos["toluene"]].any()
     text = " ".join(pair_reasons(rows))
     assert "primary amine + ester, lactone or carbonate" in text and "aromatic amine + aldehyde" in text
