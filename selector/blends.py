@@ -937,7 +937,6 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
         passing, _ = masks_and_reagents(lib, temperature=check_temperature(temperature), **filt)
         hd = hz_all["high_decomposition_energy"].to_numpy(bool)
         energetic = lib["name"].to_numpy(str)[hd & passing].tolist()
-        filt["exclude"] += energetic
     if solute is not None:
         tgt = as_target(solute, lib)
     else:
@@ -1007,7 +1006,14 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     tab["mismatch"] = mism
     tab["score"] = dist + pw * np.nan_to_num(mism, nan=1.0)
     order = np.argsort(tab["score"].to_numpy(), kind="stable")
+    en = np.flatnonzero(cand["name"].isin(energetic).to_numpy()) if energetic else np.array([], int)
+    has_en = np.isin(res["idx"], en).any(axis=1) if len(en) else np.zeros(len(tab), bool)
     pick = _diverse(order, res["idx"], max_uses, top)
+    # energetic liquids are searched with the others and their blends dropped afterwards, so that
+    # the warning appears only when one of them would have been shown
+    en_shown = bool(has_en[pick].any()) if len(pick) else False
+    if len(en):
+        pick = _diverse(order[~has_en[order]], res["idx"], max_uses, top)
     out = tab.iloc[pick].copy()
     out["role"] = "substitute"
     xtab["mismatch"] = 0.0
@@ -1025,7 +1031,7 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
                      warnings=substitute_warnings(out, xname, bool(not_flammable(x).any()), tg.radius,
                                                   solute=solute is not None,
                                                   flash_floor=filt.get("min_flash_point_c") is not None)
-                     + ([energetic_note(energetic)] if energetic else [])
+                     + ([energetic_note(energetic)] if en_shown else [])
                      + _energetic_shown(out, hz_all, lib) + _outside_window(x, filt)
                      + _halogenated_shown(out, x, pd.concat([x, cand]), filt))
     return out
