@@ -1124,7 +1124,8 @@ def substitute_warnings(table: pd.DataFrame, replaced: str, replaced_burns_not: 
             nu = int(unknown.sum())
             parts.append(f"{nu} {'has' if nu == 1 else 'have'} no flash-point data (treat "
                          f"{'it' if nu == 1 else 'them'} as flammable)")
-        out.append(f"{replaced} does not burn, but " + " and ".join(parts) + ": a flammable replacement "
+        out.append(f"{replaced} has no flash point (not classed as flammable), but " + " and ".join(parts)
+                   + ": a flammable replacement "
                    "changes the fire protection the process needs (equipment, ventilation, storage). "
                    "Check the safety data sheets and local codes"
                    + ("." if flash_floor else ", or set a minimum flash point."))

@@ -37,10 +37,13 @@ GENERAL_CAUTION = (
 EXPOSURE_NOTE = (
     "Exposure limits are Ontario's (Canada) 8-hour averages, the set the reference library "
     "(chemicals) carries. The limit where you work may be much lower (from memory, the EU's is "
-    "10 ppm for NMP against Ontario's 98.7, and 20 ppm for n-hexane against 50): use the one on "
+    "10 ppm for NMP against Ontario's 98.7 ppm, and 20 ppm for n-hexane against 50 ppm): use the one on "
     "the supplier's safety data sheet (section 8) and in your local regulation.")
 
 UNCLASSIFIED = "unclassified (no flash point in the library)"
+
+#: A liquid without a limit in the set the library carries (which is not "no limit exists").
+NO_LIMIT = "none in the Ontario list the library carries: see the safety data sheet, section 8"
 
 #: Column labels with units for the tables of a report.
 COLUMN_LABELS = {
@@ -80,7 +83,7 @@ def flammability_category(flash_point_c, boiling_point_c) -> np.ndarray:
 def _exposure_text(df: pd.DataFrame) -> np.ndarray:
     n = len(df)
     if "exposure_limit" not in df:
-        return np.full(n, "no exposure limit in the library", dtype=object)
+        return np.full(n, NO_LIMIT, dtype=object)
     v = pd.to_numeric(df["exposure_limit"], errors="coerce").to_numpy(float)
     unit = df.get("exposure_limit_unit", pd.Series([""] * n, index=df.index)).astype(str).to_numpy()
     src = df.get("exposure_limit_source", pd.Series([""] * n, index=df.index)).astype(str).to_numpy()
@@ -88,7 +91,7 @@ def _exposure_text(df: pd.DataFrame) -> np.ndarray:
     src = pd.Series(src, dtype=object).astype(str).str.replace("Ontario Limits", "Ontario, Canada",
                                                               regex=False).to_numpy(object)
     txt = np.where(src != "", txt + " (" + src + ")", txt)
-    none = "no exposure limit in the library"
+    none = NO_LIMIT
     if "short_term_limit" in df:
         sv = pd.to_numeric(df["short_term_limit"], errors="coerce").to_numpy(float)
         su = df.get("short_term_limit_unit", pd.Series([""] * n, index=df.index)).astype(str).to_numpy()

@@ -567,7 +567,7 @@ def test_blend_inputs_out_of_range_are_answered(at):
     at.number_input(key="bl_min").set_value(0.6)
     at.button[[b.label for b in at.button].index("Design blends")].click().run()
     assert not at.exception
-    assert any("smallest share (min_fraction) must be between 0 and 1/3 = 0.333" in e for e in errors(at))
+    assert any("smallest share must be between 0 and 1/3 = 0.333" in e for e in errors(at))
     at.number_input(key="bl_min").set_value(0.05)
     at.number_input(key="bl_top").set_value(0)
     at.button[[b.label for b in at.button].index("Design blends")].click().run()
@@ -583,6 +583,9 @@ def test_replace_page_leaves_out_nitroethane_unless_asked(at):
     assert not shown["candidate"].str.contains("nitroethane").any()
     assert any(w.value.startswith("Left out as energetic (high energy of decomposition): ")
                and "nitroethane" in w.value for w in at.warning)
+    # the page names its own box, not the Python keyword and the command-line option
+    assert any("the *Include energetic liquids* box" in w.value for w in at.warning)
+    assert not any("include_energetic" in w.value or "--include-energetic" in w.value for w in at.warning)
     at.checkbox(key="rp_energetic").check().run()
     assert not at.exception
     assert at.dataframe[0].value["candidate"].str.contains("nitroethane").any()
@@ -599,8 +602,8 @@ def test_replace_page_says_a_non_flammable_liquid_is_not_flammable(at):
     assert "dichloromethane** today" in text and "not flammable" in text and "nan" not in text
     # the page warns that the flammable substitutes change the fire risk (selector.substitutes,
     # with the page's own filters)
-    fire = [w.value for w in at.warning if "does not burn" in w.value]
-    assert len(fire) == 1 and fire[0].startswith("dichloromethane does not burn, but ")
+    fire = [w.value for w in at.warning if "has no flash point" in w.value]
+    assert len(fire) == 1 and fire[0].startswith("dichloromethane has no flash point (not classed as flammable), but ")
 
 
 @pytest.mark.skipif(not has("blends"), reason="selector.blends not installed")
@@ -801,7 +804,7 @@ def test_caution_table_marks_unclassified():
     ct = caution_table(df)
     assert list(ct["hazard_class"]) == ["unclassified", "problematic"]
     assert ct["flammability"].iloc[0].startswith("unclassified")
-    assert list(ct["exposure"]) == ["no exposure limit in the library"] * 2
+    assert list(ct["exposure"]) == ["none in the Ontario list the library carries: see the safety data sheet, section 8"] * 2
 
 
 # ---------------------------------------------------------------- likewise app

@@ -580,7 +580,7 @@ def test_substitutes_warn_when_a_non_burning_solvent_is_replaced_by_flammable_on
     from selector.blends import substitutes
 
     res = substitutes("tetrachloroethylene", top=5)
-    fire = [w for w in res.attrs["warnings"] if "does not burn" in w]
+    fire = [w for w in res.attrs["warnings"] if "has no flash point" in w]
     assert len(fire) == 1
     low = np.nanmin(res.loc[res["role"] == "substitute", "lowest_flash_point_c"].to_numpy(float))
     assert f"lowest flash point {low:.0f} C" in fire[0]
@@ -590,7 +590,7 @@ def test_substitutes_warn_when_a_non_burning_solvent_is_replaced_by_flammable_on
     n_far = int((ra.loc[ra["role"] == "substitute", "ra"] > 8).sum())
     assert n_far > 0 and any(w.startswith(f"{n_far} of the 5 substitutes shown lie more than Ra 8") for w in far)
     # toluene burns: no fire warning when it is replaced
-    assert not [w for w in substitutes("toluene", top=5).attrs["warnings"] if "does not burn" in w]
+    assert not [w for w in substitutes("toluene", top=5).attrs["warnings"] if "has no flash point" in w]
     # with a flash-point floor already set the warning does not suggest one; with a solute the
     # distance is to the solute and the text says so
     assert not any("set a minimum flash point" in w for w in far)

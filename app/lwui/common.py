@@ -218,9 +218,27 @@ def md_escape(text) -> str:
     return "".join("\\" + ch if ch in _MD_SPECIAL else ch for ch in str(text))
 
 
+#: Library messages name the Python keyword, the command-line option and the page's control
+#: together; a page shows its own control only.
+_FOR_THE_PAGE = (
+    (re.compile(r"\(include_energetic, --include-energetic or the app's Include energetic liquids\)"),
+     "(the *Include energetic liquids* box)"),
+    (re.compile(r"halogen_free=True \(--halogen-free, the app's No halogenated liquids\)"),
+     "The *No halogenated liquids* box"),
+    (re.compile(r"include_reactive, --include-reactive or the app's Include reagents"),
+     "the *Include reagents* box"),
+    (re.compile(r"\((--[a-z-]+), ([a-z_]+)\)"), ""),
+    (re.compile(r" \(min_fraction\)"), ""),
+)
+
+
 def ui_units(text: str) -> str:
-    """A library message with its plain-text units as the pages write them (MPa½, cm³, °C)."""
-    text = (str(text).replace("MPa^0.5", "MPa½").replace("(cal/cm3)^0.5", "(cal/cm³)½")
+    """A library message with its plain-text units as the pages write them (MPa½, cm³, °C), and
+    the page's own control named where the message lists keyword, option and control."""
+    text = str(text)
+    for pat, repl in _FOR_THE_PAGE:
+        text = pat.sub(repl, text)
+    text = (text.replace("MPa^0.5", "MPa½").replace("(cal/cm3)^0.5", "(cal/cm³)½")
             .replace("cm3/mol", "cm³/mol"))
     return re.sub(r"(\d) C\b", "\\1 °C", text)       # "99.97 C" -> "99.97 °C"
 
