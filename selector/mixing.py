@@ -873,8 +873,9 @@ class Miscibility:
     amine, ...; :data:`selector.cautions.PAIR_RULES`), "" when no rule applies; ``second_opinion``:
     UNIFAC's state (:func:`selector.unifac.second_opinion`: ``method``, ``state``, ``why``;
     ``state`` "" where UNIFAC does not cover the pair); ``models_disagree``: UNIFAC and this model
-    differ on one phase or two; ``reference``: at 25 C, the pair's entry in
-    ``parameters/miscibility_pairs.csv`` (``state``, ``source``) where it has one, which then
+    differ on one phase or two; ``reference``: within :data:`REFERENCE_WINDOW_C` of 25 C (and no
+    recorded critical temperature in between), the pair's entry in ``parameters/miscibility_pairs.csv``
+    or ``miscibility_facts.csv`` (``state``, ``source``, ``table``) where it has one, which then
     gives the answer (:attr:`headline`) ahead of both models.
     """
 
@@ -1110,9 +1111,10 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     (default), UNIFAC's phase split at the same temperature is worked out as a second opinion
     (:mod:`selector.unifac`: Dortmund where it covers the pair, else the original); where it
     disagrees on one phase or two, the answer is "uncertain" and the confidence low. With
-    ``reference`` (default), a pair of ``parameters/miscibility_pairs.csv`` at 25 C answers with
-    its recorded state (:attr:`Miscibility.reference`); ``reference=False`` gives the models'
-    answer alone (how the accuracy report scores them).
+    ``reference`` (default), a pair of ``parameters/miscibility_pairs.csv`` or
+    ``miscibility_facts.csv`` answers with its recorded 25 C state within
+    :data:`REFERENCE_WINDOW_C` of 25 C (:attr:`Miscibility.reference`); ``reference=False`` gives
+    the models' answer alone (how the accuracy report scores them).
 
     >>> r = miscibility("water", "hexane")
     >>> r.state, r.chi > r.chi_critical
@@ -1254,17 +1256,24 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
                              f"{'one phase' if state == 'miscible' else 'two phases'} ({second['state']})")
         else:
             notes.append(f"no UNIFAC second opinion for this pair ({second['why']})")
-    ref = (reference_state(ra_.get("cas", ""), rb_.get("cas", ""))
-           if reference and abs(t - 25.0) < 1e-9 and not same else {})
+    ref, entry = (_reference_at(ra_.get("cas", ""), rb_.get("cas", ""), t) if reference and not same
+                  else ({}, {}))
+    at25 = "at 25 C" if abs(t - 25.0) < 1e-9 else f"at 25 C, which holds at {t:g} C too (within {REFERENCE_WINDOW_C:g} C)"
     if ref:
         conf = "high"
-        ref_one = ref["state"] == "miscible"
-        if ref_one != (state == "miscible"):
-            notes.insert(0, f"reference data ({ref['source']}) say {ref['state']} at 25 C, and that is the "
-                         f"answer; this model says {state}, one of the reference pairs it gets wrong, so its "
+        if (ref["state"] == "miscible") != (state == "miscible"):
+            # the model's own account (its UCST, its gap, its solubilities) contradicts the answer
+            notes[:] = [n for n in notes if not n.startswith(MODEL_NOTE_PREFIXES)]
+            notes.insert(0, f"reference data ({ref['source']}) say {ref['state']} {at25}, and that is the "
+                         f"answer; this model says {state}, one of the recorded pairs it gets wrong, so its "
                          "numbers here (chi, UCST, solubilities) are its own and not to be trusted")
         else:
-            notes.insert(0, f"reference data ({ref['source']}) agree: {ref['state']} at 25 C")
+            notes.insert(0, f"reference data ({ref['source']}) agree: {ref['state']} {at25}")
+        notes[:] = [n.replace(", so test a small mix before relying on either", "; the reference data decide here")
+                    for n in notes]
+    elif entry:
+        notes.insert(0, f"at 25 C the reference data say {entry['state']} ({entry['source']}); at {t:g} C the "
+                     "answer is the models'")
     from .cautions import pair_reasons
 
     reacts = "; ".join(w.split(": ", 1)[1] for w in pair_reasons(
@@ -1277,6 +1286,11 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
                        reacts, doubtful, second, bool(disagree), ref)
 
 
+#: Notes that describe the model's own phase behaviour (dropped where the reference data say otherwise).
+MODEL_NOTE_PREFIXES = ("model UCST", "the UCST lies above", "the gap stays open", "no UCST in this model",
+                       "model LCST", "with water the model UCST", "the mutual solubilities are rough")
+
+
 @functools.lru_cache(maxsize=1)
 def _reference_pairs() -> dict:
     from .mixing_fit import FACTS_CSV, PAIRS_CSV, load_pairs
@@ -1287,8 +1301,9 @@ def _reference_pairs() -> dict:
             continue
         for r in load_pairs(path).itertuples():
             if r.state_25c in STATES:    # entries that only say "not miscible" do not answer the question
+                crit = [float(v) for v in (r.ucst_c, r.lcst_c) if v == v]
                 out.setdefault(frozenset((r.cas_a, r.cas_b)), {"state": r.state_25c, "source": r.source,
-                                                               "table": path.name})
+                                                               "table": path.name, "critical_c": crit})
     return out
 
 
@@ -1303,7 +1318,28 @@ def reference_state(cas_a: str, cas_b: str) -> dict:
     """
     if not cas_a or not cas_b:
         return {}
-    return dict(_reference_pairs().get(frozenset((str(cas_a).strip(), str(cas_b).strip())), {}))
+    rec = dict(_reference_pairs().get(frozenset((str(cas_a).strip(), str(cas_b).strip())), {}))
+    rec.pop("critical_c", None)
+    return rec
+
+
+#: A recorded 25 C state answers within this many degrees of 25 C (C), unless a recorded critical
+#: solution temperature lies between 25 C and the temperature asked for.
+REFERENCE_WINDOW_C = 5.0
+
+
+def _reference_at(cas_a: str, cas_b: str, t: float) -> tuple[dict, dict]:
+    """(answer, entry): the recorded state where it answers at ``t`` (C), and the entry itself
+    (for a note at other temperatures); {} where there is none."""
+    if not cas_a or not cas_b:
+        return {}, {}
+    rec = dict(_reference_pairs().get(frozenset((str(cas_a).strip(), str(cas_b).strip())), {}))
+    if not rec:
+        return {}, {}
+    crit = rec.pop("critical_c", [])
+    lo, hi = min(25.0, t), max(25.0, t)
+    applies = abs(t - 25.0) <= REFERENCE_WINDOW_C and not any(lo <= c <= hi for c in crit)
+    return (rec if applies else {}), rec
 
 
 def _ranges(rec):
@@ -1472,8 +1508,9 @@ def miscibility_matrix(liquids, *, temperature: float = 25.0, library: pd.DataFr
     library). Index and columns are the liquid names. ``attrs["reactive_pairs"]``: the pairs
     ``(a, b)`` that react with each other (:func:`selector.cautions.reactive_pair_matrix`);
     ``attrs["uncertain_pairs"]``: water with an amine, pyridine or glycol ether, whose state the
-    model cannot be trusted on (:attr:`Miscibility.headline` says "uncertain"); at 25 C, pairs of
-    ``parameters/miscibility_pairs.csv`` take their recorded state (``attrs["reference_pairs"]``).
+    model cannot be trusted on (:attr:`Miscibility.headline` says "uncertain"); within
+    :data:`REFERENCE_WINDOW_C` of 25 C, pairs of the reference tables take their recorded state
+    (``attrs["reference_pairs"]``), as in :func:`miscibility`.
     The UNIFAC second opinion of :func:`miscibility` is left out here (it costs about 20 ms a pair).
 
     >>> m = miscibility_matrix(["water", "hexane", "acetone"])
@@ -1515,11 +1552,11 @@ def miscibility_matrix(liquids, *, temperature: float = 25.0, library: pd.DataFr
                    if k != w and k not in prone and k not in water and st[w, k] != st25[w, k]]
     # at 25 C a pair of the reference table takes its recorded state (Miscibility.reference)
     known = []
-    if abs(float(temperature) - 25.0) < 1e-9 and "cas" in df.columns:
+    if "cas" in df.columns:
         cas = df["cas"].astype("string").fillna("").astype(str).tolist()
         for p in range(len(df)):
             for q in range(p + 1, len(df)):
-                ref = reference_state(cas[p], cas[q])
+                ref = _reference_at(cas[p], cas[q], float(temperature))[0]
                 if ref and cas[p] != cas[q]:
                     out.iat[p, q] = out.iat[q, p] = ref["state"]
                     known.append((names[p], names[q]))

@@ -101,10 +101,16 @@ with tab1:
         else:
             m[3].metric("UCST (°C)", _num(getattr(r, "ucst_c", None), "{:.0f}"))
         pm = getattr(r, "p_miscible", None)
+        ref0 = getattr(r, "reference", {}) or {}
         m[4].metric("Mixing confidence", str(getattr(r, "confidence", "—")),
                     help=None if pm is None or pm != pm else
-                    f"probability of one phase in all proportions: {100 * pm:.0f} % "
+                    ("the recorded answer of the reference data; " if ref0 else "")
+                    + f"the model's probability of one phase in all proportions: {100 * pm:.0f} % "
                     "(logistic fit on the reference pairs at 25 °C)")
+        # the model's phase diagram where the reference data say otherwise: its error, said so
+        contra = bool(ref0) and (ref0.get("state") == "miscible") != (getattr(r, "state", "") == "miscible")
+        contra_note = (f" The reference data say {ref0.get('state')} at 25 °C: for this pair the model is wrong."
+                       if contra else "")
         st.markdown(f"<div id='lw-mix-state'>{a} + {b} at {t:g} °C: <b>{state}</b></div>",
                     unsafe_allow_html=True)
         for w in getattr(r, "warnings", []) or []:
@@ -143,9 +149,9 @@ with tab1:
             st.caption("The same model as the answer above, worked out at each temperature where both "
                        "are liquid at 1 atm. Inside the binodal the mixture splits into two phases; "
                        "inside the spinodal it does so spontaneously. A model picture: the temperature "
-                       "of a real gap can be far off (see the notes).")
+                       "of a real gap can be far off (see the notes)." + contra_note)
         elif sweep is not None:
-            st.caption("No miscibility gap anywhere in the liquid range of the pair (model estimate).")
+            st.caption("No miscibility gap anywhere in the liquid range of the pair (model estimate)." + contra_note)
         st.warning("Whether or not two liquids mix, mixing them can start a reaction, release heat or "
                    "form an azeotrope: the safety data sheets and a small-scale test come first.",
                    icon=":material/warning:")
