@@ -182,14 +182,16 @@ with tab2:
         if mat is not None:
             st.plotly_chart(plots.heat_map(mat, f"Miscibility at {t2:g} °C"), width="stretch", key="mx_heat")
             st.caption("○ miscible · ◐ partially miscible · ● immiscible (colour and symbol both carry the state); "
-                       "! = the two react; ? = uncertain (water with a glycol ether, amine or pyridine: the "
-                       "model cannot be trusted on such pairs, test them).")
+                       "! = the two react; ? = uncertain (water with a glycol ether, amine or pyridine, or a "
+                       "water pair whose model state changes between 25 °C and this temperature: the model "
+                       "cannot be trusted on such pairs, test them).")
             known = mat.attrs.get("reference_pairs", [])
             if known:
-                st.caption(f"{len(known)} of these pairs are in the reference table (published or common-practice "
-                           "facts at 25 °C) and show its state, not the model's: "
-                           + ", ".join(f"{x} + {y}" for x, y in known) + ". The pair view shows a "
-                           "second opinion from UNIFAC as well.")
+                shown = ", ".join(f"{x} + {y}" for x, y in known[:6]) + (
+                    f" and {len(known) - 6} more" if len(known) > 6 else "")
+                st.caption(f"{len(known)} of these pairs are in the reference tables (published or common-practice "
+                           f"facts at 25 °C, used within 5 °C of it) and show their recorded state, not the "
+                           f"model's: {shown}. The pair view also gives a second opinion from UNIFAC.")
             pairs = mat.attrs.get("reactive_pairs", [])
             if pairs:
                 st.warning("These pairs react with each other whatever their phase behaviour (amine + acid, "
