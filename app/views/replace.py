@@ -29,7 +29,10 @@ if typed.strip():
     if row is None:
         st.stop()
     old = str(row["name"])
-    st.caption(f"{typed.strip()} = {old}")
+    same = typed.strip().lower() == old.lower()
+    st.caption(("" if same else f"{typed.strip()} = {old}. ")
+               + f"Replacing **{common.md_escape(old)}**: this box decides while it holds text; clear it to use "
+                 "the list above.")
 keep = c2.checkbox("Must also dissolve the current target", value=common.is_demo(), key="rp_keep",
                    help="rank by RED to the target's sphere instead of the distance to the old liquid")
 if common.is_demo() and old == default:
