@@ -957,14 +957,13 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     except SelectorError as err:
         if not str(err).startswith("no liquid passes the filters"):
             raise
-        # the message names the user's own filters, not the exclusions added here (the replaced
-        # liquid itself, the energetic liquids)
+        # the message names the user's own filters, not the exclusion added here (the replaced
+        # liquid itself)
         from .filters import nothing_passes
 
         own = {k_: v for k_, v in filters.items() if k_ != "max_hazard_class"}
         raise SelectorError(nothing_passes(own, 0, f"a CHEM21 class of at most {worst_allowed} (better than "
-                                                   f"{HAZARD_CLASSES[int(xr)]}, {xname}'s)") + (
-            f"; {', '.join(energetic)} left out as energetic" if energetic else "")) from None
+                                                   f"{HAZARD_CLASSES[int(xr)]}, {xname}'s)")) from None
     mis = _allowed_pairs(cand, t_c, k, require_miscible, bool(filt.get("include_reactive")))
     res = search_arrays(h * SCALE, tg.hsp * SCALE, max_components=k,
                         min_fraction=_check_min_fraction(min_fraction, max(k, 2)), miscible=mis,
@@ -1045,14 +1044,14 @@ def _halogenated_shown(out: pd.DataFrame, x: pd.DataFrame, table: pd.DataFrame, 
 
     if filt.get("halogen_free"):
         return []
-    hal = set(table["name"].to_numpy(str)[halogenated(table)])
+    hal = set(table["name"].to_numpy(str)[halogenated(table, unknown=False)])
     subs = out.loc[out["role"] == "substitute", "components"]
     n = sum(bool(set(cs) & hal) for cs in subs)
     if not n:
         return []
     name = str(x["name"].iloc[0])
     how = "halogen_free=True (--halogen-free, the app's No halogenated liquids) leaves them out."
-    if halogenated(x)[0]:
+    if halogenated(x, unknown=False)[0]:
         return [f"{n} of the {len(subs)} substitutes shown contain a halogenated liquid, as {name} is one: "
                 f"they go to the same halogenated waste and may meet the same restrictions. {how}"]
     used = sorted({c for cs in subs for c in cs} & hal)
@@ -1139,13 +1138,14 @@ def substitute_warnings(table: pd.DataFrame, replaced: str, replaced_burns_not: 
 
         worse = burns & (band(np.where(burns, fp, 1e9)) < band(np.array([x_fp]))[0])
         if worse.any():
-            nw = int(worse.sum())
-            lim = 23 if x_fp >= 23.0 and x_fp <= 60.0 else (60 if x_fp > 60.0 else None)
+            nw, nu = int(worse.sum()), int(unknown.sum())
+            where, floor = (("below 23 C", "23 C") if x_fp <= 60.0 else ("at or below 60 C", "61 C"))
             out.append(f"{nw} of the {len(subs)} substitutes shown {'has' if nw == 1 else 'have'} a flash point "
-                       f"below {lim} C where {replaced}'s is {x_fp:.0f} C (lowest {np.nanmin(fp[worse]):.0f} C): "
-                       "a more flammable class changes the fire protection the process needs (equipment, "
+                       f"{where} where {replaced}'s is {x_fp:.0f} C (lowest {np.nanmin(fp[worse]):.0f} C)"
+                       + (f", and {nu} {'has' if nu == 1 else 'have'} no flash-point data" if nu else "")
+                       + ": a more flammable class changes the fire protection the process needs (equipment, "
                        "ventilation, storage). Check the safety data sheets and local codes"
-                       + ("." if flash_floor else f", or set a minimum flash point of {lim} C."))
+                       + ("." if flash_floor else f", or set a minimum flash point of {floor}."))
     if radius is not None:
         far = subs["red"].to_numpy(float) > 1.0
         where = "outside the solute's sphere (RED > 1)"

@@ -399,16 +399,9 @@ PAIR_CLASSES = (
 #: pyridine and triethylamine quaternise in dichloromethane on standing; the Menshutkin
 #: reaction), are from memory.
 PAIR_RULES = (
-    ("acid", "base", "acid + base: they react (salt, heat)"),
+    # most severe first: a pair that two rules match is named by the first
     ("base", "nitroalkane", "amine + nitroalkane: the amine sensitises the nitro compound to detonation"),
-    ("primary amine", "carbonyl", "primary amine + aldehyde or ketone: they condense (imine and water)"),
-    ("secondary amine", "carbonyl", "secondary amine + aldehyde or ketone: they condense on standing, "
-                                    "faster when warm or acid-catalysed (enamine or aminal and water)"),
-    ("primary amine", "ester", "primary amine + ester, lactone or carbonate: aminolysis on standing "
-                               "(amide, hydroxy amide or carbamate), fast with cyclic carbonates and lactones"),
-    ("secondary amine", "ester", "secondary amine + ester, lactone or carbonate: aminolysis on standing "
-                                 "(amide, hydroxy amide or carbamate), fast with cyclic carbonates and lactones"),
-    ("aryl amine", "aldehyde", "aromatic amine + aldehyde: they condense (imine and water)"),
+    ("acid", "base", "acid + base: they react (salt, heat)"),
     ("base", "halocarbon", "amine + polyhalogenated alkane or alkyl bromide: they react (alkylation, "
                            "loss of HCl or HBr), slowly on standing with dichloromethane, fast and hot "
                            "with carbon tetrachloride and polyamines"),
@@ -416,6 +409,14 @@ PAIR_RULES = (
                                           "(dithiocarbamate)"),
     ("secondary amine", "carbon disulfide", "secondary amine + carbon disulfide: they react exothermically "
                                             "(dithiocarbamate)"),
+    ("primary amine", "carbonyl", "primary amine + aldehyde or ketone: they condense (imine and water)"),
+    ("secondary amine", "carbonyl", "secondary amine + aldehyde or ketone: they condense on standing, "
+                                    "faster when warm or acid-catalysed (enamine or aminal and water)"),
+    ("aryl amine", "aldehyde", "aromatic amine + aldehyde: they condense (imine and water)"),
+    ("primary amine", "ester", "primary amine + ester, lactone or carbonate: aminolysis on standing "
+                               "(amide, hydroxy amide or carbamate), fast with cyclic carbonates and lactones"),
+    ("secondary amine", "ester", "secondary amine + ester, lactone or carbonate: aminolysis on standing "
+                                 "(amide, hydroxy amide or carbamate), fast with cyclic carbonates and lactones"),
 )
 
 
@@ -472,5 +473,5 @@ def pair_reasons(rows: pd.DataFrame) -> list[str]:
                 ia, ib = names.index(a), names.index(b)
                 if (c[i, ia] and c[j, ib]) or (c[i, ib] and c[j, ia]):
                     out.append(f"{liq[i]} + {liq[j]}: {why}")
-                    break               # one reason per pair (diethylenetriamine is both amines)
+                    break               # one reason per pair, the most severe (PAIR_RULES order)
     return out

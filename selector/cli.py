@@ -42,7 +42,7 @@ def build_parser() -> argparse.ArgumentParser:
 FLAG_OF = {"min_flash_point_c": "--min-flash", "max_molar_volume": "--max-volume",
            "polarity_weight": "--polarity-weight", "min_fraction": "--min-share", "max_uses": "--max-uses",
            "bootstrap": "--bootstrap", "threshold": "--pass-mark", "must_stay_until": "--keep-until",
-           "relative_humidity": "--humidity"}
+           "relative_humidity": "--humidity", "seed": "--seed"}
 
 
 def with_flags(msg: str) -> str:
@@ -57,8 +57,8 @@ def with_flags(msg: str) -> str:
     for key, flag in FLAG_OF.items():
         if flag not in msg:
             msg = msg.replace(f"({key})", f"({flag}, {key})", 1)
-        if flag not in msg:
-            msg = re.sub(rf"(?<![\w(-]){key}\b(?!\))", f"{flag} ({key})", msg, count=1)
+        if flag not in msg:   # only where the keyword is the subject of a complaint
+            msg = re.sub(rf"(?<![\w(-]){key}(?= must| and \w+ must| =)", f"{flag} ({key})", msg, count=1)
     return msg
 
 

@@ -73,9 +73,9 @@ def cmd_mix(a) -> int:
         print(f"  LCST: {_fmt(r.lcst_c, 1)} C (a gap opens on heating)")
     if r.binodal:
         ab, ba = r.binodal["a_in_b"], r.binodal["b_in_a"]
-        contradicted = (r.reference or {}).get("state") == "miscible"
+        contradicted = r.reference_contradicts
         print("  coexisting phases (model binodal; mutual solubilities are often off tenfold"
-              + ("; the reference data say one phase, so this gap is the model's error" if contradicted else "")
+              + (f"; the reference data say {r.answer}, so this gap is the model's error" if contradicted else "")
               + "):")
         print(f"    {r.a} in the {r.b}-rich phase: {one_figure(ab['vol_pct'])} vol %, {one_figure(ab['wt_pct'])} wt %, "
               f"{one_figure(ab['mol_pct'])} mol %")

@@ -85,31 +85,37 @@ def check_filter_keys(filters: dict, extra: tuple[str, ...] = ()) -> None:
                             f"{', '.join(FILTER_KEYS + tuple(extra))}")
 
 
-#: A halogen symbol in a Hill formula or a SMILES (F, Cl, Br, I; not Fe, Ir, In, Si, ...).
-_HALOGEN = r"(?:F|Cl|Br|I)(?![a-z])"
+#: A halogen symbol in a Hill formula (F, Cl, Br, I; not Fe, Ir, In, Si, ...).
+_HALOGEN_FORMULA = r"(?:F|Cl|Br|I)(?![a-z])"
+#: ... and in a SMILES, where an aromatic atom may follow (Clc1ccccc1): F, Cl, Br, I, not Fe, Fr,
+#: Fm, Fl, In, Ir.
+_HALOGEN_SMILES = r"Cl|Br|F(?![erml])|I(?![nr])"
 
 
-def halogenated(library: pd.DataFrame) -> np.ndarray:
+def halogenated(library: pd.DataFrame, unknown: bool = True) -> np.ndarray:
     """True for liquids with fluorine, chlorine, bromine or iodine in their formula (or, without
-    one, their SMILES); liquids with neither count as halogenated, since nothing shows they are
-    free of it. Halogenated solvents go to their own waste stream and many sites restrict them
-    (common practice); this is what ``halogen_free=True`` leaves out.
+    one, their SMILES). A liquid with neither gets ``unknown``: True for the filter, since nothing
+    shows it is free of halogens. Halogenated solvents go to their own waste stream and many sites
+    restrict them (common practice); this is what ``halogen_free=True`` leaves out.
 
     >>> import pandas as pd
-    >>> halogenated(pd.DataFrame({"formula": ["CH2Cl2", "C7H8", "C8H4F6", "FeC10H10", ""],
-    ...                           "smiles": ["ClCCl", "Cc1ccccc1", "", "", ""]})).tolist()
-    [True, False, True, False, True]
+    >>> halogenated(pd.DataFrame({"formula": ["CH2Cl2", "C7H8", "C8H4F6", "FeC10H10", "", "", ""],
+    ...                           "smiles": ["ClCCl", "Cc1ccccc1", "", "", "Clc1ccccc1", "[Fe]", ""]})).tolist()
+    [True, False, True, False, True, False, True]
     """
     n = len(library)
 
     def col(name):
         if name not in library.columns:
             return pd.Series([""] * n, index=library.index, dtype=str)
-        return library[name].astype("string").fillna("").astype(str)
+        return library[name].astype("string").fillna("").astype(str).str.strip()
 
     formula, smiles = col("formula"), col("smiles")
-    text = formula.where(formula.str.strip() != "", smiles)
-    return (text.str.contains(_HALOGEN, regex=True) | (text.str.strip() == "")).to_numpy(bool)
+    has_f = formula != ""
+    out = np.where(has_f, formula.str.contains(_HALOGEN_FORMULA, regex=True),
+                   smiles.str.contains(_HALOGEN_SMILES, regex=True))
+    none = (~has_f & (smiles == "")).to_numpy()
+    return np.where(none, bool(unknown), out).astype(bool)
 
 
 def filter_mask(library: pd.DataFrame, **filters) -> np.ndarray:

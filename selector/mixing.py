@@ -749,6 +749,11 @@ def _opt(v):
     return f
 
 
+def _clean(v) -> str:
+    """A text field of a row: "" for None or NaN, else the text without surrounding spaces."""
+    return "" if v is None or (isinstance(v, float) and math.isnan(v)) or v is pd.NA else str(v).strip()
+
+
 def _record(row, name) -> dict:
     get = row.get
     rec = {"name": name}
@@ -763,12 +768,10 @@ def _record(row, name) -> dict:
     rec["melting_point_c"] = _opt(get("melting_point_c"))
     rec["boiling_point_c"] = _opt(get("boiling_point_c"))
     rec["expansion_coeff"] = _opt(get("expansion_coeff"))
-    smi = get("smiles", "")
-    rec["smiles"] = "" if smi is None or (isinstance(smi, float) and math.isnan(smi)) else str(smi).strip()
+    rec["smiles"] = _clean(get("smiles", ""))
     if rec["smiles"] and math.isnan(site_counts(rec["smiles"])[0]):
         raise SelectorError(f"{name}: {rec['smiles']!r} is not a valid SMILES string")
-    key = get("inchikey", "")
-    rec["inchikey"] = "" if key is None or (isinstance(key, float) and math.isnan(key)) else str(key).strip()
+    rec["inchikey"] = _clean(get("inchikey", ""))
     if not rec["inchikey"] and rec["smiles"]:
         from rdkit import Chem
 
@@ -776,8 +779,7 @@ def _record(row, name) -> dict:
         rec["inchikey"] = (Chem.MolToInchiKey(mol) or "") if mol is not None else ""
     rec["sources_disagree"] = str(get("sources_disagree", False)).lower() == "true"
     rec["origin"] = str(get("origin", "") or "")
-    cas = get("cas", "")
-    rec["cas"] = "" if cas is None or (isinstance(cas, float) and math.isnan(cas)) else str(cas).strip()
+    rec["cas"] = _clean(get("cas", ""))
     rec["hsp_source"] = str(get("hsp_source", "") or "")
     # 90 % intervals of an estimated liquid (delta_*_low/_high, molar_volume_low/_high), if any
     for k in _NUM_FIELDS:
@@ -903,8 +905,21 @@ class Miscibility:
     reference: dict = field(default_factory=dict)
 
     @property
+    def answer(self) -> str:
+        """The state to act on: the recorded one where the reference data answer (:attr:`reference`),
+        else the model's :attr:`state`."""
+        return self.reference["state"] if self.reference else self.state
+
+    @property
     def miscible(self) -> bool:
-        return self.state == "miscible"
+        """One phase in all proportions, by :attr:`answer`."""
+        return self.answer == "miscible"
+
+    @property
+    def reference_contradicts(self) -> bool:
+        """The reference data answer and say one phase where the model says two, or the reverse:
+        the model's own numbers (chi, UCST, gap, solubilities) are then its error."""
+        return bool(self.reference) and (self.reference["state"] == "miscible") != (self.state == "miscible")
 
     @property
     def headline(self) -> str:
@@ -929,7 +944,7 @@ class Miscibility:
         d = {k: getattr(self, k) for k in ("a", "b", "temperature_c", "state", "chi", "chi_critical",
                                            "ucst_c", "lcst_c", "confidence", "p_miscible", "v_ref", "interaction_mpa",
                                            "model", "lcst_prone", "trend_doubtful", "reacts", "headline",
-                                           "models_disagree")}
+                                           "models_disagree", "answer", "reference_contradicts")}
         d["second_opinion"] = dict(self.second_opinion or {})
         d["reference"] = dict(self.reference or {})
         d["spinodal"] = None if self.spinodal is None else list(self.spinodal)
@@ -1206,7 +1221,8 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
         # 51 C in the model, two phases up to boiling in practice; common practice): a state that
         # differs from the model's own state at 25 C is not an answer
         try:
-            st25 = miscibility(a, b, temperature=25.0, library=library, model=model, unifac=False).state
+            st25 = miscibility(a, b, temperature=25.0, library=library, model=model, unifac=False,
+                               reference=False).state
         except SelectorError:
             st25 = state
         if st25 != state:
@@ -1240,10 +1256,11 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     if unifac and not same:
         from .unifac import second_opinion
 
-        m1k = m1 if math.isfinite(m1) else math.nan
-        second = second_opinion(ra_["inchikey"], rb_["inchikey"], m1k, m2, t) if (
-            math.isfinite(m1) and math.isfinite(m2)) else {"method": "", "state": "",
-                                                          "why": "no molar mass for a liquid"}
+        mm = [r["molar_mass"] if math.isfinite(r["molar_mass"]) else _mass_from_smiles(r["smiles"])
+              for r in (ra_, rb_)]
+        lacking = [r["name"] for r, m_ in zip((ra_, rb_), mm) if not math.isfinite(m_)]
+        second = second_opinion(ra_["inchikey"], rb_["inchikey"], mm[0], mm[1], t) if not lacking else {
+            "method": "", "state": "", "why": f"no molar mass or structure for {' and '.join(lacking)}"}
         if second["state"]:
             disagree = (second["state"] == "miscible") != (state == "miscible")
             if disagree:
@@ -1286,6 +1303,17 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
                        reacts, doubtful, second, bool(disagree), ref)
 
 
+def _mass_from_smiles(smiles: str) -> float:
+    """Molar mass (g/mol) from a SMILES by RDKit, NaN without one."""
+    if not smiles:
+        return math.nan
+    from rdkit import Chem
+    from rdkit.Chem import Descriptors
+
+    mol = Chem.MolFromSmiles(smiles)
+    return float(Descriptors.MolWt(mol)) if mol is not None else math.nan
+
+
 #: Notes that describe the model's own phase behaviour (dropped where the reference data say otherwise).
 MODEL_NOTE_PREFIXES = ("model UCST", "the UCST lies above", "the gap stays open", "no UCST in this model",
                        "model LCST", "with water the model UCST", "the mutual solubilities are rough")
@@ -1316,11 +1344,7 @@ def reference_state(cas_a: str, cas_b: str) -> dict:
     >>> reference_state("7732-18-5", "110-54-3")["state"]    # water, hexane
     'immiscible'
     """
-    if not cas_a or not cas_b:
-        return {}
-    rec = dict(_reference_pairs().get(frozenset((str(cas_a).strip(), str(cas_b).strip())), {}))
-    rec.pop("critical_c", None)
-    return rec
+    return _reference_at(cas_a, cas_b, 25.0)[1]
 
 
 #: A recorded 25 C state answers within this many degrees of 25 C (C), unless a recorded critical
@@ -1340,6 +1364,29 @@ def _reference_at(cas_a: str, cas_b: str, t: float) -> tuple[dict, dict]:
     lo, hi = min(25.0, t), max(25.0, t)
     applies = abs(t - 25.0) <= REFERENCE_WINDOW_C and not any(lo <= c <= hi for c in crit)
     return (rec if applies else {}), rec
+
+
+def reference_overlay(liquids: pd.DataFrame, temperature: float = 25.0) -> list[tuple[int, int, str]]:
+    """``(i, j, state)`` for the pairs of ``liquids`` (rows with ``cas``) that the reference tables
+    answer at ``temperature`` (C; :func:`_reference_at`), i < j; one pass over the recorded pairs."""
+    if "cas" not in liquids.columns or len(liquids) < 2:
+        return []
+    cas = liquids["cas"].astype("string").fillna("").astype(str).str.strip().to_numpy()
+    where: dict[str, list[int]] = {}
+    for k, c in enumerate(cas):
+        if c:
+            where.setdefault(c, []).append(k)
+    out = []
+    for key in _reference_pairs():
+        if len(key) != 2:
+            continue
+        a, b = tuple(key)
+        if a not in where or b not in where:
+            continue
+        ref = _reference_at(a, b, float(temperature))[0]
+        if ref:
+            out += [(min(i, j), max(i, j), ref["state"]) for i in where[a] for j in where[b] if i != j]
+    return sorted(out)
 
 
 def _ranges(rec):
@@ -1458,11 +1505,15 @@ def state_matrix(liquids: pd.DataFrame, temperature: float = 25.0, model=None) -
     return st
 
 
-def miscible_pairs(liquids: pd.DataFrame, temperature: float = 25.0, model=None) -> np.ndarray:
+def miscible_pairs(liquids: pd.DataFrame, temperature: float = 25.0, model=None,
+                   reference: bool = True) -> np.ndarray:
     """(n, n) bool array: True where the pair is miscible in all proportions.
 
     ``liquids``: library-format rows (``delta_d, delta_p, delta_h, molar_volume``, optionally
-    ``smiles``); vectorised over all pairs; no phase-split solve is needed (chi <= chi_c).
+    ``smiles``); vectorised over all pairs; no phase-split solve is needed (chi <= chi_c). With
+    ``reference`` (default) the pairs the reference tables answer at ``temperature`` take the
+    recorded state (:func:`reference_overlay`), as :func:`miscibility` does, so that a blend never
+    pairs what the pair answer calls partially miscible.
 
     >>> lib = load_library()
     >>> sel = lib[lib.name.isin(["water", "hexane", "acetone"])].sort_values("name")
@@ -1476,6 +1527,9 @@ def miscible_pairs(liquids: pd.DataFrame, temperature: float = 25.0, model=None)
     chi = mdl.chi(a12, vr, s[:, None, :], s[None, :, :], t)
     cc = critical_chi(e[:, None] / vr, e[None, :] / vr)
     out = chi <= cc
+    if reference:
+        for i, j, state in reference_overlay(liquids, t):
+            out[i, j] = out[j, i] = state == "miscible"
     np.fill_diagonal(out, True)
     return out
 
@@ -1552,14 +1606,9 @@ def miscibility_matrix(liquids, *, temperature: float = 25.0, library: pd.DataFr
                    if k != w and k not in prone and k not in water and st[w, k] != st25[w, k]]
     # at 25 C a pair of the reference table takes its recorded state (Miscibility.reference)
     known = []
-    if "cas" in df.columns:
-        cas = df["cas"].astype("string").fillna("").astype(str).tolist()
-        for p in range(len(df)):
-            for q in range(p + 1, len(df)):
-                ref = _reference_at(cas[p], cas[q], float(temperature))[0]
-                if ref and cas[p] != cas[q]:
-                    out.iat[p, q] = out.iat[q, p] = ref["state"]
-                    known.append((names[p], names[q]))
+    for p, q, state in reference_overlay(df, float(temperature)):
+        out.iat[p, q] = out.iat[q, p] = state
+        known.append((names[p], names[q]))
     done = set(map(frozenset, known))
     out.attrs["reference_pairs"] = known
     out.attrs["uncertain_pairs"] = [(names[w], names[k]) for w, k in unsure
@@ -1586,7 +1635,8 @@ class BlendCheck:
 
 def check_blend_miscible(names_or_rows, *, temperature: float = 25.0,
                          library: pd.DataFrame | None = None, model=None) -> BlendCheck:
-    """Check that every pair of a blend's liquids is miscible in all proportions.
+    """Check that every pair of a blend's liquids is miscible in all proportions (the HSP model,
+    and the recorded state where the reference tables answer: :func:`reference_overlay`).
 
     ``names_or_rows``: list of names/CAS/user dicts or a library-format DataFrame. Returns a
     :class:`BlendCheck` (``ok``; ``failing`` = list of (a, b, state)). A blend of one liquid is ok.
@@ -1606,6 +1656,8 @@ def check_blend_miscible(names_or_rows, *, temperature: float = 25.0,
     if len(df) == 0:
         raise SelectorError("no liquids in the blend")
     st = state_matrix(df, temperature, model)
+    for i, j, state in reference_overlay(df, float(temperature)):   # the recorded states, as everywhere
+        st[i, j] = st[j, i] = state
     names = df["name"].astype(str).tolist() if "name" in df.columns else [str(i) for i in range(len(df))]
     iu, ju = np.triu_indices(len(df), 1)
     failing = [(names[i], names[j], str(st[i, j])) for i, j in zip(iu, ju) if st[i, j] != "miscible"]
@@ -1642,7 +1694,7 @@ def phase_sweep(a, b, *, n: int = 41, library: pd.DataFrame | None = None,
     grid = np.linspace(lo, hi, int(n))
     # the gap closes at the UCST (opens at the LCST): a few temperatures just inside it draw the
     # top of the dome, which an even grid would cut flat up to one grid step short of it
-    first = miscibility(a, b, temperature=float(lo), library=lib)
+    first = miscibility(a, b, temperature=float(lo), library=lib, unifac=False, reference=False)
     step = (hi - lo) / max(int(n) - 1, 1)
     near = np.array([0.5, 0.2, 0.05, 0.01, 0.001])
     extra = []
@@ -1652,7 +1704,7 @@ def phase_sweep(a, b, *, n: int = 41, library: pd.DataFrame | None = None,
     temps = np.unique(np.concatenate([grid, np.clip(extra, lo, hi)])) if extra else grid
     rows = []
     for t in temps:
-        m = miscibility(a, b, temperature=float(t), library=lib)
+        m = miscibility(a, b, temperature=float(t), library=lib, unifac=False, reference=False)
         bi, sp = m.binodal or {}, m.spinodal or (np.nan, np.nan)
         pa = bi.get("phi_a", np.nan)
         p_lo, p_hi = (float(pa[0]), float(pa[1])) if isinstance(pa, (tuple, list)) else \

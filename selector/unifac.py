@@ -83,6 +83,8 @@ def unifac_split(groups, T: float = 298.15, version: int = 0):
     x = XGRID
     ge = np.array([model.to_T_xs(T, [xi, 1.0 - xi]).GE() for xi in x])
     g = ge / (8.314462618 * T) + x * np.log(x) + (1 - x) * np.log1p(-x)
+    if not np.isfinite(g).all():
+        raise ValueError("UNIFAC gave a non-finite Gibbs energy of mixing")
     hull = _lower_hull(x, g)
     best = None
     for i1, i2 in zip(hull[:-1], hull[1:]):
@@ -127,6 +129,14 @@ def state_of_split(split, m1: float, m2: float) -> tuple[str, float, float]:
 
 
 def second_opinion(inchikey_a: str, inchikey_b: str, m1: float, m2: float, t_c: float = 25.0) -> dict:
+    """UNIFAC's state for a pair at ``t_c`` (C): see :func:`_second_opinion` (cached per pair and
+    temperature; a copy is returned)."""
+    return dict(_second_opinion(str(inchikey_a or ""), str(inchikey_b or ""), float(m1), float(m2),
+                                round(float(t_c), 6)))
+
+
+@functools.lru_cache(maxsize=4096)
+def _second_opinion(inchikey_a: str, inchikey_b: str, m1: float, m2: float, t_c: float = 25.0) -> dict:
     """UNIFAC's state for a pair at ``t_c`` (C): Dortmund where it covers the pair, else the
     original. Returns ``{"method", "state", "why"}``; ``state`` is "" when neither covers it
     (``why`` says what is missing)."""

@@ -696,6 +696,13 @@ def test_substitutes_warn_of_a_more_flammable_class_and_of_halogens_brought_in()
     # a minimum flash point of 23 C removes the cause and the warning
     safe = substitutes("o-xylene", top=10, min_flash_point_c=23)
     assert not any("a more flammable class" in w for w in safe.attrs["warnings"])
+    # NMP (flash point 86 C, chemicals): GHS category 3 ends at 60 C inclusive, so the advice is a
+    # minimum of 61 C, which clears the warning
+    nmp = [w for w in substitutes("NMP", top=10).attrs["warnings"] if "a more flammable class" in w]
+    assert nmp and "at or below 60 C where 1-methyl-2-pyrrolidinone's is 86 C" in nmp[0]
+    assert "set a minimum flash point of 61 C" in nmp[0]
+    assert not any("a more flammable class" in w for w in
+                   substitutes("NMP", top=10, min_flash_point_c=61).attrs["warnings"])
     tol = substitutes("toluene", top=10)
     hal = [w for w in tol.attrs["warnings"] if "bring in a halogenated liquid" in w]
     assert len(hal) == 1 and "which toluene is not" in hal[0] and "--halogen-free" in hal[0]

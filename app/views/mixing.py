@@ -5,14 +5,15 @@ import streamlit as st
 
 import selector
 from lwui import common, plots
+from selector.mixing import REFERENCE_WINDOW_C
 
 st.title("Will they mix?")
 st.caption("Flory-Huggins with Hansen parameters: chi = V_r A12 / (RT), where the default donor/acceptor "
            "model weights the dD, dP and hydrogen-bond differences (fitted on published pairs) and credits "
            "cross hydrogen bonds; the plain model uses A12 = Ra² / 4. A pair splits into two liquid phases "
            "when chi exceeds chi_c. Rough for water and strongly hydrogen-bonded pairs: read the confidence "
-           "and test before you rely on it. At 25 °C a pair of the reference table answers with its recorded "
-           "state; UNIFAC (Dortmund, else original; as carried by thermo) gives a second opinion, and where "
+           "and test before you rely on it. Within 5 °C of 25 °C a pair of the reference tables answers with its "
+           "recorded state; UNIFAC (Dortmund, else original; as carried by thermo) gives a second opinion, and where "
            "the two models disagree the answer is *uncertain*.")
 mod = common.capability("mixing")
 if mod is None:
@@ -108,7 +109,7 @@ with tab1:
                     + f"the model's probability of one phase in all proportions: {100 * pm:.0f} % "
                     "(logistic fit on the reference pairs at 25 °C)")
         # the model's phase diagram where the reference data say otherwise: its error, said so
-        contra = bool(ref0) and (ref0.get("state") == "miscible") != (getattr(r, "state", "") == "miscible")
+        contra = bool(getattr(r, "reference_contradicts", False))
         contra_note = (f" The reference data say {ref0.get('state')} at 25 °C: for this pair the model is wrong."
                        if contra else "")
         st.markdown(f"<div id='lw-mix-state'>{a} + {b} at {t:g} °C: <b>{state}</b></div>",
@@ -122,7 +123,7 @@ with tab1:
                 st.caption("• " + common.ui_units(note))
         bi = getattr(r, "binodal", None)
         ref = getattr(r, "reference", {}) or {}
-        if isinstance(bi, dict) and ref.get("state") == "miscible":
+        if isinstance(bi, dict) and getattr(r, "reference_contradicts", False) and ref.get("state") == "miscible":
             # the recorded answer is one phase: the model's gap is its own error, not a result
             st.caption("No model solubilities: the reference data say the two mix in all proportions at 25 °C, "
                        "so the gap the model draws for this pair is its error.")
@@ -190,8 +191,10 @@ with tab2:
                 shown = ", ".join(f"{x} + {y}" for x, y in known[:6]) + (
                     f" and {len(known) - 6} more" if len(known) > 6 else "")
                 st.caption(f"{len(known)} of these pairs are in the reference tables (published or common-practice "
-                           f"facts at 25 °C, used within 5 °C of it) and show their recorded state, not the "
-                           f"model's: {shown}. The pair view also gives a second opinion from UNIFAC.")
+                           f"facts at 25 °C, used within {REFERENCE_WINDOW_C:g} °C of it) and show their recorded "
+                           f"state, not the model's: {shown}.")
+            st.caption("The heat map shows the HSP model (and the recorded states); the UNIFAC second opinion is "
+                       "worked out in the pair view only, so a pair can read *uncertain* there and plain here.")
             pairs = mat.attrs.get("reactive_pairs", [])
             if pairs:
                 st.warning("These pairs react with each other whatever their phase behaviour (amine + acid, "
