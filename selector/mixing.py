@@ -1265,11 +1265,11 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
             disagree = (second["state"] == "miscible") != (state == "miscible")
             if disagree:
                 conf = "low"
-                notes.insert(0, f"second opinion: {second['method']} (parameters and groups as carried by "
-                             f"thermo) says {second['state']} at {t:g} C, this model {state}: the two disagree, "
+                notes.insert(0, f"second opinion: {second['method']}, with the parameters and groups thermo "
+                             f"carries, says {second['state']} at {t:g} C, this model {state}: the two disagree, "
                              "so test a small mix before relying on either")
             else:
-                notes.append(f"second opinion: {second['method']} (thermo) also says "
+                notes.append(f"second opinion: {second['method']}, as thermo carries it, also says "
                              f"{'one phase' if state == 'miscible' else 'two phases'} ({second['state']})")
         else:
             notes.append(f"no UNIFAC second opinion for this pair ({second['why']})")

@@ -667,7 +667,7 @@ def test_unifac_second_opinion_flags_disagreement():
     # agreement keeps the model's answer and says so (water-toluene: two phases, common practice)
     tol = miscibility("water", "toluene", temperature=35)
     assert not tol.models_disagree and tol.headline == "immiscible"
-    assert any(n.startswith("second opinion: UNIFAC (Dortmund) (thermo) also says two phases") for n in tol.notes)
+    assert any(n.startswith("second opinion: UNIFAC (Dortmund), as thermo carries it, also says two phases") for n in tol.notes)
     # off on request, and for a pair neither UNIFAC covers (dimethyl carbonate has no Dortmund
     # interaction parameters with water and no original-UNIFAC groups in thermo)
     off = miscibility("water", "1-methoxy-2-propyl acetate", unifac=False, reference=False)
