@@ -931,12 +931,6 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     exc = filt.get("exclude") or []
     exc = [exc] if isinstance(exc, str) else list(exc)
     filt["exclude"] = exc + [xname]
-    energetic = []
-    if not include_energetic and filt.get("include") is None:   # liquids named on purpose stay
-        check_filter_keys(filt)
-        passing, _ = masks_and_reagents(lib, temperature=check_temperature(temperature), **filt)
-        hd = hz_all["high_decomposition_energy"].to_numpy(bool)
-        energetic = lib["name"].to_numpy(str)[hd & passing].tolist()
     if solute is not None:
         tgt = as_target(solute, lib)
     else:
@@ -964,6 +958,12 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
         own = {k_: v for k_, v in filters.items() if k_ != "max_hazard_class"}
         raise SelectorError(nothing_passes(own, 0, f"a CHEM21 class of at most {worst_allowed} (better than "
                                                    f"{HAZARD_CLASSES[int(xr)]}, {xname}'s)")) from None
+    # energetic candidates are searched with the others; their blends are dropped below unless
+    # asked for (liquids named on purpose with include stay)
+    energetic = []
+    if not include_energetic and filt.get("include") is None:
+        hd = set(lib["name"].to_numpy(str)[hz_all["high_decomposition_energy"].to_numpy(bool)])
+        energetic = [n for n in cand["name"].astype(str) if n in hd]
     mis = _allowed_pairs(cand, t_c, k, require_miscible, bool(filt.get("include_reactive")))
     res = search_arrays(h * SCALE, tg.hsp * SCALE, max_components=k,
                         min_fraction=_check_min_fraction(min_fraction, max(k, 2)), miscible=mis,
@@ -1133,13 +1133,18 @@ def substitute_warnings(table: pd.DataFrame, replaced: str, replaced_burns_not: 
     if math.isfinite(x_fp) and burns.any():
         # a replacement that moves the process into a more flammable class (GHS flash-point
         # limits 23 C and 60 C; common practice) changes what the equipment and storage must meet
+        from .report import GHS_FLASH_LIMITS_C
+
+        c2, c3, _ = GHS_FLASH_LIMITS_C
+
         def band(v):
-            return np.where(v < 23.0, 0, np.where(v <= 60.0, 1, 2))
+            return np.where(v < c2, 0, np.where(v <= c3, 1, 2))
 
         worse = burns & (band(np.where(burns, fp, 1e9)) < band(np.array([x_fp]))[0])
         if worse.any():
             nw, nu = int(worse.sum()), int(unknown.sum())
-            where, floor = (("below 23 C", "23 C") if x_fp <= 60.0 else ("at or below 60 C", "61 C"))
+            where, floor = ((f"below {c2:g} C", f"{c2:g} C") if x_fp <= c3 else
+                            (f"at or below {c3:g} C", f"{c3 + 1:g} C"))
             out.append(f"{nw} of the {len(subs)} substitutes shown {'has' if nw == 1 else 'have'} a flash point "
                        f"{where} where {replaced}'s is {x_fp:.0f} C (lowest {np.nanmin(fp[worse]):.0f} C)"
                        + (f", and {nu} {'has' if nu == 1 else 'have'} no flash-point data" if nu else "")

@@ -374,22 +374,24 @@ def merge_viscosities(df: pd.DataFrame) -> pd.DataFrame:
 STEREO_BP_C = 2.0
 
 
+def _without_chirality(smi) -> str | None:
+    """Canonical SMILES with the tetrahedral centres left open (cis/trans kept), None if unreadable."""
+    from rdkit import Chem
+
+    m = Chem.MolFromSmiles(str(smi or ""))
+    if m is None:
+        return None
+    for at in m.GetAtoms():
+        at.SetChiralTag(Chem.ChiralType.CHI_UNSPECIFIED)
+    return Chem.MolToSmiles(m)
+
+
 def _same_but_chirality(a: str, b: str) -> bool:
     """True when two SMILES are one compound once tetrahedral centres are ignored: enantiomers,
     a racemate and its forms. Any cis/trans difference, or cis/trans given on one side only,
     keeps them apart (the library's dibutyl fumarate SMILES leaves it open beside the maleate)."""
-    from rdkit import Chem
-
-    def canon(smi):
-        m = Chem.MolFromSmiles(str(smi or ""))
-        if m is None:
-            return None
-        for at in m.GetAtoms():
-            at.SetChiralTag(Chem.ChiralType.CHI_UNSPECIFIED)
-        return Chem.MolToSmiles(m)
-
-    ca, cb = canon(a), canon(b)
-    return ca is not None and ca == cb
+    ca = _without_chirality(a)
+    return ca is not None and ca == _without_chirality(b)
 
 
 def merge_stereo_partners(df: pd.DataFrame) -> pd.DataFrame:
@@ -409,8 +411,10 @@ def merge_stereo_partners(df: pd.DataFrame) -> pd.DataFrame:
     key = df["inchikey"].fillna("").astype(str).str[:14]
     bp = df["boiling_point_c"].to_numpy(float)
     vpm = df["vapour_pressure_method"].fillna("").astype(str)
-    vp_est = vpm.str.split(" ").str[0].isin(VP_ESTIMATES).to_numpy() & df["vapour_pressure_kpa"].notna().to_numpy()
-    vp_data = ~vpm.str.split(" ").str[0].isin(VP_ESTIMATES | {""}).to_numpy() & df["vapour_pressure_kpa"].notna().to_numpy()
+    first = vpm.str.split(" ").str[0]
+    has_vp = df["vapour_pressure_kpa"].notna().to_numpy()
+    vp_est = first.isin(VP_ESTIMATES).to_numpy() & has_vp
+    vp_data = ~first.isin(VP_ESTIMATES | {""}).to_numpy() & has_vp
     mu = df["viscosity_mpa_s"].to_numpy(float)
     mu_est = df["viscosity_estimated"].fillna(False).to_numpy(bool) | ~np.isfinite(mu)
     vp_cols = ["vapour_pressure_kpa", "antoine_a", "antoine_b", "antoine_c", "antoine_tmin_c", "antoine_tmax_c"]
@@ -419,9 +423,10 @@ def merge_stereo_partners(df: pd.DataFrame) -> pd.DataFrame:
         idx = idx.to_numpy()
         if len(idx) < 2 or not k:
             continue
+        bare = {i: _without_chirality(df["smiles"].iat[i]) for i in idx}
         for i in idx:
             mates = [j for j in idx if j != i and abs(bp[i] - bp[j]) <= STEREO_BP_C
-                     and _same_but_chirality(df["smiles"].iat[i], df["smiles"].iat[j])]
+                     and bare[i] is not None and bare[i] == bare[j]]
             if not mates:
                 continue
             name = lambda j: df["name"].iat[j]  # noqa: E731
@@ -733,8 +738,8 @@ def boiling_point_and_vapour_pressure(cas: str, c) -> tuple[float | None, str, s
             return tb, src, cov, f"{cov} (thermo's default {default} is fitted from {from_c(default)} up)", note
         return tb, src, default, default or "", note
     other = next((m for m in order if agrees(m)), None)
-    if other is not None and covering(other):
-        other = covering(other)
+    if other is not None:
+        other = covering(other) or other
     d = implied.get(default)
     if other is None:
         note = (f"vapour pressure ({default}) boils at {d - 273.15:.0f} C, not {tb - 273.15:.1f} C: "

@@ -25,6 +25,18 @@ def canonical_smiles(smiles: str) -> str | None:
 
 
 @functools.lru_cache(maxsize=4096)
+def molar_mass(smiles: str) -> float:
+    """Molar mass (g/mol, RDKit's average atomic masses) of a SMILES, NaN when it does not parse."""
+    Chem = _rdkit()
+    mol = Chem.MolFromSmiles(smiles.strip()) if isinstance(smiles, str) and smiles.strip() else None
+    if mol is None:
+        return float("nan")
+    from rdkit.Chem import Descriptors
+
+    return float(Descriptors.MolWt(mol))
+
+
+@functools.lru_cache(maxsize=4096)
 def inchikey(smiles: str) -> str | None:
     """Standard InChIKey of a SMILES, or None when it does not parse."""
     Chem = _rdkit()

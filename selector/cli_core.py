@@ -63,24 +63,6 @@ def target_notes(tgt) -> str:
     return "".join(f"\nNOTE: {n}" for n in getattr(tgt, "notes", ()))
 
 
-def _smiles_like(text: str) -> bool:
-    """True for text made only of SMILES pieces (organic-subset atoms, bracket atoms, bonds, ring
-    digits, branches) with at least one bond, branch, bracket or ring digit: "C1CC", "CC(=O", not
-    trade names such as "PEG400" or "D5".
-
-    >>> [_smiles_like(t) for t in ("C1CC", "CC(=O", "PEG400", "D5", "toluene")]
-    [True, True, False, False, False]
-    """
-    import re
-
-    t = text.strip()
-    if not t or " " in t:
-        return False
-    bare = re.sub(r"\[[^\]]*\]", "", t)
-    pieces = re.fullmatch(r"(?:Cl|Br|[BCNOPSFI]|[bcnops]|[0-9%=#()@+\-\\/.\[\]])+", bare)
-    return bool(pieces) and bool(re.search(r"[0-9=#()\[\]@]", t))
-
-
 def unknown_liquid_hint(text: str, err, target: bool = True) -> Exception:
     """The error for an unknown liquid: when ``text`` reads as a SMILES, a message that says how to
     estimate it (``likewise guess ... --save-mine``); where a target is asked for (``target``) and
@@ -101,7 +83,9 @@ def unknown_liquid_hint(text: str, err, target: bool = True) -> Exception:
         return SelectorError(f"unknown liquid {text!r}: it reads as a SMILES that is not in the library; "
                              f"estimate its HSP with  likewise guess '{text}' --save-mine my_liquids.csv  "
                              "and then add --mine my_liquids.csv")
-    if _smiles_like(text) and Chem.MolFromSmiles(text) is None:
+    from .library import _looks_like_smiles
+
+    if _looks_like_smiles(text.strip()) and Chem.MolFromSmiles(text) is None:
         return SelectorError(f"{err}; read as a SMILES it is not valid either (check ring-closure digits, "
                              "brackets and bond symbols)")
     return err

@@ -773,10 +773,9 @@ def _record(row, name) -> dict:
         raise SelectorError(f"{name}: {rec['smiles']!r} is not a valid SMILES string")
     rec["inchikey"] = _clean(get("inchikey", ""))
     if not rec["inchikey"] and rec["smiles"]:
-        from rdkit import Chem
+        from .chem import inchikey
 
-        mol = Chem.MolFromSmiles(rec["smiles"])
-        rec["inchikey"] = (Chem.MolToInchiKey(mol) or "") if mol is not None else ""
+        rec["inchikey"] = inchikey(rec["smiles"]) or ""
     rec["sources_disagree"] = str(get("sources_disagree", False)).lower() == "true"
     rec["origin"] = str(get("origin", "") or "")
     rec["cas"] = _clean(get("cas", ""))
@@ -919,7 +918,7 @@ class Miscibility:
     def reference_contradicts(self) -> bool:
         """The reference data answer and say one phase where the model says two, or the reverse:
         the model's own numbers (chi, UCST, gap, solubilities) are then its error."""
-        return bool(self.reference) and (self.reference["state"] == "miscible") != (self.state == "miscible")
+        return bool(self.reference) and _one_phase_differs(self.reference["state"], self.state)
 
     @property
     def headline(self) -> str:
@@ -1245,24 +1244,25 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
         which = " and ".join(r["name"] for r in (ra_, rb_) if _ranges(r) is not None)
         notes.append(f"within the 90 % intervals of {which} the state can be "
                      + ", ".join(sorted(set(found) | {state})) + " (states at the corners of the intervals)")
-    if ra_["name"] == rb_["name"] and np.allclose(h1, h2) and v1 == v2:
+    same = ra_["name"] == rb_["name"] and np.allclose(h1, h2) and v1 == v2
+    if same:
         notes = [n for n in notes[:1] if "is a reagent, not a solvent" in n] + [
             "the same liquid on both sides: it forms one phase with itself, there is nothing to predict"]
     else:
         notes.append("a model estimate: confirm with a small test mix, and read the safety data sheets "
                      "of both liquids first")
     second, disagree = {}, False
-    same = ra_["name"] == rb_["name"] and np.allclose(h1, h2) and v1 == v2
     if unifac and not same:
+        from .chem import molar_mass
         from .unifac import second_opinion
 
-        mm = [r["molar_mass"] if math.isfinite(r["molar_mass"]) else _mass_from_smiles(r["smiles"])
+        mm = [r["molar_mass"] if math.isfinite(r["molar_mass"]) else molar_mass(r["smiles"])
               for r in (ra_, rb_)]
         lacking = [r["name"] for r, m_ in zip((ra_, rb_), mm) if not math.isfinite(m_)]
         second = second_opinion(ra_["inchikey"], rb_["inchikey"], mm[0], mm[1], t) if not lacking else {
             "method": "", "state": "", "why": f"no molar mass or structure for {' and '.join(lacking)}"}
         if second["state"]:
-            disagree = (second["state"] == "miscible") != (state == "miscible")
+            disagree = _one_phase_differs(second["state"], state)
             if disagree:
                 conf = "low"
                 notes.insert(0, f"second opinion: {second['method']}, with the parameters and groups thermo "
@@ -1278,7 +1278,7 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
     at25 = "at 25 C" if abs(t - 25.0) < 1e-9 else f"at 25 C, which holds at {t:g} C too (within {REFERENCE_WINDOW_C:g} C)"
     if ref:
         conf = "high"
-        if (ref["state"] == "miscible") != (state == "miscible"):
+        if _one_phase_differs(ref["state"], state):
             # the model's own account (its UCST, its gap, its solubilities) contradicts the answer
             notes[:] = [n for n in notes if not n.startswith(MODEL_NOTE_PREFIXES)]
             notes.insert(0, f"reference data ({ref['source']}) say {ref['state']} {at25}, and that is the "
@@ -1303,15 +1303,10 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
                        reacts, doubtful, second, bool(disagree), ref)
 
 
-def _mass_from_smiles(smiles: str) -> float:
-    """Molar mass (g/mol) from a SMILES by RDKit, NaN without one."""
-    if not smiles:
-        return math.nan
-    from rdkit import Chem
-    from rdkit.Chem import Descriptors
-
-    mol = Chem.MolFromSmiles(smiles)
-    return float(Descriptors.MolWt(mol)) if mol is not None else math.nan
+def _one_phase_differs(state_a: str, state_b: str) -> bool:
+    """Two answers differ on one phase in all proportions or not (partially miscible and
+    immiscible both mean "not")."""
+    return (state_a == "miscible") != (state_b == "miscible")
 
 
 #: Notes that describe the model's own phase behaviour (dropped where the reference data say otherwise).

@@ -148,6 +148,17 @@ def _acc3(states, truth3):
     return float(np.mean(np.asarray(states)[k] == t[k])), int(k.sum())
 
 
+def second_states(pairs: pd.DataFrame) -> np.ndarray:
+    """UNIFAC's state at 25 C for each reference pair, "" where it covers none: the very
+    :func:`selector.unifac.second_opinion` that :func:`selector.miscibility` uses."""
+    from .unifac import second_opinion
+
+    lib = load_library().drop_duplicates("cas").set_index("cas")
+    return np.array([second_opinion(lib.at[a, "inchikey"], lib.at[b, "inchikey"], lib.at[a, "molar_mass"],
+                                    lib.at[b, "molar_mass"], 25.0)["state"]
+                     for a, b in zip(pairs["cas_a"], pairs["cas_b"])], dtype=object)
+
+
 def _check_pairs_section(with_unifac: bool) -> list[str]:
     """The models on ``parameters/miscibility_facts.csv``: pairs known from the trade that no fit
     has seen (a held-out set; :func:`selector.miscibility` answers them from the table)."""
@@ -168,10 +179,7 @@ def _check_pairs_section(with_unifac: bool) -> list[str]:
                f"{int(right.sum())} of {n} (miscible or not; three-way state {_pct(a3)} of {n3}); wrong on "
                + (", ".join(wrong) if wrong else "none") + "."]
     if with_unifac:
-        d = unifac_states(fc, 1).set_index("pair")
-        o = unifac_states(fc, 0).set_index("pair")
-        second = np.array([d.at[k, "state"] if d.at[k, "covered"] else (o.at[k, "state"] if o.at[k, "covered"] else "")
-                           for k in range(n)], dtype=object)
+        second = second_states(fc.pairs)
         has = second != ""
         u_right = has & ((second == "miscible") == fc.miscible)
         dis = has & ((second == "miscible") != (st == "miscible"))
@@ -229,10 +237,7 @@ def build_report(with_unifac: bool = True) -> str:
             lines.append(f"| {label} | {int(cov.sum())} of {n} | {_pct(acc)} (bundled donor/acceptor model on the same "
                          f"pairs: {_pct(hb_same)}) | {_pct(a3)} ({n3u} pairs) |")
     if with_unifac and len(unifac_rows) == 2:
-        # the second opinion of selector.miscibility: Dortmund where it covers the pair, else the original
-        d, o = unifac_rows[1].set_index("pair"), unifac_rows[0].set_index("pair")
-        second = np.array([d.at[k, "state"] if d.at[k, "covered"] else (o.at[k, "state"] if o.at[k, "covered"] else "")
-                           for k in range(n)], dtype=object)
+        second = second_states(pairs)
         has = second != ""
         model_one = st_h == "miscible"
         dis = has & ((second == "miscible") != model_one)

@@ -57,6 +57,11 @@ COLUMN_LABELS = {
 }
 
 
+#: GHS flash-point limits of flammable-liquid categories 2/3, 3/4 and 4/not classed (C; UN GHS
+#: Rev. 9, table 2.6.1): below 23, at most 60, at most 93.
+GHS_FLASH_LIMITS_C = (23.0, 60.0, 93.0)
+
+
 def flammability_category(flash_point_c, boiling_point_c) -> np.ndarray:
     """GHS flammable-liquid category text for each liquid (vectorised).
 
@@ -70,11 +75,12 @@ def flammability_category(flash_point_c, boiling_point_c) -> np.ndarray:
     fp = np.atleast_1d(np.asarray(flash_point_c, dtype=float))
     bp = np.broadcast_to(np.atleast_1d(np.asarray(boiling_point_c, dtype=float)), fp.shape)
     with np.errstate(invalid="ignore"):
+        c2, c3, c4 = GHS_FLASH_LIMITS_C
         conds = [np.isnan(fp),
-                 (fp < 23) & (bp <= 35),
-                 fp < 23,
-                 fp <= 60,
-                 fp <= 93]
+                 (fp < c2) & (bp <= 35),
+                 fp < c2,
+                 fp <= c3,
+                 fp <= c4]
     choices = [UNCLASSIFIED, "category 1 (extremely flammable)", "category 2 (highly flammable)",
                "category 3 (flammable)", "category 4 (combustible)"]
     return np.select(conds, choices, default="not classed (flash point > 93 C)").astype(object)

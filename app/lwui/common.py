@@ -227,7 +227,6 @@ _FOR_THE_PAGE = (
      "The *No halogenated liquids* box"),
     (re.compile(r"include_reactive, --include-reactive or the app's Include reagents"),
      "the *Include reagents* box"),
-    (re.compile(r"\((--[a-z-]+), ([a-z_]+)\)"), ""),
     (re.compile(r" \((min_fraction|threshold)\)"), ""),
 )
 
