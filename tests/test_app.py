@@ -133,6 +133,27 @@ def test_opens_on_invented_demo_with_rank_result(at):
     assert_flash_texts(at)
     # the usual cautions are shown next to a recommendation
     assert any("safety data sheet" in w.value for w in at.warning)
+
+
+def test_demo_flash_limit_can_be_cleared(at):
+    # the demo presets a minimum flash point; emptying the box must mean "no limit" again
+    f = demo_filters()
+    assert f["min_flash_point_c"] is not None
+    box = at.number_input(key="rank_fp")
+    assert box.value == float(f["min_flash_point_c"])
+    box.set_value(None).run()
+    assert not at.exception and not errors(at)
+    assert at.number_input(key="rank_fp").value is None
+    from selector.cli_core import demo_scenario
+
+    r = demo_scenario()["resin"]
+    f.pop("min_flash_point_c")
+    ref = selector.rank((r["delta_d"], r["delta_p"], r["delta_h"], r["radius"]), **f)
+    shown = at.dataframe[0].value
+    assert list(shown["name"]) == list(ref["name"].head(len(shown)))
+    # the limit dropped liquids, so clearing it must change the list the library gives
+    with_limit = selector.rank((r["delta_d"], r["delta_p"], r["delta_h"], r["radius"]), **demo_filters())
+    assert len(ref) > len(with_limit)
     # 3-D plot: liquids inside the sphere (RED < 1) and outside differ in marker shape and colour
     import json
 

@@ -401,8 +401,11 @@ def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool
                              step=10.0, key=f"{prefix}_bplo", help="-150 = no lower limit")
         hi = c3.number_input("Boiling point to (°C)", value=float(bp[1]) if bp[1] is not None else 600.0,
                              step=10.0, key=f"{prefix}_bphi", help="600 = no upper limit")
-        fp = c4.number_input("Minimum flash point (°C)", value=None if d.get("min_flash_point_c") is None else float(d["min_flash_point_c"]),
-                             step=5.0,
+        if d.get("min_flash_point_c") is not None and f"{prefix}_fp" not in st.session_state:
+            # preset through the session state, not ``value``: a box built with a number can
+            # never be emptied again, and an empty box is how "no limit" is asked for
+            st.session_state[f"{prefix}_fp"] = float(d["min_flash_point_c"])
+        fp = c4.number_input("Minimum flash point (°C)", value=None, step=5.0,
                              key=f"{prefix}_fp", placeholder="no limit",
                              help="liquids without flash-point data are dropped when set, except "
                                   "those known not to burn (water, dichloromethane, chloroform, ...)")
