@@ -28,7 +28,8 @@ NOT_COMPARED = ("estimated", "published")
 def for_display(df):
     """A copy of library rows for output: ``sources_disagree`` is blank (not False) where the HSP
     were not compared across published sources (estimated or published-table rows), and
-    ``viscosity_estimated`` is blank where there is no viscosity."""
+    ``viscosity_estimated`` is blank where there is no viscosity; exposure-limit sources are named
+    as in the reports (:func:`selector.report.exposure_source_names`)."""
     import numpy as np
 
     out = df.copy()
@@ -40,6 +41,11 @@ def for_display(df):
         none = out["viscosity_mpa_s"].isna().to_numpy()
         if none.any():
             out["viscosity_estimated"] = np.where(none, "", out["viscosity_estimated"].astype(object))
+    if "exposure_limit_source" in out.columns:
+        from .report import exposure_source_names
+
+        src = out["exposure_limit_source"]
+        out["exposure_limit_source"] = exposure_source_names(src.fillna("")).where(src.notna(), src)
     return out
 
 

@@ -86,6 +86,12 @@ def flammability_category(flash_point_c, boiling_point_c) -> np.ndarray:
     return np.select(conds, choices, default="not classed (flash point > 93 C)").astype(object)
 
 
+def exposure_source_names(src: pd.Series) -> pd.Series:
+    """Exposure-limit sources as a reader knows them: the reference library's key "Ontario Limits"
+    becomes "Ontario, Canada" (whose limits they are)."""
+    return src.astype(str).str.replace("Ontario Limits", "Ontario, Canada", regex=False)
+
+
 def _exposure_text(df: pd.DataFrame) -> np.ndarray:
     n = len(df)
     if "exposure_limit" not in df:
@@ -94,8 +100,7 @@ def _exposure_text(df: pd.DataFrame) -> np.ndarray:
     unit = df.get("exposure_limit_unit", pd.Series([""] * n, index=df.index)).astype(str).to_numpy()
     src = df.get("exposure_limit_source", pd.Series([""] * n, index=df.index)).astype(str).to_numpy()
     txt = pd.Series(v).map(lambda x: f"{x:.4g}").to_numpy(object) + " " + unit
-    src = pd.Series(src, dtype=object).astype(str).str.replace("Ontario Limits", "Ontario, Canada",
-                                                              regex=False).to_numpy(object)
+    src = exposure_source_names(pd.Series(src, dtype=object)).to_numpy(object)
     txt = np.where(src != "", txt + " (" + src + ")", txt)
     none = NO_LIMIT
     if "short_term_limit" in df:

@@ -671,7 +671,13 @@ def test_show_says_whose_exposure_limit(capsys):
 
     assert main(["show", "NMP"]) == 0
     out = capsys.readouterr().out
-    assert "Ontario Limits" in out and "may be much lower" in out
+    # named as the reports name it, not by the reference library's key ("Ontario Limits")
+    assert "Ontario, Canada" in out and "Ontario Limits" not in out and "may be much lower" in out
+    assert main(["show", "NMP", "--format", "csv"]) == 0
+    import io
+
+    shown = pd.read_csv(io.StringIO(capsys.readouterr().out))
+    assert shown["exposure_limit_source"].tolist() == ["Ontario, Canada"]
 
 
 def test_non_flammable_chlorinated_solvents_have_no_flash_point(lib):
