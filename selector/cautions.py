@@ -26,7 +26,8 @@ Pairs that react with each other are screened too (:func:`reactive_pair_matrix`,
 :data:`PAIR_RULES`): an acid with an amine or pyridine, an amine with a nitroalkane, a primary
 or secondary amine with an aldehyde or ketone, or with an ester, lactone or carbonate, an aromatic
 amine with an aldehyde, an amine with a polyhalogenated alkane or an alkyl bromide, a primary or
-secondary amine with carbon disulfide. Blends and substitutes never pair them unless
+secondary amine with carbon disulfide, an isocyanate with an amine, water or an alcohol, an
+epoxide with an amine or an acid, an acid with furfuryl alcohol or an enol ether. Blends and substitutes never pair them unless
 ``include_reactive=True``, and then ``hazard_notes`` says "REACTIVE PAIR".
 
 This is a screen, not a hazard assessment: a liquid without a reason can still be dangerous,
@@ -385,6 +386,13 @@ PAIR_CLASSES = (
     # secondary alkyl bromides and iodides (bromoethane, 1-bromopropane): they alkylate amines
     ("halocarbon", "[$([CX4]([Cl,Br,I])[Cl,Br,I]),$([CX4]([Cl,Br,I])[CX4][Cl,Br,I]),$([CX4;H2,H1][Br,I])]"),
     ("carbon disulfide", "S=C=S"),
+    # alkyl vinyl and other enol ethers (ethyl vinyl ether, 2-methoxypropene, dihydropyran)
+    ("enol ether", "[CX3]=[CX3]-[OX2]-[CX4]"),
+    ("furfuryl alcohol", "[CX4;H2,H1]([OX2H1])c1ccco1"),
+    ("epoxide", "[CX4]1[OX2][CX4]1"),
+    ("isocyanate", "[NX2]=[CX2]=[OX1]"),
+    # water, alcohols, glycols and phenols (not the OH of an acid)
+    ("hydroxyl", "[$([OX2H2]),$([OX2H1][#6;!$([#6]=[O,S,N])])]"),
 )
 
 #: Pairs of classes that should not be blended: (class a, class b, why). Common practice (acid and
@@ -397,10 +405,26 @@ PAIR_CLASSES = (
 #: chemistry); amines sensitising nitroalkanes to detonation, and amines reacting with
 #: polyhalogenated alkanes and alkyl bromides (ethylenediamine with carbon tetrachloride;
 #: pyridine and triethylamine quaternise in dichloromethane on standing; the Menshutkin
-#: reaction), are from memory.
+#: reaction), are from memory. Common practice too: amines and acids open epoxides (the epoxy
+#: cure, exothermic and able to run away in bulk); isocyanates react with amines (ureas), with
+#: water, alcohols and phenols (urethanes; water gives carbon dioxide that bursts closed drums);
+#: acids set off furfuryl alcohol's resinification (furan binders are cured with acid) and
+#: add to enol ethers (the acid-catalysed protection of alcohols with dihydropyran or
+#: 2-methoxypropene), which with strong acids polymerise violently (the last from memory).
 PAIR_RULES = (
     # most severe first: a pair that two rules match is named by the first
     ("base", "nitroalkane", "amine + nitroalkane: the amine sensitises the nitro compound to detonation"),
+    ("isocyanate", "primary amine", "isocyanate + amine: they react fast and hot (urea)"),
+    ("isocyanate", "secondary amine", "isocyanate + amine: they react fast and hot (urea)"),
+    ("isocyanate", "hydroxyl", "isocyanate + water, alcohol or phenol: they react exothermically (urethane; "
+                               "water gives carbon dioxide, which can burst a closed container)"),
+    ("base", "epoxide", "amine + epoxide: they react exothermically (the epoxy cure), able to run away "
+                        "in bulk"),
+    ("acid", "epoxide", "acid + epoxide: the ring opens exothermically"),
+    ("acid", "furfuryl alcohol", "acid + furfuryl alcohol: the acid sets off its exothermic resinification "
+                                 "(violent with strong acids)"),
+    ("acid", "enol ether", "acid + vinyl or enol ether: the acid adds to the ether and sets off its "
+                           "hydrolysis or polymerisation, exothermically"),
     ("acid", "base", "acid + base: they react (salt, heat)"),
     ("base", "halocarbon", "amine + polyhalogenated alkane or alkyl bromide: they react (alkylation, "
                            "loss of HCl or HBr), slowly on standing with dichloromethane, fast and hot "

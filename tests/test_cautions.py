@@ -292,6 +292,52 @@ def test_amine_pairs_with_esters_aldehydes_and_halocarbons():
     assert "amine + polyhalogenated alkane" in text
 
 
+def test_epoxides_isocyanates_enol_ethers_and_furfuryl_alcohol_with_their_partners():
+    # Common practice: amines cure epoxies (exothermic, runaway in bulk) and acids open them;
+    # isocyanates react with amines, water and alcohols (polyurethane chemistry; water gives CO2);
+    # acids cure furfuryl alcohol (furan foundry binders). From memory: acids add to enol ethers
+    # (dihydropyran and 2-methoxypropene are used with an acid catalyst to protect alcohols).
+    from selector.cautions import pair_reasons, reactive_pair_matrix
+
+    names = ["propylene oxide", "ethylenediamine", "acetic acid", "methyl isocyanate", "water", "ethanol",
+             "butylamine", "furfuryl alcohol", "formic acid", "ethyl vinyl ether", "3,4-dihydro-2h-pyran",
+             "toluene", "acetone", "ethyl acetate", "vinyl acetate"]
+    rows = pd.concat([LIB.loc[[selector.find_liquid(n, LIB).name]] for n in names]).reset_index(drop=True)
+    pos = {n: i for i, n in enumerate(names)}
+    m = reactive_pair_matrix(rows)
+
+    def reacts(a, b):
+        return bool(m[pos[a], pos[b]]) and bool(m[pos[b], pos[a]])
+
+    assert reacts("propylene oxide", "ethylenediamine") and reacts("propylene oxide", "acetic acid")
+    assert reacts("methyl isocyanate", "water") and reacts("methyl isocyanate", "ethanol")
+    assert reacts("methyl isocyanate", "butylamine")
+    assert reacts("furfuryl alcohol", "formic acid") and reacts("ethyl vinyl ether", "acetic acid")
+    assert reacts("3,4-dihydro-2h-pyran", "formic acid")
+    # what they are blended with every day stays unflagged: alcohols with epoxides' usual diluents,
+    # furfuryl alcohol with water and ethanol, vinyl ethers with esters and ketones, and an
+    # enol ester (vinyl acetate) is not an enol ether
+    for a, b in [("furfuryl alcohol", "water"), ("furfuryl alcohol", "ethanol"), ("ethyl vinyl ether", "acetone"),
+                 ("ethyl vinyl ether", "ethyl acetate"), ("vinyl acetate", "acetic acid"), ("water", "ethanol"),
+                 ("propylene oxide", "toluene"), ("methyl isocyanate", "toluene")]:
+        assert not reacts(a, b), (a, b)
+    text = " ".join(pair_reasons(rows))
+    assert "propylene oxide + ethylenediamine: amine + epoxide" in text
+    assert "methyl isocyanate + water: isocyanate + water, alcohol or phenol" in text
+    assert "furfuryl alcohol + formic acid: acid + furfuryl alcohol" in text
+    # the blend search never pairs them (furfuryl alcohol and the vinyl ethers are not reagents)
+    from selector.blends import find_blends
+
+    pool = ["furfuryl alcohol", "formic acid", "acetic acid", "ethyl vinyl ether", "toluene", "ethanol"]
+    both = LIB.loc[LIB["name"].isin(pool)]
+    target = tuple(both[["delta_d", "delta_p", "delta_h"]].mean().round(1))
+    res = find_blends(target, include=pool, max_components=2, top=50, min_gain=0.0)
+    acids = {"formic acid", "acetic acid"}
+    assert len(res) > 3
+    for cs in res["components"]:
+        assert not (set(cs) & acids and set(cs) & {"furfuryl alcohol", "ethyl vinyl ether"}), cs
+
+
 def test_replacements_for_dmf_pair_no_amine_with_an_ester():
     # the review's case: DMF's replacements had ethylenediamine with propylene carbonate or
     # gamma-butyrolactone (common practice: they react)

@@ -174,6 +174,7 @@ def main() -> None:
 
     def switch_target(i):
         at.switch_page("views/target.py").run()
+        at.segmented_control(key="tg_way").set_value("A library liquid").run()
         at.text_input(key="tg_q").set_value(["toluene", "acetone", "ethanol", "NMP", "hexane",
                                               "2-butanone", "anisole"][i])
         at.button(key="tg_use_liq").click().run()
@@ -199,6 +200,7 @@ def main() -> None:
 
     def blends_target(i):
         at.switch_page("views/target.py").run()
+        at.segmented_control(key="tg_way").set_value("A library liquid").run()
         at.text_input(key="tg_q").set_value(names[i])
         at.button(key="tg_use_liq").click().run()
         t = time.perf_counter()
