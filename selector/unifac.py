@@ -75,14 +75,54 @@ def _lower_hull(x, y):
     return hull
 
 
+def ge_over_rt(model, x) -> np.ndarray:
+    """GE/RT of a binary at the liquid-1 mole fractions ``x``, all at once, from the parameters of
+    a ``thermo.unifac.UNIFAC`` model (its r, q, group Q, group counts and psi at the model's T).
+
+    The same UNIFAC equations thermo evaluates one composition at a time (combinatorial part
+    with r^(3/4) for Dortmund; residual part from the group activity coefficients of the mixture
+    and of each pure liquid); ``tests/test_mixing.py`` checks them against thermo's own GE.
+    """
+    if model.version not in (0, 1):
+        raise ValueError(f"UNIFAC version {model.version} is not handled (0 original, 1 Dortmund)")
+    x = np.asarray(x, float)
+    X = np.column_stack([x, 1.0 - x])                       # (n, 2) component mole fractions
+    rs, qs = np.asarray(model.rs, float), np.asarray(model.qs, float)
+    Q = np.asarray(model.Qs, float)                          # (G,)
+    v = np.asarray(model.vs, float)                          # (G, 2)
+    psi = np.asarray(model.psis(), float)                    # (G, G): psi[m, k]
+    # combinatorial part
+    V = rs / (X @ rs)[:, None]
+    F = qs / (X @ qs)[:, None]
+    if model.version == 1:
+        r34 = rs ** 0.75
+        Vp = r34 / (X @ r34)[:, None]
+    else:
+        Vp = V
+    ln_c = 1.0 - Vp + np.log(Vp) - 5.0 * qs * (1.0 - V / F + np.log(V / F))
+
+    def ln_Gamma(Xg):        # residual part; Xg: (..., G) group mole fractions
+        th = Q * Xg
+        th = th / th.sum(-1, keepdims=True)
+        s = th @ psi                                         # sum_m theta_m psi_mk -> (..., G)
+        return Q * (1.0 - np.log(s) - (th / s) @ psi.T)
+    Xg = X @ v.T                                             # (n, G)
+    Xg = Xg / Xg.sum(1, keepdims=True)
+    lg = ln_Gamma(Xg)                                        # (n, G)
+    pure = v.T / v.T.sum(1, keepdims=True)                   # (2, G)
+    lg_pure = ln_Gamma(pure)                                 # (2, G)
+    ln_r = lg @ v - (v * lg_pure.T).sum(0)                   # (n, 2)
+    return (X * (ln_c + ln_r)).sum(1)
+
+
 def unifac_split(groups, T: float = 298.15, version: int = 0):
     """(x_a, x_b) coexisting mole fractions of liquid 1 at ``T`` (K), or None for one phase."""
     from thermo.unifac import UNIFAC
 
     model = UNIFAC.from_subgroups(T=T, xs=[0.5, 0.5], chemgroups=groups, version=version)
     x = XGRID
-    ge = np.array([model.to_T_xs(T, [xi, 1.0 - xi]).GE() for xi in x])
-    g = ge / (8.314462618 * T) + x * np.log(x) + (1 - x) * np.log1p(-x)
+    with np.errstate(all="ignore"):
+        g = ge_over_rt(model, x) + x * np.log(x) + (1 - x) * np.log1p(-x)
     if not np.isfinite(g).all():
         raise ValueError("UNIFAC gave a non-finite Gibbs energy of mixing")
     hull = _lower_hull(x, g)

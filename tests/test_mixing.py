@@ -482,6 +482,35 @@ def test_unifac_phase_split_wrapper():
     assert unifac_split([{16: 1}, {1: 1, 2: 1, 14: 1}], version=1) is None   # water, ethanol
 
 
+def test_unifac_gibbs_energy_matches_thermo_point_by_point():
+    # the split is found on GE/RT computed for all 401 compositions at once; the reference is
+    # thermo.unifac's own GE, one composition at a time, for both versions and two temperatures
+    from thermo.unifac import UNIFAC
+
+    from selector.chem import inchikey
+    from selector.unifac import XGRID, covered, ge_over_rt, groups_of
+
+    from selector.library import find_liquid
+
+    lib = load_library()
+    pairs = [("water", "ethyl acetate"), ("methanol", "hexane"), ("acetone", "toluene"),
+             ("water", "1-butanol"), ("ethanol", "dodecane")]
+    checked = 0
+    for a, b in pairs:
+        keys = [inchikey(find_liquid(n, lib).smiles) for n in (a, b)]
+        for version in (0, 1):
+            g = [groups_of(k, version) for k in keys]
+            if covered(g, version) is not None:
+                continue
+            for T in (298.15, 333.15):
+                m = UNIFAC.from_subgroups(T=T, xs=[0.5, 0.5], chemgroups=g, version=version)
+                xs = XGRID[::25]
+                ref = np.array([m.to_T_xs(T, [xi, 1 - xi]).GE() for xi in xs]) / (8.314462618 * T)
+                np.testing.assert_allclose(ge_over_rt(m, xs), ref, rtol=1e-9, atol=1e-12)
+                checked += 1
+    assert checked >= 16
+
+
 # ---------------------------------------------------------------- command line
 
 def test_cli_pair_and_grid(capsys, tmp_path):
