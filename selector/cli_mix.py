@@ -101,7 +101,7 @@ def cmd_grid(a) -> int:
 
     from .filters import filter_mask
     from .library import locate_many
-    from .mixing import miscibility_matrix
+    from .mixing import UNIFAC_MATRIX_MAX, miscibility_matrix
 
     from .cli_core import find_liquid_or_hint
     from .errors import SelectorError
@@ -145,10 +145,18 @@ def cmd_grid(a) -> int:
     out = shown.reset_index().rename(columns={"index": "liquid"})
     header = (f"{len(m)} liquids at {a.at:g} C; " + ("" if a.format != "table" else
               "mix = miscible in all proportions, part = partially miscible, no = immiscible")) + est_note
-    unsure = m.attrs.get("uncertain_pairs", [])
+    split = m.attrs.get("disagreeing_pairs", [])
+    apart = {frozenset((x, y)) for x, y, _, _ in split}
+    unsure = [p for p in m.attrs.get("uncertain_pairs", []) if frozenset(p) not in apart]
     if unsure:
         header += ("\nUNCERTAIN (water with a glycol ether, amine or pyridine; the model cannot be trusted on "
                    "them, test them): " + ", ".join(f"{x} + {y}" for x, y in unsure))
+    if split:
+        header += ("\nMODELS DISAGREE (UNIFAC's second opinion against the model shown; test them): "
+                   + ", ".join(f"{x} + {y} ({mt}: {s_})" for x, y, mt, s_ in split))
+    if not m.attrs.get("unifac_checked", True):
+        header += (f"\nNo UNIFAC second opinion for more than {UNIFAC_MATRIX_MAX} liquids: `likewise mix A B` "
+                   "gives it for a pair")
     pairs = m.attrs.get("reactive_pairs", [])
     if pairs:
         header += ("\nREACTIVE PAIRS (they react whatever the state; do not mix them except as a planned "

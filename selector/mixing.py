@@ -1549,8 +1549,13 @@ def _rows(liquids, library):
     return pd.DataFrame(recs).reset_index(drop=True)
 
 
+#: :func:`miscibility_matrix` asks UNIFAC for a second opinion on every pair up to this many
+#: liquids (435 pairs, about 1 s the first time; cached per pair), not for larger sets.
+UNIFAC_MATRIX_MAX = 30
+
+
 def miscibility_matrix(liquids, *, temperature: float = 25.0, library: pd.DataFrame | None = None,
-                       model=None) -> pd.DataFrame:
+                       model=None, unifac: bool | None = None) -> pd.DataFrame:
     """DataFrame of states ("miscible", "partially miscible", "immiscible") for every pair.
 
     ``liquids``: a list of names/CAS/user dicts, or a library-format DataFrame (up to the whole
@@ -1560,7 +1565,11 @@ def miscibility_matrix(liquids, *, temperature: float = 25.0, library: pd.DataFr
     model cannot be trusted on (:attr:`Miscibility.headline` says "uncertain"); within
     :data:`REFERENCE_WINDOW_C` of 25 C, pairs of the reference tables take their recorded state
     (``attrs["reference_pairs"]``), as in :func:`miscibility`.
-    The UNIFAC second opinion of :func:`miscibility` is left out here (it costs about 20 ms a pair).
+    The UNIFAC second opinion of :func:`miscibility` is asked for every pair when ``unifac`` is
+    True, or None (the default) and there are at most :data:`UNIFAC_MATRIX_MAX` liquids; pairs on
+    which it and the model disagree on one phase or two join ``attrs["uncertain_pairs"]`` and are
+    listed in ``attrs["disagreeing_pairs"]`` as ``(a, b, method, unifac_state)``;
+    ``attrs["unifac_checked"]`` says whether it was asked.
 
     >>> m = miscibility_matrix(["water", "hexane", "acetone"])
     >>> m.loc["water", "hexane"], m.loc["water", "acetone"]
@@ -1606,8 +1615,39 @@ def miscibility_matrix(liquids, *, temperature: float = 25.0, library: pd.DataFr
         known.append((names[p], names[q]))
     done = set(map(frozenset, known))
     out.attrs["reference_pairs"] = known
+    checked = (len(df) <= UNIFAC_MATRIX_MAX) if unifac is None else bool(unifac)
+    out.attrs["unifac_checked"] = checked
+    out.attrs["disagreeing_pairs"] = _matrix_disagreements(df, st, names, float(temperature), done) if checked else []
+    flagged = {frozenset(p) for p in unsure}
+    unsure += [(names.index(a), names.index(b)) for a, b, _, _ in out.attrs["disagreeing_pairs"]
+               if frozenset((names.index(a), names.index(b))) not in flagged]
     out.attrs["uncertain_pairs"] = [(names[w], names[k]) for w, k in unsure
                                     if frozenset((names[w], names[k])) not in done]
+    return out
+
+
+def _matrix_disagreements(df: pd.DataFrame, st: np.ndarray, names: list, t: float, skip: set) -> list:
+    """``(a, b, method, state)`` for the pairs of ``df`` (i < j, not in ``skip``) on which UNIFAC's
+    second opinion (:func:`selector.unifac.second_opinion`) and the model state ``st`` differ on one
+    phase or two."""
+    from .chem import inchikey, molar_mass
+    from .unifac import second_opinion
+
+    smiles = df["smiles"].astype("string").fillna("").astype(str).tolist() if "smiles" in df else [""] * len(df)
+    keys = (df["inchikey"].astype("string").fillna("").astype(str).tolist() if "inchikey" in df
+            else [""] * len(df))
+    keys = [k or (inchikey(s) or "" if s else "") for k, s in zip(keys, smiles)]
+    mass = (pd.to_numeric(df["molar_mass"], errors="coerce").to_numpy(float) if "molar_mass" in df
+            else np.full(len(df), np.nan))
+    mass = [m if math.isfinite(m) else (molar_mass(s) if s else float("nan")) for m, s in zip(mass, smiles)]
+    out = []
+    for i, j in zip(*np.triu_indices(len(df), 1)):
+        if (frozenset((names[i], names[j])) in skip or not keys[i] or not keys[j]
+                or not (math.isfinite(mass[i]) and math.isfinite(mass[j])) or keys[i] == keys[j]):
+            continue
+        so = second_opinion(keys[i], keys[j], mass[i], mass[j], t)
+        if so["state"] and _one_phase_differs(so["state"], str(st[i, j])):
+            out.append((names[i], names[j], so["method"], so["state"]))
     return out
 
 

@@ -638,7 +638,11 @@ def test_matrix_names_the_pairs_whose_state_is_uncertain():
     import selector
 
     m = selector.miscibility_matrix(["water", "1-methoxy-2-propanol", "triethylamine", "hexane"])
-    assert m.attrs["uncertain_pairs"] == [("water", "triethylamine")]
+    # water + triethylamine by the water rule; PGME + hexane because Dortmund UNIFAC (thermo)
+    # splits it where the HSP model does not
+    assert m.attrs["uncertain_pairs"] == [("water", "triethylamine"), ("1-methoxy-2-propanol", "hexane")]
+    assert m.attrs["disagreeing_pairs"] == [("1-methoxy-2-propanol", "hexane", "UNIFAC (Dortmund)",
+                                             "partially miscible")]
     for a, b in m.attrs["uncertain_pairs"]:
         assert selector.miscibility(a, b).headline.startswith("uncertain")
     # water + PGME is a check pair (parameters/miscibility_facts.csv: miscible, common practice):
@@ -709,6 +713,32 @@ def test_unifac_second_opinion_flags_disagreement():
     dmc = miscibility("water", "dimethyl carbonate", reference=False)
     assert dmc.second_opinion["state"] == "" and "no group assignment" in dmc.second_opinion["why"]
     assert any(n.startswith("no UNIFAC second opinion") for n in dmc.notes)
+
+
+def test_matrix_carries_the_unifac_second_opinion():
+    # the heat map and mix-grid flag what the pair view flags: glycerol + acetone (two layers,
+    # from memory; original UNIFAC as thermo carries it says so, the HSP model says miscible);
+    # methanol + triethylamine (miscible, common practice: triethylamine mixes with alcohols;
+    # Dortmund UNIFAC agrees, the HSP model says partially miscible)
+    names = ["glycerol", "acetone", "methanol", "triethylamine", "toluene", "heptane", "ethyl acetate"]
+    m = miscibility_matrix(names)
+    assert m.attrs["unifac_checked"]
+    split = {frozenset((a, b)): (mt, s) for a, b, mt, s in m.attrs["disagreeing_pairs"]}
+    assert split[frozenset(("glycerol", "acetone"))] == ("UNIFAC (original)", "partially miscible")
+    assert split[frozenset(("methanol", "triethylamine"))] == ("UNIFAC (Dortmund)", "miscible")
+    unsure = {frozenset(p) for p in m.attrs["uncertain_pairs"]}
+    assert set(split) <= unsure
+    # every pair: flagged in the matrix exactly when the pair view says the models disagree
+    # (pairs the reference tables answer are answered, not flagged)
+    recorded = {frozenset(p) for p in m.attrs["reference_pairs"]}
+    for i, a in enumerate(names):
+        for b in names[i + 1:]:
+            r = miscibility(a, b)
+            assert (frozenset((a, b)) in split) == (r.models_disagree and frozenset((a, b)) not in recorded), (a, b)
+    # off on request, and by default for a large set (whole-library screens)
+    assert miscibility_matrix(names, unifac=False).attrs["disagreeing_pairs"] == []
+    big = miscibility_matrix(load_library().head(40))
+    assert not big.attrs["unifac_checked"] and big.attrs["disagreeing_pairs"] == []
 
 
 def test_reference_pairs_answer_with_their_recorded_state():

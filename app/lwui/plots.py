@@ -184,13 +184,14 @@ def heat_map(states: pd.DataFrame, title="Miscibility at the chosen temperature"
     # pairs that react (selector.miscibility_matrix's attrs): "!" beside the symbol, said on hover
     reacts = {frozenset(p) for p in states.attrs.get("reactive_pairs", [])}
     unsure = {frozenset(p) for p in states.attrs.get("uncertain_pairs", [])}
+    second = {frozenset((a, b)): f"; {m}: {s}" for a, b, m, s in states.attrs.get("disagreeing_pairs", [])}
     idx, cols = list(states.index), list(states.columns)
     for i, r in enumerate(idx):
         for j, c in enumerate(cols):
             if frozenset((r, c)) in reacts:
                 text[i, j] += " - REACTIVE PAIR, do not mix"
             if frozenset((r, c)) in unsure:
-                text[i, j] = f"uncertain (model: {text[i, j]})"
+                text[i, j] = f"uncertain (model: {text[i, j]}{second.get(frozenset((r, c)), '')})"
     scale = [[0, BLUE], [0.333, BLUE], [0.334, YELLOW], [0.666, YELLOW], [0.667, VERMILLION], [1, VERMILLION]]
     symbols = {"miscible": "○", "partially miscible": "◐", "immiscible": "●"}
     fig = go.Figure(go.Heatmap(z=z, x=list(states.columns), y=list(states.index), zmin=-0.5, zmax=2.5,

@@ -183,9 +183,9 @@ with tab2:
         if mat is not None:
             st.plotly_chart(plots.heat_map(mat, f"Miscibility at {t2:g} °C"), width="stretch", key="mx_heat")
             st.caption("○ miscible · ◐ partially miscible · ● immiscible (colour and symbol both carry the state); "
-                       "! = the two react; ? = uncertain (water with a glycol ether, amine or pyridine, or a "
-                       "water pair whose model state changes between 25 °C and this temperature: the model "
-                       "cannot be trusted on such pairs, test them).")
+                       "! = the two react; ? = uncertain (water with a glycol ether, amine or pyridine, a "
+                       "water pair whose model state changes between 25 °C and this temperature, or a pair on "
+                       "which the UNIFAC second opinion disagrees with the model: test such pairs).")
             known = mat.attrs.get("reference_pairs", [])
             if known:
                 shown = ", ".join(f"{x} + {y}" for x, y in known[:6]) + (
@@ -193,8 +193,11 @@ with tab2:
                 st.caption(f"{len(known)} of these pairs are in the reference tables (published or common-practice "
                            f"facts at 25 °C, used within {REFERENCE_WINDOW_C:g} °C of it) and show their recorded "
                            f"state, not the model's: {shown}.")
-            st.caption("The heat map shows the HSP model (and the recorded states); the UNIFAC second opinion is "
-                       "worked out in the pair view only, so a pair can read *uncertain* there and plain here.")
+            split = mat.attrs.get("disagreeing_pairs", [])
+            if split:
+                st.caption("UNIFAC (as thermo carries it) disagrees with the HSP model on one phase or two for: "
+                           + ", ".join(f"{x} + {y} ({m}: {s})" for x, y, m, s in split)
+                           + ". The heat map shows the model's state with ?; the pair view gives both.")
             pairs = mat.attrs.get("reactive_pairs", [])
             if pairs:
                 st.warning("These pairs react with each other whatever their phase behaviour (amine + acid, "
