@@ -128,11 +128,11 @@ def warmup_timeline(wait_s: float = 20.0) -> None:
             pg.wait_for_timeout(int(wait_s * 1000))
             pg.locator("[data-testid='stSidebarNav']").get_by_text("Target", exact=True).click()
             pg.get_by_role("heading", name="Target", level=1).wait_for()
-            pg.get_by_role("tab", name="Estimate from a structure (SMILES)").click()
+            pg.get_by_role("radio", name="Estimate from a structure (SMILES)").click()   # the page's way chooser
             box = pg.get_by_label("SMILES", exact=True)
             box.fill("CCCCCCOC(=O)C1CCCCC1")   # hexyl cyclohexanecarboxylate: not in the library
             t_ask = time.perf_counter()
-            pg.get_by_role("button", name="Estimate").click()
+            pg.get_by_role("button", name="Estimate", exact=True).click()
             pg.get_by_text("90 % low").first.wait_for()
             t_answer = time.perf_counter() - t_ask
             browser.close()
