@@ -132,6 +132,21 @@ REACTIVE_GROUPS = (
     ("ketene or beta-lactone", "[$([CX3]=[CX2]=O),$(O=C1CCO1),$(O=C1C(=C)CO1),$(C=C1CC(=O)O1)]",
      "reacts violently, acylating agent; beta-propiolactone is a carcinogen"),
     ("primary enamine", "[NX3;H2][CX3]=[CX3]", "unstable, tautomerises to an imine; not a bench liquid"),
+    # Found by a numbers review among the top blends for a nitrocellulose sphere, unflagged.
+    # Acetylenic compounds (propargyl alcohol, phenylacetylene, cyanoacetylene, dicyanoacetylene)
+    # are energetic and terminal alkynes form explosive copper and silver acetylides (common
+    # practice); no solvent carries a C#C bond.
+    ("alkyne", "[CX2]#[CX2]", "acetylenic: energetic; terminal alkynes form explosive metal acetylides"),
+    # nitroalkenes (nitroethylene) polymerise violently and are lachrymators (from memory)
+    ("nitroalkene", "[CX3]=[CX3][$([N+](=O)[O-]),$(N(=O)=O)]", "energetic, polymerises, lachrymator"),
+    # conjugated nitriles beyond the acrylic ones (crotononitrile): toxic like acrylonitrile
+    # (from memory)
+    ("unsaturated nitrile", "[CX3]=[CX3]C#N", "toxic and polymerises, like acrylonitrile"),
+    # 1,2-dicarbonyls with an aldehyde (methylglyoxal, glyoxal): reactive, sensitising (from memory)
+    ("alpha-oxo aldehyde", "[CX3H1](=O)[CX3]=O", "reactive, sensitiser, mutagenic"),
+    # ortho-cresyl phosphates cause delayed nerve damage (tri-o-cresyl phosphate: the "ginger jake"
+    # paralysis; from memory)
+    ("ortho-cresyl phosphate", "P(=O)Oc1ccccc1[CH3]", "neurotoxic, delayed nerve damage"),
 )
 
 #: GHS statements that make a liquid a reagent wherever ``parameters/hazards.csv`` lists them:

@@ -63,6 +63,15 @@ def _reason(name):
     ("chloroacetaldehyde", "alpha-halo carbonyl"), ("chloral", "alpha-halo carbonyl"),
     ("4-pentenal", "aliphatic aldehyde"), ("butyraldehyde", "aliphatic aldehyde"),
     ("hexanal", "aliphatic aldehyde"),
+    # numbers review, round 4: these led blends for a nitrocellulose sphere. Acetylenic compounds
+    # are energetic and terminal alkynes form explosive metal acetylides (common practice);
+    # nitroethylene polymerises violently, crotononitrile is toxic like acrylonitrile,
+    # methylglyoxal is a reactive mutagen, tri-o-cresyl phosphate causes delayed nerve damage
+    # (all from memory)
+    ("propargyl alcohol", "alkyne"), ("phenylacetylene", "alkyne"), ("cyanoacetylene", "alkyne"),
+    ("2-butynedinitrile", "alkyne"), ("nitroethylene", "nitroalkene"),
+    ("trans-crotononitrile", "unsaturated nitrile"), ("methylglyoxal", "alpha-oxo aldehyde"),
+    ("tri-o-cresyl phosphate", "ortho-cresyl phosphate"),
 ])
 def test_reagents_are_flagged(name, kind):
     assert kind in _reason(name)
@@ -104,7 +113,10 @@ def test_very_low_exposure_limit_is_flagged():
                                   "tetrahydrothiophene", "2-chloroethyl acetate",
                                   # furfural: an extraction solvent (common practice); CF3 is no
                                   # benzylic halide (benzotrifluoride is a solvent, common practice)
-                                  "2-furaldehyde", "benzotrifluoride"])
+                                  "2-furaldehyde", "benzotrifluoride",
+                                  # plasticiser and extraction solvents: a phosphate without an
+                                  # ortho-cresyl group, a nitrile without a C=C (common practice)
+                                  "tributyl phosphate", "triethyl phosphate", "acetonitrile", "benzonitrile"])
 def test_ordinary_solvents_are_not_flagged(name):
     # Common practice: all of these are used as solvents (dibutyl phthalate has a low ppm limit
     # but hardly any vapour, so the exposure rule does not apply).
