@@ -151,6 +151,8 @@ def cmd_dry(a) -> int:
                     relative_humidity=a.humidity, activity=a.model, must_stay_until=a.keep_until,
                     points=a.points)
     lines = [p.attrs["message"]] + [f"warning: {w}" for w in p.attrs["warnings"]]
+    if a.format != "table":
+        lines.append(p.attrs["caution"])     # with the header on stderr (emit)
     emit(p, a, None, caution=False, header="\n".join(lines))
     if a.format == "table":
         print(p.attrs["caution"])

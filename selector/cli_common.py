@@ -328,7 +328,8 @@ def emit(df, a, columns=None, caution: bool = False, header: str | None = None,
     """Print or write a result table in the chosen format.
 
     An empty table prints ``empty`` (one line) instead of an empty grid. ``-o`` is vetted by
-    :func:`check_file_args` and written atomically.
+    :func:`check_file_args` and written atomically. In CSV and JSON the ``header`` lines and the
+    caution go to stderr, so that nothing the table would have said is lost.
     """
     from .io import to_csv_text, to_json_text, write_atomic
 
@@ -358,6 +359,12 @@ def emit(df, a, columns=None, caution: bool = False, header: str | None = None,
         if caution:
             text += "\n\n" + CAUTION
         text += "\n"
+    if fmt != "table":
+        # the table's header lines (warnings, uncertain or reacting pairs) and the caution must not
+        # vanish with the machine-readable formats: they go to stderr, stdout stays CSV or JSON
+        for extra in (header, CAUTION if caution else None):
+            if extra:
+                print(extra, file=sys.stderr)
     if len(df) == 0 and (fmt != "table" or out):
         print(empty, file=sys.stderr)
     if out:
