@@ -786,6 +786,15 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
         raise SelectorError(f"min_gain must be a number of MPa^0.5, got {min_gain!r}") from None
     if not math.isfinite(gain) or gain < 0:
         raise SelectorError("min_gain must be a finite number >= 0 (MPa^0.5)")
+    try:
+        step = float(resolution)
+    except (TypeError, ValueError):
+        raise SelectorError(f"resolution must be a number of MPa^0.5, got {resolution!r}") from None
+    if not (math.isfinite(step) and step > 0):
+        raise SelectorError(f"resolution must be a positive number of MPa^0.5 (the Ra step of the display "
+                            f"order), got {resolution!r}")
+    if max_components is True or max_components is False:
+        raise SelectorError(f"max_components must be 1, 2 or 3, got {max_components!r}")
     tgt, cand, h, t_c, (cost, price_notes) = _target_and_candidates(target, library, temperature, filters,
                                                                       cost_per_litre)
     mis = _allowed_pairs(cand, t_c, kmax, require_miscible, bool(filters.get("include_reactive")))
@@ -961,7 +970,9 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     # energetic candidates are searched with the others; their blends are dropped below unless
     # asked for (liquids named on purpose with include stay)
     energetic = []
-    if not include_energetic and filt.get("include") is None:
+    from .filters import as_flag
+
+    if not as_flag(include_energetic, "include_energetic") and filt.get("include") is None:
         hd = set(lib["name"].to_numpy(str)[hz_all["high_decomposition_energy"].to_numpy(bool)])
         energetic = [n for n in cand["name"].astype(str) if n in hd]
     mis = _allowed_pairs(cand, t_c, k, require_miscible, bool(filt.get("include_reactive")))

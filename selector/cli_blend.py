@@ -32,7 +32,7 @@ def _prices(path):
     from .io import read_user_csv
 
     # UTF-8 or Windows-1252, comma/semicolon/tab, decimal commas; "file not found: PATH"
-    t = read_user_csv(path, what=f"the price list {path}")
+    t = read_user_csv(path, what=f"the price list {path}", strict_rows="longer")
     cols = {c.strip().lower(): c for c in t.columns}
     if "name" not in cols or "cost_per_litre" not in cols:
         raise SelectorError(f"the price list {path} needs columns name, cost_per_litre")

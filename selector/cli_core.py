@@ -3,6 +3,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import sys
 
 from .cli_common import add_filter_args, add_output_args, emit, filters_from_args, library_from_args
 
@@ -338,9 +339,11 @@ def cmd_demo(a) -> int:
     f = dict(sc["filters"])
     f["boiling_point_c"] = tuple(f["boiling_point_c"])
     res = rank((r["delta_d"], r["delta_p"], r["delta_h"], r["radius"]), temperature=sc["temperature_c"], **f)
-    print(sc["label"])
-    print(sc["story"])
-    print()
+    # the story is for people: on stderr when the table is CSV or JSON, so stdout stays parseable
+    story = sys.stderr if a.format != "table" else sys.stdout
+    print(sc["label"], file=story)
+    print(sc["story"], file=story)
+    print(file=story)
     header = (f"Thinners for {r['name']} (dD {r['delta_d']}, dP {r['delta_p']}, dH {r['delta_h']}, "
               f"R0 {r['radius']} MPa^0.5), boiling point {f['boiling_point_c'][0]:g}-{f['boiling_point_c'][1]:g} C, "
               f"flash point >= {f['min_flash_point_c']:g} C"

@@ -42,6 +42,18 @@ FILTER_KEYS = ("include", "exclude", "boiling_point_c", "min_flash_point_c", "ma
                "halogen_free")
 
 
+def as_flag(v, what: str) -> bool:
+    """An on/off option as a bool: True/False (numpy's too), 1/0 or None (off). Text such as
+    "False" or "no" is refused: ``bool("False")`` would turn the option on."""
+    if v is None:
+        return False
+    if isinstance(v, (bool, np.bool_)):
+        return bool(v)
+    if isinstance(v, (int, np.integer)) and int(v) in (0, 1):
+        return bool(v)
+    raise SelectorError(f"{what} must be True or False, got {v!r}")
+
+
 def _as_list(v, what):
     if v is None:
         return None
@@ -186,7 +198,7 @@ def nothing_passes(filters: dict, left_out: int = 0, extra: str = "") -> str:
 def masks_and_reagents(library: pd.DataFrame, **filters) -> tuple[np.ndarray, int]:
     """``(mask, left_out)``: the :func:`filter_mask` and how many liquids pass every other filter
     but are left out as reagents (0 with ``include_reactive=True``)."""
-    include_reactive = bool(filters.pop("include_reactive", False))
+    include_reactive = as_flag(filters.pop("include_reactive", False), "include_reactive")
     loose = _mask(library, **filters)
     if include_reactive or filters.get("include") is not None:   # liquids named on purpose pass
         return loose, 0
@@ -236,9 +248,9 @@ def _mask(library: pd.DataFrame, *, temperature: float = 25.0, include=None, exc
             raise SelectorError("max_molar_volume must be a positive number of cm3/mol")
         with np.errstate(invalid="ignore"):
             mask &= library["molar_volume"].to_numpy(float) <= v
-    if consistent_sources_only:
+    if as_flag(consistent_sources_only, "consistent_sources_only"):
         mask &= ~library["sources_disagree"].to_numpy(bool)
-    if halogen_free:
+    if as_flag(halogen_free, "halogen_free"):
         mask &= ~halogenated(library)
     if flash_point_c is not None:
         flo, fhi = _window(flash_point_c, "flash-point window")

@@ -212,11 +212,13 @@ def _fix_decimal_commas(df: pd.DataFrame) -> pd.DataFrame:
     return df
 
 
-def _ragged_rows(text: str, delimiter: str) -> list[str]:
+def _ragged_rows(text: str, delimiter: str, longer_only: bool = False) -> list[str]:
     rows = list(csv.reader(io.StringIO(text), delimiter=delimiter))
     width = len(rows[0]) if rows else 0
     return [f"row {i + 1} has {len(r)} fields, the header has {width}"
-            for i, r in enumerate(rows[1:], start=1) if r and len(r) != width]
+            + (" (a decimal comma, or a comma inside a name without quotes?)" if len(r) > width else "")
+            for i, r in enumerate(rows[1:], start=1)
+            if r and (len(r) > width if longer_only else len(r) != width)]
 
 
 def _source_bytes(source) -> tuple[bytes, str]:
@@ -250,7 +252,8 @@ def read_user_csv(source, *, what: str | None = None, strict_rows: bool = False,
     ``source``: a path, the file's bytes, or a file-like object (``getvalue()``/``read()``).
     ``what`` names the file in messages (default: its file name). ``strict_rows``: rows with
     more or fewer fields than the header are an :class:`~selector.errors.InputTableError`
-    listing them (pandas would fill or fail on them). ``read_kw`` go to :func:`pandas.read_csv`
+    listing them (pandas would fill or fail on them); ``"longer"``: only rows with more fields
+    (pandas would shift such a row's cells one column to the right, silently). ``read_kw`` go to :func:`pandas.read_csv`
     (``dtype``, ``keep_default_na``, ``na_values``...). The result's ``attrs`` hold
     ``encoding`` and ``delimiter``. A missing file is "file not found: PATH".
     """
@@ -264,7 +267,7 @@ def read_user_csv(source, *, what: str | None = None, strict_rows: bool = False,
     sep = sniff_delimiter(text)
     try:
         if strict_rows:
-            ragged = _ragged_rows(text, sep)
+            ragged = _ragged_rows(text, sep, longer_only=strict_rows == "longer")
             if ragged:
                 raise InputTableError(label, ragged[:20])
         if sep == ",":

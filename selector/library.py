@@ -62,6 +62,14 @@ RANGES = {
 _CAS_RE = re.compile(r"^\d{2,7}-\d{2}-\d$")
 
 
+def cas_check_digit_ok(cas: str) -> bool:
+    """True when the last digit of a CAS number in ``_CAS_RE`` form is its check digit (the
+    other digits weighted 1, 2, 3, ... from the right, summed, modulo 10; CAS registry rule)."""
+    digits = cas.replace("-", "")
+    body, check = digits[:-1], int(digits[-1])
+    return sum(int(d) * w for w, d in enumerate(reversed(body), start=1)) % 10 == check
+
+
 def default_user_data_dir() -> Path:
     """The user data folder when ``LIKEWISE_HOME`` is not set: ``~/.local/share/likewise``."""
     return Path.home() / ".local" / "share" / "likewise"
@@ -286,7 +294,7 @@ def _as_frame(table) -> pd.DataFrame:
     if isinstance(table, pd.DataFrame):
         return table.copy()
     if isinstance(table, (str, Path, bytes, bytearray, io.IOBase)) or hasattr(table, "getvalue"):
-        df = read_user_csv(table, keep_default_na=False, na_values=[""], dtype={"cas": str})
+        df = read_user_csv(table, strict_rows="longer", keep_default_na=False, na_values=[""], dtype={"cas": str})
         return rename_aliases(df, USER_COLUMN_ALIASES, "user liquids")
     raise SelectorError("a table must be a CSV path or a pandas DataFrame")
 
@@ -407,11 +415,22 @@ def _check_user_table(table):
         for i, k in enumerate(df["kind"]):
             if k not in ("liquid", "solute"):
                 problems.append(([i], f"row {i + 2} ({df['name'].iloc[i]}): kind {k!r} must be 'liquid' or 'solute'"))
+    if "smiles" in df.columns:
+        from .chem import canonical_smiles
+
+        sm = _text(df["smiles"])
+        for i, smi in enumerate(sm):
+            if smi and canonical_smiles(smi) is None:
+                problems.append(([i], f"row {i + 2} ({df['name'].iloc[i]}): smiles {smi!r} is not a valid SMILES "
+                                      "(leave the cell empty if you have none)"))
     if "cas" in df.columns:
         df["cas"] = _text(df["cas"])
         for i, c in enumerate(df["cas"]):
             if c and not _CAS_RE.match(c):
                 problems.append(([i], f"row {i + 2} ({df['name'].iloc[i]}): {c!r} is not a CAS number"))
+            elif c and not cas_check_digit_ok(c):
+                problems.append(([i], f"row {i + 2} ({df['name'].iloc[i]}): CAS {c} has a wrong check digit "
+                                      "(a typing error?)"))
         cas = df["cas"]
         for c in sorted(set(cas[cas.duplicated() & (cas != "")])):
             at = np.flatnonzero(cas.to_numpy() == c)

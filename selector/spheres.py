@@ -118,6 +118,10 @@ TEST_COLUMN_ALIASES = {
 }
 
 
+
+#: Most bootstrap resamples :func:`fit_sphere` accepts (memory and time grow with each).
+MAX_BOOTSTRAP = 20_000
+
 def normalise_test_columns(df: pd.DataFrame) -> pd.DataFrame:
     """``df`` with lab-test headers in canonical lower-case form (``dD`` -> ``delta_d``, ``Liquid``
     -> ``solvent``...; :data:`TEST_COLUMN_ALIASES`)."""
@@ -1040,6 +1044,11 @@ def fit_sphere(tests, *, seed: int = 0, bootstrap: int = DEFAULT_BOOTSTRAP, outc
         raise SelectorError("bootstrap and seed must be whole numbers") from None
     if B < 0:
         raise SelectorError("bootstrap must be >= 0")
+    if isinstance(bootstrap, (float, np.floating)) and B != bootstrap:
+        raise SelectorError(f"bootstrap must be a whole number of resamples, got {bootstrap!r}")
+    if B > MAX_BOOTSTRAP:
+        raise SelectorError(f"bootstrap = {B} resamples is more than {MAX_BOOTSTRAP:,} (each takes a whole "
+                            "refit; 200-2,000 give stable 95 % intervals)")
     if seed < 0:
         raise SelectorError(f"the random seed must be a whole number of 0 or more, got {seed}")
     try:

@@ -335,3 +335,51 @@ def test_empty_only_list_and_bad_pass_mark_are_refused(capsys):
     assert main(["replace", "toluene", "--only", "toluene"]) == 2
     err = capsys.readouterr().err
     assert "only toluene (name more)" in err and "never to propose" not in err
+
+
+# ---------------------------------------------------------------- boundary review, round 4
+
+@pytest.mark.parametrize("kw", [{"include_reactive": "False"}, {"halogen_free": "no"},
+                                {"consistent_sources_only": float("nan")}])
+def test_on_off_options_refuse_text(kw):
+    # bool("False") is True: the text used to turn the option on (benzene ranked first)
+    from selector.errors import SelectorError
+
+    with pytest.raises(SelectorError, match="must be True or False"):
+        selector.rank((18.4, 0.0, 2.0), **kw)
+    assert len(selector.rank((18.4, 0.0, 2.0), include_reactive=False)) < len(
+        selector.rank((18.4, 0.0, 2.0), include_reactive=True))
+
+
+@pytest.mark.parametrize("bad", [0, -1, float("nan"), "x"])
+def test_blend_resolution_must_be_positive(bad):
+    # resolution=-1 had sorted the worst blends first (water on top), 0 divided by zero
+    from selector.errors import SelectorError
+
+    with pytest.raises(SelectorError, match="resolution must be"):
+        selector.find_blends((17.9, 6.1, 6.4, 8.6), max_components=2, resolution=bad)
+
+
+def test_bootstrap_has_a_ceiling(capsys):
+    # 10^8 resamples asked for about 24 GB and were killed by the kernel without a message
+    assert main(["sphere", "parameters/demo/lab_tests.csv", "--bootstrap", "100000000"]) == 2
+    assert "more than 20,000" in capsys.readouterr().err
+
+
+def test_machine_formats_keep_stdout_parseable_and_say_the_rest_on_stderr(capsys):
+    # demo in JSON: the invented story goes to stderr, stdout parses as JSON
+    assert main(["demo", "--format", "json"]) == 0
+    out, err = capsys.readouterr()
+    assert isinstance(json.loads(out), list) and "INVENTED" in err
+    # dry in JSON: the tail solvent, the sphere warning and the caution (stderr) are not lost;
+    # water evaporates more slowly than acetone (common practice)
+    assert main(["dry", "acetone,water", "--shares", "0.5,0.5", "--target", "18.6,10.5,5.1,8.6",
+                 "--format", "json"]) == 0
+    out, err = capsys.readouterr()
+    assert json.loads(out)[0]["phi_acetone"] == pytest.approx(0.5)
+    assert "tail solvent (the last to leave): water" in err and "safety data sheet" in err
+    # mix-grid in CSV: the reacting pair (acid + amine, common practice) is named on stderr
+    assert main(["mix-grid", "acetic acid,triethylamine,toluene", "--format", "csv"]) == 0
+    out, err = capsys.readouterr()
+    assert pd.read_csv(io.StringIO(out)).shape == (3, 4)
+    assert "REACTIVE PAIRS" in err and "acetic acid + triethylamine" in err

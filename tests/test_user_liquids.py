@@ -57,6 +57,44 @@ def test_duplicate_cas_in_user_rows_is_refused():
         validate_user_table(_rows(name=["a (invented)", "b (invented)"], cas=["50-00-0", "50-00-0"]))
 
 
+def test_a_row_with_an_extra_field_is_refused_not_shifted(tmp_path, capsys):
+    # boundary review: "myketone,15.5,10,4,7.0" under a four-column header (a decimal comma, or a
+    # stray value) made pandas read the name as the index: a liquid "15.5" with dD 10, silently
+    p = tmp_path / "mine.csv"
+    p.write_text("name,delta_d,delta_p,delta_h\nmyketone (invented),15.5,10,4,7.0\n")
+    assert main(["show", "myketone (invented)", "--mine", str(p)]) == 2
+    err = capsys.readouterr().err
+    assert "row 2 has 5 fields, the header has 4" in err and "Traceback" not in err
+    # a short row is still read (its missing cells are blank), as before
+    p.write_text("name,delta_d,delta_p,delta_h,molar_volume\nmyketone (invented),15.5,10,4\n")
+    assert main(["show", "myketone (invented)", "--mine", str(p), "--format", "csv"]) == 0
+    assert "myketone (invented)" in capsys.readouterr().out
+    # the price list the same way
+    prices = tmp_path / "prices.csv"
+    prices.write_text("name,cost_per_litre\ntoluene,3,50\n")
+    assert main(["blend", "toluene", "--prices", str(prices)]) == 2
+    assert "row 2 has 3 fields, the header has 2" in capsys.readouterr().err
+
+
+def test_invalid_smiles_and_cas_check_digit_are_refused():
+    # boundary review: an invalid SMILES (an isocyanate typed "CN=C=O)") slipped past the reagent
+    # screen, which reads structures; 108-88-4 is toluene's CAS (108-88-3, chemicals) mistyped:
+    # CAS check digit rule (CAS registry: digits weighted 1, 2, 3... from the right, mod 10)
+    from selector.errors import InputTableError
+    from selector.library import cas_check_digit_ok, validate_user_table
+
+    with pytest.raises(InputTableError) as e:
+        validate_user_table(_rows(name=["a (invented)", "b (invented)"], smiles=["CN=C=O)", "CCO"],
+                                  cas=["", "108-88-4"]))
+    text = str(e.value)
+    assert "smiles 'CN=C=O)' is not a valid SMILES" in text
+    assert "CAS 108-88-4 has a wrong check digit" in text
+    # published CAS numbers pass (water 7732-18-5, toluene 108-88-3, NMP 872-50-4; from memory,
+    # as in the library)
+    assert all(cas_check_digit_ok(c) for c in ("7732-18-5", "108-88-3", "872-50-4"))
+    assert not cas_check_digit_ok("872-50-5")
+
+
 # ---------------------------------------------------------------- the My liquids page
 
 def open_page(home: Path, monkeypatch):
