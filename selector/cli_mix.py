@@ -108,6 +108,9 @@ def cmd_grid(a) -> int:
     from .library import hsp_estimated
 
     lib = library_from_args(a)
+    if a.not_miscible and not a.long:
+        raise ValueError("--not-miscible picks pairs from the one-row-per-pair list: give --long too")
+    dropped = []
     if a.liquids:
         try:
             df = lib.iloc[locate_many(_names(a.liquids), lib)]
@@ -115,6 +118,16 @@ def cmd_grid(a) -> int:
             for q in _names(a.liquids):
                 find_liquid_or_hint(q, lib)      # an unknown SMILES: say how to estimate it
             raise
+        flt = filters_from_args(a)
+        if flt.get("include") is not None:
+            raise ValueError("--only picks liquids from the library; with liquids named, leave it out")
+        if flt:
+            keep = filter_mask(df, temperature=a.at, **dict(flt, include_reactive=True))
+            dropped = df["name"].astype(str)[~keep].tolist()
+            df = df.loc[keep]
+            if len(df) < 2:
+                raise ValueError(f"the filters leave {len(df)} of the named liquids (dropped: "
+                                 f"{', '.join(dropped)}); a grid needs two")
     else:
         flt = filters_from_args(a)
         if not flt and not a.all:
@@ -126,6 +139,8 @@ def cmd_grid(a) -> int:
     est = df["name"].astype(str)[hsp_estimated(df)].tolist()
     est_note = ("\nHSP estimated from structure (not measured; states as uncertain as the estimates, "
                 "`likewise mix` checks their intervals): " + ", ".join(est)) if est else ""
+    if dropped:
+        est_note += "\nLeft out by the filters: " + ", ".join(dropped)
     if a.long:
         import numpy as np
 
@@ -143,8 +158,8 @@ def cmd_grid(a) -> int:
         return 0
     shown = m if a.format != "table" else m.replace(SHORT)
     out = shown.reset_index().rename(columns={"index": "liquid"})
-    header = (f"{len(m)} liquids at {a.at:g} C; " + ("" if a.format != "table" else
-              "mix = miscible in all proportions, part = partially miscible, no = immiscible")) + est_note
+    header = (f"{len(m)} liquids at {a.at:g} C" + ("" if a.format != "table" else
+              "; mix = miscible in all proportions, part = partially miscible, no = immiscible")) + est_note
     split = m.attrs.get("disagreeing_pairs", [])
     apart = {frozenset((x, y)) for x, y, _, _ in split}
     unsure = [p for p in m.attrs.get("uncertain_pairs", []) if frozenset(p) not in apart]

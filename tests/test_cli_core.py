@@ -383,3 +383,19 @@ def test_machine_formats_keep_stdout_parseable_and_say_the_rest_on_stderr(capsys
     out, err = capsys.readouterr()
     assert pd.read_csv(io.StringIO(out)).shape == (3, 4)
     assert "REACTIVE PAIRS" in err and "acetic acid + triethylamine" in err
+
+
+def test_mix_grid_applies_its_filters_to_named_liquids(capsys):
+    # boundary review: --without, --halogen-free and --min-flash were ignored when liquids were named
+    assert main(["mix-grid", "water,ethanol,hexane,dichloromethane", "--halogen-free", "--without", "hexane",
+                 "--format", "csv"]) == 0
+    out, err = capsys.readouterr()
+    grid = pd.read_csv(io.StringIO(out))
+    assert grid["liquid"].tolist() == ["water", "ethanol"]
+    assert "Left out by the filters: hexane, dichloromethane" in err
+    # water + ethanol mix in all proportions (common practice)
+    assert grid.set_index("liquid").loc["water", "ethanol"] == "miscible"
+    assert main(["mix-grid", "water,hexane", "--without", "hexane"]) == 2
+    assert "a grid needs two" in capsys.readouterr().err
+    assert main(["mix-grid", "water,hexane", "--not-miscible"]) == 2
+    assert "give --long too" in capsys.readouterr().err
