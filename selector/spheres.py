@@ -535,9 +535,15 @@ def _dist(C, P, m):
     return np.sqrt(np.maximum(d2, 0.0)) / m[..., None, :]
 
 
+#: Box the fitted centre stays in (MPa^0.5, scaled like the tests: dD doubled): dD 5-30, dP 0-40,
+#: dH 0-50, the bounds a typed target is held to (:data:`selector.targets.TARGET_MAX`), so that a
+#: fitted sphere can always be used as a target.
+CENTRE_LO = np.array([2 * 5.0, 0.0, 0.0])
+CENTRE_HI = np.array([2 * 30.0, 40.0, 50.0])
+
+
 def _clip(C):
-    lo = np.array([2 * 5.0, 0.0, 0.0])
-    return np.maximum(C, lo)
+    return np.minimum(np.maximum(C, CENTRE_LO), CENTRE_HI)
 
 
 def _objective(C, P, wm, good, m, W):
@@ -583,8 +589,8 @@ def _grid_axes(P, good, points=COARSE_POINTS):
     hi = g.max(0)
     span = max(float((hi - lo).max()), 4.0)
     margin = 0.15 * span + 1.0
-    lo = np.maximum(lo - margin, [10.0, 0.0, 0.0])
-    hi = hi + margin
+    lo = np.maximum(lo - margin, CENTRE_LO)
+    hi = np.minimum(hi + margin, CENTRE_HI)
     step = float((hi - lo).max()) / (points - 1)
     axes = [np.arange(lo[a], hi[a] + 0.5 * step, step) for a in range(3)]
     return axes, step
@@ -969,6 +975,34 @@ def _shelf_notes(lib, shelf, tested, t, filters) -> list[str]:
     return out
 
 
+#: :func:`_deciding_test` names a test whose removal cuts the misfit to this share or less ...
+DECIDER_LOSS_SHARE = 0.2
+#: ... and changes R0 by at least this share, or moves the centre by at least this share of R0.
+DECIDER_CHANGE = 0.4
+
+
+def _deciding_tests(one, P, w, good, m, rng, max_tests: int = 80) -> list:
+    """``[(i, fit without test i), ...]``, best first, for the tests that alone bend the fit
+    (leave-one-out: without one the misfit drops to :data:`DECIDER_LOSS_SHARE` or less and R0 or
+    the centre moves by :data:`DECIDER_CHANGE` of R0 or more). Only for fits that miss some tests;
+    about 10 ms a test."""
+    n = len(P)
+    if one.mean_loss <= 1e-12 or n < 6 or n > max_tests:
+        return []
+    found = []
+    for i in range(n):
+        keep = np.arange(n) != i
+        if not good[keep].any() or good[keep].all():
+            continue
+        alt = _fit_one(P[keep], w[keep], good[keep], m[keep], rng)
+        moved = float(np.linalg.norm(alt.centre - one.centre))
+        changed = (abs(alt.radius - one.radius) >= DECIDER_CHANGE * one.radius
+                   or moved >= DECIDER_CHANGE * one.radius)
+        if alt.loss <= DECIDER_LOSS_SHARE * one.loss and changed:
+            found.append((i, alt))
+    return sorted(found, key=lambda x: x[1].loss)
+
+
 def _warnings(fit_c, R, P, good, tests, notes, level_msgs):
     warn = list(level_msgs)
     n = len(P)
@@ -1088,6 +1122,21 @@ def fit_sphere(tests, *, seed: int = 0, bootstrap: int = DEFAULT_BOOTSTRAP, outc
     n = len(P)
     bic1 = 2 * one.loss + 4 * math.log(n)
     msgs = []
+    deciders = _deciding_tests(one, P, w, good, m, np.random.default_rng((seed, 3)))
+    if len(deciders) > 1:
+        msgs.append("the fit hangs on single results: without any one of "
+                    + ", ".join(f"{tab['label'].iloc[i]} ({'good' if good[i] else 'bad'})" for i, _ in deciders)
+                    + f" the sphere moves or changes size by more than {DECIDER_CHANGE:.0%} of R0 and fits the "
+                    "rest better; more tests near them, and a repeat of each, would settle it")
+    elif deciders:
+        i, alt = deciders[0]
+        c = alt.centre / SCALE
+        label = str(tab["label"].iloc[i])
+        msgs.append(f"one result decides this fit: without {label} (marked {'good' if good[i] else 'bad'}) "
+                    f"the sphere would be dD {c[0]:.1f}, dP {c[1]:.1f}, dH {c[2]:.1f}, R0 {alt.radius:.1f} "
+                    f"and fit every other test{'' if alt.mean_loss < 1e-12 else ' but a few'}, against R0 "
+                    f"{one.radius:.1f} with it; check that result (mislabelled, contaminated, or a solute "
+                    "that swells rather than dissolves?) before trusting the fit")
     bic = {"one_sphere": bic1}
     parts = [(one, np.arange(n))]
     if two_spheres:
