@@ -224,6 +224,22 @@ def drying_path(components, fractions, *, temperature: float = 25.0, target=None
     if stopped is not None:
         warnings.append(f"evaporation stops after {stopped:.0%} of the liquid: what is left is in "
                         "equilibrium with the air (e.g. water at this humidity)")
+    if len(rows) > 1:
+        from .mixing import check_blend_miscible
+
+        try:
+            split = check_blend_miscible(rows, temperature=t_c, library=lib).failing
+        except SelectorError:
+            split = []
+        if split:
+            warnings.append("not miscible in all proportions at " + f"{t_c:g} C: "
+                            + ", ".join(f"{a} + {b} ({st})" for a, b, st in split)
+                            + "; the path assumes one liquid phase, which holds only while the composition "
+                              "stays within their mutual solubility")
+    if activity == "raoult" and (rows["cas"].astype(str).to_numpy() == WATER_CAS).any() and len(rows) > 1:
+        warnings.append("water with organic liquids is far from ideal (Raoult's law can get even the order "
+                        "of leaving wrong: 1-butanol leaves a water-rich blend before the water, through "
+                        "their azeotrope); compare activity='unifac' (--model unifac)")
     ok = np.all(np.isfinite(out), axis=1)
     grid, out = grid[ok], out[ok]
     vol = out * v
