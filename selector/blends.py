@@ -822,12 +822,46 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     from .hazards import component_notes
 
     out["hazard_notes"] = component_notes(out["components"], cand)
+    out["mixing_note"] = second_opinion_notes(out["components"], cand, t_c) if mis is not None else ""
     out.attrs.update(target=tgt, temperature=t_c, caution=CAUTION, min_fraction=m,
                      miscibility="selector.mixing.miscible_pairs" if mis is not None else "not checked",
                      candidates=len(cand))
     if cost_per_litre is not None:
         out.attrs["price_notes"] = price_notes
     return out
+
+
+def second_opinion_notes(components, table: pd.DataFrame, temperature: float = 25.0) -> list[str]:
+    """For each blend (a tuple of names in ``table``), the pairs that the HSP model lets through
+    but UNIFAC's second opinion (:func:`selector.unifac.second_opinion`, as :func:`selector.miscibility`
+    asks it) says do not mix in all proportions; "" where none. Only the rows shown are asked
+    (about 1 ms a new pair, cached); pairs the reference tables answer are left to the tables."""
+    from .chem import inchikey, molar_mass
+    from .mixing import _reference_at
+    from .unifac import second_opinion
+
+    by_name = table.drop_duplicates("name").set_index("name", drop=False)
+    notes = []
+    for comps in components:
+        found = []
+        for i in range(len(comps)):
+            for j in range(i + 1, len(comps)):
+                a, b = by_name.loc[comps[i]], by_name.loc[comps[j]]
+                if _reference_at(str(a.get("cas", "") or ""), str(b.get("cas", "") or ""), float(temperature))[0]:
+                    continue
+                keys = [str(r.get("inchikey", "") or "") or (inchikey(str(r.get("smiles", "") or "")) or "")
+                        for r in (a, b)]
+                mm = [float(r.get("molar_mass", np.nan)) for r in (a, b)]
+                mm = [x if math.isfinite(x) else molar_mass(str(r.get("smiles", "") or ""))
+                      for x, r in zip(mm, (a, b))]
+                if not all(keys) or not all(math.isfinite(x) for x in mm):
+                    continue
+                so = second_opinion(keys[0], keys[1], mm[0], mm[1], float(temperature))
+                if so["state"] and so["state"] != "miscible":
+                    found.append(f"{comps[i]} + {comps[j]} {so['state']}")
+        notes.append(f"UNIFAC, pair by pair: {'; '.join(found)} (the HSP model: miscible); test a small mix"
+                     if found else "")
+    return notes
 
 
 # ---------------------------------------------------------------- substitutes
@@ -1034,6 +1068,8 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     from .hazards import component_notes
 
     out["hazard_notes"] = component_notes(out["components"], pd.concat([x, cand]))
+    out["mixing_note"] = (second_opinion_notes(out["components"], pd.concat([x, cand]), t_c)
+                          if require_miscible else "")
     from .cautions import not_flammable
 
     out.attrs.update(target=tg, temperature=t_c, caution=CAUTION, replaced=xname, left_out=energetic,

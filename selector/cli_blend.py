@@ -7,10 +7,11 @@ from .cli_common import add_filter_args, add_output_args, emit, filters_from_arg
 
 BLEND_COLUMNS = ["blend", "n_components", "delta_d", "delta_p", "delta_h", "ra", "red", "non_solvent_pair",
                  "hazard_class", "bp_low_c", "bp_high_c", "lowest_flash_point_c", "lowest_flash_component",
-                 "cost_per_litre", "pareto", "hazard_notes"]
+                 "cost_per_litre", "pareto", "hazard_notes", "mixing_note"]
 REPLACE_COLUMNS = ["role", "blend", "ra", "red", "hazard_class", "boiling_point_c", "bp_low_c", "bp_high_c",
                    "evaporation_rate",
-                   "viscosity_mpa_s", "lowest_flash_point_c", "mismatch", "score", "hazard_notes"]
+                   "viscosity_mpa_s", "lowest_flash_point_c", "mismatch", "score", "hazard_notes",
+                   "mixing_note"]
 CLASS_CHOICES = ["recommended", "problematic", "hazardous", "highly-hazardous"]
 
 
@@ -60,6 +61,10 @@ def cmd_blend(a) -> int:
     header = (f"Blends for {describe_target(tgt, lib)} at {a.at:g} C; {res.attrs['candidates']} candidate "
               f"liquids; smallest share {a.min_share:g}; every pair miscible "
               f"({res.attrs['miscibility']}). Hazard class = worst component (CHEM21)." + target_notes(tgt))
+    doubted = int((res["mixing_note"].astype(str) != "").sum()) if "mixing_note" in res.columns else 0
+    if doubted:
+        header += (f"\n{doubted} of these blends hold a pair the HSP model calls miscible and UNIFAC does not "
+                   "(mixing_note): test a small mix of those first")
     if res.attrs.get("price_notes"):
         header += "\nPrices matched by synonym: " + "; ".join(res.attrs["price_notes"])
     res, est_cols, note = _with_estimated(res, lib, a)

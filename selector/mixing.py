@@ -735,7 +735,11 @@ def _num(v, what, name, lo=None):
     except (TypeError, ValueError):
         raise SelectorError(f"{name}: {what} must be a number, got {v!r}") from None
     if not math.isfinite(f):
-        raise SelectorError(f"{name}: {what} must be a finite number, got {v!r}")
+        if math.isnan(f):
+            hint = (": miscibility needs it; add it to your liquids file (`likewise guess SMILES` "
+                    "estimates one)" if what.startswith("molar_volume") else "")
+            raise SelectorError(f"{name}: {what} is missing{hint}")
+        raise SelectorError(f"{name}: {what} must be a finite number, got {f:g}")
     if lo is not None and f < lo:
         raise SelectorError(f"{name}: {what} must not be below {lo:g}, got {f:g}")
     return f
@@ -1466,8 +1470,11 @@ def _arrays(df: pd.DataFrame):
     bad = ~np.isfinite(h).all(axis=1) | ~np.isfinite(v) | (v <= 0) | (h < 0).any(axis=1)
     if np.any(bad):
         names = df["name"].astype(str).to_numpy()[bad] if "name" in df.columns else np.flatnonzero(bad)
+        no_v = bool((~np.isfinite(v[bad])).any())
         raise SelectorError("missing, negative or non-numeric HSP or molar volume for: "
-                            + ", ".join(map(str, names[:8])))
+                            + ", ".join(map(str, names[:8]))
+                            + ("; miscibility (and so blends) needs each liquid's molar_volume in cm3/mol: add "
+                               "it to your liquids file (`likewise guess SMILES` estimates one)" if no_v else ""))
     smi = df["smiles"].tolist() if "smiles" in df.columns else [""] * len(df)
     s = site_strengths(smi)
     m = (pd.to_numeric(df["molar_mass"], errors="coerce").to_numpy(float) if "molar_mass" in df.columns

@@ -95,6 +95,21 @@ def test_invalid_smiles_and_cas_check_digit_are_refused():
     assert not cas_check_digit_ok("872-50-5")
 
 
+def test_a_liquid_without_molar_volume_is_told_what_miscibility_needs(tmp_path, capsys):
+    # boundary review: molar_volume is optional in the file, but mix answered "got np.float64(nan)"
+    # and blend named no remedy
+    p = tmp_path / "mine.csv"
+    p.write_text("name,delta_d,delta_p,delta_h\nmyliq (invented),17,5,6\n")
+    assert main(["mix", "myliq (invented)", "water", "--mine", str(p)]) == 2
+    err = capsys.readouterr().err
+    assert "molar_volume (cm3/mol) is missing: miscibility needs it" in err and "nan" not in err
+    assert main(["blend", "17.9,6.1,6.4,8.6", "--mine", str(p)]) == 2
+    assert "needs each liquid's molar_volume" in capsys.readouterr().err
+    # ranking does not need it (Ra and RED use the HSP alone)
+    assert main(["rank", "17,5,6", "--mine", str(p), "--format", "csv"]) == 0
+    assert "myliq (invented)" in capsys.readouterr().out
+
+
 # ---------------------------------------------------------------- the My liquids page
 
 def open_page(home: Path, monkeypatch):

@@ -55,6 +55,9 @@ COLUMN_CONFIG = {
     "hazard_notes": st.column_config.TextColumn("Hazard notes", help="for a blend, per component: fatal, toxic, "
                                                 "harmful, corrosive, CMR, flammable, peroxide former, aquatic "
                                                 "toxicity, ...; REACTIVE PAIR if two react"),
+    "mixing_note": st.column_config.TextColumn("Mixing note", help="pairs of the blend that the HSP model "
+                                               "calls miscible and UNIFAC (as thermo carries it) does not: "
+                                               "test a small mix"),
     "data_note": st.column_config.TextColumn("Data note", help="Boiling point or vapour pressure in "
                                              "doubt: the published values disagree"),
     "sources_disagree": st.column_config.CheckboxColumn("Sources disagree",
@@ -515,7 +518,7 @@ def table(df: pd.DataFrame, **kw):
 
     d = whole_degrees(d)
     d = with_flash_texts(d, fmt="{:.0f}")   # an empty cell would mean both "does not burn" and "no data"
-    empty = [c for c in ("estimated", "hazard_notes", "hsp_note") if c in d.columns
+    empty = [c for c in ("estimated", "hazard_notes", "hsp_note", "mixing_note") if c in d.columns
              and d[c].fillna("").astype(str).str.strip().eq("").all()]
     empty += [c for c in ("lowest_known_flash_point_c",) if c in d.columns]   # shown in the flash text
     return st.dataframe(d.drop(columns=empty), **kw)

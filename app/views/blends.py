@@ -75,6 +75,11 @@ has_est = res["estimated"].ne("").any()
 st.subheader("Best five")
 common.readable_top(res, ["blend", "red" if has_r else None, "ra", "hazard_class", "lowest_flash_point_c",
                           "estimated" if has_est else None, "hazard_notes"], 5)
+doubted = res["mixing_note"].astype(str).ne("") if "mixing_note" in res else pd.Series(False, index=res.index)
+if doubted.any():
+    st.warning(f"{int(doubted.sum())} of these blends hold a pair that the HSP model calls miscible and UNIFAC "
+               "does not (see the Mixing note column): test a small mix of those before anything else.",
+               icon=":material/science:")
 if has_est:
     st.caption("estimated = components whose HSP are estimated from structure (not measured): such a "
                "blend point is as uncertain as they are; test it before you rely on it.")
