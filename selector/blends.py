@@ -822,6 +822,9 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     from .hazards import component_notes
 
     out["hazard_notes"] = component_notes(out["components"], cand)
+    from .ranking import above_flash_point_notes
+
+    out["hazard_notes"] = above_flash_point_notes(out, t_c, "lowest_flash_point_c")
     out["mixing_note"] = second_opinion_notes(out["components"], cand, t_c) if mis is not None else ""
     out.attrs.update(target=tgt, temperature=t_c, caution=CAUTION, min_fraction=m,
                      miscibility="selector.mixing.miscible_pairs" if mis is not None else "not checked",
@@ -1068,6 +1071,9 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     from .hazards import component_notes
 
     out["hazard_notes"] = component_notes(out["components"], pd.concat([x, cand]))
+    from .ranking import above_flash_point_notes
+
+    out["hazard_notes"] = above_flash_point_notes(out, t_c, "lowest_flash_point_c")
     out["mixing_note"] = (second_opinion_notes(out["components"], pd.concat([x, cand]), t_c)
                           if require_miscible else "")
     from .cautions import not_flammable

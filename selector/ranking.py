@@ -74,6 +74,26 @@ def resolve_target(target, library: pd.DataFrame, temperature: float = 25.0) -> 
     return t
 
 
+def above_flash_point_notes(rows: pd.DataFrame, temperature: float, column: str = "flash_point_c") -> np.ndarray:
+    """``rows["hazard_notes"]`` with "USED ABOVE ITS FLASH POINT (x C)" put first where the use
+    temperature is at or above the flash point in ``column`` (a blend's: ``lowest_flash_point_c``):
+    its vapour over the liquid can then burn (common practice: the flash point is the lowest
+    temperature at which it does)."""
+    notes = rows["hazard_notes"].fillna("").astype(str).to_numpy(object)
+    fp = pd.to_numeric(rows.get(column, pd.Series(np.nan, index=rows.index)),
+                       errors="coerce").to_numpy(float)
+    with np.errstate(invalid="ignore"):
+        hot = np.isfinite(fp) & (fp <= float(temperature))
+    if not hot.any():
+        return notes
+    from .report import round_half_away
+
+    lead = np.array([f"USED ABOVE ITS FLASH POINT ({float(round_half_away(x)):.0f} C): flammable vapour over "
+                     "the liquid" for x in fp[hot]], dtype=object)
+    notes[hot] = np.where(notes[hot] != "", lead + "; " + notes[hot], lead)
+    return notes
+
+
 def rank(target, *, temperature: float = 25.0, library: pd.DataFrame | None = None,
          polarity_weight: float = DEFAULT_POLARITY_WEIGHT, top: int | None = None,
          **filters) -> pd.DataFrame:
@@ -134,6 +154,7 @@ def rank(target, *, temperature: float = 25.0, library: pd.DataFrame | None = No
 
     # order unchanged (by score); the notes say where a liquid has no hazard data
     out["hazard_notes"] = liquid_notes(lib)[mask]
+    out["hazard_notes"] = above_flash_point_notes(out, t_c)
     key = np.round(score / TIE_RESOLUTION)
     order = np.lexsort((out["molar_volume"].to_numpy(float), key))
     out = out.iloc[order].reset_index(drop=True)
