@@ -90,6 +90,8 @@ def _with_estimated(res, lib, a):
 def cmd_replace(a) -> int:
     from .blends import substitutes
 
+    if a.solute_radius is not None and not a.solute:
+        raise ValueError("--solute-radius is the R0 of the solute named with --solute: give --solute too")
     lib = library_from_args(a)
     solute = None
     if a.solute:
@@ -151,6 +153,8 @@ def cmd_dry(a) -> int:
         shares = [float(x) for x in a.shares.split(",")]
     except ValueError:
         raise ValueError(f"--shares expects comma-separated volume fractions, got {a.shares!r}") from None
+    if a.radius is not None and not a.target:
+        raise ValueError("--radius is the R0 of the target named with --target: give --target too")
     tgt = _target(a, lib) if a.target else None
     p = drying_path(comps, shares, temperature=a.at, target=tgt, library=lib,
                     relative_humidity=a.humidity, activity=a.model, must_stay_until=a.keep_until,

@@ -122,6 +122,8 @@ def check_file_args(a) -> None:
             if p.is_dir():
                 raise SelectorError(f"{p} is a folder, not a CSV file ({_label(dest)})")
     out = args.get("output")
+    if out is not None and not str(out).strip():
+        raise SelectorError("-o/--output was given an empty file name")
     if out:
         for dest, v in args.items():
             if dest in ("output", "func") or dest.startswith("_"):

@@ -47,7 +47,7 @@ def register(sub) -> None:
     o = p.add_argument_group("output")
     o.add_argument("--format", choices=["table", "csv", "json"], default="table",
                    help="table (default), csv or json")
-    o.add_argument("--part", choices=["sphere", "misfits", "next", "tests"], default="sphere",
+    o.add_argument("--part", choices=["sphere", "misfits", "next", "tests"], default=None,
                    help="which table --format csv writes (default sphere)")
     o.add_argument("--output", "-o", metavar="FILE", help="write to FILE (atomically) instead of the screen")
     o.add_argument("--overwrite", action="store_true",
@@ -89,6 +89,10 @@ def cmd_sphere(a) -> int:
     from .io import to_csv_text, to_json_text, write_atomic
     from .spheres import fit_sphere
 
+    if a.part is not None and a.format != "csv":
+        raise ValueError("--part picks the table that --format csv writes: give --format csv too")
+    if a.next < 0:
+        raise ValueError(f"--next must be 0 (no suggestions) or more, got {a.next}")
     lib = library_from_args(a)
     fit = fit_sphere(a.tests, seed=a.seed, bootstrap=a.bootstrap, outcome=a.outcome,
                      threshold=a.pass_mark, scale=_scale(a.scale), temperature=a.at,
@@ -109,7 +113,7 @@ def cmd_sphere(a) -> int:
     elif a.format == "csv":
         part = {"sphere": _sphere_table(fit), "misfits": fit.misfits,
                 "next": nxt[[c for c in NEXT_COLUMNS if c in nxt.columns]],
-                "tests": fit.tests}[a.part]
+                "tests": fit.tests}[a.part or "sphere"]
         text = to_csv_text(part)
     else:
         col = fit.tests.attrs.get("outcome_column")

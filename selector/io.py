@@ -84,9 +84,14 @@ def write_atomic(path, data: str | bytes, *, make_parents: bool = True) -> Path:
 
     A folder, a read-only file or a missing folder (with ``make_parents=False``) is refused
     with a one-line :class:`~selector.errors.SelectorError` (see :func:`check_output_path`);
-    an existing writable file is replaced. User-facing output passes ``make_parents=False``.
+    an existing writable file is replaced (through a symbolic link: the file it names).
+    User-facing output passes ``make_parents=False``.
     """
     path = check_output_path(path, overwrite=True, make_parents=make_parents)
+    if path.is_symlink() and path.exists():
+        # write through a link to the file it names: renaming over the link would replace the link
+        # and leave that file as it was
+        path = Path(os.path.realpath(path))
     if make_parents:
         path.parent.mkdir(parents=True, exist_ok=True)
     mode = "wb" if isinstance(data, bytes) else "w"

@@ -420,3 +420,16 @@ def test_guess_refuses_same_file_for_output_and_save_mine_before_training(tmp_pa
     assert main(["guess", "CCO", "-o", str(f), "--save-mine", str(f)]) == 2
     assert "same file" in capsys.readouterr().err
     assert not f.exists()
+
+
+def test_overwrite_through_a_link_writes_the_file_it_names(tmp_path):
+    # boundary review: -o link.csv --overwrite replaced the link with a new file and left the file
+    # it pointed to as it was
+    target = tmp_path / "real.csv"
+    target.write_text("old\n")
+    link = tmp_path / "link.csv"
+    os.symlink(target, link)
+    assert main(["rank", "toluene", "--top", "3", "--format", "csv", "-o", str(link), "--overwrite"]) == 0
+    assert link.is_symlink() and os.path.realpath(link) == str(target)
+    shown = pd.read_csv(target)
+    assert len(shown) == 3 and "name" in shown.columns
