@@ -797,6 +797,9 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
         raise SelectorError(f"max_components must be 1, 2 or 3, got {max_components!r}")
     tgt, cand, h, t_c, (cost, price_notes) = _target_and_candidates(target, library, temperature, filters,
                                                                       cost_per_litre)
+    from .filters import as_flag
+
+    require_miscible = as_flag(require_miscible, "require_miscible")
     mis = _allowed_pairs(cand, t_c, kmax, require_miscible, bool(filters.get("include_reactive")))
     pool = max(2000, 50 * (top or 20))
     from .hazards import hazard_columns
@@ -828,10 +831,22 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     out["mixing_note"] = second_opinion_notes(out["components"], cand, t_c) if mis is not None else ""
     out.attrs.update(target=tgt, temperature=t_c, caution=CAUTION, min_fraction=m,
                      miscibility="selector.mixing.miscible_pairs" if mis is not None else "not checked",
-                     candidates=len(cand))
+                     candidates=len(cand), mixing_warning=mixing_warning(out))
     if cost_per_litre is not None:
         out.attrs["price_notes"] = price_notes
     return out
+
+
+def mixing_warning(table: pd.DataFrame) -> str:
+    """One line for a blend or substitute table whose rows carry a ``mixing_note``: how many hold a
+    pair that UNIFAC splits; "" when none does."""
+    if "mixing_note" not in table.columns:
+        return ""
+    n = int(table["mixing_note"].fillna("").astype(str).ne("").sum())
+    if not n:
+        return ""
+    return (f"{n} of these rows hold a pair that the HSP model calls miscible and UNIFAC does not "
+            "(mixing_note): test a small mix of those first")
 
 
 def second_opinion_notes(components, table: pd.DataFrame, temperature: float = 25.0) -> list[str]:
@@ -839,8 +854,7 @@ def second_opinion_notes(components, table: pd.DataFrame, temperature: float = 2
     but UNIFAC's second opinion (:func:`selector.unifac.second_opinion`, as :func:`selector.miscibility`
     asks it) says do not mix in all proportions; "" where none. Only the rows shown are asked
     (about 1 ms a new pair, cached); pairs the reference tables answer are left to the tables."""
-    from .chem import inchikey, molar_mass
-    from .mixing import _reference_at
+    from .mixing import _clean, _reference_at, key_and_mass
     from .unifac import second_opinion
 
     by_name = table.drop_duplicates("name").set_index("name", drop=False)
@@ -850,13 +864,10 @@ def second_opinion_notes(components, table: pd.DataFrame, temperature: float = 2
         for i in range(len(comps)):
             for j in range(i + 1, len(comps)):
                 a, b = by_name.loc[comps[i]], by_name.loc[comps[j]]
-                if _reference_at(str(a.get("cas", "") or ""), str(b.get("cas", "") or ""), float(temperature))[0]:
+                if _reference_at(_clean(a.get("cas", "")), _clean(b.get("cas", "")), float(temperature))[0]:
                     continue
-                keys = [str(r.get("inchikey", "") or "") or (inchikey(str(r.get("smiles", "") or "")) or "")
-                        for r in (a, b)]
-                mm = [float(r.get("molar_mass", np.nan)) for r in (a, b)]
-                mm = [x if math.isfinite(x) else molar_mass(str(r.get("smiles", "") or ""))
-                      for x, r in zip(mm, (a, b))]
+                (ka, ma), (kb, mb) = key_and_mass(a), key_and_mass(b)
+                keys, mm = [ka, kb], [ma, mb]
                 if not all(keys) or not all(math.isfinite(x) for x in mm):
                     continue
                 so = second_opinion(keys[0], keys[1], mm[0], mm[1], float(temperature))
@@ -1012,6 +1023,7 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     if not as_flag(include_energetic, "include_energetic") and filt.get("include") is None:
         hd = set(lib["name"].to_numpy(str)[hz_all["high_decomposition_energy"].to_numpy(bool)])
         energetic = [n for n in cand["name"].astype(str) if n in hd]
+    require_miscible = as_flag(require_miscible, "require_miscible")
     mis = _allowed_pairs(cand, t_c, k, require_miscible, bool(filt.get("include_reactive")))
     res = search_arrays(h * SCALE, tg.hsp * SCALE, max_components=k,
                         min_fraction=_check_min_fraction(min_fraction, max(k, 2)), miscible=mis,
@@ -1085,7 +1097,8 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
                                                   flash_floor=filt.get("min_flash_point_c") is not None)
                      + ([energetic_note(energetic)] if en_shown else [])
                      + _energetic_shown(out, hz_all, lib) + _outside_window(x, filt)
-                     + _halogenated_shown(out, x, pd.concat([x, cand]), filt))
+                     + _halogenated_shown(out, x, pd.concat([x, cand]), filt)
+                     + ([w] if (w := mixing_warning(out)) else []))
     return out
 
 

@@ -59,12 +59,11 @@ def cmd_blend(a) -> int:
 
     tgt = res.attrs["target"]
     header = (f"Blends for {describe_target(tgt, lib)} at {a.at:g} C; {res.attrs['candidates']} candidate "
-              f"liquids; smallest share {a.min_share:g}; every pair miscible "
-              f"({res.attrs['miscibility']}). Hazard class = worst component (CHEM21)." + target_notes(tgt))
-    doubted = int((res["mixing_note"].astype(str) != "").sum()) if "mixing_note" in res.columns else 0
-    if doubted:
-        header += (f"\n{doubted} of these blends hold a pair the HSP model calls miscible and UNIFAC does not "
-                   "(mixing_note): test a small mix of those first")
+              f"liquids; smallest share {a.min_share:g}; every pair miscible by the HSP model and the "
+              f"reference tables ({res.attrs['miscibility']}). Hazard class = worst component (CHEM21)."
+              + target_notes(tgt))
+    if res.attrs.get("mixing_warning"):
+        header += "\n" + res.attrs["mixing_warning"]
     if res.attrs.get("price_notes"):
         header += "\nPrices matched by synonym: " + "; ".join(res.attrs["price_notes"])
     res, est_cols, note = _with_estimated(res, lib, a)

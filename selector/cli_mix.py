@@ -152,9 +152,16 @@ def cmd_grid(a) -> int:
                             "reacts": reactive_pair_matrix(df)[iu, ju]})
         unsure = {frozenset(p) for p in m.attrs.get("uncertain_pairs", [])}
         out["uncertain"] = [frozenset((x, y)) in unsure for x, y in zip(out["a"], out["b"])]
+        second = {frozenset((x, y)): f"{mt}: {s_}" for x, y, mt, s_ in m.attrs.get("disagreeing_pairs", [])}
+        out["unifac_disagrees"] = [second.get(frozenset((x, y)), "") for x, y in zip(out["a"], out["b"])]
         if a.not_miscible:
-            out = out[(out.state != "miscible") | out.reacts]
-        emit(out, a, caution=True, header=f"{len(out)} pairs at {a.at:g} C" + est_note)
+            # a pair that may split (uncertain, or UNIFAC says so) is kept with the ones that do
+            out = out[(out.state != "miscible") | out.reacts | out.uncertain]
+        head = f"{len(out)} pairs at {a.at:g} C" + est_note
+        if not m.attrs.get("unifac_checked", True):
+            head += (f"\nNo UNIFAC second opinion for more than {UNIFAC_MATRIX_MAX} liquids: `likewise mix A B` "
+                     "gives it for a pair")
+        emit(out, a, caution=True, header=head)
         return 0
     shown = m if a.format != "table" else m.replace(SHORT)
     out = shown.reset_index().rename(columns={"index": "liquid"})

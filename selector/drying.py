@@ -229,8 +229,9 @@ def drying_path(components, fractions, *, temperature: float = 25.0, target=None
 
         try:
             split = check_blend_miscible(rows, temperature=t_c, library=lib).failing
-        except SelectorError:
+        except SelectorError as err:
             split = []
+            warnings.append(f"miscibility not checked ({err}): the path assumes one liquid phase")
         if split:
             warnings.append("not miscible in all proportions at " + f"{t_c:g} C: "
                             + ", ".join(f"{a} + {b} ({st})" for a, b, st in split)

@@ -758,6 +758,24 @@ def _clean(v) -> str:
     return "" if v is None or (isinstance(v, float) and math.isnan(v)) or v is pd.NA else str(v).strip()
 
 
+def key_and_mass(row) -> tuple[str, float]:
+    """``(InChIKey, molar mass g/mol)`` of a liquid row (dict or Series) for the UNIFAC second
+    opinion: the row's own values where given, else from its SMILES (RDKit); ``""`` / NaN when
+    neither is there."""
+    from .chem import inchikey, molar_mass
+
+    get = row.get
+    smi = _clean(get("smiles", ""))
+    key = _clean(get("inchikey", "")) or ((inchikey(smi) or "") if smi else "")
+    try:
+        mm = float(get("molar_mass", math.nan))
+    except (TypeError, ValueError):
+        mm = math.nan
+    if not math.isfinite(mm) and smi:
+        mm = molar_mass(smi)
+    return key, mm
+
+
 def _record(row, name) -> dict:
     get = row.get
     rec = {"name": name}
@@ -1557,7 +1575,7 @@ def _rows(liquids, library):
 
 
 #: :func:`miscibility_matrix` asks UNIFAC for a second opinion on every pair up to this many
-#: liquids (435 pairs, about 1 s the first time; cached per pair), not for larger sets.
+#: liquids (435 pairs, 0.3-1 s the first time; cached per pair), not for larger sets.
 UNIFAC_MATRIX_MAX = 30
 
 
@@ -1637,16 +1655,9 @@ def _matrix_disagreements(df: pd.DataFrame, st: np.ndarray, names: list, t: floa
     """``(a, b, method, state)`` for the pairs of ``df`` (i < j, not in ``skip``) on which UNIFAC's
     second opinion (:func:`selector.unifac.second_opinion`) and the model state ``st`` differ on one
     phase or two."""
-    from .chem import inchikey, molar_mass
     from .unifac import second_opinion
 
-    smiles = df["smiles"].astype("string").fillna("").astype(str).tolist() if "smiles" in df else [""] * len(df)
-    keys = (df["inchikey"].astype("string").fillna("").astype(str).tolist() if "inchikey" in df
-            else [""] * len(df))
-    keys = [k or (inchikey(s) or "" if s else "") for k, s in zip(keys, smiles)]
-    mass = (pd.to_numeric(df["molar_mass"], errors="coerce").to_numpy(float) if "molar_mass" in df
-            else np.full(len(df), np.nan))
-    mass = [m if math.isfinite(m) else (molar_mass(s) if s else float("nan")) for m, s in zip(mass, smiles)]
+    keys, mass = zip(*(key_and_mass(r) for _, r in df.iterrows())) if len(df) else ((), ())
     out = []
     for i, j in zip(*np.triu_indices(len(df), 1)):
         if (frozenset((names[i], names[j])) in skip or not keys[i] or not keys[j]

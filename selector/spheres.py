@@ -1122,6 +1122,14 @@ def fit_sphere(tests, *, seed: int = 0, bootstrap: int = DEFAULT_BOOTSTRAP, outc
     n = len(P)
     bic1 = 2 * one.loss + 4 * math.log(n)
     msgs = []
+    pinned = [f"{lab} {v:g}" for lab, v, at_edge in zip(
+        ("dD", "dP", "dH"), (CENTRE_HI / SCALE).tolist(), np.isclose(one.centre, CENTRE_HI)) if at_edge]
+    if np.isclose(one.centre[0], CENTRE_LO[0]):
+        pinned.append(f"dD {CENTRE_LO[0] / SCALE[0]:g}")
+    if pinned:
+        msgs.append("the centre stops at the edge of the range it is searched in (" + ", ".join(pinned)
+                    + " MPa^0.5, the most a target may have): the tests do not bound the sphere; "
+                    "look for a wrong result (see below) or test liquids beyond the good ones")
     deciders = _deciding_tests(one, P, w, good, m, np.random.default_rng((seed, 3)))
     if len(deciders) > 1:
         msgs.append("the fit hangs on single results: without any one of "

@@ -83,7 +83,8 @@ class Target:
 
 def _check_given(t: Target) -> Target:
     """Plausibility bounds for HSP typed in by a user (:data:`TARGET_MAX`, :data:`R0_MAX`);
-    fitted spheres are not held to them."""
+    a fitted sphere's centre is kept within :data:`TARGET_MAX` by the fit itself
+    (:data:`selector.spheres.CENTRE_HI`), its R0 is not held to :data:`R0_MAX`."""
     for k, hi in TARGET_MAX.items():
         if float(getattr(t, k)) > hi:
             v = float(getattr(t, k))

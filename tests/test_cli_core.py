@@ -399,6 +399,13 @@ def test_mix_grid_applies_its_filters_to_named_liquids(capsys):
     assert "a grid needs two" in capsys.readouterr().err
     assert main(["mix-grid", "water,hexane", "--not-miscible"]) == 2
     assert "give --long too" in capsys.readouterr().err
+    # the long list keeps a pair UNIFAC (thermo) splits where the model does not: glycerol +
+    # acetone, two layers (from memory), model "miscible"
+    assert main(["mix-grid", "glycerol,acetone,ethanol", "--long", "--not-miscible", "--format", "csv"]) == 0
+    pairs = pd.read_csv(io.StringIO(capsys.readouterr().out)).fillna("")
+    row = pairs.loc[(pairs["a"] == "glycerol") & (pairs["b"] == "acetone")].iloc[0]
+    assert row["state"] == "miscible" and bool(row["uncertain"])
+    assert row["unifac_disagrees"] == "UNIFAC (original): partially miscible"
 
 
 @pytest.mark.parametrize("argv, said", [

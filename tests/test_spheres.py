@@ -214,7 +214,8 @@ def test_row_order_and_consistent_duplicates():
 
 def test_weights_matter():
     # A bad result recorded for the liquid nearest the centre of the polystyrene-like goods:
-    # with weight 1 the sphere keeps it inside (a misfit), with a heavy weight it must exclude it.
+    # with weight 1 the sphere keeps it well inside (a misfit); a heavy weight pushes it out to
+    # the surface, as far as the centre box allows (the fit says its centre is pinned there).
     base = pd.DataFrame({"solvent": PS_GOOD + PS_BAD, "outcome": [True] * len(PS_GOOD) + [False] * len(PS_BAD)})
     first = fit_sphere(base, bootstrap=0)
     ranked = selector.rank(first, polarity_weight=0.0, exclude=PS_GOOD + PS_BAD)
@@ -233,6 +234,7 @@ def test_weights_matter():
     # dD 30, the most a typed target may have); the light one leaves it well inside
     assert red(light) < 0.999 and red(heavy) >= 1 - 1e-9
     assert heavy.delta_d <= 30.0 + 1e-9
+    assert any(w.startswith("the centre stops at the edge of the range") for w in heavy.warnings)
 
 
 # ----------------------------------------------------------------------------- input handling
@@ -536,7 +538,7 @@ def test_trying_two_spheres_leaves_the_one_sphere_intervals_alone():
     assert both.intervals == one.intervals and len(one.intervals) >= 4
 
 
-def test_one_mislabelled_test_is_named_and_the_centre_stays_physical():
+def test_one_mislabelled_test_is_named_and_the_centre_stays_in_the_target_box():
     # numbers review, round 4: polymethyl methacrylate's sphere (dD 18.6, dP 10.5, dH 5.1, R0 8.6,
     # from memory of Hansen's handbook) decides 22 common liquids; water marked "good" by mistake
     # sent the centre to dD 81.7, dP 67.9 (R0 144) with no hint of which result to doubt
@@ -552,8 +554,11 @@ def test_one_mislabelled_test_is_named_and_the_centre_stays_physical():
     assert not clean["outcome"][names.index("water")]          # water does not dissolve PMMA (common practice)
     ok = fit_sphere(clean, bootstrap=0)
     f = fit_sphere(wrong, bootstrap=0)
-    # the centre stays in the box a typed target is held to (dD <= 30, dP <= 40, dH <= 50)
+    # the centre stays in the box a typed target is held to (dD <= 30, dP <= 40, dH <= 50), and
+    # says when it is pinned at its edge
     assert f.delta_d <= 30 + 1e-9 and f.delta_p <= 40 + 1e-9 and f.delta_h <= 50 + 1e-9
+    assert any(w.startswith("the centre stops at the edge of the range it is searched in (dD 30")
+               for w in f.warnings)
     selector.rank(f)                                           # usable as a target
     said = [w for w in f.warnings if w.startswith("one result decides this fit: without water (marked good)")]
     assert len(said) == 1

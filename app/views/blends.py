@@ -4,6 +4,7 @@ import streamlit as st
 
 import selector
 from lwui import common, plots
+from selector.blends import mixing_warning
 from selector.report import LIBRARY_SOURCES, build_report
 
 st.title("Blend design")
@@ -75,10 +76,8 @@ has_est = res["estimated"].ne("").any()
 st.subheader("Best five")
 common.readable_top(res, ["blend", "red" if has_r else None, "ra", "hazard_class", "lowest_flash_point_c",
                           "estimated" if has_est else None, "hazard_notes"], 5)
-doubted = res["mixing_note"].astype(str).ne("") if "mixing_note" in res else pd.Series(False, index=res.index)
-if doubted.any():
-    st.warning(f"{int(doubted.sum())} of these blends hold a pair that the HSP model calls miscible and UNIFAC "
-               "does not (see the Mixing note column): test a small mix of those before anything else.",
+if mixing_warning(res):
+    st.warning(common.ui_units(mixing_warning(res)).replace("(mixing_note)", "(the Mixing note column)"),
                icon=":material/science:")
 if has_est:
     st.caption("estimated = components whose HSP are estimated from structure (not measured): such a "
@@ -96,7 +95,9 @@ inputs.update({"liquids per blend": int(ncomp), "smallest share": float(minf)})
 rep_cols = [c for c in ["blend", "delta_d", "delta_p", "delta_h", "ra", "red", "hazard_class"] if c in res]
 kw = dict(target=t, inputs=inputs, table=res.head(10), columns=rep_cols, liquids=common.with_hazards(comp_rows),
           sources=LIBRARY_SOURCES + ["Blend HSP: volume-fraction-weighted mean (Hansen's handbook, ch. 1)."],
-          notes=(["The target is the INVENTED demo resin, not measured data."] if common.is_demo() else []))
+          notes=(["The target is the INVENTED demo resin, not measured data."] if common.is_demo() else [])
+          + ([mixing_warning(res).replace("(mixing_note)", "(see the full table's mixing_note)")]
+             if mixing_warning(res) else []))
 common.downloads(res.drop(columns=["blend"]), stem="blends", report_md=build_report("Blend design", **kw),
                  report_html=build_report("Blend design", fmt="html", **kw), key="bl")
 
