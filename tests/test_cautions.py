@@ -261,6 +261,21 @@ def test_reacting_pairs_are_never_blended_unless_asked():
         assert not (set(cs) & acids and set(cs) & bases), cs
 
 
+def _pair_screen(names):
+    """Library rows of ``names`` (in that order), their reacting-pair matrix, and a symmetric
+    ``reacts(a, b)`` test on it."""
+    from selector.cautions import reactive_pair_matrix
+
+    rows = pd.concat([LIB.loc[[selector.find_liquid(n, LIB).name]] for n in names]).reset_index(drop=True)
+    pos = {n: i for i, n in enumerate(names)}
+    m = reactive_pair_matrix(rows)
+
+    def reacts(a, b):
+        return bool(m[pos[a], pos[b]]) and bool(m[pos[b], pos[a]])
+
+    return rows, m, reacts
+
+
 def test_amine_pairs_with_esters_aldehydes_and_halocarbons():
     # Common practice: primary and secondary amines open cyclic carbonates and lactones and slowly
     # aminolyse esters (so amine hardeners are kept free of esters); aniline condenses with
@@ -273,12 +288,7 @@ def test_amine_pairs_with_esters_aldehydes_and_halocarbons():
     names = ["ethylenediamine", "propylene carbonate", "gamma-butyrolactone", "butylamine", "ethyl acetate",
              "aniline", "2-furaldehyde", "triethylamine", "dichloromethane", "pentachloroethane",
              "morpholine", "toluene", "acetone"]
-    rows = pd.concat([LIB.loc[[selector.find_liquid(n, LIB).name]] for n in names]).reset_index(drop=True)
-    pos = {n: i for i, n in enumerate(names)}
-    m = reactive_pair_matrix(rows)
-
-    def reacts(a, b):
-        return bool(m[pos[a], pos[b]]) and bool(m[pos[b], pos[a]])
+    rows, m, reacts = _pair_screen(names)
 
     assert reacts("ethylenediamine", "propylene carbonate") and reacts("ethylenediamine", "gamma-butyrolactone")
     assert reacts("butylamine", "ethyl acetate") and reacts("morpholine", "ethyl acetate")
@@ -298,7 +308,7 @@ def test_amine_pairs_with_esters_aldehydes_and_halocarbons():
     # one reason per pair, though diethylenetriamine is a primary and a secondary amine
     deta = pd.concat([LIB.loc[[selector.find_liquid(n, LIB).name]] for n in ["diethylenetriamine", "acetone"]])
     assert len(pair_reasons(deta.reset_index(drop=True))) == 1
-    assert not m[pos["toluene"]].any()
+    assert not m[names.index("toluene")].any()
     text = " ".join(pair_reasons(rows))
     assert "primary amine + ester, lactone or carbonate" in text and "aromatic amine + aldehyde" in text
     assert "amine + polyhalogenated alkane" in text
@@ -309,18 +319,12 @@ def test_epoxides_isocyanates_enol_ethers_and_furfuryl_alcohol_with_their_partne
     # isocyanates react with amines, water and alcohols (polyurethane chemistry; water gives CO2);
     # acids cure furfuryl alcohol (furan foundry binders). From memory: acids add to enol ethers
     # (dihydropyran and 2-methoxypropene are used with an acid catalyst to protect alcohols).
-    from selector.cautions import pair_reasons, reactive_pair_matrix
+    from selector.cautions import pair_reasons
 
     names = ["propylene oxide", "ethylenediamine", "acetic acid", "methyl isocyanate", "water", "ethanol",
              "butylamine", "furfuryl alcohol", "formic acid", "ethyl vinyl ether", "3,4-dihydro-2h-pyran",
              "toluene", "acetone", "ethyl acetate", "vinyl acetate"]
-    rows = pd.concat([LIB.loc[[selector.find_liquid(n, LIB).name]] for n in names]).reset_index(drop=True)
-    pos = {n: i for i, n in enumerate(names)}
-    m = reactive_pair_matrix(rows)
-
-    def reacts(a, b):
-        return bool(m[pos[a], pos[b]]) and bool(m[pos[b], pos[a]])
-
+    rows, _, reacts = _pair_screen(names)
     assert reacts("propylene oxide", "ethylenediamine") and reacts("propylene oxide", "acetic acid")
     assert reacts("methyl isocyanate", "water") and reacts("methyl isocyanate", "ethanol")
     assert reacts("methyl isocyanate", "butylamine")
