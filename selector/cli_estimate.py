@@ -135,7 +135,7 @@ def _mine_table(path):
     path = Path(path)
     if not path.exists() or path.stat().st_size == 0:
         return None
-    old = _as_frame(path)
+    old = _as_frame(path, as_text=True)
     missing = [c for c in ("name", "delta_d", "delta_p", "delta_h") if c not in old.columns]
     if missing:
         raise SelectorError(f"{path} is not a table of your liquids (no {', '.join(missing)} "

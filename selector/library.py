@@ -282,19 +282,22 @@ USER_COLUMN_ALIASES = {
 }
 
 
-def _as_frame(table) -> pd.DataFrame:
+def _as_frame(table, *, as_text: bool = False) -> pd.DataFrame:
     """A user table as a DataFrame: a DataFrame (copied), a CSV path, CSV bytes or an open file.
 
     Files go through :func:`selector.io.read_user_csv` (UTF-8 or Windows-1252; comma, semicolon
     or tab; decimal commas in semicolon files) and get canonical headers
     (:data:`USER_COLUMN_ALIASES`: ``dD`` -> ``delta_d``...), so a merge into a file with other
-    header spellings keeps its rows."""
+    header spellings keeps its rows. ``as_text``: every cell read as text (a merge that rewrites
+    the file then keeps the user's own columns as typed: "007" stays "007"; the known columns are
+    converted by :func:`validate_user_table`)."""
     from .io import read_user_csv, rename_aliases
 
     if isinstance(table, pd.DataFrame):
         return table.copy()
     if isinstance(table, (str, Path, bytes, bytearray, io.IOBase)) or hasattr(table, "getvalue"):
-        df = read_user_csv(table, strict_rows="longer", keep_default_na=False, na_values=[""], dtype={"cas": str})
+        df = read_user_csv(table, strict_rows="longer", keep_default_na=False, na_values=[""],
+                           dtype=str if as_text else {"cas": str})
         return rename_aliases(df, USER_COLUMN_ALIASES, "user liquids")
     raise SelectorError("a table must be a CSV path or a pandas DataFrame")
 

@@ -413,3 +413,17 @@ def test_mix_grid_applies_its_filters_to_named_liquids(capsys):
     row = pairs.loc[(pairs["a"] == "glycerol") & (pairs["b"] == "acetone")].iloc[0]
     assert row["state"] == "miscible" and bool(row["uncertain"])
     assert row["unifac_disagrees"] == "UNIFAC (original): partially miscible"
+
+
+def test_save_mine_keeps_the_users_own_columns_as_typed(tmp_path, capsys):
+    # boundary review: merging a row rewrote a user's code "007" as 7.0 and "1e3" as 1000.0
+    mine = tmp_path / "mine.csv"
+    mine.write_text("name,delta_d,delta_p,delta_h,code,remark\nkeep me (invented),17.1,3.2,5.5,007,1e3\n",
+                    encoding="utf-8")
+    # benzamide: in the published table (chemicals, ALSHERI_HANSEN), so a saveable row
+    rc, _, err = run(["guess", "c1ccccc1C(=O)N", "--save-mine", str(mine)], capsys)
+    assert rc == 0 and "saved 1 row" in err
+    first = mine.read_text(encoding="utf-8").splitlines()[1]
+    assert first.startswith("keep me (invented),17.1,3.2,5.5,007,1e3")
+    back = pd.read_csv(mine, dtype=str)
+    assert list(back["name"]) == ["keep me (invented)", "benzamide"]
