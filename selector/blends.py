@@ -772,7 +772,7 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
         kmax = int(max_components)
     except (TypeError, ValueError):
         raise SelectorError(f"max_components must be 1, 2 or 3, got {max_components!r}") from None
-    if kmax not in (1, 2, 3) or kmax != max_components:
+    if isinstance(max_components, bool) or kmax not in (1, 2, 3) or kmax != max_components:
         raise SelectorError(f"max_components must be 1, 2 or 3, got {max_components!r}")
     m = _check_min_fraction(min_fraction, kmax if kmax > 1 else 2)
     if top is not None and (not isinstance(top, (int, np.integer)) or top < 1):
@@ -793,8 +793,6 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     if not (math.isfinite(step) and step > 0):
         raise SelectorError(f"resolution must be a positive number of MPa^0.5 (the Ra step of the display "
                             f"order), got {resolution!r}")
-    if max_components is True or max_components is False:
-        raise SelectorError(f"max_components must be 1, 2 or 3, got {max_components!r}")
     tgt, cand, h, t_c, (cost, price_notes) = _target_and_candidates(target, library, temperature, filters,
                                                                       cost_per_litre)
     from .filters import as_flag
@@ -825,7 +823,7 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     from .hazards import component_notes
 
     out["hazard_notes"] = component_notes(out["components"], cand)
-    from .ranking import above_flash_point_notes
+    from .cautions import above_flash_point_notes
 
     out["hazard_notes"] = above_flash_point_notes(out, t_c, "lowest_flash_point_c")
     out["mixing_note"] = second_opinion_notes(out["components"], cand, t_c) if mis is not None else ""
@@ -854,8 +852,7 @@ def second_opinion_notes(components, table: pd.DataFrame, temperature: float = 2
     but UNIFAC's second opinion (:func:`selector.unifac.second_opinion`, as :func:`selector.miscibility`
     asks it) says do not mix in all proportions; "" where none. Only the rows shown are asked
     (about 1 ms a new pair, cached); pairs the reference tables answer are left to the tables."""
-    from .mixing import _clean, _reference_at, key_and_mass
-    from .unifac import second_opinion
+    from .mixing import _clean, _reference_at, second_opinion_of
 
     by_name = table.drop_duplicates("name").set_index("name", drop=False)
     notes = []
@@ -866,12 +863,8 @@ def second_opinion_notes(components, table: pd.DataFrame, temperature: float = 2
                 a, b = by_name.loc[comps[i]], by_name.loc[comps[j]]
                 if _reference_at(_clean(a.get("cas", "")), _clean(b.get("cas", "")), float(temperature))[0]:
                     continue
-                (ka, ma), (kb, mb) = key_and_mass(a), key_and_mass(b)
-                keys, mm = [ka, kb], [ma, mb]
-                if not all(keys) or not all(math.isfinite(x) for x in mm):
-                    continue
-                so = second_opinion(keys[0], keys[1], mm[0], mm[1], float(temperature))
-                if so["state"] and so["state"] != "miscible":
+                so = second_opinion_of(a, b, temperature)
+                if so.get("state") and so["state"] != "miscible":
                     found.append(f"{comps[i]} + {comps[j]} {so['state']}")
         notes.append(f"UNIFAC, pair by pair: {'; '.join(found)} (the HSP model: miscible); test a small mix"
                      if found else "")
@@ -1083,7 +1076,7 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     from .hazards import component_notes
 
     out["hazard_notes"] = component_notes(out["components"], pd.concat([x, cand]))
-    from .ranking import above_flash_point_notes
+    from .cautions import above_flash_point_notes
 
     out["hazard_notes"] = above_flash_point_notes(out, t_c, "lowest_flash_point_c")
     out["mixing_note"] = (second_opinion_notes(out["components"], pd.concat([x, cand]), t_c)

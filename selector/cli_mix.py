@@ -141,6 +141,9 @@ def cmd_grid(a) -> int:
                 "`likewise mix` checks their intervals): " + ", ".join(est)) if est else ""
     if dropped:
         est_note += "\nLeft out by the filters: " + ", ".join(dropped)
+    no_unifac = ("" if m.attrs.get("unifac_checked", True) else
+                 f"\nNo UNIFAC second opinion for more than {UNIFAC_MATRIX_MAX} liquids: `likewise mix A B` "
+                 "gives it for a pair")
     if a.long:
         import numpy as np
 
@@ -157,11 +160,7 @@ def cmd_grid(a) -> int:
         if a.not_miscible:
             # a pair that may split (uncertain, or UNIFAC says so) is kept with the ones that do
             out = out[(out.state != "miscible") | out.reacts | out.uncertain]
-        head = f"{len(out)} pairs at {a.at:g} C" + est_note
-        if not m.attrs.get("unifac_checked", True):
-            head += (f"\nNo UNIFAC second opinion for more than {UNIFAC_MATRIX_MAX} liquids: `likewise mix A B` "
-                     "gives it for a pair")
-        emit(out, a, caution=True, header=head)
+        emit(out, a, caution=True, header=f"{len(out)} pairs at {a.at:g} C" + est_note + no_unifac)
         return 0
     shown = m if a.format != "table" else m.replace(SHORT)
     out = shown.reset_index().rename(columns={"index": "liquid"})
@@ -176,9 +175,7 @@ def cmd_grid(a) -> int:
     if split:
         header += ("\nMODELS DISAGREE (UNIFAC's second opinion against the model shown; test them): "
                    + ", ".join(f"{x} + {y} ({mt}: {s_})" for x, y, mt, s_ in split))
-    if not m.attrs.get("unifac_checked", True):
-        header += (f"\nNo UNIFAC second opinion for more than {UNIFAC_MATRIX_MAX} liquids: `likewise mix A B` "
-                   "gives it for a pair")
+    header += no_unifac
     pairs = m.attrs.get("reactive_pairs", [])
     if pairs:
         header += ("\nREACTIVE PAIRS (they react whatever the state; do not mix them except as a planned "

@@ -776,6 +776,17 @@ def key_and_mass(row) -> tuple[str, float]:
     return key, mm
 
 
+def second_opinion_of(a, b, t: float) -> dict:
+    """UNIFAC's second opinion (:func:`selector.unifac.second_opinion`) for two liquid rows at
+    ``t`` (C), or ``{}`` when one lacks a structure or molar mass, or both are the same compound."""
+    from .unifac import second_opinion
+
+    (ka, ma), (kb, mb) = key_and_mass(a), key_and_mass(b)
+    if not ka or not kb or ka == kb or not (math.isfinite(ma) and math.isfinite(mb)):
+        return {}
+    return second_opinion(ka, kb, ma, mb, float(t))
+
+
 def _record(row, name) -> dict:
     get = row.get
     rec = {"name": name}
@@ -1275,11 +1286,9 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
                      "of both liquids first")
     second, disagree = {}, False
     if unifac and not same:
-        from .chem import molar_mass
         from .unifac import second_opinion
 
-        mm = [r["molar_mass"] if math.isfinite(r["molar_mass"]) else molar_mass(r["smiles"])
-              for r in (ra_, rb_)]
+        mm = [key_and_mass(r)[1] for r in (ra_, rb_)]
         lacking = [r["name"] for r, m_ in zip((ra_, rb_), mm) if not math.isfinite(m_)]
         second = second_opinion(ra_["inchikey"], rb_["inchikey"], mm[0], mm[1], t) if not lacking else {
             "method": "", "state": "", "why": f"no molar mass or structure for {' and '.join(lacking)}"}
@@ -1644,8 +1653,9 @@ def miscibility_matrix(liquids, *, temperature: float = 25.0, library: pd.DataFr
     out.attrs["unifac_checked"] = checked
     out.attrs["disagreeing_pairs"] = _matrix_disagreements(df, st, names, float(temperature), done) if checked else []
     flagged = {frozenset(p) for p in unsure}
-    unsure += [(names.index(a), names.index(b)) for a, b, _, _ in out.attrs["disagreeing_pairs"]
-               if frozenset((names.index(a), names.index(b))) not in flagged]
+    at = {nm: k for k, nm in enumerate(names)}
+    unsure += [(at[a], at[b]) for a, b, _, _ in out.attrs["disagreeing_pairs"]
+               if frozenset((at[a], at[b])) not in flagged]
     out.attrs["uncertain_pairs"] = [(names[w], names[k]) for w, k in unsure
                                     if frozenset((names[w], names[k])) not in done]
     return out
@@ -1655,16 +1665,13 @@ def _matrix_disagreements(df: pd.DataFrame, st: np.ndarray, names: list, t: floa
     """``(a, b, method, state)`` for the pairs of ``df`` (i < j, not in ``skip``) on which UNIFAC's
     second opinion (:func:`selector.unifac.second_opinion`) and the model state ``st`` differ on one
     phase or two."""
-    from .unifac import second_opinion
-
-    keys, mass = zip(*(key_and_mass(r) for _, r in df.iterrows())) if len(df) else ((), ())
+    rows = [r for _, r in df.iterrows()]
     out = []
     for i, j in zip(*np.triu_indices(len(df), 1)):
-        if (frozenset((names[i], names[j])) in skip or not keys[i] or not keys[j]
-                or not (math.isfinite(mass[i]) and math.isfinite(mass[j])) or keys[i] == keys[j]):
+        if frozenset((names[i], names[j])) in skip:
             continue
-        so = second_opinion(keys[i], keys[j], mass[i], mass[j], t)
-        if so["state"] and _one_phase_differs(so["state"], str(st[i, j])):
+        so = second_opinion_of(rows[i], rows[j], t)
+        if so.get("state") and _one_phase_differs(so["state"], str(st[i, j])):
             out.append((names[i], names[j], so["method"], so["state"]))
     return out
 

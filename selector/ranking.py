@@ -74,28 +74,6 @@ def resolve_target(target, library: pd.DataFrame, temperature: float = 25.0) -> 
     return t
 
 
-def above_flash_point_notes(rows: pd.DataFrame, temperature: float, column: str = "flash_point_c") -> np.ndarray:
-    """``rows["hazard_notes"]`` with "HEATED ABOVE ITS FLASH POINT (x C)" put first where a use
-    temperature above 25 C reaches the flash point in ``column`` (a blend's:
-    ``lowest_flash_point_c``) and the flash point lies above 25 C: its vapour over the liquid can
-    then burn, though at room temperature it would not (common practice: the flash point is the
-    lowest temperature at which it does). Liquids that flash below 25 C carry their flammability
-    notes already."""
-    notes = rows["hazard_notes"].fillna("").astype(str).to_numpy(object)
-    fp = pd.to_numeric(rows.get(column, pd.Series(np.nan, index=rows.index)),
-                       errors="coerce").to_numpy(float)
-    with np.errstate(invalid="ignore"):
-        hot = np.isfinite(fp) & (fp <= float(temperature)) & (fp > 25.0)
-    if not hot.any():
-        return notes
-    from .report import round_half_away
-
-    lead = np.array([f"HEATED ABOVE ITS FLASH POINT ({float(round_half_away(x)):.0f} C) at {float(temperature):g} C: "
-                     "flammable vapour over the liquid" for x in fp[hot]], dtype=object)
-    notes[hot] = np.where(notes[hot] != "", lead + "; " + notes[hot], lead)
-    return notes
-
-
 def rank(target, *, temperature: float = 25.0, library: pd.DataFrame | None = None,
          polarity_weight: float = DEFAULT_POLARITY_WEIGHT, top: int | None = None,
          **filters) -> pd.DataFrame:
@@ -156,6 +134,8 @@ def rank(target, *, temperature: float = 25.0, library: pd.DataFrame | None = No
 
     # order unchanged (by score); the notes say where a liquid has no hazard data
     out["hazard_notes"] = liquid_notes(lib)[mask]
+    from .cautions import above_flash_point_notes
+
     out["hazard_notes"] = above_flash_point_notes(out, t_c)
     key = np.round(score / TIE_RESOLUTION)
     order = np.lexsort((out["molar_volume"].to_numpy(float), key))

@@ -117,10 +117,9 @@ TEST_COLUMN_ALIASES = {
     "temperature": ("temp", "temperature_c", "t_c"),
 }
 
-
-
 #: Most bootstrap resamples :func:`fit_sphere` accepts (memory and time grow with each).
 MAX_BOOTSTRAP = 20_000
+
 
 def normalise_test_columns(df: pd.DataFrame) -> pd.DataFrame:
     """``df`` with lab-test headers in canonical lower-case form (``dD`` -> ``delta_d``, ``Liquid``
@@ -975,7 +974,7 @@ def _shelf_notes(lib, shelf, tested, t, filters) -> list[str]:
     return out
 
 
-#: :func:`_deciding_test` names a test whose removal cuts the misfit to this share or less ...
+#: :func:`_deciding_tests` names a test whose removal cuts the misfit to this share or less ...
 DECIDER_LOSS_SHARE = 0.2
 #: ... and changes R0 by at least this share, or moves the centre by at least this share of R0.
 DECIDER_CHANGE = 0.4

@@ -76,8 +76,9 @@ has_est = res["estimated"].ne("").any()
 st.subheader("Best five")
 common.readable_top(res, ["blend", "red" if has_r else None, "ra", "hazard_class", "lowest_flash_point_c",
                           "estimated" if has_est else None, "hazard_notes"], 5)
-if mixing_warning(res):
-    st.warning(common.ui_units(mixing_warning(res)).replace("(mixing_note)", "(the Mixing note column)"),
+mix_warn = mixing_warning(res)
+if mix_warn:
+    st.warning(common.ui_units(mix_warn).replace("(mixing_note)", "(the Mixing note column)"),
                icon=":material/science:")
 if has_est:
     st.caption("estimated = components whose HSP are estimated from structure (not measured): such a "
@@ -96,8 +97,7 @@ rep_cols = [c for c in ["blend", "delta_d", "delta_p", "delta_h", "ra", "red", "
 kw = dict(target=t, inputs=inputs, table=res.head(10), columns=rep_cols, liquids=common.with_hazards(comp_rows),
           sources=LIBRARY_SOURCES + ["Blend HSP: volume-fraction-weighted mean (Hansen's handbook, ch. 1)."],
           notes=(["The target is the INVENTED demo resin, not measured data."] if common.is_demo() else [])
-          + ([mixing_warning(res).replace("(mixing_note)", "(see the full table's mixing_note)")]
-             if mixing_warning(res) else []))
+          + ([mix_warn.replace("(mixing_note)", "(see the full table's mixing_note)")] if mix_warn else []))
 common.downloads(res.drop(columns=["blend"]), stem="blends", report_md=build_report("Blend design", **kw),
                  report_html=build_report("Blend design", fmt="html", **kw), key="bl")
 
