@@ -62,9 +62,46 @@ def with_flags(msg: str) -> str:
     return msg
 
 
+def _options_with_a_value(parser: argparse.ArgumentParser) -> set:
+    """Every option string, in ``parser`` and its subcommands, that takes exactly one value."""
+    found = set()
+    for act in parser._actions:
+        if isinstance(act, argparse._SubParsersAction):
+            for sub in act.choices.values():
+                found |= _options_with_a_value(sub)
+        elif act.option_strings and act.nargs is None:
+            found.update(act.option_strings)
+    return found
+
+
+def join_negative_values(argv: list, options: set) -> list:
+    """``argv`` with ``--opt -20:10`` written ``--opt=-20:10`` for each option that takes a value,
+    so that a window or list with a negative start is read as the value, not as an unknown option.
+    argparse reads a lone negative number (``--at -5``) without help, but not ``-20:10``.
+
+    >>> join_negative_values(["rank", "x", "--flash", "-20:10", "--at", "5"], {"--flash", "--at"})
+    ['rank', 'x', '--flash=-20:10', '--at', '5']
+    """
+    import re
+
+    out, i = [], 0
+    while i < len(argv):
+        tok = argv[i]
+        if tok == "--":
+            return out + list(argv[i:])
+        if tok in options and i + 1 < len(argv) and re.match(r"-\.?\d", argv[i + 1]):
+            out.append(f"{tok}={argv[i + 1]}")
+            i += 2
+            continue
+        out.append(tok)
+        i += 1
+    return out
+
+
 def main(argv=None) -> int:
     parser = build_parser()
-    a = parser.parse_args(argv)
+    argv = list(sys.argv[1:] if argv is None else argv)
+    a = parser.parse_args(join_negative_values(argv, _options_with_a_value(parser)))
     if not getattr(a, "func", None):
         parser.print_help()
         return 0

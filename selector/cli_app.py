@@ -4,6 +4,8 @@ from __future__ import annotations
 import sys
 from pathlib import Path
 
+from .cli_common import whole_number
+
 APP_DIR = Path(__file__).resolve().parent.parent / "app"
 ENTRY = APP_DIR / "likewise_app.py"
 
@@ -115,7 +117,7 @@ def register(sub) -> None:
     p = sub.add_parser("app", help="start the local web app (opens on the invented demo scenario)",
                        description="Serve the likewise web app on http://127.0.0.1:PORT (this "
                        "computer only). Open the address in a browser; Ctrl+C stops the server.")
-    p.add_argument("--port", type=int, default=8501, help="local port (default 8501)")
+    p.add_argument("--port", type=whole_number, default=8501, help="local port (default 8501)")
     p.add_argument("--print-command", action="store_true",
                    help="print the server command instead of running it")
     p.set_defaults(func=cmd_app)

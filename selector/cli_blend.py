@@ -3,7 +3,8 @@ from __future__ import annotations
 
 import argparse
 
-from .cli_common import add_filter_args, add_output_args, emit, filters_from_args, library_from_args
+from .cli_common import (add_filter_args, add_output_args, emit,
+                          filters_from_args, library_from_args, number, whole_number)
 
 BLEND_COLUMNS = ["blend", "n_components", "delta_d", "delta_p", "delta_h", "ra", "red", "non_solvent_pair",
                  "hazard_class", "bp_low_c", "bp_high_c", "lowest_flash_point_c", "lowest_flash_component",
@@ -168,11 +169,11 @@ def cmd_dry(a) -> int:
 
 
 def _blend_options(p, parts_default=3):
-    p.add_argument("--parts", type=int, choices=[1, 2, 3], default=parts_default,
+    p.add_argument("--parts", type=whole_number, choices=[1, 2, 3], default=parts_default,
                    help=f"most liquids per blend (default {parts_default})")
-    p.add_argument("--min-share", type=float, default=0.05, metavar="F",
+    p.add_argument("--min-share", type=number, default=0.05, metavar="F",
                    help="smallest volume fraction of any liquid in a blend (default 0.05)")
-    p.add_argument("--at", type=float, default=25.0, metavar="C", help="use temperature in C (default 25)")
+    p.add_argument("--at", type=number, default=25.0, metavar="C", help="use temperature in C (default 25)")
 
 
 def register(sub) -> None:
@@ -184,11 +185,11 @@ def register(sub) -> None:
                        epilog="examples:\n  likewise blend 17.9,6.1,6.4,8.6 --bp 100:200 --flash 23:\n"
                        "  likewise blend 18.5,9,5,4 --parts 2 --max-class problematic --format csv -o b.csv")
     p.add_argument("target", help="'dD,dP,dH[,R0]' in MPa^0.5, or a liquid name, CAS or SMILES")
-    p.add_argument("--radius", type=float, metavar="R0", help="interaction radius R0 for a named target")
+    p.add_argument("--radius", type=number, metavar="R0", help="interaction radius R0 for a named target")
     _blend_options(p)
     p.add_argument("--prices", metavar="CSV", help="CSV with name,cost_per_litre: only priced liquids are "
                    "used and the cost-versus-Ra front is marked")
-    p.add_argument("--max-uses", type=int, default=3, metavar="N",
+    p.add_argument("--max-uses", type=whole_number, default=3, metavar="N",
                    help="a liquid appears in at most N rows (default 3)")
     p.add_argument("--skip-mixing-check", action="store_true",
                    help="do not require every pair to be miscible (not recommended)")
@@ -206,7 +207,7 @@ def register(sub) -> None:
     p.add_argument("liquid", help="the liquid to replace (name, synonym, CAS or SMILES)")
     p.add_argument("--solute", metavar="TARGET", help="'dD,dP,dH[,R0]' or a name: judge candidates "
                    "against this solute instead of the liquid's own HSP")
-    p.add_argument("--solute-radius", type=float, metavar="R0", help="R0 for a named solute")
+    p.add_argument("--solute-radius", type=number, metavar="R0", help="R0 for a named solute")
     p.add_argument("--include-energetic", action="store_true",
                    help="also propose liquids with a high energy of decomposition (nitroethane); "
                    "left out by default")
@@ -231,16 +232,16 @@ def register(sub) -> None:
     p.add_argument("components", help="comma-separated liquids")
     p.add_argument("--shares", required=True, metavar="F1,F2", help="initial volume fractions (sum 1)")
     p.add_argument("--target", metavar="TARGET", help="'dD,dP,dH[,R0]' or a liquid name")
-    p.add_argument("--radius", type=float, metavar="R0", help="R0 for a named target")
-    p.add_argument("--at", type=float, default=25.0, metavar="C", help="temperature in C (default 25)")
-    p.add_argument("--humidity", type=float, default=0.0, metavar="PCT", help="relative humidity of the air, %% "
+    p.add_argument("--radius", type=number, metavar="R0", help="R0 for a named target")
+    p.add_argument("--at", type=number, default=25.0, metavar="C", help="temperature in C (default 25)")
+    p.add_argument("--humidity", type=number, default=0.0, metavar="PCT", help="relative humidity of the air, %% "
                    "(acts on water only; default 0)")
     p.add_argument("--model", choices=["raoult", "hsp", "unifac"], default="raoult",
                    help="raoult (ideal, default), hsp (Flory-Huggins activity from Hansen parameters) "
                    "or unifac (original UNIFAC from the thermo library)")
-    p.add_argument("--keep-until", type=float, default=0.9, metavar="F",
+    p.add_argument("--keep-until", type=number, default=0.9, metavar="F",
                    help="warn when RED reaches 1 before this fraction has evaporated (default 0.9)")
-    p.add_argument("--points", type=int, default=21, metavar="N", help="rows in the table (default 21)")
+    p.add_argument("--points", type=whole_number, default=21, metavar="N", help="rows in the table (default 21)")
     p.add_argument("--strict", action="store_true", help="exit status 1 when the warning is raised")
     p.add_argument("--mine", metavar="CSV", help="CSV of your own liquids merged over the library")
     add_output_args(p, default_top=None)

@@ -7,6 +7,7 @@ from __future__ import annotations
 
 import argparse
 import os
+import re
 import sys
 from pathlib import Path
 
@@ -14,19 +15,53 @@ CAUTION = ("Caution: solvents can be flammable, toxic or reactive. Check the sup
            "sheet, work with ventilation and exposure limits in mind, and follow local regulation.")
 
 
+#: Dashes that people type or paste for a minus sign: the minus sign, en dash, figure dash and
+#: non-breaking hyphen.
+MINUS_LOOKALIKES = dict.fromkeys(map(ord, "\u2212\u2013\u2012\u2011"), "-")
+
+
+def _not_a_number(s: str, kind: str) -> str:
+    """Why ``s`` was refused as ``kind``, with the fix when the decimal separator was a comma."""
+    t = s.strip().translate(MINUS_LOOKALIKES)
+    if re.fullmatch(r"[+-]?\d*,\d+", t):
+        return f"{s!r} is not {kind}: write decimals with a point ({t.replace(',', '.')})"
+    return f"{s!r} is not {kind}"
+
+
+def number(s: str) -> float:
+    """argparse type for a number: a typographic minus sign is read as "-"; a decimal comma
+    ("17,5") is refused with the fix, since "1,500" could mean either.
+
+    >>> number("\u22125")
+    -5.0
+    """
+    try:
+        return float(s.strip().translate(MINUS_LOOKALIKES))
+    except ValueError:
+        raise argparse.ArgumentTypeError(_not_a_number(s, "a number")) from None
+
+
+def whole_number(s: str) -> int:
+    """argparse type for a whole number (same minus-sign and comma handling as :func:`number`)."""
+    try:
+        return int(s.strip().translate(MINUS_LOOKALIKES))
+    except ValueError:
+        raise argparse.ArgumentTypeError(_not_a_number(s, "a whole number")) from None
+
+
 def add_filter_args(p: argparse.ArgumentParser) -> None:
     g = p.add_argument_group("candidate filters")
     g.add_argument("--only", metavar="NAMES", help="comma-separated liquids to consider (names or CAS)")
     g.add_argument("--without", metavar="NAMES", help="comma-separated liquids never to propose")
     g.add_argument("--bp", metavar="LOW:HIGH", help="boiling-point window in C, e.g. 80:180 or 100:")
-    g.add_argument("--min-flash", type=float, metavar="C", help="minimum flash point in C "
+    g.add_argument("--min-flash", type=number, metavar="C", help="minimum flash point in C "
                    "(liquids without flash-point data are dropped, except those known not to burn)")
     g.add_argument("--flash", metavar="LOW:HIGH", help="flash-point window in C, e.g. 23:100 or 40: "
                    "(liquids without flash-point data are dropped; with no upper end, liquids known "
                    "not to burn pass)")
     g.add_argument("--max-class", choices=["recommended", "problematic", "hazardous", "highly-hazardous"],
                    help="worst CHEM21 hazard class allowed for every liquid (unclassified liquids are dropped)")
-    g.add_argument("--max-volume", type=float, metavar="CM3", help="maximum molar volume, cm3/mol")
+    g.add_argument("--max-volume", type=number, metavar="CM3", help="maximum molar volume, cm3/mol")
     g.add_argument("--agreed-only", action="store_true",
                    help="only liquids whose published HSP sources agree within 1 MPa^0.5")
     g.add_argument("--halogen-free", action="store_true",
@@ -48,9 +83,9 @@ def parse_window(s, option="--bp"):
         raise ValueError(f"{option} expects LOW:HIGH in C (either side may be empty), got {s!r}")
     lo, hi = s.split(":", 1)
     try:
-        return (float(lo) if lo.strip() else None, float(hi) if hi.strip() else None)
-    except ValueError:
-        raise ValueError(f"{option} expects numbers in C, got {s!r}") from None
+        return tuple(number(x) if x.strip() else None for x in (lo, hi))
+    except argparse.ArgumentTypeError as e:
+        raise ValueError(f"{option} expects numbers in C: {e}") from None
 
 
 def filters_from_args(a) -> dict:

@@ -5,7 +5,7 @@ import argparse
 import json
 import sys
 
-from .cli_common import add_filter_args, add_output_args, emit, filters_from_args, library_from_args
+from .cli_common import add_filter_args, add_output_args, emit, filters_from_args, library_from_args, number
 
 RANK_COLUMNS = ["rank", "name", "cas", "delta_d", "delta_p", "delta_h", "ra", "red", "polarity_match",
                 "score", "molar_volume", "boiling_point_c", "flash_point_c", "hazard_class", "hsp_source",
@@ -380,9 +380,9 @@ def register(sub) -> None:
                        epilog="examples:\n  likewise rank 21.3,5.8,4.3,12.7 --bp 80:180\n"
                        "  likewise rank toluene --radius 6 --min-flash 40 --format csv -o out.csv")
     p.add_argument("target", help="'dD,dP,dH[,R0]' in MPa^0.5, or a liquid name, CAS or SMILES")
-    p.add_argument("--radius", type=float, metavar="R0", help="interaction radius R0 (MPa^0.5) for a named target")
-    p.add_argument("--at", type=float, default=25.0, metavar="C", help="temperature in C (default 25)")
-    p.add_argument("--polarity-weight", type=float, default=0.3, metavar="W",
+    p.add_argument("--radius", type=number, metavar="R0", help="interaction radius R0 (MPa^0.5) for a named target")
+    p.add_argument("--at", type=number, default=25.0, metavar="C", help="temperature in C (default 25)")
+    p.add_argument("--polarity-weight", type=number, default=0.3, metavar="W",
                    help="weight of the polarity mismatch in the score (default 0.3; 0 = Ra/RED only)")
     add_filter_args(p)
     add_output_args(p)

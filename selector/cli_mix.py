@@ -4,7 +4,8 @@ from __future__ import annotations
 import argparse
 import math
 
-from .cli_common import CAUTION, add_filter_args, add_output_args, emit, filters_from_args, library_from_args
+from .cli_common import (CAUTION, add_filter_args, add_output_args,
+                          emit, filters_from_args, library_from_args, number)
 
 PAIR_COLUMNS = ["a", "b", "temperature_c", "state", "chi", "chi_critical", "ucst_c", "lcst_c", "lcst_prone", "trend_doubtful",
                 "confidence", "p_miscible", "a_in_b_vol_pct", "a_in_b_wt_pct", "a_in_b_mol_pct", "b_in_a_vol_pct", "b_in_a_wt_pct",
@@ -194,7 +195,7 @@ def register(sub) -> None:
                        "  likewise mix methanol hexane --at 35 --format json")
     p.add_argument("first", help="liquid name, synonym, CAS number or SMILES")
     p.add_argument("second", help="liquid name, synonym, CAS number or SMILES")
-    p.add_argument("--at", type=float, default=25.0, metavar="C", help="temperature in C (default 25)")
+    p.add_argument("--at", type=number, default=25.0, metavar="C", help="temperature in C (default 25)")
     p.add_argument("--model", choices=["hbond", "plain"], default="hbond",
                    help="hbond (default: donor/acceptor-aware) or plain (Hansen Flory-Huggins)")
     p.add_argument("--mine", metavar="CSV", help="CSV of your own liquids merged over the library")
@@ -211,7 +212,7 @@ def register(sub) -> None:
     p.add_argument("--all", action="store_true", help="every liquid in the library (after filters)")
     p.add_argument("--long", action="store_true", help="one row per pair instead of a square table")
     p.add_argument("--not-miscible", action="store_true", help="with --long: only pairs that split")
-    p.add_argument("--at", type=float, default=25.0, metavar="C", help="temperature in C (default 25)")
+    p.add_argument("--at", type=number, default=25.0, metavar="C", help="temperature in C (default 25)")
     p.add_argument("--model", choices=["hbond", "plain"], default="hbond", help="hbond (default) or plain")
     add_filter_args(p)
     add_output_args(p, default_top=None)

@@ -6,7 +6,7 @@ import json
 import sys
 from pathlib import Path
 
-from .cli_common import CAUTION, add_filter_args, filters_from_args, library_from_args
+from .cli_common import CAUTION, add_filter_args, filters_from_args, library_from_args, number, whole_number
 
 NEXT_COLUMNS = ["name", "cas", "delta_d", "delta_p", "delta_h", "red", "p_inside", "information",
                 "boiling_point_c", "flash_point_c", "hazard_class"]
@@ -29,19 +29,19 @@ def register(sub) -> None:
     p.add_argument("tests", help="CSV file of lab tests")
     g = p.add_argument_group("reading the tests")
     g.add_argument("--outcome", metavar="COLUMN", help="column holding the outcome or grade")
-    g.add_argument("--pass-mark", type=float, metavar="GRADE",
+    g.add_argument("--pass-mark", type=number, metavar="GRADE",
                    help="read the outcome as numeric grades; this grade and above count as good")
     g.add_argument("--scale", metavar="LOW:HIGH", help="the grade scale, e.g. 1:6 (default: grades seen)")
-    g.add_argument("--at", type=float, default=25.0, metavar="C",
+    g.add_argument("--at", type=number, default=25.0, metavar="C",
                    help="test temperature in C for rows without one (default 25)")
     f = p.add_argument_group("fitting")
     f.add_argument("--two", action="store_true",
                    help="also try two spheres (adopted only if the BIC prefers them)")
-    f.add_argument("--bootstrap", type=int, default=DEFAULT_BOOTSTRAP, metavar="N",
+    f.add_argument("--bootstrap", type=whole_number, default=DEFAULT_BOOTSTRAP, metavar="N",
                    help=f"bootstrap resamples for the intervals (default {DEFAULT_BOOTSTRAP}; 0 = none)")
-    f.add_argument("--seed", type=int, default=0, help="random seed (default 0)")
+    f.add_argument("--seed", type=whole_number, default=0, help="random seed (default 0)")
     n = p.add_argument_group("next tests")
-    n.add_argument("--next", type=int, default=5, metavar="N", help="liquids to suggest testing next (default 5)")
+    n.add_argument("--next", type=whole_number, default=5, metavar="N", help="liquids to suggest testing next (default 5)")
     n.add_argument("--shelf", metavar="NAMES", help="comma-separated liquids you have on the shelf")
     add_filter_args(p)
     o = p.add_argument_group("output")

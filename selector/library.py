@@ -129,9 +129,24 @@ def _aliases() -> dict[str, str]:
     return {_key(r.alias): r.cas for r in a.itertuples()}
 
 
+#: Greek letters as they are spelled out in the library's names (alpha-pinene, gamma-butyrolactone).
+_GREEK = {"α": "alpha", "β": "beta", "γ": "gamma", "δ": "delta", "ε": "epsilon", "ω": "omega"}
+
+
 def _key(text: str) -> str:
-    """Normalised look-up key: lower case, without spaces, hyphens, underscores or commas."""
-    return re.sub(r"[\s\-_,'’]+", "", str(text).strip().lower())
+    """Normalised look-up key: lower case (after Unicode NFKC), Greek letters spelled out, without
+    spaces, hyphens or dashes of any kind, underscores, commas, apostrophes or primes.
+
+    >>> _key("N\u2011Methyl\u20112\u2011pyrrolidone") == _key("n-methyl-2-pyrrolidone")
+    True
+    >>> _key("\u03b3-Butyrolactone")
+    'gammabutyrolactone'
+    """
+    import unicodedata
+
+    t = unicodedata.normalize("NFKC", str(text)).strip().lower()
+    t = "".join(_GREEK.get(ch, ch) for ch in t)
+    return re.sub(r"[\s\-_,'’′″\u2010-\u2015\u2212]+", "", t)
 
 
 class _Index:

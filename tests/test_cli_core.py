@@ -427,3 +427,31 @@ def test_save_mine_keeps_the_users_own_columns_as_typed(tmp_path, capsys):
     assert first.startswith("keep me (invented),17.1,3.2,5.5,007,1e3")
     back = pd.read_csv(mine, dtype=str)
     assert list(back["name"]) == ["keep me (invented)", "benzamide"]
+
+
+def test_window_with_a_negative_start_and_typographic_minus(capsys):
+    """``--flash -20:10`` is read as the window (argparse alone takes "-20:10" for an option);
+    a minus sign pasted as U+2212 is a minus. Checked against the library's own flash points."""
+    rc, out, err = run(["rank", "toluene", "--flash", "-20:10", "--format", "csv", "--top", "200"], capsys)
+    assert rc == 0, err
+    fp = pd.read_csv(io.StringIO(out))["flash_point_c"]
+    assert len(fp) > 5 and fp.between(-20, 10).all() and (fp < 0).any()
+    rc, out, err = run(["rank", "toluene", "--min-flash", "\u221215", "--format", "csv"], capsys)
+    assert rc == 0, err
+    assert pd.read_csv(io.StringIO(out))["flash_point_c"].min() >= -15
+
+
+@pytest.mark.parametrize("args,fix", [
+    (["rank", "toluene", "--min-flash", "17,5"], "(17.5)"),
+    (["rank", "toluene", "--bp", "80,5:"], "(80.5)"),
+    (["blend", "toluene", "--at", "30,0"], "(30.0)"),
+])
+def test_decimal_comma_is_refused_with_the_fix(capsys, args, fix):
+    # "1,500" could be fifteen hundred or one and a half: refused, never guessed (common practice)
+    try:
+        rc = main(args)
+    except SystemExit as e:   # argparse's own exit for an option's value
+        rc = e.code
+    out, err = capsys.readouterr()
+    assert rc == 2 and out == ""
+    assert "write decimals with a point " + fix in err

@@ -276,6 +276,11 @@ def test_stereo_partners_share_data_based_values(lib):
     ("NMP", "1-methyl-2-pyrrolidinone"), ("n-methyl-2-pyrrolidone", "1-methyl-2-pyrrolidinone"),
     ("isopropyl alcohol", "isopropanol"), ("DCM", "dichloromethane"),
     ("n,n-dimethylformamide", "N,N-dimethylformamide"),   # the N locant in capitals (parameters/names.csv)
+    # names pasted from a data sheet or a word processor: non-breaking hyphens, en dashes, Greek letters
+    ("N\u2011methyl\u20112\u2011pyrrolidone", "1-methyl-2-pyrrolidinone"),
+    ("N,N\u2032\u2013dimethylformamide", "N,N-dimethylformamide"),
+    ("\u03b1-pinene", "alpha-pinene"), ("\u03b3-Butyrolactone", "gamma-butyrolactone"),
+    ("\uff34oluene", "toluene"),                         # a full-width T, folded by Unicode NFKC
 ])
 def test_lookup(lib, query, expected):
     assert find_liquid(query, lib)["name"] == expected
