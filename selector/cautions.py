@@ -241,10 +241,11 @@ def _computed(sub: pd.DataFrame) -> np.ndarray:
     el = _exposure_ppm(sub)
     vp = sub["vapour_pressure_kpa"].to_numpy(float) if "vapour_pressure_kpa" in sub else np.full(m, np.nan)
     with np.errstate(invalid="ignore"):
-        toxic = np.isfinite(el) & (el < EXPOSURE_LIMIT_PPM) & ~(vp < VOLATILE_KPA) & (struct == "")
+        toxic = np.isfinite(el) & (el < EXPOSURE_LIMIT_PPM) & ~(vp < VOLATILE_KPA)
     res = struct.copy()
-    for i in np.flatnonzero(toxic):   # the few flagged rows only
-        res[i] = f"exposure limit {el[i]:g} ppm (very toxic at low exposure)"
+    for i in np.flatnonzero(toxic):   # the few flagged rows only; a structural reason keeps the limit too
+        limit = f"exposure limit {el[i]:g} ppm (very toxic at low exposure)"
+        res[i] = f"{res[i]}; {limit}" if res[i] else limit
     return res
 
 

@@ -106,6 +106,15 @@ def test_very_low_exposure_limit_is_flagged():
     assert _reason("benzene").startswith("exposure limit 0.5 ppm")
 
 
+def test_structural_reason_keeps_the_exposure_limit():
+    # glyoxal: an alpha-oxo aldehyde (common practice) with an 8-h limit of 0.0422 ppm (chemicals'
+    # exposure-limit data, via the library); both reasons reach the user, the structure first
+    why = _reason("glyoxal")
+    assert why.startswith("alpha-oxo aldehyde")
+    assert why.endswith("exposure limit 0.0422 ppm (very toxic at low exposure)")
+    assert selector.cautions.reactive_reason("O=CC=O", 0.0422, 30.0) == why
+
+
 @pytest.mark.parametrize("name", ["toluene", "acetone", "ethanol", "ethyl acetate", "NMP", "DMSO", "water",
                                   "hexane", "dibutyl phthalate", "nitromethane", "2-ethylhexyl acrylate",
                                   "propylene carbonate", "dichloromethane", "cinnamaldehyde", "benzaldehyde",
