@@ -89,6 +89,8 @@ STARTS = 8
 PROFILE_FACTOR = 1.0
 #: Fewer tests than this gets a warning (four parameters need well spread tests).
 FEW_TESTS = 12
+#: Fewer good liquids than this (with some bad ones) gets a warning: the sphere is drawn around them.
+FEW_GOOD = 4
 #: Fewer tests than this is an error.
 MIN_TESTS = 4
 
@@ -1010,6 +1012,11 @@ def _warnings(fit_c, R, P, good, tests, notes, level_msgs):
     if good.all():
         warn.append("no bad result: every tested liquid dissolved the solute, so R0 is only a lower "
                     "bound and the centre is the middle of the good liquids")
+    elif 0 < good.sum() < FEW_GOOD:
+        k = int(good.sum())
+        warn.append(f"only {k} good liquid{'s' if k > 1 else ''}: the sphere is drawn around "
+                    f"{'them' if k > 1 else 'it'}, so R0 ({R:.1f}) may be far too small and the centre "
+                    "rests on them alone; test more liquids near the centre (see the suggested next tests)")
     # goods on one side of the centre
     v = P[good] - fit_c
     nv = np.linalg.norm(v, axis=1)
@@ -1017,7 +1024,7 @@ def _warnings(fit_c, R, P, good, tests, notes, level_msgs):
         u = (v / nv[:, None]).mean(0)
         if np.linalg.norm(u) > 0.7:
             warn.append("the good liquids all lie on one side of the fitted centre: the centre is "
-                        "extrapolated; test liquids beyond it (see suggest_tests)")
+                        "extrapolated; test liquids beyond it (see the suggested next tests)")
     # sphere reaching outside the tested region
     lo, hi = P.min(0), P.max(0)
     names = ["dD", "dP", "dH"]

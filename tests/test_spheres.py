@@ -325,6 +325,25 @@ def test_degenerate_warnings():
     assert np.all(fit.hsp >= pts.min(0) - 1e-6) and np.all(fit.hsp <= pts.max(0) + 1e-6)
 
 
+def test_few_good_liquids_warning():
+    # PVC: THF and cyclohexanone dissolve it; toluene, acetone, the alcohols, water, hexane, ethyl
+    # acetate and DMSO do not at room temperature in a short test (common practice). Two good liquids
+    # pin R0 to about half their distance, far below PVC's published R0 of about 3.5 (from memory).
+    df = pd.DataFrame({"solvent": ["tetrahydrofuran", "cyclohexanone", "toluene", "acetone", "methanol",
+                                   "water", "hexane", "ethanol", "ethyl acetate", "dimethyl sulfoxide"],
+                       "outcome": ["good", "good"] + ["bad"] * 8})
+    fit = fit_sphere(df, bootstrap=10)
+    goods = LIB.set_index("name").loc[["tetrahydrofuran", "cyclohexanone"], HSP].to_numpy(float)
+    half_gap = ra(goods[0], goods[1]) / 2
+    assert fit.radius == pytest.approx(half_gap, abs=0.3)
+    msg = [w for w in fit.warnings if w.startswith("only 2 good liquids")]
+    assert msg and f"R0 ({fit.radius:.1f}) may be far too small" in msg[0]
+    # with four good liquids the warning goes (1,4-dioxane and dichloromethane also dissolve PVC,
+    # common practice)
+    more = pd.concat([df, pd.DataFrame({"solvent": ["1,4-dioxane", "dichloromethane"], "outcome": ["good"] * 2})])
+    assert not any("good liquid" in w for w in fit_sphere(more, bootstrap=10).warnings)
+
+
 def test_untested_edge_warning():
     # Water-like solute (common practice: glycols, water and short alcohols dissolve it, the rest
     # do not): nothing tested beyond water's dH bounds the sphere there, and the fit says so.
