@@ -373,6 +373,8 @@ def emit(df, a, columns=None, caution: bool = False, header: str | None = None,
     out = getattr(a, "output", None)
     check_file_args(a)
     fmt = getattr(a, "format", "table")
+    df = df.copy(deep=False)
+    df.attrs = {}   # the header says what they held; pandas deep-copies attrs on every column access
     if fmt == "table":
         df = short_notes(flash_texts(df))
     if columns is not None:

@@ -97,6 +97,20 @@ def _names(s):
     return out
 
 
+#: Pairs (or liquids) named in one header line of the square grid; ``--long`` lists them all.
+HEADER_LIST_MAX = 30
+
+
+def _listed(items, column: str = "") -> str:
+    """``items`` joined with ", ", cut after :data:`HEADER_LIST_MAX` with a count of the rest and
+    where to find them (a whole-library grid has thousands of reacting pairs)."""
+    items = list(items)
+    if len(items) <= HEADER_LIST_MAX:
+        return ", ".join(items)
+    where = f" (--long lists every pair: see its {column} column)" if column else ""
+    return ", ".join(items[:HEADER_LIST_MAX]) + f" ... and {len(items) - HEADER_LIST_MAX} more{where}"
+
+
 def cmd_grid(a) -> int:
     import pandas as pd
 
@@ -139,7 +153,7 @@ def cmd_grid(a) -> int:
     m = miscibility_matrix(df, temperature=a.at, library=lib, model=a.model)
     est = df["name"].astype(str)[hsp_estimated(df)].tolist()
     est_note = ("\nHSP estimated from structure (not measured; states as uncertain as the estimates, "
-                "`likewise mix` checks their intervals): " + ", ".join(est)) if est else ""
+                "`likewise mix` checks their intervals): " + _listed(est)) if est else ""
     if dropped:
         est_note += "\nLeft out by the filters: " + ", ".join(dropped)
     no_unifac = ("" if m.attrs.get("unifac_checked", True) else
@@ -172,15 +186,15 @@ def cmd_grid(a) -> int:
     unsure = [p for p in m.attrs.get("uncertain_pairs", []) if frozenset(p) not in apart]
     if unsure:
         header += ("\nUNCERTAIN (water with a glycol ether, amine or pyridine; the model cannot be trusted on "
-                   "them, test them): " + ", ".join(f"{x} + {y}" for x, y in unsure))
+                   "them, test them): " + _listed((f"{x} + {y}" for x, y in unsure), "uncertain"))
     if split:
         header += ("\nMODELS DISAGREE (UNIFAC's second opinion against the model shown; test them): "
-                   + ", ".join(f"{x} + {y} ({mt}: {s_})" for x, y, mt, s_ in split))
+                   + _listed((f"{x} + {y} ({mt}: {s_})" for x, y, mt, s_ in split), "unifac_disagrees"))
     header += no_unifac
     pairs = m.attrs.get("reactive_pairs", [])
     if pairs:
         header += ("\nREACTIVE PAIRS (they react whatever the state; do not mix them except as a planned "
-                   "reaction): " + ", ".join(f"{x} + {y}" for x, y in pairs))
+                   "reaction): " + _listed((f"{x} + {y}" for x, y in pairs), "reacts"))
     emit(out, a, caution=True, header=header)
     return 0
 

@@ -133,8 +133,11 @@ def _guard(v):
 
 
 def guard_cells(df: pd.DataFrame) -> pd.DataFrame:
-    """Copy of ``df`` with text cells that a spreadsheet would run as formulas neutralised."""
+    """Copy of ``df`` with text cells that a spreadsheet would run as formulas neutralised. The
+    copy drops ``df.attrs``: pandas deep-copies them on every column access, which for a
+    whole-library matrix (its list of reacting pairs) took minutes."""
     out = df.copy()
+    out.attrs = {}
     for c in out.columns:
         if out[c].dtype == object or pd.api.types.is_string_dtype(out[c]):
             out[c] = out[c].map(_guard)
@@ -160,6 +163,8 @@ def _jsonable(v):
 
 def to_json_text(df: pd.DataFrame) -> str:
     """JSON list of records (NaN as null)."""
+    df = df.copy(deep=False)
+    df.attrs = {}
     recs = [{k: _jsonable(v) for k, v in r.items()} for r in df.to_dict(orient="records")]
     return json.dumps(recs, indent=1, ensure_ascii=False)
 

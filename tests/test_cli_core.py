@@ -455,3 +455,22 @@ def test_decimal_comma_is_refused_with_the_fix(capsys, args, fix):
     out, err = capsys.readouterr()
     assert rc == 2 and out == ""
     assert "write decimals with a point " + fix in err
+
+
+def test_mix_grid_header_names_thirty_reacting_pairs_and_counts_the_rest(capsys):
+    # primary and secondary amines react with esters and carbonates (aminolysis, common practice):
+    # 6 x 7 = 42 reacting pairs, more than one header line should name
+    amines = ["diethylamine", "butylamine", "morpholine", "piperidine", "pyrrolidine", "dibutylamine"]
+    esters = ["ethyl acetate", "methyl acetate", "propyl acetate", "butyl acetate", "propylene carbonate",
+              "triacetin", "tert-butyl acetate"]
+    names = ",".join(amines + esters)
+    assert main(["mix-grid", names, "--long", "--format", "csv"]) == 0
+    pairs = pd.read_csv(io.StringIO(capsys.readouterr().out))
+    reacting = pairs.loc[pairs["reacts"]]
+    assert len(reacting) == 42
+    assert set(reacting["a"]) | set(reacting["b"]) == set(amines) | set(esters)
+    assert main(["mix-grid", names, "--format", "csv"]) == 0
+    err = capsys.readouterr().err
+    line = next(x for x in err.splitlines() if x.startswith("REACTIVE PAIRS"))
+    assert line.count(" + ") == 30
+    assert line.endswith("... and 12 more (--long lists every pair: see its reacts column)")
