@@ -729,3 +729,10 @@ def test_blends_say_when_unifac_doubts_a_pair_the_model_lets_through():
         assert note == (f"UNIFAC, pair by pair: {'; '.join(doubted)} (the HSP model: miscible); test a small mix"
                         if doubted else ""), comps
     assert any("water + triacetin" in n for n in noted["mixing_note"])
+    # water + 2-(2-ethoxyethoxy)ethanol mix in all proportions (common practice, producer data
+    # sheets; now a check pair in parameters/miscibility_facts.csv), where Dortmund UNIFAC splits
+    # them: the recorded state wins, so the blend holding them carries no doubt about that pair
+    degee = [n for c, n in zip(res["components"], res["mixing_note"])
+             if {"water", "2-(2-ethoxyethoxy)ethanol"} <= set(c)]
+    assert degee and not any("2-(2-ethoxyethoxy)ethanol" in n for n in degee)
+    assert miscibility("water", "2-(2-ethoxyethoxy)ethanol", reference=False).models_disagree
