@@ -167,7 +167,10 @@ def _save_mine(res, path) -> int:
     fp = file_fingerprint(path)
     old = _mine_table(path)
     table, replaced = with_user_rows(old, good)
-    save_user_liquids(guard_cells(table), path, unchanged_since=fp)
+    notes = []
+    save_user_liquids(guard_cells(table), path, unchanged_since=fp, notes=notes)
+    for n in notes:
+        print(f"note: {n}", file=sys.stderr)
     kinds = good["origin"].value_counts()
     detail = ", ".join(f"{n} {k}" for k, n in kinds.items())
     msg = f"saved {plural(len(good), 'row')} to {path} ({detail})"

@@ -208,6 +208,49 @@ def sniff_delimiter(text: str) -> str:
     return best if counts[best] else ","
 
 
+def file_dialect(path) -> dict | None:
+    """How an existing CSV file is written, so that a program saving it again keeps to it:
+    ``sep`` (comma, semicolon or tab), ``encoding`` (as :func:`decode_text` reads it), ``bom``
+    (a UTF-8 byte-order mark), ``newline`` (Windows or Unix line ends), ``decimal`` ("," when a
+    semicolon or tab file writes its numbers with a decimal comma). None when the file is
+    missing, unreadable or empty."""
+    try:
+        data = Path(path).read_bytes()
+    except OSError:
+        return None
+    if not data.strip():
+        return None
+    text, encoding = decode_text(data)
+    sep = sniff_delimiter(text)
+    decimal = "."
+    if sep != ",":
+        cells = [c.strip().strip('"') for ln in text.splitlines()[1:] for c in ln.split(sep)]
+        numbers = [c for c in cells if c and _DECIMAL_COMMA.match(c)]
+        if any("," in c for c in numbers) and not any("." in c for c in numbers):
+            decimal = ","
+    return {"sep": sep, "encoding": encoding, "bom": data.startswith(b"\xef\xbb\xbf"), "decimal": decimal,
+            "newline": "\r\n" if b"\r\n" in data else "\n"}
+
+
+def csv_bytes(df: pd.DataFrame, dialect: dict | None = None) -> tuple[bytes, str]:
+    """``(data, note)``: ``df`` as CSV bytes in ``dialect`` (:func:`file_dialect`; default a UTF-8
+    comma file). Numbers are written in their shortest exact form (120, not 120.0). When a
+    character cannot be written in the file's own encoding (a Greek letter in Windows-1252),
+    the file becomes UTF-8 with a byte-order mark, which spreadsheets read, and ``note`` says so."""
+    d = dialect or {}
+    text = df.to_csv(index=False, lineterminator=d.get("newline", "\n"), sep=d.get("sep", ","),
+                     decimal=d.get("decimal", "."),
+                     float_format="%.15g")
+    enc = d.get("encoding", "utf-8")
+    if enc == "utf-8":
+        return (b"\xef\xbb\xbf" if d.get("bom") else b"") + text.encode("utf-8"), ""
+    try:
+        return text.encode(enc), ""
+    except UnicodeEncodeError as e:
+        return (b"\xef\xbb\xbf" + text.encode("utf-8"),
+                f"{text[e.start:e.end]!r} cannot be written in {enc}: the file is now UTF-8 (with a byte-order mark)")
+
+
 def _fix_decimal_commas(df: pd.DataFrame) -> pd.DataFrame:
     """Columns whose every non-blank cell is a number written with a decimal comma (or a plain
     integer) get the comma replaced by a point; text columns are left alone."""

@@ -684,7 +684,7 @@ def backup_file(path) -> Path:
         k += 1
 
 
-def save_user_liquids(table, path=None, *, unchanged_since=...) -> Path:
+def save_user_liquids(table, path=None, *, unchanged_since=..., notes: list | None = None) -> Path:
     """Validate and write the user's liquids atomically to ``path`` (default
     :func:`user_liquids_file`). A table that fails validation is not written, so the previous
     file is never lost.
@@ -692,8 +692,12 @@ def save_user_liquids(table, path=None, *, unchanged_since=...) -> Path:
     Only the default user data folder (:func:`default_user_data_dir`) is created when missing;
     any other missing folder (a mistyped ``LIKEWISE_HOME``, say) is refused. ``unchanged_since``:
     the :func:`file_fingerprint` taken when the file was read (None: it did not exist); if the
-    file is different now (another program wrote to it meanwhile) nothing is written."""
-    from .io import write_atomic
+    file is different now (another program wrote to it meanwhile) nothing is written.
+
+    An existing file keeps its separator, decimal mark and encoding (:func:`selector.io.file_dialect`).
+    If a character does not fit its encoding the file becomes UTF-8, and a note saying so is
+    appended to ``notes`` (or issued as a warning when ``notes`` is None)."""
+    from .io import csv_bytes, file_dialect, write_atomic
 
     df = validate_user_table(table)
     p = Path(path).expanduser() if path is not None else user_liquids_file()
@@ -707,7 +711,17 @@ def save_user_liquids(table, path=None, *, unchanged_since=...) -> Path:
         env = os.environ.get("LIKEWISE_HOME", "").strip()
         hint = " (set by LIKEWISE_HOME: check its spelling)" if env and folder == user_data_dir() else ""
         raise SelectorError(f"folder {folder} does not exist{hint}; create it first (nothing was written)")
-    return write_atomic(p, df.to_csv(index=False, lineterminator="\n"), make_parents=default)
+    # an existing file keeps its separator, decimal mark and encoding (a semicolon, Windows-1252
+    # file from a spreadsheet stays one); a new file is a UTF-8 comma file
+    data, note = csv_bytes(df, file_dialect(p))
+    out = write_atomic(p, data, make_parents=default)
+    if note and notes is not None:
+        notes.append(note)
+    elif note:
+        import warnings
+
+        warnings.warn(note, stacklevel=2)
+    return out
 
 
 # ---------------------------------------------------------------- properties

@@ -11,6 +11,7 @@ import pandas as pd
 import pytest
 
 from selector.cli import main
+from selector.library import save_user_liquids, validate_user_table
 
 ROOT = Path(__file__).resolve().parent.parent
 ENTRY = str(ROOT / "app" / "likewise_app.py")
@@ -196,3 +197,30 @@ def test_mistyped_likewise_home_is_not_created(tmp_path, monkeypatch):
     at.button(key="mine_save").click().run()
     assert any(f"{typo} does not exist (set by LIKEWISE_HOME" in e for e in errors(at))
     assert not typo.exists()
+
+
+def test_saving_keeps_the_files_separator_decimal_mark_encoding_and_line_ends(tmp_path):
+    # A spreadsheet in a decimal-comma locale saves CSV with semicolons, decimal commas,
+    # Windows-1252 and CRLF line ends (common practice); saving a row must not turn the user's
+    # file into another format. The row and its values are invented.
+    p = tmp_path / "mine.csv"
+    p.write_bytes("name;delta_d;delta_p;delta_h;molar_volume;remark\r\n"
+                  "resin thinner X (invented);17,1;3,2;5,5;120;café 120\r\n".encode("cp1252"))
+    table = validate_user_table(p)
+    notes = []
+    save_user_liquids(table, p, notes=notes)
+    raw = p.read_bytes()
+    assert notes == []
+    assert raw.decode("cp1252").splitlines()[1] == "resin thinner X (invented);17,1;3,2;5,5;120;café 120"
+    assert raw.count(b"\r\n") == 2
+    back = validate_user_table(p)
+    assert back.loc[0, "delta_d"] == 17.1 and back.loc[0, "molar_volume"] == 120
+    # a character Windows-1252 cannot hold: the file becomes UTF-8 with a byte-order mark, and says so
+    table.loc[0, "remark"] = "\u03b1-resin"
+    save_user_liquids(table, p, notes=notes)
+    assert p.read_bytes().startswith(b"\xef\xbb\xbf") and "\u03b1-resin" in p.read_text(encoding="utf-8-sig")
+    assert notes == ["'\u03b1' cannot be written in cp1252: the file is now UTF-8 (with a byte-order mark)"]
+    # a new file is a plain UTF-8 comma file
+    q = tmp_path / "new.csv"
+    save_user_liquids(table, q)
+    assert q.read_text(encoding="utf-8").splitlines()[1].startswith("resin thinner X (invented),17.1,3.2,5.5,120,")

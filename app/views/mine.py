@@ -94,7 +94,8 @@ if c1.button("Save my liquids", type="primary", key="mine_save"):
             if st.session_state[UNREADABLE] and path.exists():
                 validate_user_table(rows)  # no backup for a table that would not be saved anyway
                 bak = backup_file(path)
-            save_user_liquids(rows, path, unchanged_since=st.session_state[STAMP])
+            notes = []
+            save_user_liquids(rows, path, unchanged_since=st.session_state[STAMP], notes=notes)
         except (ValueError, KeyError) as e:
             kept = f" (the old file was copied to {bak})" if bak else ""
             common.show_error(f"Not saved (the file on disk is unchanged{kept}): {e}")
@@ -102,7 +103,8 @@ if c1.button("Save my liquids", type="primary", key="mine_save"):
             _load()
             st.session_state.pop("mine_editor", None)
             st.session_state["mine_msg"] = (f"Saved {plural(len(rows), 'liquid')} to {path}."
-                                            + (f" The old, unreadable file was kept as {bak}." if bak else ""))
+                                            + (f" The old, unreadable file was kept as {bak}." if bak else "")
+                                            + "".join(f" Note: {n}." for n in notes))
             st.rerun()
 c2.download_button("Export (CSV)", to_csv_text(rows), file_name="my_liquids.csv", mime="text/csv",
                    key="mine_export", on_click="ignore")

@@ -126,7 +126,8 @@ def _add_to_mine(est, e) -> None:
     try:
         old = validate_user_table(path) if path.exists() else None
         table, replaced = with_user_rows(old, rows)
-        save_user_liquids(table, path, unchanged_since=stamp)
+        notes = []
+        save_user_liquids(table, path, unchanged_since=stamp, notes=notes)
     except (ValueError, KeyError, OSError) as err:
         common.show_error(f"Not added (your saved liquids are unchanged; see *My liquids*): {err}")
         return
@@ -134,7 +135,8 @@ def _add_to_mine(est, e) -> None:
         st.session_state.pop(k, None)
     what = "replaced" if replaced else "added"
     common.set_target_and_rerun(common.target_spec(), f"{nm.strip()} {what} in your liquids ({path}): every page "
-                                "can now propose it, marked as estimated. Use it only after a test.")
+                                "can now propose it, marked as estimated. Use it only after a test."
+                                + "".join(f" Note: {n}." for n in notes))
 
 
 if way == WAYS[2]:
