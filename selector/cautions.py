@@ -128,7 +128,13 @@ REACTIVE_GROUPS = (
      "$([CH1]([CH3])[CH2][CH3]),$([CX4]([CH3])([CH3])[CH3])]",
      "monomer: polymerises, skin sensitiser; sold inhibited, not a thinner"),
     ("vinyl ketone", "[CH2]=[CX3]C(=O)[#6]", "monomer: very toxic, lachrymator (methyl vinyl ketone)"),
-    ("halodiene", "[CH2]=C([Cl,Br])C=C", "monomer: polymerises; chloroprene is a carcinogen"),
+    ("halodiene", "[$([CH2]=C([Cl,Br])C=C),$([Cl,Br,I][CX3]=[CX3][CX3]=[CX3])]",
+     "monomer: polymerises; chloroprene is a carcinogen"),
+    # CH2=CX-: vinyl iodide, vinylidene chloride and bromide, 2-bromopropene, 2-chloroacrylates
+    # (common practice: monomers and reagents, sold inhibited). 1,2-dichloroethylene, tri- and
+    # tetrachloroethylene, which are solvents, carry no CH2= and stay.
+    ("vinyl halide", "[CH2]=[CX3][Cl,Br,I]", "monomer and reagent: polymerises (vinylidene chloride also "
+     "forms explosive peroxides)"),
     ("ketene or beta-lactone", "[$([CX3]=[CX2]=O),$(O=C1CCO1),$(O=C1C(=C)CO1),$(C=C1CC(=O)O1)]",
      "reacts violently, acylating agent; beta-propiolactone is a carcinogen"),
     ("primary enamine", "[NX3;H2][CX3]=[CX3]", "unstable, tautomerises to an imine; not a bench liquid"),

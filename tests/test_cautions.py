@@ -106,6 +106,16 @@ def test_very_low_exposure_limit_is_flagged():
     assert _reason("benzene").startswith("exposure limit 0.5 ppm")
 
 
+@pytest.mark.parametrize("name,reason", [
+    # README walk: vinyl iodide ranked second for the demo resin with no reason given. Vinyl
+    # halides and 1-halo-1,3-dienes are monomers sold inhibited, not solvents (common practice).
+    ("vinyl iodide", "vinyl halide"), ("vinylidene chloride", "vinyl halide"),
+    ("2-bromopropene", "vinyl halide"), ("1-chlorobutadiene", "halodiene"), ("chloroprene", "halodiene"),
+])
+def test_vinyl_halides_and_halodienes_are_reagents(name, reason):
+    assert _reason(name).startswith(reason)
+
+
 def test_structural_reason_keeps_the_exposure_limit():
     # glyoxal: an alpha-oxo aldehyde (common practice) with an 8-h limit of 0.0422 ppm (chemicals'
     # exposure-limit data, via the library); both reasons reach the user, the structure first
@@ -125,7 +135,9 @@ def test_structural_reason_keeps_the_exposure_limit():
                                   "2-furaldehyde", "benzotrifluoride",
                                   # plasticiser and extraction solvents: a phosphate without an
                                   # ortho-cresyl group, a nitrile without a C=C (common practice)
-                                  "tributyl phosphate", "triethyl phosphate", "acetonitrile", "benzonitrile"])
+                                  "tributyl phosphate", "triethyl phosphate", "acetonitrile", "benzonitrile",
+                                  # chlorinated alkenes used as solvents (common practice): no CH2=CX-
+                                  "trichloroethylene", "tetrachloroethylene", "trans-1,2-dichloroethylene"])
 def test_ordinary_solvents_are_not_flagged(name):
     # Common practice: all of these are used as solvents (dibutyl phthalate has a low ppm limit
     # but hardly any vapour, so the exposure rule does not apply).
@@ -134,8 +146,9 @@ def test_ordinary_solvents_are_not_flagged(name):
 
 def test_reagents_never_candidates_unless_asked():
     flagged = reactive_reasons(LIB) != ""
-    # a screen, not a ban: well under a quarter of the library (172 of 823 when written)
-    assert 50 < flagged.sum() < 0.25 * len(LIB)
+    # a screen, not a ban: under 30 % of the library (172 of 823 when written, 208 with the vinyl
+    # halides; the published tables hold many monomers and reagents that are liquid at 25 C)
+    assert 50 < flagged.sum() < 0.30 * len(LIB)
     assert not (filter_mask(LIB) & flagged).any()
     assert filter_mask(LIB, include_reactive=True).all()
     # rank: the same order, the reagents dropped
