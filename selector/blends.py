@@ -997,7 +997,8 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     pool_top = max(200, 10 * (top or 20))
     try:
         tg, cand, h, t_c, _ = _target_and_candidates(
-            Target(*tgt.hsp.tolist(), tgt.radius, name=tgt.name, source=tgt.source), lib, temperature, filt)
+            Target(*tgt.hsp.tolist(), tgt.radius, name=tgt.name, source=tgt.source, liquid=tgt.liquid), lib,
+            temperature, filt)
     except SelectorError as err:
         if not str(err).startswith("no liquid passes the filters"):
             raise

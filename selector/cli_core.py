@@ -127,7 +127,7 @@ def target_from_text(text: str, radius: float | None = None, library=None):
         return nums
     lib = load_library() if library is None else library
     try:
-        row = find_liquid(text, lib)   # names such as 1,4-dioxane contain commas and digits
+        find_liquid(text, lib)   # names such as 1,4-dioxane contain commas and digits
     except SelectorError as err:
         if len(parts) > 1 and _is_number(parts[0]):
             raise SelectorError(f"{err}; as numbers, a target is 'dD,dP,dH' or 'dD,dP,dH,R0' in "
@@ -138,10 +138,9 @@ def target_from_text(text: str, radius: float | None = None, library=None):
         raise
     if radius is None:
         return text
-    from .targets import Target
+    from .targets import liquid_point
 
-    return Target(float(row.delta_d), float(row.delta_p), float(row.delta_h), radius,
-                  name=str(row["name"]), source=f"library point with given R0 ({row.get('hsp_source', '')})")
+    return liquid_point(text, radius, lib)   # corrected for temperature like the candidates
 
 
 def _is_number(s: str) -> bool:

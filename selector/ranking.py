@@ -63,14 +63,22 @@ def corrected_hsp(library: pd.DataFrame, temperature: float) -> np.ndarray:
 
 
 def resolve_target(target, library: pd.DataFrame, temperature: float = 25.0) -> Target:
-    """A :class:`Target` at ``temperature``: library-entry targets are corrected like candidates."""
+    """A :class:`Target` at ``temperature``: the point of a library liquid (a name, or a Target
+    whose ``liquid`` is set, as :func:`selector.targets.liquid_point` makes) is corrected like
+    the candidates; typed points and fitted spheres are taken as given."""
+    from dataclasses import replace
+
+    from .library import locate
+
     t = as_target(target, library)
-    if isinstance(target, str) and abs(temperature - 25.0) > 1e-12:
-        row = library.loc[library["name"] == t.name].iloc[0]
+    if t.liquid and abs(temperature - 25.0) > 1e-12:
+        try:
+            row = library.iloc[locate(t.liquid, library)]
+        except SelectorError:   # a liquid of another library (the user's file was changed)
+            return t
         h = hsp_at_temperature(t.hsp, float(row.get("expansion_coeff", np.nan)), temperature)
-        if not np.all(np.isfinite(h)):
-            h = t.hsp
-        t = Target(float(h[0]), float(h[1]), float(h[2]), t.radius, name=t.name, source=t.source)
+        if np.all(np.isfinite(h)):
+            t = replace(t, delta_d=float(h[0]), delta_p=float(h[1]), delta_h=float(h[2]))
     return t
 
 

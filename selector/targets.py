@@ -45,6 +45,10 @@ class Target:
     name: str = "target"
     source: str = "given"
     notes: tuple[str, ...] = field(default_factory=tuple)
+    #: The library liquid (CAS, or name without one) whose point this is, "" for a typed point or
+    #: a fitted sphere: ranking, blends and drying correct such a point for temperature as they
+    #: correct the candidates, so the liquid stays at Ra 0 from itself at any temperature.
+    liquid: str = ""
 
     def __post_init__(self):
         for k in ("delta_d", "delta_p", "delta_h"):
@@ -133,6 +137,23 @@ def _is_num(v) -> bool:
     return True
 
 
+def _liquid_key(row) -> str:
+    """How :attr:`Target.liquid` names a library row: its CAS number, else its name."""
+    cas = row.get("cas", "")
+    cas = "" if cas is None or (isinstance(cas, float) and math.isnan(cas)) else str(cas).strip()
+    return cas or str(row["name"])
+
+
+def liquid_point(query, radius: float | None = None, library: pd.DataFrame | None = None) -> Target:
+    """The point of a library liquid as a target with R0 ``radius`` (MPa^0.5; None keeps the
+    liquid's own R0, if it is a solute of the user's file), marked as that liquid's
+    (:attr:`Target.liquid`), so that it is corrected for temperature like the candidates."""
+    t = as_target(str(query), library)
+    if radius is None:
+        return t
+    return _check_given(replace(t, radius=radius, source=f"library point with given R0 ({t.source})"))
+
+
 def as_target(target, library: pd.DataFrame | None = None, name: str | None = None) -> Target:
     """Turn any accepted target form (see module doc) into a validated :class:`Target`."""
     if isinstance(target, Target):
@@ -145,7 +166,8 @@ def as_target(target, library: pd.DataFrame | None = None, name: str | None = No
         r0 = row.get("radius", None)  # a user solute may carry its own R0
         r0 = float(r0) if r0 is not None and isinstance(r0, (int, float)) and math.isfinite(r0) else None
         return Target(float(row.delta_d), float(row.delta_p), float(row.delta_h), r0,
-                      name=str(row["name"]), source=f"library ({row.get('hsp_source', '')})")
+                      name=str(row["name"]), source=f"library ({row.get('hsp_source', '')})",
+                      liquid=_liquid_key(row))
     if isinstance(target, (tuple, list, np.ndarray)):
         vals = list(target)
         if len(vals) not in (3, 4):

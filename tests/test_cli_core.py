@@ -474,3 +474,13 @@ def test_mix_grid_header_names_thirty_reacting_pairs_and_counts_the_rest(capsys)
     line = next(x for x in err.splitlines() if x.startswith("REACTIVE PAIRS"))
     assert line.count(" + ") == 30
     assert line.endswith("... and 12 more (--long lists every pair: see its reacts column)")
+
+
+def test_named_target_with_radius_is_corrected_at_the_use_temperature(capsys):
+    # numbers review, round 5: `rank toluene --radius 5 --at 90` printed the 25 C point (dD 18.0)
+    rc, out, err = run(["rank", "toluene", "--radius", "5", "--at", "90", "--only", "toluene,cumene",
+                        "--format", "csv"], capsys)
+    assert rc == 0, err
+    df = pd.read_csv(io.StringIO(out)).set_index("name")
+    assert df.loc["toluene", "ra"] == pytest.approx(0.0, abs=1e-6)
+    assert df.loc["toluene", "rank"] == 1

@@ -269,3 +269,26 @@ def test_liquids_used_above_their_flash_point_say_so():
     assert all(n.startswith("HEATED ABOVE ITS FLASH POINT") == (np.isfinite(f) and 25 < f <= 90)
                for n, f in zip(bl["hazard_notes"].astype(str), lo))
     assert any(n.startswith("HEATED ABOVE ITS FLASH POINT") for n in bl["hazard_notes"].astype(str))
+
+
+def test_a_named_target_with_its_own_radius_is_corrected_for_temperature_like_the_candidates():
+    # numbers review, round 5: with an R0 given, the library point stayed at its 25 C values while
+    # the candidates were corrected, so toluene sat at Ra 3.0 from itself at 90 C. The
+    # Hansen-Beerbower correction (hansen.hsp_at_temperature, checked in test_hansen) must move
+    # target and candidate alike: Ra 0 at any temperature.
+    from selector.targets import liquid_point
+
+    t90 = selector.rank(liquid_point("toluene", 5.0), temperature=90, include=["toluene", "cumene"])
+    row = t90.set_index("name").loc["toluene"]
+    assert row["ra"] == pytest.approx(0.0, abs=1e-9)
+    by_name = selector.rank("toluene", temperature=90, include=["cumene"])
+    assert by_name.set_index("name").loc["cumene", "ra"] == pytest.approx(t90.set_index("name").loc["cumene", "ra"])
+    # toluene's dD falls from 18.0 at 25 C (the library's published value) on heating
+    assert t90.attrs["target"].delta_d < 17.0 and t90.attrs["target"].radius == 5.0
+    # a typed point is taken as given at any temperature
+    typed = selector.rank((18.0, 1.4, 2.0, 5.0), temperature=90, include=["toluene"])
+    assert typed.attrs["target"].delta_d == 18.0 and typed["ra"].iloc[0] > 1.0
+    # the blend search and the command line treat a named target with --radius the same way
+    res = selector.find_blends(liquid_point("toluene", 5.0), temperature=90, include=["toluene", "cumene"],
+                               max_components=1)
+    assert res.set_index(res["components"].str[0]).loc["toluene", "ra"] == pytest.approx(0.0, abs=1e-9)

@@ -182,7 +182,9 @@ def target() -> Target:
     s = target_spec()
     return Target(float(s["delta_d"]), float(s["delta_p"]), float(s["delta_h"]),
                   None if s.get("radius") in (None, 0) else float(s["radius"]),
-                  name=str(s["name"]), source=str(s.get("source", "given")))
+                  name=str(s["name"]), source=str(s.get("source", "given")),
+                  # a library liquid's point is corrected for temperature like the candidates
+                  liquid=str(s["name"]) if s.get("kind") == "library" else "")
 
 
 def rank_target():

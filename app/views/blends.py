@@ -26,7 +26,7 @@ def design(target_key, max_components, min_fraction, temperature, top, filters_k
     # lib_key (the user's liquids file and its time stamp) makes a saved change start a new design
     from selector.targets import Target
 
-    tg = Target(*target_key[:3], target_key[3], name=target_key[4])
+    tg = Target(*target_key[:3], target_key[3], name=target_key[4], liquid=target_key[5])
     return selector.find_blends(tg, max_components=max_components, min_fraction=min_fraction,
                                 temperature=temperature, top=top, library=common.library(), **dict(filters_key))
 
@@ -36,7 +36,8 @@ def dry(comps, fracs, temperature, tgt, activity, rh, lib_key):
     from selector.targets import Target
 
     return selector.drying_path(list(comps), list(fracs), temperature=temperature, library=common.library(),
-                                target=Target(*tgt[:3], tgt[3]), activity=activity, relative_humidity=rh)
+                                target=Target(*tgt[:3], tgt[3], liquid=tgt[4]), activity=activity,
+                                relative_humidity=rh)
 
 
 def freeze(f: dict):
@@ -56,7 +57,7 @@ with st.form("bl_form"):
     st.form_submit_button("Design blends", type="primary")
 
 t = common.target()
-res = common.call(design, (t.delta_d, t.delta_p, t.delta_h, t.radius, t.name), int(ncomp), float(minf),
+res = common.call(design, (t.delta_d, t.delta_p, t.delta_h, t.radius, t.name, t.liquid), int(ncomp), float(minf),
                   temp, int(top), freeze(filters), common.lib_key())
 if res is None:
     st.stop()
@@ -114,8 +115,8 @@ with tab1:
                        format_func={"raoult": "ideal (Raoult)", "hsp": "Flory-Huggins with HSP"}.get,
                        help="the HSP form is rough for water and strongly hydrogen-bonded pairs")
         rh = d2.slider("Relative humidity (%)", 0, 100, 50, 5, key="bl_rh", help="acts on water only")
-        path = common.call(dry, tuple(comps), tuple(fracs), temp, (t.delta_d, t.delta_p, t.delta_h, t.radius),
-                           act, float(rh), common.lib_key())
+        path = common.call(dry, tuple(comps), tuple(fracs), temp,
+                           (t.delta_d, t.delta_p, t.delta_h, t.radius, t.liquid), act, float(rh), common.lib_key())
         if path is not None:
             from lwui.drying_view import show_drying
 

@@ -56,7 +56,7 @@ def subs(old, solute, ncomp, pw, energetic, filters_key, lib_key):
     # lib_key (the user's liquids file and its time stamp) makes a saved change start a new search
     from selector.targets import Target
 
-    sol = None if solute is None else Target(*solute[:3], solute[3], name=solute[4])
+    sol = None if solute is None else Target(*solute[:3], solute[3], name=solute[4], liquid=solute[5])
     return selector.substitutes(old, solute=sol, max_components=ncomp, property_weight=pw,
                                 include_energetic=energetic, library=common.library(), **dict(filters_key))
 
@@ -69,7 +69,7 @@ if h is not None:
 
         show_hazard(h)
 t = common.target()
-res = common.call(subs, old, (t.delta_d, t.delta_p, t.delta_h, t.radius, t.name) if keep else None,
+res = common.call(subs, old, (t.delta_d, t.delta_p, t.delta_h, t.radius, t.name, t.liquid) if keep else None,
                   int(ncomp), float(pw), bool(energetic), freeze, common.lib_key())
 if res is None:
     st.stop()
