@@ -823,9 +823,9 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     from .hazards import component_notes
 
     out["hazard_notes"] = component_notes(out["components"], cand)
-    from .cautions import above_flash_point_notes
+    from .cautions import heated_notes
 
-    out["hazard_notes"] = above_flash_point_notes(out, t_c, "lowest_flash_point_c")
+    out["hazard_notes"] = heated_notes(out, t_c, "lowest_flash_point_c", "bp_low_c")
     out["mixing_note"] = second_opinion_notes(out["components"], cand, t_c) if mis is not None else ""
     out.attrs.update(target=tgt, temperature=t_c, caution=CAUTION, min_fraction=m,
                      miscibility="selector.mixing.miscible_pairs" if mis is not None else "not checked",
@@ -1077,9 +1077,9 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     from .hazards import component_notes
 
     out["hazard_notes"] = component_notes(out["components"], pd.concat([x, cand]))
-    from .cautions import above_flash_point_notes
+    from .cautions import heated_notes
 
-    out["hazard_notes"] = above_flash_point_notes(out, t_c, "lowest_flash_point_c")
+    out["hazard_notes"] = heated_notes(out, t_c, "lowest_flash_point_c", "bp_low_c")
     out["mixing_note"] = (second_opinion_notes(out["components"], pd.concat([x, cand]), t_c)
                           if require_miscible else "")
     from .cautions import not_flammable

@@ -371,25 +371,50 @@ def flash_point_text(frame: pd.DataFrame, column: str = "flash_point_c", fmt: st
     return pd.Series(out, index=frame.index, name=column, dtype=object)
 
 
-def above_flash_point_notes(rows: pd.DataFrame, temperature: float, column: str = "flash_point_c") -> np.ndarray:
-    """``rows["hazard_notes"]`` with "HEATED ABOVE ITS FLASH POINT (x C)" put first where a use
-    temperature above 25 C reaches the flash point in ``column`` (a blend's:
-    ``lowest_flash_point_c``) and the flash point lies above 25 C: its vapour over the liquid can
-    then burn, though at room temperature it would not (common practice: the flash point is the
-    lowest temperature at which it does). Liquids that flash below 25 C carry their flammability
-    notes already."""
+#: A use temperature above 25 C that comes within this many degrees (C) of a boiling point gets a note.
+NEAR_BOILING_C = 10.0
+
+
+def heated_notes(rows: pd.DataFrame, temperature: float, flash_column: str = "flash_point_c",
+                 boiling_column: str = "boiling_point_c") -> np.ndarray:
+    """``rows["hazard_notes"]`` with the cautions of heating put first, for a use temperature T
+    above 25 C (a blend's columns: ``lowest_flash_point_c`` and ``bp_low_c``, its first component
+    to boil):
+
+    * "HEATED ABOVE ITS FLASH POINT (x C) at T C" where T reaches the flash point: the vapour over
+      the liquid can burn (common practice: the flash point is the lowest temperature at which it
+      does). This holds for liquids that flash below 25 C too: their hazard statements, where the
+      library has them, say flammable, but not that the use temperature is past the point;
+    * "NEAR ITS BOILING POINT (x C) at T C" where T is within :data:`NEAR_BOILING_C` of the
+      boiling point (or past it, for a blend's lowest component): it evaporates fast, and a closed
+      vessel builds up pressure (common practice).
+    """
     notes = rows["hazard_notes"].fillna("").astype(str).to_numpy(object)
-    fp = pd.to_numeric(rows.get(column, pd.Series(np.nan, index=rows.index)),
-                       errors="coerce").to_numpy(float)
-    with np.errstate(invalid="ignore"):
-        hot = np.isfinite(fp) & (fp <= float(temperature)) & (fp > 25.0)
-    if not hot.any():
+    t = float(temperature)
+    if t <= 25.0:
         return notes
+
+    def col(c):
+        return pd.to_numeric(rows.get(c, pd.Series(np.nan, index=rows.index)), errors="coerce").to_numpy(float)
+
     from .report import round_half_away
 
-    lead = np.array([f"HEATED ABOVE ITS FLASH POINT ({float(round_half_away(x)):.0f} C) at {float(temperature):g} C: "
-                     "flammable vapour over the liquid" for x in fp[hot]], dtype=object)
-    notes[hot] = np.where(notes[hot] != "", lead + "; " + notes[hot], lead)
+    fp, bp = col(flash_column), col(boiling_column)
+    lead = np.full(len(notes), "", dtype=object)
+    with np.errstate(invalid="ignore"):
+        hot = np.isfinite(fp) & (fp <= t)
+        boil = np.isfinite(bp) & (bp - t <= NEAR_BOILING_C)
+    for k in np.flatnonzero(hot | boil):   # the few rows that carry a note
+        parts = []
+        if hot[k]:
+            parts.append(f"HEATED ABOVE ITS FLASH POINT ({float(round_half_away(fp[k])):.0f} C) at {t:g} C: "
+                         "flammable vapour over the liquid")
+        if boil[k]:
+            parts.append(f"NEAR ITS BOILING POINT ({float(round_half_away(bp[k])):.0f} C) at {t:g} C: fast "
+                         "evaporation, pressure in a closed vessel")
+        lead[k] = "; ".join(parts)
+    has = lead != ""
+    notes[has] = np.where(notes[has] != "", lead[has] + "; " + notes[has], lead[has])
     return notes
 
 

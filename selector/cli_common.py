@@ -349,6 +349,10 @@ _UNITS = (
     (("viscosity_mpa_s",), "viscosity in mPa s"),
     (("evaporation_rate",), "evaporation rate relative to n-butyl acetate = 1"),
     (("blend",), "blend shares by volume"),
+    (("evaporated_fraction", "remaining_fraction"), "fractions (evaporated, remaining, phi_ of each liquid) by volume"),
+    (("density", "density_g_cm3"), "density in g/cm3"),
+    (("expansion_coeff",), "expansion coefficient in 1/K"),
+    (("molar_mass",), "molar mass in g/mol"),
 )
 
 

@@ -20,6 +20,12 @@ SHOW_FIELDS = ["name", "cas", "smiles", "formula", "molar_mass", "delta_d", "del
                "vapour_pressure_method", "viscosity_method", "viscosity_estimated", "flash_point_source", "origin",
                "molar_volume_estimated", "in_domain", "filled_from_library", "reactive_reason", "data_note",
                "hazard_class", "hazard_class_default", "h_statements", "hazard_notes"]
+#: units printed after a value by ``show`` (its table has no column headers to carry them)
+SHOW_UNITS = {"molar_mass": "g/mol", "delta_d": "MPa^0.5", "delta_p": "MPa^0.5", "delta_h": "MPa^0.5",
+              "hsp_spread": "MPa^0.5", "molar_volume": "cm3/mol", "density": "g/cm3 at 25 C",
+              "melting_point_c": "C", "boiling_point_c": "C", "flash_point_c": "C", "autoignition_c": "C",
+              "vapour_pressure_kpa": "kPa at 25 C", "hvap_kj_mol": "kJ/mol", "expansion_coeff": "1/K",
+              "viscosity_mpa_s": "mPa s at 25 C"}
 #: values that may carry a 90 % interval (``<name>_low``/``<name>_high``, estimated liquids)
 INTERVAL_FIELDS = {"delta_d": 2, "delta_p": 2, "delta_h": 2, "molar_volume": 1}
 #: origins whose HSP did not come from the library's comparison of published sources
@@ -236,7 +242,9 @@ def cmd_show(a) -> int:
                     if f in INTERVAL_FIELDS and pd.notna(lo) and pd.notna(hi) and text != "":
                         d = INTERVAL_FIELDS[f]
                         text = f"{float(v):.{d}f}   (90 % interval {float(lo):.{d}f} .. {float(hi):.{d}f})"
-                    print(f"{f:24s} {text}")
+                    unit = SHOW_UNITS.get(f, "") if str(text) != "" else ""
+                    print(f"{f:24s} {text}" + (f" {unit}" if unit and "interval" not in str(text) else "")
+                          + (f" ({unit})" if unit and "interval" in str(text) else ""))
             print()
         print(show_footer(shown))
         return 0
@@ -251,9 +259,9 @@ def _with_hazard_summary(rows, lib):
     from .hazards import attach_hazards, hazard_columns, liquid_notes
 
     out = attach_hazards(rows, lib, columns=("hazard_class", "hazard_class_default", "h_statements"))
-    # the default ranking only where the guide revised it (methanol, pyridine, ...)
+    # the default ranking spelled out only where the guide revised it (methanol, pyridine, ...)
     same = out["hazard_class_default"].astype(str) == out["hazard_class"].astype(str)
-    out["hazard_class_default"] = out["hazard_class_default"].where(~same, "")
+    out["hazard_class_default"] = out["hazard_class_default"].where(~same, "same (not revised)")
     out["hazard_notes"] = liquid_notes(out, hazard_columns(out))
     return out
 
@@ -278,6 +286,10 @@ def show_footer(rows) -> str:
         hit = (origin == kind).to_numpy()
         if hit.any():
             lines.append(f"{', '.join(names[hit])}: {text}.")
+    if "hazard_class" in rows.columns:
+        lines.append("Hazard class: CHEM21 method (Prat et al., Green Chem. 18 (2016) 288-296) on the GHS "
+                     "statements of parameters/hazards.csv, quoted from memory of the EU CLP classification: "
+                     "confirm them with the supplier's safety data sheet (`likewise hazard` shows the scores).")
     if "exposure_limit" in rows.columns and pd.to_numeric(rows["exposure_limit"], errors="coerce").notna().any():
         from .report import EXPOSURE_NOTE
 

@@ -237,6 +237,11 @@ def drying_path(components, fractions, *, temperature: float = 25.0, target=None
                             + ", ".join(f"{a} + {b} ({st})" for a, b, st in split)
                             + "; the path assumes one liquid phase, which holds only while the composition "
                               "stays within their mutual solubility")
+    if t_c > 25.0:
+        from .cautions import heated_notes
+
+        heat = heated_notes(rows.assign(hazard_notes=""), t_c)
+        warnings += [f"{nm}: {note}" for nm, note in zip(names, heat) if note]
     if activity == "raoult" and (rows["cas"].astype(str).to_numpy() == WATER_CAS).any() and len(rows) > 1:
         warnings.append("water with organic liquids is far from ideal (Raoult's law can get even the order "
                         "of leaving wrong: 1-butanol leaves a water-rich blend before the water, through "

@@ -142,9 +142,9 @@ def rank(target, *, temperature: float = 25.0, library: pd.DataFrame | None = No
 
     # order unchanged (by score); the notes say where a liquid has no hazard data
     out["hazard_notes"] = liquid_notes(lib)[mask]
-    from .cautions import above_flash_point_notes
+    from .cautions import heated_notes
 
-    out["hazard_notes"] = above_flash_point_notes(out, t_c)
+    out["hazard_notes"] = heated_notes(out, t_c)
     key = np.round(score / TIE_RESOLUTION)
     order = np.lexsort((out["molar_volume"].to_numpy(float), key))
     out = out.iloc[order].reset_index(drop=True)

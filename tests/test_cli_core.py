@@ -484,3 +484,17 @@ def test_named_target_with_radius_is_corrected_at_the_use_temperature(capsys):
     df = pd.read_csv(io.StringIO(out)).set_index("name")
     assert df.loc["toluene", "ra"] == pytest.approx(0.0, abs=1e-6)
     assert df.loc["toluene", "rank"] == 1
+
+
+def test_show_prints_units_and_where_the_hazard_class_comes_from(capsys):
+    # README walk and numbers review, round 5: `show` printed density, molar volume and the
+    # hazard class with no unit and no source. Toluene: 0.8622 g/cm3 and 106.86 cm3/mol at 25 C
+    # (thermo, via the library); CHEM21 class problematic (Prat et al. 2016, from memory)
+    rc, out, _ = run(["show", "toluene"], capsys)
+    assert rc == 0
+    lines = {ln.split()[0]: ln for ln in out.splitlines() if ln.strip()}
+    assert lines["density"].endswith("0.8622 g/cm3 at 25 C")
+    assert lines["molar_volume"].endswith("106.86 cm3/mol")
+    assert lines["delta_d"].endswith("18.0 MPa^0.5")
+    assert lines["hazard_class_default"].endswith("same (not revised)")
+    assert "Hazard class: CHEM21 method" in out and "quoted from memory" in out

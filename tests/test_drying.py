@@ -201,3 +201,16 @@ def test_drying_warns_on_two_phases_and_on_raoult_with_water():
     # a miscible, water-free blend gets neither note (toluene + butyl acetate, common practice)
     ok = drying_path(["toluene", "butyl acetate"], [0.4, 0.6])
     assert not any(w.startswith("not miscible") or "compare activity" in w for w in ok.attrs["warnings"])
+
+
+def test_drying_hot_names_the_liquids_past_their_flash_point():
+    # numbers review, round 5: `dry --at 60` gave no word on flammability. Butyl acetate flashes
+    # at 22 C and toluene at 4 C (library values, from chemicals); at 60 C both are past it
+    # (common practice: vapour over the liquid can burn); at 25 C toluene alone.
+    import selector
+
+    hot = selector.drying_path(["butyl acetate", "toluene"], [0.5, 0.5], temperature=60).attrs["warnings"]
+    assert "butyl acetate: HEATED ABOVE ITS FLASH POINT (22 C) at 60 C: flammable vapour over the liquid" in hot
+    assert any(w.startswith("toluene: HEATED ABOVE ITS FLASH POINT (4 C)") for w in hot)
+    cool = selector.drying_path(["butyl acetate", "toluene"], [0.5, 0.5]).attrs["warnings"]
+    assert not any("FLASH POINT" in w for w in cool)

@@ -252,12 +252,21 @@ def test_liquids_used_above_their_flash_point_say_so():
     # first with no note; at or above its flash point a liquid's vapour can burn (common practice)
     res = selector.rank((18.0, 1.4, 2.0), temperature=90, top=30)
     fp = res["flash_point_c"].to_numpy(float)
-    # (only where heating does it: a liquid flashing below 25 C has its flammability notes already)
-    hot = np.isfinite(fp) & (fp <= 90) & (fp > 25)
-    assert hot.any() and (~hot).any()
+    # numbers review, round 5: liquids flashing below 25 C were left without the note, though 53
+    # of 95 such candidates at 60 C had no flammability statement either (butyl acetate, pyrrole)
+    hot = np.isfinite(fp) & (fp <= 90)
+    assert hot.any() and (~hot).any() and (fp[hot] < 25).any()
     notes = res["hazard_notes"].astype(str)
     assert notes[hot].str.startswith("HEATED ABOVE ITS FLASH POINT (").all()
     assert not notes[~hot].str.contains("ABOVE ITS FLASH POINT").any()
+    # within 10 C of the boiling point: fast evaporation, pressure in a closed vessel (common
+    # practice). Heptane boils at 98.4 C and 1-propanol at 97 C, toluene at 110.6 C (chemicals,
+    # via the library); the numbers review found the first two proposed at 90 C without a word.
+    near = selector.rank((16.0, 3.0, 8.0), temperature=90, include=["heptane", "1-propanol", "toluene"])
+    near = near.set_index("name")["hazard_notes"].astype(str)
+    assert "NEAR ITS BOILING POINT (98 C) at 90 C" in near["heptane"]
+    assert "NEAR ITS BOILING POINT (97 C) at 90 C" in near["1-propanol"]
+    assert "BOILING POINT" not in near["toluene"]
     top = res.set_index("name").loc["1,2,3,4-tetrahydronaphthalene", "hazard_notes"]
     assert top.startswith("HEATED ABOVE ITS FLASH POINT (71 C) at 90 C")
     # at 25 C none of the same liquids carries it (their flash points are above 25 C)
@@ -266,7 +275,7 @@ def test_liquids_used_above_their_flash_point_say_so():
     # blends by their lowest flash point
     bl = selector.find_blends((18.0, 1.4, 2.0), temperature=90, top=10)
     lo = bl["lowest_flash_point_c"].to_numpy(float)
-    assert all(n.startswith("HEATED ABOVE ITS FLASH POINT") == (np.isfinite(f) and 25 < f <= 90)
+    assert all(n.startswith("HEATED ABOVE ITS FLASH POINT") == (np.isfinite(f) and f <= 90)
                for n, f in zip(bl["hazard_notes"].astype(str), lo))
     assert any(n.startswith("HEATED ABOVE ITS FLASH POINT") for n in bl["hazard_notes"].astype(str))
 
