@@ -494,6 +494,8 @@ PAIR_RULES = (
     ("acid", "enol ether", "acid + vinyl or enol ether: the acid adds to the ether and sets off its "
                            "hydrolysis or polymerisation, exothermically"),
     ("acid", "base", "acid + base: they react (salt, heat)"),
+    # aniline + acetic acid: a salt, and on heating acetanilide and water (common practice)
+    ("acid", "aryl amine", "acid + aromatic amine: they react (salt; on heating the amide and water)"),
     ("base", "halocarbon", "amine + polyhalogenated alkane or alkyl bromide: they react (alkylation, "
                            "loss of HCl or HBr), slowly on standing with dichloromethane, fast and hot "
                            "with carbon tetrachloride and polyamines"),

@@ -327,6 +327,11 @@ def test_amine_pairs_with_esters_aldehydes_and_halocarbons():
     assert m2[p2["carbon disulfide"], p2["butylamine"]] and m2[p2["1-methylimidazole"], p2["acetic acid"]]
     assert m2[p2["bromoethane"], p2["triethylamine"]] and not m2[p2["carbon disulfide"], p2["triethylamine"]]
     assert not m2[p2["toluene"]].any()
+    # numbers review, round 5: aniline + acetic acid sat in a blend at 60 C; they give a salt and,
+    # heated, acetanilide and water (common practice)
+    an = pd.concat([LIB.loc[[selector.find_liquid(n, LIB).name]] for n in ["aniline", "acetic acid", "toluene"]])
+    assert pair_reasons(an.reset_index(drop=True)) == [
+        "aniline + acetic acid: acid + aromatic amine: they react (salt; on heating the amide and water)"]
     # one reason per pair, though diethylenetriamine is a primary and a secondary amine
     deta = pd.concat([LIB.loc[[selector.find_liquid(n, LIB).name]] for n in ["diethylenetriamine", "acetone"]])
     assert len(pair_reasons(deta.reset_index(drop=True))) == 1
