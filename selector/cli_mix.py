@@ -75,7 +75,7 @@ def cmd_mix(a) -> int:
     if r.binodal:
         ab, ba = r.binodal["a_in_b"], r.binodal["b_in_a"]
         contradicted = r.reference_contradicts
-        print("  coexisting phases (model binodal; mutual solubilities are often off tenfold"
+        print("  coexisting phases (model binodal, to one significant figure: mutual solubilities are often off tenfold"
               + (f"; the reference data say {r.answer}, so this gap is the model's error" if contradicted else "")
               + "):")
         print(f"    {r.a} in the {r.b}-rich phase: {one_figure(ab['vol_pct'])} vol %, {one_figure(ab['wt_pct'])} wt %, "

@@ -1306,7 +1306,8 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
             notes.append(f"no UNIFAC second opinion for this pair ({second['why']})")
     ref, entry = (_reference_at(ra_.get("cas", ""), rb_.get("cas", ""), t) if reference and not same
                   else ({}, {}))
-    at25 = "at 25 C" if abs(t - 25.0) < 1e-9 else f"at 25 C, which holds at {t:g} C too (within {REFERENCE_WINDOW_C:g} C)"
+    at25 = ("at 25 C" if abs(t - 25.0) < 1e-9 else
+            ref.get("basis", f"at 25 C, which holds at {t:g} C too (within {REFERENCE_WINDOW_C:g} C)"))
     if ref:
         conf = "high"
         if _one_phase_differs(ref["state"], state):
@@ -1355,7 +1356,7 @@ def _reference_pairs() -> dict:
             continue
         for r in load_pairs(path).itertuples():
             if r.state_25c in STATES:    # entries that only say "not miscible" do not answer the question
-                crit = [float(v) for v in (r.ucst_c, r.lcst_c) if v == v]
+                crit = [(float(v), kind) for v, kind in ((r.ucst_c, "UCST"), (r.lcst_c, "LCST")) if v == v]
                 out.setdefault(frozenset((r.cas_a, r.cas_b)), {"state": r.state_25c, "source": r.source,
                                                                "table": path.name, "critical_c": crit})
     return out
@@ -1376,6 +1377,9 @@ def reference_state(cas_a: str, cas_b: str) -> dict:
 #: A recorded 25 C state answers within this many degrees of 25 C (C), unless a recorded critical
 #: solution temperature lies between 25 C and the temperature asked for.
 REFERENCE_WINDOW_C = 5.0
+#: With one recorded critical solution temperature, the record answers at any temperature at least
+#: this many degrees (C) from it: one phase above a UCST and below an LCST, two on the other side.
+CRITICAL_MARGIN_C = 3.0
 
 
 def _reference_at(cas_a: str, cas_b: str, t: float) -> tuple[dict, dict]:
@@ -1388,8 +1392,17 @@ def _reference_at(cas_a: str, cas_b: str, t: float) -> tuple[dict, dict]:
         return {}, {}
     crit = rec.pop("critical_c", [])
     lo, hi = min(25.0, t), max(25.0, t)
-    applies = abs(t - 25.0) <= REFERENCE_WINDOW_C and not any(lo <= c <= hi for c in crit)
-    return (rec if applies else {}), rec
+    if abs(t - 25.0) <= REFERENCE_WINDOW_C and not any(lo <= c <= hi for c, _ in crit):
+        return rec, rec
+    if len(crit) == 1 and abs(t - crit[0][0]) >= CRITICAL_MARGIN_C:
+        c, kind = crit[0]
+        one_phase = (t > c) if kind == "UCST" else (t < c)
+        side = f"{'above' if t > c else 'below'} the recorded {kind} of {c:g} C"
+        if (t > c) == (25.0 > c):     # the same side as 25 C: the 25 C record holds
+            return dict(rec, basis=f"at 25 C, which holds at {t:g} C too ({side})"), rec
+        state = "miscible" if one_phase else "partially miscible"
+        return dict(rec, state=state, basis=f"at {t:g} C, {side}"), rec
+    return {}, rec
 
 
 def reference_overlay(liquids: pd.DataFrame, temperature: float = 25.0) -> list[tuple[int, int, str]]:
