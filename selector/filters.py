@@ -273,12 +273,25 @@ def _mask(library: pd.DataFrame, *, temperature: float = 25.0, include=None, exc
     return mask
 
 
+#: Use temperatures accepted (C). The data are 25 C values (boiling and flash points aside), moved
+#: to other temperatures by thermal expansion (Hansen-Beerbower); far outside this range that
+#: correction, the Antoine fits and the liquid ranges of estimated boiling points are guesses,
+#: and most organic liquids decompose above it.
+TEMPERATURE_RANGE_C = (-100.0, 250.0)
+
+
 def check_temperature(temperature) -> float:
-    """Validate a temperature in C (finite, above absolute zero)."""
+    """Validate a use temperature in C: a finite number within :data:`TEMPERATURE_RANGE_C`."""
+    if isinstance(temperature, bool):
+        raise SelectorError(f"temperature must be a number in C, got {temperature!r}")
     try:
         t = float(temperature)
     except (TypeError, ValueError):
         raise SelectorError(f"temperature must be a number in C, got {temperature!r}") from None
-    if not math.isfinite(t) or t <= -273.15:
-        raise SelectorError(f"temperature must be a finite number above -273.15 C, got {temperature!r}")
+    if math.isnan(t):
+        raise SelectorError("temperature must be a number in C, got NaN")
+    lo, hi = TEMPERATURE_RANGE_C
+    if not lo <= t <= hi:
+        raise SelectorError(f"temperature {t:g} C is outside {lo:g}..{hi:g} C, the range where these 25 C data "
+                            "and their temperature corrections can be stretched")
     return t

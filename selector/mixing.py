@@ -828,9 +828,9 @@ def _frame(records) -> pd.DataFrame:
 
 
 def _check_temperature(t, recs):
-    t = _num(t, "temperature (C)", "temperature")
-    if t <= -273.15:
-        raise SelectorError(f"temperature {t:g} C is below absolute zero")
+    from .filters import check_temperature
+
+    t = check_temperature(t)
     for r in recs:
         mp, bp = r["melting_point_c"], r["boiling_point_c"]
         if math.isfinite(mp) and t < mp:
@@ -843,9 +843,9 @@ def _check_temperature(t, recs):
 
 
 def _check_temperature_frame(t, df):
-    t = _num(t, "temperature (C)", "temperature")
-    if t <= -273.15:
-        raise SelectorError(f"temperature {t:g} C is below absolute zero")
+    from .filters import check_temperature
+
+    t = check_temperature(t)
     mp = pd.to_numeric(df.get("melting_point_c", pd.Series(np.nan, index=df.index)), errors="coerce").to_numpy(float)
     bp = pd.to_numeric(df.get("boiling_point_c", pd.Series(np.nan, index=df.index)), errors="coerce").to_numpy(float)
     bad = (np.isfinite(mp) & (t < mp)) | (np.isfinite(bp) & (t > bp))

@@ -301,3 +301,14 @@ def test_a_named_target_with_its_own_radius_is_corrected_for_temperature_like_th
     res = selector.find_blends(liquid_point("toluene", 5.0), temperature=90, include=["toluene", "cumene"],
                                max_components=1)
     assert res.set_index(res["components"].str[0]).loc["toluene", "ra"] == pytest.approx(0.0, abs=1e-9)
+
+
+@pytest.mark.parametrize("t", [500, -150, float("nan"), True])
+def test_use_temperatures_outside_the_stretchable_range_are_refused(t):
+    # README walk: at 500 C triolein (boiling point 1417 C, an estimate) ranked as a liquid; the
+    # 25 C data and their thermal-expansion correction are not meant that far, and most organic
+    # liquids decompose long before (common practice)
+    with pytest.raises(SelectorError, match="temperature"):
+        selector.rank((18.0, 5.0, 3.0), temperature=t)
+    with pytest.raises(SelectorError, match="temperature"):
+        selector.miscibility("water", "ethanol", temperature=t)
