@@ -532,7 +532,7 @@ def _diverse(order_keys, idx, max_uses, top):
     return np.array(picked, dtype=int)
 
 
-def _target_and_candidates(target, library, temperature, filters, costs=None):
+def _target_and_candidates(target, library, temperature, filters, costs=None, cost_basis="cost_per_litre"):
     from .ranking import corrected_hsp, resolve_target
 
     check_filter_keys(filters)
@@ -544,7 +544,7 @@ def _target_and_candidates(target, library, temperature, filters, costs=None):
         mask &= lib["name"].to_numpy() != tgt.name
     cost, notes = None, []
     if costs is not None:
-        cost_full, notes = _costs(costs, lib)
+        cost_full, notes = _costs(costs, lib, cost_basis)
         mask &= np.isfinite(cost_full)
         cost = cost_full[mask]
     cand = lib.loc[mask].reset_index(drop=True)
@@ -558,50 +558,78 @@ def _target_and_candidates(target, library, temperature, filters, costs=None):
     return tgt, cand, h, t_c, (cost, notes)
 
 
-def _cost_pairs(costs) -> list[tuple]:
-    """(name, price) pairs of a cost mapping, Series or table (columns name, cost_per_litre)."""
+#: Price bases a cost list may use: per litre (a blend's cost is volume-weighted) or per kg
+#: (turned into per litre with the liquid's 25 C density; a blend's cost per kg is its cost per
+#: litre over its density).
+COST_BASES = ("cost_per_litre", "cost_per_kg")
+
+
+def _cost_pairs(costs, basis: str = "cost_per_litre") -> list[tuple]:
+    """(name, price) pairs of a cost mapping, Series or table (columns name and ``basis``)."""
     if isinstance(costs, pd.Series):
         pairs = list(zip(costs.index, costs.to_numpy()))
     elif isinstance(costs, pd.DataFrame):
-        if not {"name", "cost_per_litre"} <= set(costs.columns):
-            raise SelectorError("a cost table needs columns name, cost_per_litre")
-        pairs = list(zip(costs["name"], costs["cost_per_litre"]))
+        if not {"name", basis} <= set(costs.columns):
+            raise SelectorError(f"a cost table needs columns name, {basis}")
+        pairs = list(zip(costs["name"], costs[basis]))
     elif isinstance(costs, dict):
         pairs = list(costs.items())
     else:
         pairs = []
     if not pairs:
-        raise SelectorError("cost_per_litre must be a non-empty mapping of liquid name -> cost per litre")
+        raise SelectorError(f"{basis} must be a non-empty mapping of liquid name -> {basis.replace('_', ' ')}")
     return pairs
 
 
-def _costs(costs, lib):
+def _costs(costs, lib, basis: str = "cost_per_litre"):
     """Price per litre for each liquid of ``lib`` (NaN: not priced) and the notes on names
-    matched by synonym. A liquid priced twice (the same name on two rows, or a name and its
-    synonym) is refused."""
+    matched by synonym or left out. Prices per kg (``basis="cost_per_kg"``) are turned into prices
+    per litre with the 25 C density; a liquid without one is left out with a note. A liquid priced
+    twice (the same name on two rows, or a name and its synonym) is refused. Every problem of the
+    list is reported in one error."""
+    from .errors import InputTableError
     from .library import _key
 
-    pairs = _cost_pairs(costs)
+    pairs = _cost_pairs(costs, basis)
     names = [str(n) for n, _ in pairs]
-    pos = locate_many(names, lib, "cost list")
     lib_names = lib["name"].astype(str).to_numpy()
+    problems, pos = [], []
+    for nm in names:
+        try:
+            pos.append(int(locate_many([nm], lib, "cost list")[0]))
+        except SelectorError as e:
+            problems.append(str(e))
+            pos.append(-1)
     seen: dict[int, str] = {}
     for p, nm in zip(pos, names):
-        if int(p) in seen:
-            how = "on two rows" if seen[int(p)] == nm else f"twice ({seen[int(p)]!r} and {nm!r})"
-            raise SelectorError(f"the cost list prices {lib_names[p]} {how}; keep one price per liquid")
-        seen[int(p)] = nm
+        if p < 0:
+            continue
+        if p in seen:
+            how = "on two rows" if seen[p] == nm else f"twice ({seen[p]!r} and {nm!r})"
+            problems.append(f"the cost list prices {lib_names[p]} {how}; keep one price per liquid")
+        seen[p] = nm
     out = np.full(len(lib), np.nan)
     for p, (nm, v) in zip(pos, pairs):
         try:
             v = float(v)
         except (TypeError, ValueError):
-            raise SelectorError(f"cost of {nm!r} must be a number, got {v!r}") from None
+            problems.append(f"cost of {nm!r} must be a number, got {v!r}")
+            continue
         if not math.isfinite(v) or v < 0:
-            raise SelectorError(f"cost of {nm!r} must be a finite number >= 0, got {v!r}")
-        out[p] = v
+            problems.append(f"cost of {nm!r} must be a finite number >= 0, got {v!r}")
+        elif p >= 0:
+            out[p] = v
+    if problems:
+        if len(problems) == 1:
+            raise SelectorError(problems[0])
+        raise InputTableError("cost list", problems)
     notes = [f"price of {nm!r} used for {lib_names[p]}" for nm, p in zip(names, pos)
              if _key(nm) != _key(lib_names[p])]
+    if basis == "cost_per_kg":
+        rho = pd.to_numeric(lib.get("density", pd.Series(np.nan, index=lib.index)), errors="coerce").to_numpy(float)
+        no_rho = np.isfinite(out) & ~(rho > 0)
+        notes += [f"{lib_names[p]} left out: priced per kg but its density is unknown" for p in np.flatnonzero(no_rho)]
+        out = np.where(rho > 0, out * rho, np.nan)   # kg/L = g/cm3
     return out, notes
 
 
@@ -681,8 +709,37 @@ def _table(tgt, cand, h, idx, f, rr, t_c, cost=None):
     out["lowest_known_flash_point_c"] = np.where(np.isnan(low_fp) & np.isfinite(kmin), kmin, np.nan)
     # every component known not to burn (NaN lowest flash point, but not for want of data)
     out["not_flammable"] = np.all(np.isinf(fps), 1)
+    # by weight, for the balance: mass fraction = phi_i rho_i / sum(phi_j rho_j), ideal mixing
+    # (no volume change on mixing) with 25 C densities; NaN where a density is unknown
+    rho = pd.to_numeric(cand.get("density", pd.Series(np.nan, index=cand.index)), errors="coerce").to_numpy(float)
+    rho = np.where(rho > 0, rho, np.nan)
+    wr = np.where(used, fr * rho[safe], 0.0)
+    dens = np.where(np.isnan(np.where(used, rho[safe], 0.0)).any(1), np.nan, wr.sum(1))
+    with np.errstate(invalid="ignore", divide="ignore"):
+        wf = wr / dens[:, None]
+    out["mass_fractions"] = [tuple(float(v) for v in x[u]) for x, u in zip(wf, used)]
+    out["density"] = dens
     if cost is not None:
         out["cost_per_litre"] = (fr * np.where(used, cost[safe], 0.0)).sum(1)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            out["cost_per_kg"] = out["cost_per_litre"].to_numpy(float) / dens
+    return out
+
+
+def blend_labels(table: pd.DataFrame, by: str = "volume", digits: int = 1) -> list[str]:
+    """One readable label per blend row: "60.0% A + 40.0% B" by volume (``fractions``) or by
+    mass (``mass_fractions``, "" where a density is unknown); a single liquid is its name."""
+    col = {"volume": "fractions", "mass": "mass_fractions"}.get(by)
+    if col is None:
+        raise SelectorError(f"by must be 'volume' or 'mass', got {by!r}")
+    out = []
+    for cs, fs in zip(table["components"], table[col]):
+        if len(cs) == 1:
+            out.append(cs[0])
+        elif any(not math.isfinite(x) for x in fs):
+            out.append("")
+        else:
+            out.append(" + ".join(f"{x:.{digits}%} {c}" for c, x in zip(cs, fs)))
     return out
 
 
@@ -742,7 +799,7 @@ def display_cap(parts, top, max_uses, resolution):
 def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
                 temperature: float = 25.0, top: int | None = 20, library: pd.DataFrame | None = None,
                 max_uses: int = 3, min_gain: float = DEFAULT_MIN_GAIN, cost_per_litre=None,
-                require_miscible: bool = True, resolution: float = DEFAULT_RESOLUTION,
+                cost_per_kg=None, require_miscible: bool = True, resolution: float = DEFAULT_RESOLUTION,
                 **filters) -> pd.DataFrame:
     """Best single liquids and blends of two or three for a target point or sphere.
 
@@ -751,12 +808,15 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     (default 0.05). ``temperature`` (C): HSP corrected by Hansen-Beerbower and miscibility checked
     there. Filters (:mod:`selector.filters`) apply to every component, e.g.
     ``boiling_point_c=(80, 180)``, ``flash_point_c=(23, None)``, ``max_hazard_class="problematic"``.
-    ``cost_per_litre``: optional mapping name -> price per litre; then only priced liquids are
-    candidates, a ``cost_per_litre`` column is added (volume-weighted) and ``pareto`` marks the
-    cost-versus-Ra trade-off front (also in ``attrs["pareto"]``).
+    ``cost_per_litre`` or ``cost_per_kg``: optional mapping name -> price (or a table with columns
+    name and that basis); then only priced liquids are candidates, ``cost_per_litre`` (volume-
+    weighted) and ``cost_per_kg`` (over the blend's density) columns are added and ``pareto`` marks
+    the cost-versus-Ra trade-off front on the basis the prices were given in (the whole front, of
+    which ``max_uses`` may hide rows, is ``attrs["pareto"]``). Prices per kg need a density.
 
     Returns one row per proposal, best Ra first: ``components`` (tuple of names), ``fractions``
-    (tuple, volume), ``n_components``, blend ``delta_d, delta_p, delta_h``, ``ra`` (MPa^0.5),
+    (tuple, volume), ``mass_fractions`` (tuple, by weight: ideal mixing with 25 C densities, NaN
+    without a density), ``density`` (g/cm3, same assumption), ``n_components``, blend ``delta_d, delta_p, delta_h``, ``ra`` (MPa^0.5),
     ``red`` (NaN without R0), ``component_red`` (or ``component_ra``), ``non_solvent_pair`` (every
     component outside the sphere, the blend inside), ``hazard_class`` (worst component),
     ``bp_low_c``/``bp_high_c`` (boiling range), ``lowest_flash_point_c`` and its component (NaN if
@@ -793,8 +853,12 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     if not (math.isfinite(step) and step > 0):
         raise SelectorError(f"resolution must be a positive number of MPa^0.5 (the Ra step of the display "
                             f"order), got {resolution!r}")
+    if cost_per_litre is not None and cost_per_kg is not None:
+        raise SelectorError("give prices per litre (cost_per_litre) or per kg (cost_per_kg), not both")
+    basis = "cost_per_kg" if cost_per_kg is not None else "cost_per_litre"
+    prices = cost_per_kg if cost_per_kg is not None else cost_per_litre
     tgt, cand, h, t_c, (cost, price_notes) = _target_and_candidates(target, library, temperature, filters,
-                                                                      cost_per_litre)
+                                                                      prices, basis)
     from .filters import as_flag
 
     require_miscible = as_flag(require_miscible, "require_miscible")
@@ -817,9 +881,9 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     full = _table(tgt, cand, h, res["idx"], res["f"], res["ra"], t_c, cost)
     out = full.iloc[pick].reset_index(drop=True)
     if cost is not None:
-        par = _pareto(full["ra"].to_numpy(), full["cost_per_litre"].to_numpy())
+        par = _pareto(full["ra"].to_numpy(), full[basis].to_numpy())
         out["pareto"] = par[pick]
-        out.attrs["pareto"] = full.loc[par].reset_index(drop=True)
+        out.attrs["pareto"] = full.loc[par].sort_values("ra", kind="stable").reset_index(drop=True)
     from .hazards import component_notes
 
     out["hazard_notes"] = component_notes(out["components"], cand)
@@ -830,8 +894,9 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     out.attrs.update(target=tgt, temperature=t_c, caution=CAUTION, min_fraction=m,
                      miscibility="selector.mixing.miscible_pairs" if mis is not None else "not checked",
                      candidates=len(cand), mixing_warning=mixing_warning(out))
-    if cost_per_litre is not None:
+    if prices is not None:
         out.attrs["price_notes"] = price_notes
+        out.attrs["cost_basis"] = basis
     return out
 
 

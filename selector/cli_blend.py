@@ -6,10 +6,10 @@ import argparse
 from .cli_common import (add_filter_args, add_output_args, emit,
                           filters_from_args, library_from_args, number, whole_number)
 
-BLEND_COLUMNS = ["blend", "n_components", "delta_d", "delta_p", "delta_h", "ra", "red", "non_solvent_pair",
+BLEND_COLUMNS = ["blend", "by_mass", "n_components", "delta_d", "delta_p", "delta_h", "ra", "red", "non_solvent_pair",
                  "hazard_class", "bp_low_c", "bp_high_c", "lowest_flash_point_c", "lowest_flash_component",
-                 "cost_per_litre", "pareto", "hazard_notes", "mixing_note"]
-REPLACE_COLUMNS = ["role", "blend", "ra", "red", "hazard_class", "boiling_point_c", "bp_low_c", "bp_high_c",
+                 "density", "cost_per_litre", "cost_per_kg", "pareto", "hazard_notes", "mixing_note"]
+REPLACE_COLUMNS = ["role", "blend", "by_mass", "ra", "red", "hazard_class", "boiling_point_c", "bp_low_c", "bp_high_c",
                    "evaporation_rate",
                    "viscosity_mpa_s", "lowest_flash_point_c", "mismatch", "score", "hazard_notes",
                    "mixing_note"]
@@ -21,10 +21,18 @@ def _filters(a) -> dict:
 
 
 def _label(df):
+    from .blends import blend_labels
+
     df = df.copy()
-    df.insert(0, "blend", [" + ".join(f"{x:.1%} {c}" for c, x in zip(cs, fs)) if len(cs) > 1 else cs[0]
-                           for cs, fs in zip(df["components"], df["fractions"])])
+    df.insert(0, "blend", blend_labels(df, "volume"))
+    if "mass_fractions" in df.columns:
+        df.insert(1, "by_mass", blend_labels(df, "mass"))
     return df
+
+
+#: Header line for tables with a ``by_mass`` column.
+BY_MASS_NOTE = ("\nShares in blend are by volume; by_mass is the same blend by weight, for the balance "
+                "(ideal mixing, 25 C densities; blank where a density is unknown).")
 
 
 def _prices(path):
@@ -33,13 +41,17 @@ def _prices(path):
     from .errors import SelectorError
     from .io import read_user_csv
 
+    from .blends import COST_BASES
+
     # UTF-8 or Windows-1252, comma/semicolon/tab, decimal commas; "file not found: PATH"
     t = read_user_csv(path, what=f"the price list {path}", strict_rows="longer")
     cols = {c.strip().lower(): c for c in t.columns}
-    if "name" not in cols or "cost_per_litre" not in cols:
-        raise SelectorError(f"the price list {path} needs columns name, cost_per_litre")
+    bases = [b for b in COST_BASES if b in cols]
+    if "name" not in cols or len(bases) != 1:
+        raise SelectorError(f"the price list {path} needs columns name and one of cost_per_litre, cost_per_kg "
+                            f"(found {', '.join(map(str, t.columns)) or 'no columns'})")
     # a table, not a dict: the same name on two rows must reach the duplicate check
-    return pd.DataFrame({"name": t[cols["name"]].astype(str), "cost_per_litre": t[cols["cost_per_litre"]]})
+    return {bases[0]: pd.DataFrame({"name": t[cols["name"]].astype(str), bases[0]: t[cols[bases[0]]]})}
 
 
 def _target(a, lib):
@@ -54,7 +66,7 @@ def cmd_blend(a) -> int:
     lib = library_from_args(a)
     res = find_blends(_target(a, lib), max_components=a.parts, min_fraction=a.min_share, temperature=a.at,
                       top=a.top, library=lib, max_uses=a.max_uses,
-                      cost_per_litre=_prices(a.prices) if a.prices else None,
+                      **(_prices(a.prices) if a.prices else {}),
                       require_miscible=not a.skip_mixing_check, **_filters(a))
     from .cli_core import describe_target, target_notes
 
@@ -66,12 +78,37 @@ def cmd_blend(a) -> int:
     if res.attrs.get("mixing_warning"):
         header += "\n" + res.attrs["mixing_warning"]
     if res.attrs.get("price_notes"):
-        header += "\nPrices matched by synonym: " + "; ".join(res.attrs["price_notes"])
+        header += "\nPrices: " + "; ".join(res.attrs["price_notes"])
+    header += BY_MASS_NOTE
+    if "pareto" in res.attrs:
+        header += _front_line(res)
+        if a.front:
+            res = res.attrs["pareto"].assign(pareto=True)
+    elif a.front:
+        raise ValueError("--front lists the cost-versus-Ra front: give --prices too")
     res, est_cols, note = _with_estimated(res, lib, a)
     cols = [c for c in BLEND_COLUMNS if c != "red" or res["red"].notna().any()] + est_cols
-    emit(_label(res), a, cols + (["components", "fractions"] if a.format != "table" else []),
+    emit(_label(res), a, cols + (["components", "fractions", "mass_fractions"] if a.format != "table" else []),
          caution=True, header=header + note)
     return 0
+
+
+def _front_line(res) -> str:
+    """Header line on the cost-versus-Ra front: its size, its cheapest and best rows, and how many
+    of its rows the table leaves out (``--max-uses``, ``--top``)."""
+    from .blends import blend_labels
+
+    front, basis = res.attrs["pareto"], res.attrs["cost_basis"]
+    unit = "per litre" if basis == "cost_per_litre" else "per kg"
+    lab = blend_labels(front, "volume")
+    cheap = int(front[basis].to_numpy(float).argmin())
+    shown = int(res["pareto"].sum())
+    line = (f"\nCost-versus-Ra front (pareto): {len(front)} blends, from {lab[0]} (Ra {front['ra'].iloc[0]:.2f}, "
+            f"{front[basis].iloc[0]:.3g} {unit}) to the cheapest, {lab[cheap]} (Ra {front['ra'].iloc[cheap]:.2f}, "
+            f"{front[basis].iloc[cheap]:.3g} {unit})")
+    if shown < len(front):
+        line += f"; {len(front) - shown} of them are not in this table (--front lists them all)"
+    return line
 
 
 def _with_estimated(res, lib, a):
@@ -111,7 +148,7 @@ def cmd_replace(a) -> int:
     res, est_cols, est_note = _with_estimated(res, lib, a)
     cols = [c for c in REPLACE_COLUMNS if c != "red" or res["red"].notna().any()] + est_cols
     emit(_label(res), a, cols + (["components", "fractions"] if a.format != "table" else []),
-         caution=True, header=header + est_note)
+         caution=True, header=header + BY_MASS_NOTE + est_note)
     return 0
 
 
@@ -187,8 +224,10 @@ def register(sub) -> None:
     p.add_argument("target", help="'dD,dP,dH[,R0]' in MPa^0.5, or a liquid name, CAS or SMILES")
     p.add_argument("--radius", type=number, metavar="R0", help="interaction radius R0 for a named target")
     _blend_options(p)
-    p.add_argument("--prices", metavar="CSV", help="CSV with name,cost_per_litre: only priced liquids are "
-                   "used and the cost-versus-Ra front is marked")
+    p.add_argument("--prices", metavar="CSV", help="CSV with name and cost_per_litre or cost_per_kg: only "
+                   "priced liquids are used and the cost-versus-Ra front is marked")
+    p.add_argument("--front", action="store_true",
+                   help="with --prices: list the whole cost-versus-Ra front instead of the ranked blends")
     p.add_argument("--max-uses", type=whole_number, default=3, metavar="N",
                    help="a liquid appears in at most N rows (default 3)")
     p.add_argument("--skip-mixing-check", action="store_true",

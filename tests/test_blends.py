@@ -414,6 +414,74 @@ def test_prices_matched_by_synonym_are_named_and_double_prices_refused():
     assert ser["cost_per_litre"].tolist() == res["cost_per_litre"].tolist()
 
 
+def test_mass_fractions_follow_the_densities():
+    # toluene 0.862 and ethanol 0.785 g/cm3 at 25 C (CRC Handbook, from memory): by weight the
+    # denser toluene takes the larger share, w = phi rho / sum(phi rho) (ideal mixing)
+    res = find_blends((17.0, 4.0, 9.0), include=["toluene", "ethanol"], max_components=2, top=5)
+    row = res.loc[res["n_components"] == 2].iloc[0]
+    phi = dict(zip(row["components"], row["fractions"]))
+    w = dict(zip(row["components"], row["mass_fractions"]))
+    expect = phi["toluene"] * 0.862 / (phi["toluene"] * 0.862 + phi["ethanol"] * 0.785)
+    assert w["toluene"] == pytest.approx(expect, abs=0.003)
+    assert sum(row["mass_fractions"]) == pytest.approx(1.0, abs=1e-12)
+    assert row["density"] == pytest.approx(phi["toluene"] * 0.862 + phi["ethanol"] * 0.785, abs=0.003)
+    from selector.blends import blend_labels
+
+    lab = blend_labels(res.loc[[row.name]], "mass")[0]
+    assert lab.endswith(f"{w['toluene']:.1%} toluene") or lab.startswith(f"{w['toluene']:.1%} toluene")
+    # a component without a density: no mass fractions, no label, rather than a wrong one
+    lib = selector.load_library()
+    no_rho = lib.assign(density=np.where(lib["name"].eq("ethanol"), np.nan, lib["density"]))
+    res2 = find_blends((17.0, 4.0, 9.0), include=["toluene", "ethanol"], max_components=2, top=5, library=no_rho)
+    two = res2.loc[res2["n_components"] == 2]
+    assert two["density"].isna().all() and blend_labels(two, "mass") == [""] * len(two)
+
+
+def test_prices_per_kg_are_turned_into_prices_per_litre_with_the_density():
+    # arbitrary prices (not check values); toluene's density 0.862 g/cm3 at 25 C (CRC, from memory)
+    per_kg = {"toluene": 2.0, "ethanol": 1.0, "acetone": 1.5, "ethyl acetate": 1.8}
+    res = find_blends(PS, cost_per_kg=per_kg, max_components=2, top=30, max_uses=30, min_gain=0.0)
+    assert res.attrs["cost_basis"] == "cost_per_kg"
+    one = res.loc[res["components"] == ("toluene",)].iloc[0]
+    assert one["cost_per_kg"] == pytest.approx(2.0, abs=1e-12)
+    assert one["cost_per_litre"] == pytest.approx(2.0 * 0.862, abs=0.01)
+    for r in res.itertuples():   # a blend's cost per kg is the mass-weighted price per kg
+        assert r.cost_per_kg == pytest.approx(sum(w * per_kg[c] for c, w in zip(r.components, r.mass_fractions)))
+    # the front is on the basis the prices came in, best Ra first, and holds the cheapest blend
+    front = res.attrs["pareto"]
+    assert front["ra"].is_monotonic_increasing
+    assert front["cost_per_kg"].min() == pytest.approx(res["cost_per_kg"].min())
+    with pytest.raises(SelectorError, match="not both"):
+        find_blends(PS, cost_per_kg=per_kg, cost_per_litre=per_kg)
+
+
+def test_every_problem_of_a_price_list_is_reported_at_once():
+    with pytest.raises(SelectorError) as err:
+        find_blends(PS, cost_per_litre={"tolune": 1.0, "ethanol": "x", "acetone": -1.0, "heptane": 2.0})
+    msg = str(err.value)
+    assert "3 problems" in msg and "tolune" in msg and "'x'" in msg and "-1.0" in msg
+
+
+def test_cli_prices_per_kg_and_the_whole_front(tmp_path, capsys):
+    p = tmp_path / "prices.csv"   # arbitrary prices
+    p.write_text("name,cost_per_kg\ntoluene,2.0\nethanol,1.0\nacetone,1.5\nethyl acetate,1.8\nheptane,1.2\n")
+    assert main(["blend", "21.3,5.8,4.3,12.7", "--parts", "2", "--prices", str(p), "--max-uses", "1",
+                 "--top", "2"]) == 0
+    out = capsys.readouterr().out
+    assert "by_mass" in out and "cost_per_kg" in out and "Cost-versus-Ra front (pareto)" in out
+    assert "not in this table (--front lists them all)" in out
+    f = tmp_path / "front.json"
+    assert main(["blend", "21.3,5.8,4.3,12.7", "--parts", "2", "--prices", str(p), "--front", "--format", "json",
+                 "-o", str(f)]) == 0
+    recs = json.loads(f.read_text())
+    assert recs and all(r["pareto"] for r in recs)
+    ra = [r["ra"] for r in recs]
+    cost = [r["cost_per_kg"] for r in recs]
+    assert ra == sorted(ra) and cost == sorted(cost, reverse=True)   # a front: better Ra costs more
+    assert main(["blend", "21.3,5.8,4.3,12.7", "--front"]) == 2
+    assert "give --prices too" in capsys.readouterr().err
+
+
 def test_full_library_ternary_search():
     res = find_blends((18.0, 10.0, 7.0, 5.0), max_components=3, top=20)
     assert len(res) == 20

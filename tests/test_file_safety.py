@@ -402,7 +402,7 @@ def test_excel_price_list(tmp_path, capsys):
     p.write_bytes("name;cost_per_litre\ntoluene;3,5\nethanol;2,25\n".encode("cp1252"))
     from selector.cli_blend import _prices
 
-    got = _prices(str(p))
+    got = _prices(str(p))["cost_per_litre"]
     assert dict(zip(got["name"], got["cost_per_litre"])) == {"toluene": 3.5, "ethanol": 2.25}
 
 

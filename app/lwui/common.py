@@ -68,6 +68,11 @@ COLUMN_CONFIG = {
     "hazard_class": st.column_config.TextColumn("Hazard class", help="CHEM21; unclassified = no data, not safe"),
     "blend": st.column_config.TextColumn("Blend (volume %)"),
     "candidate": st.column_config.TextColumn("Candidate (volume %)"),
+    "by_mass": st.column_config.TextColumn("By mass (weight %)", help="the same blend by weight, for the "
+                                           "balance: ideal mixing with 25 °C densities; blank without a density"),
+    "density": st.column_config.NumberColumn("Density (g/cm³)", format="%.3f",
+                                             help="ideal mixing of the 25 °C densities"),
+    "cost_per_kg": st.column_config.NumberColumn("Cost per kg", format="%.2f"),
     "n_components": st.column_config.NumberColumn("Liquids", format="%d"),
     "component_red": st.column_config.ListColumn("RED of each liquid"),
     "component_ra": st.column_config.ListColumn("Ra of each liquid"),

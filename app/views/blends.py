@@ -4,7 +4,7 @@ import streamlit as st
 
 import selector
 from lwui import common, plots
-from selector.blends import mixing_warning
+from selector.blends import blend_labels, mixing_warning
 from selector.report import LIBRARY_SOURCES, build_report
 
 st.title("Blend design")
@@ -67,8 +67,8 @@ if len(res) == 0:
 
 res = res.copy()
 res.attrs = {}  # a Target in attrs cannot go to the browser
-res.insert(0, "blend", [" + ".join(f"{f:.0%} {c}" for c, f in zip(cs, fs))
-                        for cs, fs in zip(res["components"], res["fractions"])])
+res.insert(0, "blend", blend_labels(res, "volume", digits=0))
+res.insert(1, "by_mass", blend_labels(res, "mass", digits=0))
 has_r = "red" in res and res["red"].notna().any()
 from selector.library import estimated_components
 
@@ -84,7 +84,9 @@ if mix_warn:
 if has_est:
     st.caption("estimated = components whose HSP are estimated from structure (not measured): such a "
                "blend point is as uncertain as they are; test it before you rely on it.")
-show_cols = [c for c in res.columns if c not in ("components", "fractions")]
+st.caption("Shares in Blend are by volume; By mass is the same blend by weight, for the balance (ideal "
+           "mixing, 25 C densities; blank where a density is unknown).")
+show_cols = [c for c in res.columns if c not in ("components", "fractions", "mass_fractions")]
 common.table(res[show_cols], hide_index=True, width="stretch", column_config=common.COLUMN_CONFIG)
 
 names = sorted({c for cs in res["components"] for c in cs})
@@ -94,7 +96,7 @@ common.cautions(comp_rows, title="Safety notes for every liquid in these blends"
 
 inputs = common.filters_as_inputs(filters, temp)
 inputs.update({"liquids per blend": int(ncomp), "smallest share": float(minf)})
-rep_cols = [c for c in ["blend", "delta_d", "delta_p", "delta_h", "ra", "red", "hazard_class"] if c in res]
+rep_cols = [c for c in ["blend", "by_mass", "delta_d", "delta_p", "delta_h", "ra", "red", "hazard_class"] if c in res]
 kw = dict(target=t, inputs=inputs, table=res.head(10), columns=rep_cols, liquids=common.with_hazards(comp_rows),
           sources=LIBRARY_SOURCES + ["Blend HSP: volume-fraction-weighted mean (Hansen's handbook, ch. 1)."],
           notes=(["The target is the INVENTED demo resin, not measured data."] if common.is_demo() else [])

@@ -5,6 +5,7 @@ import streamlit as st
 
 import selector
 from lwui import common
+from selector.blends import blend_labels
 from selector.cautions import not_flammable
 from selector.report import LIBRARY_SOURCES, build_report
 
@@ -81,8 +82,8 @@ res.attrs = {}  # a Target in attrs cannot go to the browser
 if "component_ra" in res:   # a tuple per row: shown like the Ra column, two decimals
     res["component_ra"] = [" / ".join(f"{float(x):.2f}" for x in v) if isinstance(v, (tuple, list)) else v
                            for v in res["component_ra"]]
-res.insert(0, "candidate", [" + ".join(f"{f:.0%} {c}" for c, f in zip(cs, fs)) if len(cs) > 1 else cs[0]
-                            for cs, fs in zip(res["components"], res["fractions"])])
+res.insert(0, "candidate", blend_labels(res, "volume", digits=0))
+res.insert(1, "by_mass", blend_labels(res, "mass", digits=0))
 ref = res.loc[res["role"] == "replaced"] if "role" in res else res.iloc[:0]
 cand = res.loc[res["role"] != "replaced"] if "role" in res else res
 if len(cand) == 0:
@@ -113,7 +114,7 @@ if has_est:
     st.caption("estimated = liquids whose HSP are estimated from structure (not measured): test such a "
                "candidate before you rely on it.")
 # without a target there is no RED to show (the column would be empty)
-show = [c for c in res.columns if c not in ("components", "fractions") and not (c == "red" and metric != "red")]
+show = [c for c in res.columns if c not in ("components", "fractions", "mass_fractions") and not (c == "red" and metric != "red")]
 common.table(res[show], hide_index=True, width="stretch", column_config=dict(
     common.COLUMN_CONFIG, candidate=st.column_config.TextColumn("Candidate"),
     lowest_flash_point_c=st.column_config.NumberColumn("Lowest flash point (°C)", format="%.0f"),
