@@ -32,6 +32,7 @@ _EXPORTS = {
     "as_target": "targets",
     "SelectorError": "errors",
     "UnknownLiquidError": "errors",
+    "GenericNameError": "errors",
     "fit_sphere": "spheres",
     "miscibility": "mixing",
     "miscibility_matrix": "mixing",

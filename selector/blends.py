@@ -892,7 +892,8 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     out["hazard_notes"] = heated_notes(out, t_c, "lowest_flash_point_c", "bp_low_c")
     out["mixing_note"] = second_opinion_notes(out["components"], cand, t_c) if mis is not None else ""
     out.attrs.update(target=tgt, temperature=t_c, caution=CAUTION, min_fraction=m,
-                     miscibility="selector.mixing.miscible_pairs" if mis is not None else "not checked",
+                     miscibility=("single liquids: no pairs" if kmax < 2 else
+                                  "selector.mixing.miscible_pairs" if require_miscible else "not checked"),
                      candidates=len(cand), mixing_warning=mixing_warning(out))
     if prices is not None:
         out.attrs["price_notes"] = price_notes
@@ -908,7 +909,7 @@ def mixing_warning(table: pd.DataFrame) -> str:
     n = int(table["mixing_note"].fillna("").astype(str).ne("").sum())
     if not n:
         return ""
-    return (f"{n} of these rows hold a pair that the HSP model calls miscible and UNIFAC does not "
+    return (f"{n} of these rows {'holds' if n == 1 else 'hold'} a pair that the HSP model calls miscible and UNIFAC does not "
             "(mixing_note): test a small mix of those first")
 
 

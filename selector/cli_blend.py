@@ -71,9 +71,12 @@ def cmd_blend(a) -> int:
     from .cli_core import describe_target, target_notes
 
     tgt = res.attrs["target"]
+    mix = res.attrs["miscibility"]
+    mix = ("single liquids only" if mix.startswith("single") else
+           "pairs NOT checked for miscibility (--skip-mixing-check): test every mix" if mix == "not checked" else
+           f"every pair miscible by the HSP model and the reference tables ({mix})")
     header = (f"Blends for {describe_target(tgt, lib)} at {a.at:g} C; {res.attrs['candidates']} candidate "
-              f"liquids; smallest share {a.min_share:g}; every pair miscible by the HSP model and the "
-              f"reference tables ({res.attrs['miscibility']}). Hazard class = worst component (CHEM21)."
+              f"liquids; smallest share {a.min_share:g}; {mix}. Hazard class = worst component (CHEM21)."
               + target_notes(tgt))
     if res.attrs.get("mixing_warning"):
         header += "\n" + res.attrs["mixing_warning"]

@@ -87,11 +87,23 @@ def unknown_liquid_hint(text: str, err, target: bool = True) -> Exception:
 
     from .errors import SelectorError
 
+    from .errors import GenericNameError
+    from .library import _CAS_RE
+
     RDLogger.DisableLog("rdApp.*")
+    if isinstance(err, GenericNameError) or _CAS_RE.match(text.strip()):
+        return err   # a mixture's name, or a CAS number: not a SMILES to check
+    number = r"[-+]?(\d+\.?\d*|\.\d+)"
     nums = re.split(r"[;:/|\s]+", text.strip())
-    if target and len(nums) in (3, 4) and all(re.fullmatch(r"[-+]?(\d+\.?\d*|\.\d+)", n) for n in nums):
+    if target and len(nums) in (3, 4) and all(re.fullmatch(number, n) for n in nums):
         return SelectorError(f"unknown liquid {text!r}: a target given as numbers is dD,dP,dH[,R0] in "
                              f"MPa^0.5 separated by commas, e.g. {','.join(nums)}")
+    nums = re.split(r"[,;:/|\s]+", text.strip())
+    if not target and len(nums) in (3, 4) and all(re.fullmatch(number, n) for n in nums):
+        point = ",".join(nums)
+        return SelectorError(f"unknown liquid {text!r}: it reads as HSP numbers, but a liquid (name, CAS number "
+                             f"or SMILES) is asked for here; for liquids or blends near a point use  likewise "
+                             f"rank {point}  or  likewise blend {point}")
     if Chem.MolFromSmiles(text) is not None and any(ch in text for ch in "=#()[]1cC"):
         return SelectorError(f"unknown liquid {text!r}: it reads as a SMILES that is not in the library; "
                              f"estimate its HSP with  likewise guess '{text}' --save-mine my_liquids.csv  "

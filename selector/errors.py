@@ -23,12 +23,15 @@ class SelectorError(ValueError):
 class UnknownLiquidError(SelectorError, KeyError):
     """A name, synonym, CAS number or SMILES that matches no liquid; carries suggestions."""
 
-    def __init__(self, query: str, suggestions: list[str] | None = None):
+    def __init__(self, query: str, suggestions: list[str] | None = None, is_cas: bool = False):
         self.query = query
         self.suggestions = list(suggestions or [])
         msg = f"unknown liquid {query!r}"
         if self.suggestions:
             msg += "; did you mean " + ", ".join(repr(s) for s in self.suggestions) + "?"
+        elif is_cas:
+            msg += ("; no library liquid has this CAS number (the library holds liquids with published "
+                    "HSP): check the number, try the name, or add it to your own liquids")
         else:
             msg += ("; no library name is close to it: try its CAS number or SMILES, or add it to your "
                     "own liquids")
@@ -36,6 +39,22 @@ class UnknownLiquidError(SelectorError, KeyError):
 
     def __str__(self) -> str:  # KeyError would add quotes around the message
         return self.args[0]
+
+
+class GenericNameError(UnknownLiquidError):
+    """The name of an isomer mixture or of a grade of variable make-up ("xylene", "white spirit"):
+    no single library liquid; ``suggestions`` are the library liquids it is made of."""
+
+    def __init__(self, query: str, members: list[str], note: str):
+        self.query = query
+        self.suggestions = list(members)
+        msg = f"{query!r} is not one liquid: {note}"
+        if self.suggestions:
+            msg += "; pick the one you mean (" + ", ".join(repr(m) for m in self.suggestions) + ")"
+            msg += " or add your grade, with its data-sheet values, to your own liquids"
+        else:
+            msg += "; it is not in the library: add your grade, with its data-sheet values, to your own liquids"
+        SelectorError.__init__(self, msg)
 
 
 class InputTableError(SelectorError):

@@ -22,11 +22,12 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from .errors import InputTableError, SelectorError, UnknownLiquidError
+from .errors import GenericNameError, InputTableError, SelectorError, UnknownLiquidError
 
 PARAMETERS_DIR = Path(__file__).resolve().parent.parent / "parameters"
 LIBRARY_CSV = PARAMETERS_DIR / "liquids.csv"
 ALIASES_CSV = PARAMETERS_DIR / "aliases.csv"
+GENERIC_CSV = PARAMETERS_DIR / "generic_names.csv"
 
 #: Columns every function can rely on (the public contract of :func:`load_library`).
 CORE_COLUMNS = ["name", "cas", "smiles", "delta_d", "delta_p", "delta_h", "molar_volume",
@@ -129,6 +130,22 @@ def _aliases() -> dict[str, str]:
     return {_key(r.alias): r.cas for r in a.itertuples()}
 
 
+@functools.lru_cache(maxsize=1)
+def _generic_names() -> dict[str, tuple[tuple[str, ...], str]]:
+    """Look-up key -> (member CAS numbers, note) for names and CAS numbers of isomer mixtures and
+    variable grades (``parameters/generic_names.csv``): "xylene" is not o-xylene."""
+    if not GENERIC_CSV.exists():
+        return {}
+    g = pd.read_csv(GENERIC_CSV, keep_default_na=False, dtype=str)
+    out = {}
+    for r in g.itertuples():
+        members = tuple(c for c in r.members.split("|") if c)
+        for n in r.names.split("|"):
+            if n:
+                out[_key(n)] = (members, r.note)
+    return out
+
+
 #: Greek letters as they are spelled out in the library's names (alpha-pinene, gamma-butyrolactone).
 _GREEK = {"α": "alpha", "β": "beta", "γ": "gamma", "δ": "delta", "ε": "epsilon", "ω": "omega"}
 
@@ -171,6 +188,10 @@ class _Index:
             if c in cas_pos:
                 self.keys.setdefault(k, cas_pos[c])
         self.keys.update(self.primary)  # a liquid's own name always wins over another's synonym
+        # a mixture's name (xylene, white spirit) names no single library liquid, even where
+        # chemicals gives it as one isomer's synonym; the user's own liquid of that name wins
+        self.generic = {k: ([names[cas_pos[c]] for c in m if c in cas_pos], note)
+                        for k, (m, note) in _generic_names().items() if k not in self.primary}
         self.smiles: dict[str, int] | None = None
         self._lib_smiles = lib["smiles"].astype(str).tolist() if "smiles" in lib.columns else []
         self.names = names
@@ -210,7 +231,9 @@ def locate(query, library: pd.DataFrame | None = None) -> int:
 
     Matching ignores case, spaces, hyphens, underscores and commas. Raises
     :class:`~selector.errors.UnknownLiquidError` (a ``ValueError``) with up to three
-    "did you mean" suggestions when nothing matches.
+    "did you mean" suggestions when nothing matches, and its
+    :class:`~selector.errors.GenericNameError` for the name of a mixture ("xylene", "white spirit",
+    ``parameters/generic_names.csv``), naming the library liquids it is made of.
     """
     lib = load_library() if library is None else library
     if not isinstance(query, str) or not query.strip():
@@ -218,10 +241,12 @@ def locate(query, library: pd.DataFrame | None = None) -> int:
     q = query.strip()
     idx = _index_for(lib)
     k = _key(q)
+    if k in idx.generic:
+        raise GenericNameError(q, *idx.generic[k])
     if k in idx.keys:
         return idx.keys[k]
     if _CAS_RE.match(q):
-        raise UnknownLiquidError(q, [])
+        raise UnknownLiquidError(q, [], is_cas=True)
     if _looks_like_smiles(q):
         from .chem import canonical_smiles
 

@@ -71,15 +71,29 @@ def resolve_target(target, library: pd.DataFrame, temperature: float = 25.0) -> 
     from .library import locate
 
     t = as_target(target, library)
-    if t.liquid and abs(temperature - 25.0) > 1e-12:
-        try:
-            row = library.iloc[locate(t.liquid, library)]
-        except SelectorError:   # a liquid of another library (the user's file was changed)
-            return t
-        h = hsp_at_temperature(t.hsp, float(row.get("expansion_coeff", np.nan)), temperature)
-        if np.all(np.isfinite(h)):
-            t = replace(t, delta_d=float(h[0]), delta_p=float(h[1]), delta_h=float(h[2]))
-    return t
+    if abs(temperature - 25.0) <= 1e-12:
+        return t
+    if not t.liquid:
+        return _with_note(t, TYPED_AT_TEMPERATURE.format(t=temperature))
+    try:
+        row = library.iloc[locate(t.liquid, library)]
+    except SelectorError:   # a liquid of another library (the user's file was changed)
+        return t
+    h = hsp_at_temperature(t.hsp, float(row.get("expansion_coeff", np.nan)), temperature)
+    if np.all(np.isfinite(h)):
+        return replace(t, delta_d=float(h[0]), delta_p=float(h[1]), delta_h=float(h[2]))
+    return _with_note(t, f"{t.name} has no expansion coefficient: its 25 C HSP are used at {temperature:g} C")
+
+
+#: Note on a typed point or a fitted sphere used away from 25 C (``{t}``: the temperature in C).
+TYPED_AT_TEMPERATURE = ("the target's HSP are used as given, as its values at {t:g} C (not corrected "
+                        "from 25 C); the candidates' HSP are corrected to {t:g} C")
+
+
+def _with_note(t: Target, note: str) -> Target:
+    from dataclasses import replace
+
+    return t if note in t.notes else replace(t, notes=t.notes + (note,))
 
 
 def rank(target, *, temperature: float = 25.0, library: pd.DataFrame | None = None,

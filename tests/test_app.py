@@ -232,6 +232,9 @@ def test_temperature_and_polarity_weight_reach_rank(at):
     at.slider(key="rank_w").set_value(0.0).run()
     ref = selector.rank(PS, temperature=60.0, polarity_weight=0.0)
     assert top_names(at) == list(ref["name"].head(5))
+    # the typed target is used as given at 60 C; the page says so, as the library's note does
+    assert ref.attrs["target"].notes
+    assert any("used as given, as its values at 60 °C" in c.value for c in at.caption)
 
 
 def test_bad_filter_shows_error_not_traceback(at):

@@ -397,14 +397,14 @@ def test_cost_pareto_front():
 
 
 def test_prices_matched_by_synonym_are_named_and_double_prices_refused():
-    # "xylene" is a synonym of o-xylene in the library (names from chemicals); the prices are
-    # arbitrary numbers, not check values
-    prices = {"xylene": 2.0, "acetone": 1.5, "ethyl acetate": 1.8}
+    # "1,2-dimethylbenzene" is a synonym of o-xylene in the library (names from chemicals); the
+    # prices are arbitrary numbers, not check values
+    prices = {"1,2-dimethylbenzene": 2.0, "acetone": 1.5, "ethyl acetate": 1.8}
     res = find_blends(PS, cost_per_litre=prices, max_components=2, top=10, min_gain=0.0)
-    assert res.attrs["price_notes"] == ["price of 'xylene' used for o-xylene"]
+    assert res.attrs["price_notes"] == ["price of '1,2-dimethylbenzene' used for o-xylene"]
     assert "o-xylene" in {c for cs in res["components"] for c in cs}
     with pytest.raises(SelectorError, match="prices o-xylene twice"):
-        find_blends(PS, cost_per_litre={"xylene": 2.0, "o-xylene": 2.5, "acetone": 1.5})
+        find_blends(PS, cost_per_litre={"1,2-dimethylbenzene": 2.0, "o-xylene": 2.5, "acetone": 1.5})
     # the same name on two rows of a price table (a dict would silently keep the last price)
     with pytest.raises(SelectorError, match="prices toluene on two rows"):
         find_blends(PS, cost_per_litre=pd.DataFrame({"name": ["toluene", "toluene", "acetone"],
@@ -804,3 +804,18 @@ def test_blends_say_when_unifac_doubts_a_pair_the_model_lets_through():
              if {"water", "2-(2-ethoxyethoxy)ethanol"} <= set(c)]
     assert degee and not any("2-(2-ethoxyethoxy)ethanol" in n for n in degee)
     assert miscibility("water", "2-(2-ethoxyethoxy)ethanol", reference=False).models_disagree
+
+
+def test_blend_header_says_what_was_checked_for_miscibility(capsys):
+    # a header that said "every pair miscible ... (not checked)" contradicted itself; single liquids
+    # have no pair at all. Target: polystyrene (PS, Hansen's handbook, from memory)
+    pt = ",".join(f"{v:g}" for v in PS)
+    assert main(["blend", pt, "--parts", "1", "--top", "2"]) == 0
+    first = capsys.readouterr().out.splitlines()[0]
+    assert "single liquids only" in first and "every pair" not in first
+    assert main(["blend", pt, "--parts", "2", "--top", "2", "--skip-mixing-check"]) == 0
+    first = capsys.readouterr().out.splitlines()[0]
+    assert "NOT checked for miscibility" in first and "every pair" not in first
+    assert main(["blend", pt, "--parts", "2", "--top", "2"]) == 0
+    assert "every pair miscible" in capsys.readouterr().out.splitlines()[0]
+    assert find_blends(PS, max_components=2, top=2, require_miscible=False).attrs["miscibility"] == "not checked"

@@ -62,6 +62,10 @@ def test_output_file_written_atomically(tmp_path, capsys):
     (["rank", "18;5;5"], "dD,dP,dH[,R0] in MPa^0.5 separated by commas, e.g. 18,5,5"),
     (["rank", "18.5;.5;3"], "separated by commas, e.g. 18.5,.5,3"),
     (["rank", "18,1,3", "--mine", "/nonexistent/file.csv"], "file not found"),
+    # a point where a liquid is asked for: point to the commands that take a point
+    (["replace", "18,5,3"], "reads as HSP numbers, but a liquid (name, CAS number or SMILES) is asked for here"),
+    (["show", "1330-20-7"], "'1330-20-7' is not one liquid"),      # mixed xylenes (common practice)
+    (["show", "50-00-1"], "no library liquid has this CAS number"),  # formaldehyde, a gas (chemicals)
 ])
 def test_errors_are_one_line(args, msg, capsys):
     rc, out, err = run(args, capsys)
@@ -260,9 +264,11 @@ def test_show_names_the_kept_source_and_why(capsys):
 
 
 def test_number_hint_only_where_a_target_is_asked_for(capsys):
-    # show takes names, CAS numbers or SMILES, never numbers: no dD,dP,dH hint there
+    # show takes names, CAS numbers or SMILES, never numbers: no dD,dP,dH hint there, but the
+    # commands that take a point are named, with the numbers written the way they read them
     rc, _, err = run(["show", "18;5;5"], capsys)
     assert rc == 2 and "unknown liquid" in err and "separated by commas" not in err
+    assert "likewise rank 18,5,5" in err
 
 
 def test_show_gives_the_hazard_summary(capsys):

@@ -300,6 +300,51 @@ def test_lookup_bad_input(lib, bad):
         locate(bad, lib)
 
 
+@pytest.mark.parametrize("query,members", [
+    # common practice: commercial xylene (CAS 1330-20-7) is the three isomers with ethylbenzene;
+    # chemicals gives "xylene" as a synonym of o-xylene, whose flash point (30 C in the library) is
+    # above p-xylene's (25 C), so a silent match could pass a flash-point limit the grade fails
+    ("xylene", {"o-xylene", "p-xylene", "ethylbenzene"}),
+    ("1330-20-7", {"o-xylene", "p-xylene", "ethylbenzene"}),
+    ("Xylenes", {"o-xylene", "p-xylene", "ethylbenzene"}),
+    # common practice: "chlorotoluene" also names alpha-chlorotoluene, benzyl chloride (chemicals
+    # gives it that synonym), a lachrymator, not the ring-chlorinated solvent
+    ("chlorotoluene", {"2-chlorotoluene", "4-chlorotoluene", "benzyl chloride"}),
+    ("white spirit", set()),          # a petroleum distillate of variable make-up (common practice)
+])
+def test_the_name_of_a_mixture_names_no_single_liquid(lib, query, members):
+    with pytest.raises(selector.GenericNameError) as e:
+        locate(query, lib)
+    assert set(e.value.suggestions) == members
+    assert "is not one liquid" in str(e.value) and "own liquids" in str(e.value)
+    assert isinstance(e.value, UnknownLiquidError)
+    # the isomers themselves are still found by name
+    assert {find_liquid(m, lib)["name"] for m in members} == members
+
+
+def test_a_users_own_liquid_named_like_a_mixture_is_found(lib):
+    # the user's grade "xylene" (values from a supplier sheet would go here; these are o-xylene's
+    # library values, chemicals) is their own liquid and wins over the mixture rule
+    mine = selector.load_library(pd.DataFrame({"name": ["xylene"], "delta_d": [17.8], "delta_p": [1.0],
+                                               "delta_h": [3.1]}))
+    assert find_liquid("xylene", mine)["delta_d"] == 17.8
+
+
+def test_generic_names_table_has_valid_cas_numbers():
+    # CAS registry check-digit rule; every member and every mixture CAS in the table passes it
+    from selector.library import GENERIC_CSV, _CAS_RE, cas_check_digit_ok
+
+    g = pd.read_csv(GENERIC_CSV, keep_default_na=False, dtype=str)
+    cas = [c for col in ("names", "members") for v in g[col] for c in v.split("|") if _CAS_RE.match(c)]
+    assert len(cas) >= 20 and all(cas_check_digit_ok(c) for c in cas)
+
+
+def test_unknown_cas_number_is_told_as_a_cas_number(lib):
+    # formaldehyde (50-00-1, a gas; chemicals) has no library row
+    with pytest.raises(UnknownLiquidError, match="no library liquid has this CAS number"):
+        locate("50-00-1", lib)
+
+
 # ---------------------------------------------------------------- user liquids
 
 def _sha(path):

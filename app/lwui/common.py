@@ -531,6 +531,13 @@ def table(df: pd.DataFrame, **kw):
     return st.dataframe(d.drop(columns=empty), **kw)
 
 
+def target_notes(target) -> None:
+    """The library's notes on the target as used (a typed point away from 25 C is taken as given,
+    a target in (cal/cm3)^0.5 by its look), one caption each."""
+    for n in getattr(target, "notes", ()):
+        st.caption(f"Note on the target: {ui_units(n)}")
+
+
 def cautions(liquids: pd.DataFrame, *, title: str = "Safety notes for the liquids shown") -> pd.DataFrame:
     """General caution plus a per-liquid table (flammability class, exposure limit, hazard class)."""
     st.warning("**Before you use any of these:** " + GENERAL_CAUTION, icon=":material/warning:")

@@ -66,6 +66,7 @@ if len(res) == 0:
     st.stop()
 
 res = res.copy()
+common.target_notes(res.attrs.get("target"))
 res.attrs = {}  # a Target in attrs cannot go to the browser
 res.insert(0, "blend", blend_labels(res, "volume", digits=0))
 res.insert(1, "by_mass", blend_labels(res, "mass", digits=0))

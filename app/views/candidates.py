@@ -24,6 +24,7 @@ if res is None:
     st.stop()
 
 tgt = res.attrs["target"]
+common.target_notes(tgt)
 left_out = res.attrs.get("reagents_left_out", 0)
 res.attrs = {}
 res = common.with_hazards(res)
