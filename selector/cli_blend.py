@@ -172,9 +172,14 @@ def cmd_hazard(a) -> int:
         d.pop("caution")
         rows.append(d)
     df = pd.DataFrame(rows)
+    for c in ("safety_score", "health_score", "environment_score"):
+        df[c] = pd.array(df[c].astype(float).round(), dtype="Int64")   # whole numbers; <NA> = no data
+    df["peroxide_former"] = pd.array(df["peroxide_former"].tolist(), dtype="boolean")  # <NA>: no data
     header = ("CHEM21 scores 1 (best) to 10 (Prat et al., Green Chem. 18 (2016) 288; tables from memory). "
               "Statements from memory: confirm with the supplier's safety data sheet.")
     if a.format == "table":
+        for c in ("safety_score", "health_score", "environment_score", "peroxide_former"):
+            df[c] = df[c].astype(object).where(df[c].notna(), "-")   # "- = no data", as elsewhere
         # a sentence the same on every row goes once into the header, so that a row fits a terminal
         for col, label in (("statements_source", "Statements"), ("flash_point_basis", "Flash points")):
             if col in df and df[col].astype(str).nunique() == 1:

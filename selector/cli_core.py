@@ -16,7 +16,7 @@ SHOW_FIELDS = ["name", "cas", "smiles", "formula", "molar_mass", "delta_d", "del
                "vapour_pressure_kpa", "hvap_kj_mol", "expansion_coeff", "viscosity_mpa_s",
                "exposure_limit", "exposure_limit_unit", "exposure_limit_source", "short_term_limit",
                "short_term_limit_unit", "synonyms",
-               "melting_point_source", "boiling_point_source", "volume_method",
+               "melting_point_source", "boiling_point_source", "volume_method", "expansion_method",
                "vapour_pressure_method", "viscosity_method", "viscosity_estimated", "flash_point_source", "origin",
                "molar_volume_estimated", "in_domain", "filled_from_library", "reactive_reason", "data_note",
                "hazard_class", "hazard_class_default", "h_statements", "hazard_notes"]

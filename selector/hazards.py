@@ -382,7 +382,7 @@ def hazard_table(library: pd.DataFrame | None = None) -> pd.DataFrame:
     out["high_decomposition_energy"] = False
     out["regulatory_note"] = ""
     out["hazard_source"] = "no hazard data: unclassified (check the supplier's safety data sheet)"
-    out["flash_point_basis"] = ""
+    out["flash_point_basis"] = NO_DATA_FLASH_BASIS
     if not known.any():
         return out
     rows = st.iloc[idx[known]]
@@ -393,7 +393,7 @@ def hazard_table(library: pd.DataFrame | None = None) -> pd.DataFrame:
     user = (lib["origin"].astype(str).to_numpy()[known] == "user") if "origin" in lib else np.zeros(int(known.sum()), bool)
     blank_src = np.where(user, "your value", "library: chemicals")
     basis = np.where(np.isfinite(fp), np.where(lib_src == "", blank_src, "library: " + lib_src.astype(object)),
-                     "").astype(object)
+                     NO_FLASH_BASIS).astype(object)
     csv_fp = rows["csv_flash_point_c"].to_numpy(float)
     nf = rows["not_flammable"].to_numpy(bool)
     use_csv = ~np.isfinite(fp) & np.isfinite(csv_fp)
@@ -550,6 +550,13 @@ def class_rank(name: str) -> int:
     return HAZARD_CLASSES.index(k)
 
 
+#: ``flash_point_basis`` of a liquid without hazard data (its safety score is not worked out).
+NO_DATA_FLASH_BASIS = "not scored (no hazard data)"
+#: ``flash_point_basis`` of a classified liquid with no flash point, no H22x statement and no
+#: "not flammable" mark: scored as having no flammability hazard known.
+NO_FLASH_BASIS = "none known (no flash point, no H22x statement)"
+
+
 @dataclass(frozen=True)
 class HazardRecord:
     """CHEM21 scores (1-10), class, GHS statements and sources for one liquid."""
@@ -562,7 +569,7 @@ class HazardRecord:
     hazard_class: str
     hazard_class_default: str
     statements: tuple[str, ...]
-    peroxide_former: bool
+    peroxide_former: bool | None   # None: no hazard data for the liquid, not "no"
     regulatory_note: str
     sources: dict = field(default_factory=dict)
     caution: str = ("Confirm every hazard statement with the supplier's safety data sheet; local "
@@ -608,7 +615,8 @@ def hazard(liquid, library: pd.DataFrame | None = None) -> HazardRecord:
         safety_score=num(t.safety_score), health_score=num(t.health_score),
         environment_score=num(t.environment_score), hazard_class=str(t.hazard_class),
         hazard_class_default=str(t.hazard_class_default),
-        statements=tuple(str(t.h_statements).split()), peroxide_former=bool(t.peroxide_former),
+        statements=tuple(str(t.h_statements).split()), peroxide_former=(bool(t.peroxide_former) if t.hazard_class != UNCLASSIFIED
+                                                                         else None),
         regulatory_note=str(t.regulatory_note),
         sources={"statements": str(t.hazard_source), "flash_point": str(t.flash_point_basis),
                  "boiling_point": str(r.get("boiling_point_source", "library")),

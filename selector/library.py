@@ -36,7 +36,7 @@ HSP = ["delta_d", "delta_p", "delta_h"]
 
 _TEXT_COLUMNS = ["name", "cas", "smiles", "inchikey", "formula", "hsp_source",
                  "hsp_sources_available", "synonyms", "melting_point_source",
-                 "boiling_point_source", "volume_method", "vapour_pressure_method", "viscosity_method",
+                 "boiling_point_source", "volume_method", "expansion_method", "vapour_pressure_method", "viscosity_method",
                  "flash_point_source", "exposure_limit_source", "exposure_limit_unit", "origin",
                  "data_note", "short_term_limit_unit", "hsp_note"]
 
@@ -498,6 +498,7 @@ COMPANIONS = {
     "vapour_pressure_kpa": ("vapour_pressure_method", "antoine_a", "antoine_b", "antoine_c",
                            "antoine_tmin_c", "antoine_tmax_c"),
     "viscosity_mpa_s": ("viscosity_method", "viscosity_estimated"),
+    "expansion_coeff": ("expansion_method",),
     "flash_point_c": ("flash_point_source",),
     "exposure_limit": ("exposure_limit_unit", "exposure_limit_source"),
     "short_term_limit": ("short_term_limit_unit",),

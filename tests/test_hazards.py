@@ -393,3 +393,25 @@ def test_xylene_isomers_share_the_guides_class():
     h = hazard_columns(lib).set_index(lib["name"])
     assert h.loc["p-xylene", "hazard_class_default"] == "recommended"
     assert h.loc["p-xylene", "hazard_class"] == h.loc["o-xylene", "hazard_class"] == "problematic"
+
+
+def test_a_liquid_without_hazard_data_is_not_told_as_no_peroxide_former(capsys):
+    # trioctyl phosphate has no row in parameters/hazards.csv: "peroxide former: False" read as a
+    # statement that it is not one; no data is None, and its flash point is "not scored"
+    r = selector.hazard("trioctyl phosphate")
+    assert r.hazard_class == "unclassified" and r.peroxide_former is None
+    assert r.sources["flash_point"] == "not scored (no hazard data)"
+    # a classified liquid with data keeps its answer (ethanol forms no peroxides: common practice)
+    assert selector.hazard("ethanol").peroxide_former is False
+    # methyl iodide: H301 H331 H351 but no H22x and no flash point (not flammable, common practice)
+    assert selector.hazard("methyl iodide").sources["flash_point"].startswith("none known")
+    from selector.cli import main
+
+    assert main(["hazard", "trioctyl phosphate"]) == 0
+    out = capsys.readouterr().out
+    assert "Flash points: not scored (no hazard data)" in out and "<NA>" not in out and "None" not in out
+    assert main(["hazard", "trioctyl phosphate", "water", "--format", "csv"]) == 0
+    import io
+
+    df = pd.read_csv(io.StringIO(capsys.readouterr().out))
+    assert df["safety_score"].isna().iloc[0] and df["safety_score"].iloc[1] == 1   # water: CHEM21 1

@@ -137,6 +137,40 @@ def test_rebuild_sample_matches_committed(lib):
     assert (fresh["hsp_source"] == old["hsp_source"]).all()
 
 
+def test_expansion_coefficients_of_estimated_volumes_follow_the_data(lib):
+    # the rule (COSTALD's coefficient where the volume is estimated) checked on liquids that have a
+    # data-based density correlation in thermo (DIPPR, CoolProp, VDI): for 30 of them COSTALD's
+    # coefficient at 25 C is within 10 % of the data-based one for most, and the library's value is
+    # the data-based one itself
+    import warnings
+
+    from thermo import Chemical
+
+    # (a constant-density table, CRC_INORG_L_CONST, has no coefficient of its own)
+    with_data = lib.loc[lib["volume_method"].isin(build.DATA_VOLUME_METHODS - {"CRC_INORG_L_CONST"})
+                        & lib["expansion_coeff"].notna()].iloc[::8].head(30)
+    ratios = []
+    for r in with_data.itertuples():
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            vl = Chemical(r.cas, T=298.15).VolumeLiquid
+            if "HTCOSTALD" not in vl.all_methods:
+                continue
+            v, vp, vm = (vl.calculate(298.15 + d, "HTCOSTALD") for d in (0.0, 1.0, -1.0))
+        ratios.append((vp - vm) / (2 * v) / r.expansion_coeff)
+        assert r.expansion_method == r.volume_method
+    ratios = np.array(ratios)
+    assert len(ratios) >= 20
+    assert np.median(np.abs(ratios - 1)) < 0.06 and np.mean(np.abs(ratios - 1) < 0.10) >= 0.6
+    # estimated volumes carry COSTALD's (or Rackett's) coefficient; only a handful have none
+    est = lib.loc[~lib["volume_method"].isin(build.DATA_VOLUME_METHODS)]
+    assert set(est["expansion_method"]) <= {"HTCOSTALD", "RACKETT", ""}
+    assert lib["expansion_coeff"].isna().sum() <= 10
+    # 1-butoxy-2-propanol (a glycol ether without density data in thermo) is now corrected for
+    # temperature; thermal expansion of organic liquids is 0.7-1.5e-3 1/K at 25 C (common practice)
+    assert 7e-4 < find_liquid("1-butoxy-2-propanol", lib)["expansion_coeff"] < 1.5e-3
+
+
 def test_viscosity_carries_its_method(lib):
     # Every viscosity names the thermo ViscosityLiquid method it came from and says whether it is
     # an estimate; checked against thermo itself (its own choice where that rests on data).
