@@ -545,7 +545,9 @@ def _target_and_candidates(target, library, temperature, filters, costs=None, co
     cost, notes = None, []
     if costs is not None:
         cost_full, notes = _costs(costs, lib, cost_basis)
-        mask &= np.isfinite(cost_full)
+        priced = np.isfinite(cost_full)
+        notes = notes + _priced_left_out(lib, priced & ~mask, filters)
+        mask &= priced
         cost = cost_full[mask]
     cand = lib.loc[mask].reset_index(drop=True)
     if len(cand) == 0:
@@ -562,6 +564,28 @@ def _target_and_candidates(target, library, temperature, filters, costs=None, co
 #: (turned into per litre with the liquid's 25 C density; a blend's cost per kg is its cost per
 #: litre over its density).
 COST_BASES = ("cost_per_litre", "cost_per_kg")
+
+
+def _priced_left_out(lib: pd.DataFrame, out: np.ndarray, filters: dict) -> list[str]:
+    """Notes on priced liquids that are not candidates: reagents (with their reason) and those the
+    conditions leave out (filters, not liquid at the use temperature, the target itself), so that
+    a price list never loses a liquid without a word."""
+    if not out.any():
+        return []
+    from .cautions import reactive_reasons
+
+    why = reactive_reasons(lib)
+    names = lib["name"].astype(str).to_numpy()
+    reag = out & (why != "")
+    if filters.get("include_reactive"):
+        reag[:] = False
+    notes = [f"{names[i]} left out as a reagent, {why[i]} (include_reactive, --include-reactive or the app's Include reagents brings it back)" for i in np.flatnonzero(reag)]
+    rest = np.flatnonzero(out & ~reag)
+    if len(rest):
+        shown = ", ".join(names[rest[:8]]) + (f" and {len(rest) - 8} more" if len(rest) > 8 else "")
+        notes.append(f"priced but left out by the conditions (filters, liquid range at the use temperature, "
+                     f"or the target itself): {shown}")
+    return notes
 
 
 def _cost_pairs(costs, basis: str = "cost_per_litre") -> list[tuple]:
@@ -591,10 +615,14 @@ def _costs(costs, lib, basis: str = "cost_per_litre"):
     from .library import _key
 
     pairs = _cost_pairs(costs, basis)
-    names = [str(n) for n, _ in pairs]
+    names = ["" if n is None or (isinstance(n, float) and math.isnan(n)) else str(n).strip() for n, _ in pairs]
     lib_names = lib["name"].astype(str).to_numpy()
     problems, pos = [], []
-    for nm in names:
+    for nm, (_, v) in zip(names, pairs):
+        if not nm:
+            problems.append(f"a price ({v!r}) has no liquid name")
+            pos.append(-1)
+            continue
         try:
             pos.append(int(locate_many([nm], lib, "cost list")[0]))
         except SelectorError as e:
@@ -609,7 +637,12 @@ def _costs(costs, lib, basis: str = "cost_per_litre"):
             problems.append(f"the cost list prices {lib_names[p]} {how}; keep one price per liquid")
         seen[p] = nm
     out = np.full(len(lib), np.nan)
-    for p, (nm, v) in zip(pos, pairs):
+    for p, nm, (_, v) in zip(pos, names, pairs):
+        if not nm:
+            continue
+        if v is None or (isinstance(v, str) and not v.strip()) or (isinstance(v, float) and math.isnan(v)):
+            problems.append(f"no price for {nm!r} (empty cell): give one or leave the liquid out")
+            continue
         try:
             v = float(v)
         except (TypeError, ValueError):
@@ -621,14 +654,17 @@ def _costs(costs, lib, basis: str = "cost_per_litre"):
             out[p] = v
     if problems:
         if len(problems) == 1:
-            raise SelectorError(problems[0])
+            err = SelectorError(problems[0])
+            err.price_problem = True   # the command line puts the file's name in front
+            raise err
         raise InputTableError("cost list", problems)
     notes = [f"price of {nm!r} used for {lib_names[p]}" for nm, p in zip(names, pos)
              if _key(nm) != _key(lib_names[p])]
     if basis == "cost_per_kg":
         rho = pd.to_numeric(lib.get("density", pd.Series(np.nan, index=lib.index)), errors="coerce").to_numpy(float)
         no_rho = np.isfinite(out) & ~(rho > 0)
-        notes += [f"{lib_names[p]} left out: priced per kg but its density is unknown" for p in np.flatnonzero(no_rho)]
+        notes += [f"{lib_names[p]} left out: priced per kg but its density is unknown (give your own "
+                  "liquids a density column, g/cm3 at 25 C)" for p in np.flatnonzero(no_rho)]
         out = np.where(rho > 0, out * rho, np.nan)   # kg/L = g/cm3
     return out, notes
 
@@ -726,9 +762,28 @@ def _table(tgt, cand, h, idx, f, rr, t_c, cost=None):
     return out
 
 
+def rounded_shares(fractions, digits: int = 1) -> list[float]:
+    """Shares (fractions summing to 1) rounded to ``digits`` decimals of a per cent so that they
+    still sum to 100 % (largest remainder: 1/3 each -> 33, 33, 34 % at ``digits=0``).
+
+    >>> rounded_shares([1/3, 1/3, 1/3], 0)
+    [0.33, 0.33, 0.34]
+    """
+    unit = 10.0 ** (digits + 2)
+    x = np.asarray(fractions, float) * unit
+    base = np.floor(x + 1e-9)
+    short = int(round(unit - base.sum()))
+    if 0 < short <= len(x):
+        # the largest remainders get the missing units; ties go to the later share
+        order = np.lexsort((-np.arange(len(x)), -(x - base)))
+        base[order[:short]] += 1
+    return [float(v / unit) for v in base]
+
+
 def blend_labels(table: pd.DataFrame, by: str = "volume", digits: int = 1) -> list[str]:
     """One readable label per blend row: "60.0% A + 40.0% B" by volume (``fractions``) or by
-    mass (``mass_fractions``, "" where a density is unknown); a single liquid is its name."""
+    mass (``mass_fractions``, "" where a density is unknown); a single liquid is its name. The
+    shares are rounded so that they sum to 100 % (:func:`rounded_shares`)."""
     col = {"volume": "fractions", "mass": "mass_fractions"}.get(by)
     if col is None:
         raise SelectorError(f"by must be 'volume' or 'mass', got {by!r}")
@@ -739,8 +794,24 @@ def blend_labels(table: pd.DataFrame, by: str = "volume", digits: int = 1) -> li
         elif any(not math.isfinite(x) for x in fs):
             out.append("")
         else:
-            out.append(" + ".join(f"{x:.{digits}%} {c}" for c, x in zip(cs, fs)))
+            out.append(" + ".join(f"{x:.{digits}%} {c}" for c, x in zip(cs, rounded_shares(fs, digits))))
     return out
+
+
+def estimated_density_note(table: pd.DataFrame, library: pd.DataFrame) -> str:
+    """One line for a blend or substitute table (a ``components`` column of name lists) naming
+    its liquids whose density is estimated (``molar_volume_estimated``: no density data; the
+    estimates are off by a median 2-4 %, up to about 10 %, parameters/README.md), so that by-mass
+    shares and prices per kg are not read as exact; "" when every density is from data."""
+    if "components" not in table.columns or "molar_volume_estimated" not in library.columns:
+        return ""
+    est = library.loc[library["molar_volume_estimated"].astype(bool) & library["density"].notna(), "name"]
+    names = sorted({c for cs in table["components"] for c in cs} & set(est.astype(str)))
+    if not names:
+        return ""
+    shown = ", ".join(names[:6]) + (f" and {len(names) - 6} more" if len(names) > 6 else "")
+    return (f"Densities of {shown} are estimated, not measured (typically 2-4 % off, up to about 10 %): "
+            "by_mass shares and prices per kg carry that error; weigh with the supplier's density.")
 
 
 def _pareto(ra, cost):
@@ -884,13 +955,14 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
         par = _pareto(full["ra"].to_numpy(), full[basis].to_numpy())
         out["pareto"] = par[pick]
         out.attrs["pareto"] = full.loc[par].sort_values("ra", kind="stable").reset_index(drop=True)
+    from .cautions import heated_notes
     from .hazards import component_notes
 
-    out["hazard_notes"] = component_notes(out["components"], cand)
-    from .cautions import heated_notes
-
-    out["hazard_notes"] = heated_notes(out, t_c, "lowest_flash_point_c", "bp_low_c")
-    out["mixing_note"] = second_opinion_notes(out["components"], cand, t_c) if mis is not None else ""
+    tables = [out] + ([out.attrs["pareto"]] if cost is not None else [])
+    for tab in tables:   # the front is a table of its own (blend --front): it gets the same notes
+        tab["hazard_notes"] = component_notes(tab["components"], cand)
+        tab["hazard_notes"] = heated_notes(tab, t_c, "lowest_flash_point_c", "bp_low_c")
+        tab["mixing_note"] = second_opinion_notes(tab["components"], cand, t_c) if mis is not None else ""
     out.attrs.update(target=tgt, temperature=t_c, caution=CAUTION, min_fraction=m,
                      miscibility=("single liquids: no pairs" if kmax < 2 else
                                   "selector.mixing.miscible_pairs" if require_miscible else "not checked"),

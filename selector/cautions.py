@@ -381,10 +381,11 @@ def heated_notes(rows: pd.DataFrame, temperature: float, flash_column: str = "fl
     above 25 C (a blend's columns: ``lowest_flash_point_c`` and ``bp_low_c``, its first component
     to boil):
 
-    * "HEATED ABOVE ITS FLASH POINT (x C) at T C" where T reaches the flash point: the vapour over
-      the liquid can burn (common practice: the flash point is the lowest temperature at which it
-      does). This holds for liquids that flash below 25 C too: their hazard statements, where the
-      library has them, say flammable, but not that the use temperature is past the point;
+    * "HEATED ABOVE ITS FLASH POINT (x C) at T C" where heating takes T past a flash point above
+      25 C: the vapour over the liquid can burn (common practice: the flash point is the lowest
+      temperature at which it does). Liquids that flash at or below 25 C get "ABOVE ITS FLASH
+      POINT (x C) at T C, as at room temperature": their hazard statements, where the library has
+      them, say flammable, but not that the use temperature is past the point;
     * "NEAR ITS BOILING POINT (x C) at T C" where T is within :data:`NEAR_BOILING_C` of the
       boiling point (or past it, for a blend's lowest component): it evaporates fast, and a closed
       vessel builds up pressure (common practice).
@@ -407,8 +408,11 @@ def heated_notes(rows: pd.DataFrame, temperature: float, flash_column: str = "fl
     for k in np.flatnonzero(hot | boil):   # the few rows that carry a note
         parts = []
         if hot[k]:
-            parts.append(f"HEATED ABOVE ITS FLASH POINT ({float(round_half_away(fp[k])):.0f} C) at {t:g} C: "
-                         "flammable vapour over the liquid")
+            # heating is what takes it past its flash point, or it is past it at room temperature too
+            lead_in = "HEATED ABOVE" if fp[k] > 25.0 else "ABOVE"
+            parts.append(f"{lead_in} ITS FLASH POINT ({float(round_half_away(fp[k])):.0f} C) at {t:g} C"
+                         + ("" if fp[k] > 25.0 else ", as at room temperature")
+                         + ": flammable vapour over the liquid")
         if boil[k]:
             parts.append(f"NEAR ITS BOILING POINT ({float(round_half_away(bp[k])):.0f} C) at {t:g} C: fast "
                          "evaporation, pressure in a closed vessel")

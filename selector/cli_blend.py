@@ -50,8 +50,11 @@ def _prices(path):
     if "name" not in cols or len(bases) != 1:
         raise SelectorError(f"the price list {path} needs columns name and one of cost_per_litre, cost_per_kg "
                             f"(found {', '.join(map(str, t.columns)) or 'no columns'})")
+    if len(t) == 0:
+        raise SelectorError(f"the price list {path} has a header but no rows: add one row per liquid "
+                            f"(name,{bases[0]})")
     # a table, not a dict: the same name on two rows must reach the duplicate check
-    return {bases[0]: pd.DataFrame({"name": t[cols["name"]].astype(str), bases[0]: t[cols[bases[0]]]})}
+    return {bases[0]: pd.DataFrame({"name": t[cols["name"]], bases[0]: t[cols[bases[0]]]})}
 
 
 def _target(a, lib):
@@ -63,11 +66,22 @@ def _target(a, lib):
 def cmd_blend(a) -> int:
     from .blends import find_blends
 
+    from .errors import InputTableError, SelectorError
+
     lib = library_from_args(a)
-    res = find_blends(_target(a, lib), max_components=a.parts, min_fraction=a.min_share, temperature=a.at,
-                      top=a.top, library=lib, max_uses=a.max_uses,
-                      **(_prices(a.prices) if a.prices else {}),
-                      require_miscible=not a.skip_mixing_check, **_filters(a))
+    prices = _prices(a.prices) if a.prices else {}
+    try:
+        res = find_blends(_target(a, lib), max_components=a.parts, min_fraction=a.min_share, temperature=a.at,
+                          top=a.top, library=lib, max_uses=a.max_uses, **prices,
+                          require_miscible=not a.skip_mixing_check, **_filters(a))
+    except InputTableError as e:   # the price list's problems, under the file's name
+        if a.prices and str(e).startswith("cost list"):
+            raise InputTableError(f"the price list {a.prices}", e.problems) from None
+        raise
+    except SelectorError as e:
+        if a.prices and getattr(e, "price_problem", False):
+            raise SelectorError(f"the price list {a.prices}: {e}") from None
+        raise
     from .cli_core import describe_target, target_notes
 
     tgt = res.attrs["target"]
@@ -84,11 +98,15 @@ def cmd_blend(a) -> int:
         header += "\nPrices: " + "; ".join(res.attrs["price_notes"])
     header += BY_MASS_NOTE
     if "pareto" in res.attrs:
-        header += _front_line(res)
+        header += _front_line(res, a.front)
         if a.front:
             res = res.attrs["pareto"].assign(pareto=True)
     elif a.front:
         raise ValueError("--front lists the cost-versus-Ra front: give --prices too")
+    from .blends import estimated_density_note
+
+    dnote = estimated_density_note(res, lib)
+    header += ("\n" + dnote) if dnote else ""
     res, est_cols, note = _with_estimated(res, lib, a)
     cols = [c for c in BLEND_COLUMNS if c != "red" or res["red"].notna().any()] + est_cols
     emit(_label(res), a, cols + (["components", "fractions", "mass_fractions"] if a.format != "table" else []),
@@ -96,9 +114,10 @@ def cmd_blend(a) -> int:
     return 0
 
 
-def _front_line(res) -> str:
+def _front_line(res, listing: bool = False) -> str:
     """Header line on the cost-versus-Ra front: its size, its cheapest and best rows, and how many
-    of its rows the table leaves out (``--max-uses``, ``--top``)."""
+    of its rows the table leaves out (``--max-uses``, ``--top``); ``listing``: the table is the
+    front itself (``--front``)."""
     from .blends import blend_labels
 
     front, basis = res.attrs["pareto"], res.attrs["cost_basis"]
@@ -106,10 +125,12 @@ def _front_line(res) -> str:
     lab = blend_labels(front, "volume")
     cheap = int(front[basis].to_numpy(float).argmin())
     shown = int(res["pareto"].sum())
-    line = (f"\nCost-versus-Ra front (pareto): {len(front)} blends, from {lab[0]} (Ra {front['ra'].iloc[0]:.2f}, "
-            f"{front[basis].iloc[0]:.3g} {unit}) to the cheapest, {lab[cheap]} (Ra {front['ra'].iloc[cheap]:.2f}, "
-            f"{front[basis].iloc[cheap]:.3g} {unit})")
-    if shown < len(front):
+    line = (f"\nCost-versus-Ra front (pareto): {len(front)} blends, from {lab[0]} (Ra {front['ra'].iloc[0]:.3f}, "
+            f"{front[basis].iloc[0]:.3f} {unit}) to the cheapest, {lab[cheap]} (Ra {front['ra'].iloc[cheap]:.3f}, "
+            f"{front[basis].iloc[cheap]:.3f} {unit})")
+    if listing:
+        line += "; the table lists all of them, best Ra first (--top does not apply)"
+    elif shown < len(front):
         line += f"; {len(front) - shown} of them are not in this table (--front lists them all)"
     return line
 
@@ -148,6 +169,10 @@ def cmd_replace(a) -> int:
               "boiling_point_c is the middle of its boiling range (bp_low_c to bp_high_c) and its evaporation "
               "rate the volume-weighted mean: the parts still leave at their own rates (likewise dry)."
               + "".join(f"\nWARNING: {w}" for w in res.attrs.get("warnings", [])))
+    from .blends import estimated_density_note
+
+    dnote = estimated_density_note(res, lib)
+    header += ("\n" + dnote) if dnote else ""
     res, est_cols, est_note = _with_estimated(res, lib, a)
     cols = [c for c in REPLACE_COLUMNS if c != "red" or res["red"].notna().any()] + est_cols
     emit(_label(res), a, cols + (["components", "fractions"] if a.format != "table" else []),
@@ -225,7 +250,8 @@ def register(sub) -> None:
     p = sub.add_parser("blend", help="design blends of one to three liquids for a target",
                        description="Best single liquids and blends of two or three whose volume-weighted "
                        "HSP land on TARGET ('dD,dP,dH[,R0]' in MPa^0.5 or a liquid name). Fractions are the "
-                       "exact optimum; every pair in a blend is miscible at the use temperature.",
+                       "exact optimum; every pair in a blend is miscible at the use temperature (unless "
+                       "--skip-mixing-check).",
                        formatter_class=argparse.RawDescriptionHelpFormatter,
                        epilog="examples:\n  likewise blend 17.9,6.1,6.4,8.6 --bp 100:200 --flash 23:\n"
                        "  likewise blend 18.5,9,5,4 --parts 2 --max-class problematic --format csv -o b.csv")
@@ -235,7 +261,8 @@ def register(sub) -> None:
     p.add_argument("--prices", metavar="CSV", help="CSV with name and cost_per_litre or cost_per_kg: only "
                    "priced liquids are used and the cost-versus-Ra front is marked")
     p.add_argument("--front", action="store_true",
-                   help="with --prices: list the whole cost-versus-Ra front instead of the ranked blends")
+                   help="with --prices: list the whole cost-versus-Ra front instead of the ranked blends "
+                   "(all of it: --top does not apply)")
     p.add_argument("--max-uses", type=whole_number, default=3, metavar="N",
                    help="a liquid appears in at most N rows (default 3)")
     p.add_argument("--skip-mixing-check", action="store_true",

@@ -68,10 +68,10 @@ def cmd_mix(a) -> int:
     print(f"  chi {r.chi:.3f} (per {r.v_ref:.1f} cm3/mol), critical chi {r.chi_critical:.3f}; "
           f"model: {r.model}")
     lcst_pair = r.lcst_prone
-    print(f"  UCST: {_fmt(r.ucst_c, 1) + ' C' if r.ucst_c is not None else 'none in this model'}"
-          + (" (model; does not apply to this pair, see the notes)" if lcst_pair and r.ucst_c is not None else ""))
+    print(f"  model UCST: {_fmt(r.ucst_c, 1) + ' C' if r.ucst_c is not None else 'none in this model'}"
+          + (" (does not apply to this pair, see the notes)" if lcst_pair and r.ucst_c is not None else ""))
     if r.lcst_c is not None:
-        print(f"  LCST: {_fmt(r.lcst_c, 1)} C (a gap opens on heating)")
+        print(f"  model LCST: {_fmt(r.lcst_c, 1)} C (a gap opens on heating)")
     if r.binodal:
         ab, ba = r.binodal["a_in_b"], r.binodal["b_in_a"]
         contradicted = r.reference_contradicts

@@ -45,12 +45,16 @@ class GenericNameError(UnknownLiquidError):
     """The name of an isomer mixture or of a grade of variable make-up ("xylene", "white spirit"):
     no single library liquid; ``suggestions`` are the library liquids it is made of."""
 
-    def __init__(self, query: str, members: list[str], note: str):
+    def __init__(self, query: str, members: list[str], note: str, missing=()):
         self.query = query
         self.suggestions = list(members)
+        self.missing = list(missing)
         msg = f"{query!r} is not one liquid: {note}"
         if self.suggestions:
             msg += "; pick the one you mean (" + ", ".join(repr(m) for m in self.suggestions) + ")"
+            if self.missing:
+                gone = (", ".join(self.missing[:-1]) + " and " + self.missing[-1]) if len(self.missing) > 1 else self.missing[0]
+                msg += f" - {gone} {'is' if len(self.missing) == 1 else 'are'} not in the library -"
             msg += " or add your grade, with its data-sheet values, to your own liquids"
         else:
             msg += "; it is not in the library: add your grade, with its data-sheet values, to your own liquids"

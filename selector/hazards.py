@@ -140,6 +140,7 @@ STATEMENT_FLAGS = (
     ("aspiration hazard", ("H304",)),
     ("harmful", ("H302", "H312", "H332")),
     ("extremely or highly flammable", ("H224", "H225")),
+    ("flammable", ("H226",)),
     ("peroxide former", ("EUH019",)),
     ("toxic to aquatic life", ("H400", "H410", "H411")),
 )
@@ -149,7 +150,7 @@ def statement_flags(statements) -> str:
     """Comma-separated flags (:data:`STATEMENT_FLAGS`) for a set of GHS statements ("" if none).
 
     >>> statement_flags(("H226", "H302", "H311", "H314", "H331"))   # morpholine-like
-    'toxic, corrosive'
+    'toxic, corrosive, flammable'
     >>> statement_flags(("H225", "H319", "H336"))
     'extremely or highly flammable'
     """
@@ -161,7 +162,7 @@ def statement_flags(statements) -> str:
 #: a flag left out when a stronger one of the same kind is there
 _SUBSUMED_BY = {"toxic": ("fatal on exposure",), "harmful": ("fatal on exposure", "toxic"),
                 "suspected carcinogen, mutagen or reprotoxic": ("carcinogen, mutagen or reprotoxic",),
-                "may damage organs": ("organ damage",)}
+                "may damage organs": ("organ damage",), "flammable": ("extremely or highly flammable",)}
 
 
 #: The note of a liquid whose decomposition energy is high (``hazards.csv``; nitro compounds).

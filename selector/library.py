@@ -48,7 +48,7 @@ ESTIMATE_FLAGS = ("molar_volume_estimated", "viscosity_estimated")
 #: shown but not used to judge how well two liquids' viscosities match.
 UNRELIABLE_VISCOSITY_METHODS = frozenset({"LETSOU_STIEL", "PRZEDZIECKI_SRIDHAR"})
 
-#: Plausible ranges for user-entered values (MPa^0.5, cm^3/mol, C); outside them is an error.
+#: Plausible ranges for user-entered values (MPa^0.5, cm^3/mol, C, g/cm^3); outside them is an error.
 RANGES = {
     "delta_d": (7.0, 30.0),
     "delta_p": (0.0, 40.0),
@@ -58,7 +58,10 @@ RANGES = {
     "boiling_point_c": (-150.0, 600.0),
     "flash_point_c": (-100.0, 400.0),
     "melting_point_c": (-200.0, 400.0),
+    "density": (0.3, 3.5),
 }
+#: Units of :data:`RANGES` in messages.
+RANGE_UNITS = {"molar_volume": "cm3/mol", "density": "g/cm3 at 25 C"}
 
 _CAS_RE = re.compile(r"^\d{2,7}-\d{2}-\d$")
 
@@ -131,15 +134,15 @@ def _aliases() -> dict[str, str]:
 
 
 @functools.lru_cache(maxsize=1)
-def _generic_names() -> dict[str, tuple[tuple[str, ...], str]]:
-    """Look-up key -> (member CAS numbers, note) for names and CAS numbers of isomer mixtures and
-    variable grades (``parameters/generic_names.csv``): "xylene" is not o-xylene."""
+def _generic_names() -> dict[str, tuple[tuple[tuple[str, str], ...], str]]:
+    """Look-up key -> (members as (CAS, name) pairs, note) for names and CAS numbers of isomer
+    mixtures and variable grades (``parameters/generic_names.csv``): "xylene" is not o-xylene."""
     if not GENERIC_CSV.exists():
         return {}
     g = pd.read_csv(GENERIC_CSV, keep_default_na=False, dtype=str)
     out = {}
     for r in g.itertuples():
-        members = tuple(c for c in r.members.split("|") if c)
+        members = tuple(zip([c for c in r.members.split("|") if c], [n for n in r.member_names.split("|") if n]))
         for n in r.names.split("|"):
             if n:
                 out[_key(n)] = (members, r.note)
@@ -189,9 +192,16 @@ class _Index:
                 self.keys.setdefault(k, cas_pos[c])
         self.keys.update(self.primary)  # a liquid's own name always wins over another's synonym
         # a mixture's name (xylene, white spirit) names no single library liquid, even where
-        # chemicals gives it as one isomer's synonym; the user's own liquid of that name wins
-        self.generic = {k: ([names[cas_pos[c]] for c in m if c in cas_pos], note)
-                        for k, (m, note) in _generic_names().items() if k not in self.primary}
+        # chemicals gives it as one isomer's synonym; the user's own liquid of that name or CAS
+        # number wins
+        own = set()
+        if "origin" in lib.columns:
+            mine = lib["origin"].astype(str).ne("library").to_numpy()
+            own = {_key(v) for v in lib.loc[mine, "name"].astype(str)}
+            own |= {_key(v) for v in lib.loc[mine, "cas"].astype(str) if v}
+        self.generic = {k: ([names[cas_pos[c]] for c, _ in m if c in cas_pos], note,
+                            [n for c, n in m if c not in cas_pos])
+                        for k, (m, note) in _generic_names().items() if k not in self.primary and k not in own}
         self.smiles: dict[str, int] | None = None
         self._lib_smiles = lib["smiles"].astype(str).tolist() if "smiles" in lib.columns else []
         self.names = names
@@ -319,6 +329,7 @@ USER_COLUMN_ALIASES = {
     "radius": ("r0", "ro", "r_0"),
     "cas": ("cas number", "cas no", "cas_no", "casrn", "cas rn", "cas_rn"),
     "smiles": ("smile",),
+    "density": ("rho", "density g/cm3", "density_g_cm3"),
 }
 
 
@@ -448,10 +459,12 @@ def _check_user_table(table):
             if not np.isfinite(v):
                 problems.append(([i], f"row {i + 2} ({df['name'].iloc[i]}): {col} = {r!r} is not a number"))
             elif not (lo <= v <= hi):
-                unit = "MPa^0.5" if col.startswith("delta") or col == "radius" else (
-                    "cm3/mol" if col == "molar_volume" else "C")
+                unit = "MPa^0.5" if col.startswith("delta") or col == "radius" else RANGE_UNITS.get(col, "C")
+                hint = ""
+                if col == "density" and 300 <= v <= 3500:
+                    hint = f" (kg/m3? give g/cm3: {v / 1000:g})"
                 problems.append(([i], f"row {i + 2} ({df['name'].iloc[i]}): {col} = {v:g} is outside "
-                                      f"{lo:g}..{hi:g} {unit}"))
+                                      f"{lo:g}..{hi:g} {unit}{hint}"))
         df[col] = vals
     if "kind" in df.columns:
         df["kind"] = _text(df["kind"]).str.lower().replace("", "liquid")
@@ -594,6 +607,7 @@ def merge_user_liquids(library: pd.DataFrame, table) -> pd.DataFrame:
                 user[c] = pd.Series(new, index=user.index).infer_objects()
                 for i in rows[take]:
                     filled[i].append(c)
+    _density_with_volume(user, filled)
     order = {c: k for k, c in enumerate(library.columns)}
     user["filled_from_library"] = [", ".join(sorted(f, key=order.get)) for f in filled]
     user["origin"] = user_origin(user)
@@ -613,6 +627,39 @@ def merge_user_liquids(library: pd.DataFrame, table) -> pd.DataFrame:
     extra = [c for c in user.columns if c not in library.columns]
     out = pd.concat([library.loc[~drop], user[list(library.columns) + extra]], ignore_index=True)
     return out
+
+
+#: ``volume_method`` of a molar volume worked out from the user's own density and the molar mass.
+FROM_DENSITY = "molar mass / your density"
+
+
+def _density_with_volume(user: pd.DataFrame, filled: list[list[str]]) -> None:
+    """Keep molar volume and density of each user row one liquid's (density = molar mass / molar
+    volume), in place: a row's own molar volume without a density gets the density it implies,
+    and a row's own density beside the library's molar volume replaces that volume. Needs the
+    molar mass (the row's own or the library's); rows without one are left as they are."""
+    if "molar_mass" not in user.columns:
+        return
+    m = pd.to_numeric(user["molar_mass"], errors="coerce").to_numpy(float)
+    v = pd.to_numeric(user.get("molar_volume", pd.Series(np.nan, index=user.index)), errors="coerce").to_numpy(float)
+    rho = pd.to_numeric(user.get("density", pd.Series(np.nan, index=user.index)), errors="coerce").to_numpy(float)
+    took_v = np.array(["molar_volume" in f for f in filled], dtype=bool)
+    took_rho = np.array(["density" in f for f in filled], dtype=bool)
+    ok_m = np.isfinite(m) & (m > 0)
+    need_rho = ok_m & np.isfinite(v) & ~took_v & ~np.isfinite(rho)
+    if need_rho.any():
+        rho = np.where(need_rho, m / np.where(need_rho, v, 1.0), rho)
+        user["density"] = rho
+    new_v = ok_m & np.isfinite(rho) & ~took_rho & took_v
+    if new_v.any():
+        user["molar_volume"] = np.where(new_v, m / np.where(new_v, rho, 1.0), v)
+        for col, val in (("volume_method", FROM_DENSITY), ("molar_volume_estimated", False)):
+            if col in user.columns:
+                cur = user[col].to_numpy(object).copy()
+                cur[new_v] = val
+                user[col] = pd.Series(cur, index=user.index).infer_objects()
+        for i in np.flatnonzero(new_v):
+            filled[i][:] = [c for c in filled[i] if c not in ("molar_volume", "volume_method", "molar_volume_estimated")]
 
 
 # ``origin`` of a row: "library" (bundled), "user" (the user's own values), "estimated" (HSP

@@ -475,9 +475,17 @@ def test_cli_prices_per_kg_and_the_whole_front(tmp_path, capsys):
                  "-o", str(f)]) == 0
     recs = json.loads(f.read_text())
     assert recs and all(r["pareto"] for r in recs)
+    # the front carries the safety notes too: toluene is a suspected reprotoxicant (H361d) and
+    # highly flammable (H225; GHS classification, common practice)
+    tol = [r for r in recs if "toluene" in r["components"]]
+    assert tol and all("toluene: suspected carcinogen, mutagen or reprotoxic" in r["hazard_notes"] for r in tol)
+    assert all("mixing_note" in r for r in recs)
     ra = [r["ra"] for r in recs]
     cost = [r["cost_per_kg"] for r in recs]
     assert ra == sorted(ra) and cost == sorted(cost, reverse=True)   # a front: better Ra costs more
+    assert main(["blend", "21.3,5.8,4.3,12.7", "--parts", "2", "--prices", str(p), "--front", "--top", "1"]) == 0
+    out = capsys.readouterr().out
+    assert "the table lists all of them" in out and "not in this table" not in out
     assert main(["blend", "21.3,5.8,4.3,12.7", "--front"]) == 2
     assert "give --prices too" in capsys.readouterr().err
 
@@ -620,6 +628,21 @@ def test_cli_prices_and_bad_price_file(tmp_path, capsys):
     assert main(["blend", "21.3,5.8,4.3,12.7", "--prices", str(bad), "-o", str(out), "--overwrite"]) == 2
     assert "cost_per_litre" in capsys.readouterr().err
     assert json.loads(out.read_text()) == recs  # the earlier output file is untouched
+    # every message names the file; blank cells are told as blank, not as "nan"
+    empty = tmp_path / "empty.csv"
+    empty.write_text("name,cost_per_litre\n")
+    assert main(["blend", "21.3,5.8,4.3,12.7", "--prices", str(empty)]) == 2
+    assert f"the price list {empty} has a header but no rows" in capsys.readouterr().err
+    holes = tmp_path / "holes.csv"
+    holes.write_text("name,cost_per_litre\ntoluene,\n,2\ntolune,3\n")
+    assert main(["blend", "21.3,5.8,4.3,12.7", "--prices", str(holes)]) == 2
+    err = capsys.readouterr().err
+    assert f"the price list {holes}: 3 problems" in err and "nan" not in err
+    assert "no price for 'toluene' (empty cell)" in err and "has no liquid name" in err and "'tolune'" in err
+    one = tmp_path / "one.csv"
+    one.write_text("name,cost_per_litre\ntolune,3\n")
+    assert main(["blend", "21.3,5.8,4.3,12.7", "--prices", str(one)]) == 2
+    assert f"the price list {one}: unknown liquid 'tolune'" in capsys.readouterr().err
 
 
 from hypothesis import given, settings, strategies as st  # noqa: E402
@@ -819,3 +842,48 @@ def test_blend_header_says_what_was_checked_for_miscibility(capsys):
     assert main(["blend", pt, "--parts", "2", "--top", "2"]) == 0
     assert "every pair miscible" in capsys.readouterr().out.splitlines()[0]
     assert find_blends(PS, max_components=2, top=2, require_miscible=False).attrs["miscibility"] == "not checked"
+
+
+def test_rounded_shares_sum_to_one_hundred_per_cent():
+    from selector.blends import blend_labels, rounded_shares
+
+    # arithmetic: thirds shown to whole per cents cannot all read 33 %
+    assert rounded_shares([1 / 3, 1 / 3, 1 / 3], 0) == [0.33, 0.33, 0.34]
+    assert rounded_shares([0.125, 0.875], 0) == [0.12, 0.88]   # a tie goes to the later share
+    rng = np.random.default_rng(3)
+    for _ in range(200):
+        f = rng.dirichlet(np.ones(rng.integers(2, 5)))
+        for d in (0, 1):
+            r = rounded_shares(f, d)
+            assert round(sum(r) * 10 ** (d + 2)) == 10 ** (d + 2)
+            assert max(abs(a - b) for a, b in zip(r, f)) < 10.0 ** -(d + 2)
+    tab = pd.DataFrame({"components": [("a", "b", "c")], "fractions": [(1 / 3, 1 / 3, 1 / 3)]})
+    assert blend_labels(tab, "volume", digits=0) == ["33% a + 33% b + 34% c"]
+
+
+def test_estimated_densities_are_named_beside_by_mass_shares():
+    lib = selector.load_library()
+    est = lib.loc[lib["molar_volume_estimated"] & lib["density"].notna(), "name"].iloc[0]
+    measured = "toluene"   # density from a data-based correlation (thermo)
+    assert not lib.loc[lib["name"] == measured, "molar_volume_estimated"].iloc[0]
+    from selector.blends import estimated_density_note
+
+    tab = pd.DataFrame({"components": [(measured, est)]})
+    note = estimated_density_note(tab, lib)
+    assert est in note and measured not in note and "estimated" in note
+    assert estimated_density_note(pd.DataFrame({"components": [(measured,)]}), lib) == ""
+
+
+def test_a_priced_liquid_that_cannot_be_a_candidate_is_named():
+    # arbitrary prices (not check values). Benzyl chloride is an alkylating agent and lachrymator
+    # (common practice), held back as a reagent; glycerol boils at 290 C (chemicals), outside a
+    # 50-200 C window. Neither may vanish from a price list without a word.
+    res = selector.find_blends((18.0, 6.0, 6.0, 7.0), max_components=2, boiling_point_c=(50, 200),
+                               cost_per_litre={"toluene": 2.0, "acetone": 1.5, "benzyl chloride": 3.0,
+                                               "anisole": 4.0, "glycerol": 2.0})
+    notes = res.attrs["price_notes"]
+    assert any(n.startswith("benzyl chloride left out as a reagent") for n in notes)
+    assert any("left out by the conditions" in n and "glycerol" in n for n in notes)
+    assert not any("toluene" in n or "anisole" in n for n in notes)
+    used = {c for cs in res["components"] for c in cs}
+    assert used <= {"toluene", "acetone", "anisole"}

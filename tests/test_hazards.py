@@ -269,7 +269,12 @@ def test_blend_and_substitute_rows_carry_component_hazard_notes():
     lib = selector.load_library()
     st = hazard_statements().set_index("name")
     notes = component_notes([("morpholine", "anisole")], lib)[0]
-    assert notes == "morpholine: " + statement_flags(st.loc["morpholine", "statements"])
+    # anisole is a category 3 flammable liquid, H226 (GHS classification, common practice): its
+    # note said nothing, as H226 had no flag, so butyl acetate (flash point 22 C) read as harmless
+    assert notes == ("morpholine: " + statement_flags(st.loc["morpholine", "statements"])
+                     + "; anisole: flammable")
+    assert statement_flags(("H226", "H319")) == "flammable"
+    assert statement_flags(("H225", "H226")) == "extremely or highly flammable"
     unc = lib.loc[~lib["cas"].isin(st["cas"]), "name"].iloc[0]
     assert component_notes([(unc,)], lib) == [
         f"{unc}: no hazard data: treat as hazardous until the safety data sheet says otherwise"]

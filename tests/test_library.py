@@ -566,8 +566,10 @@ def test_companion_columns_follow_their_value(lib):
     for c in ("boiling_point_source", "melting_point_source", "volume_method", "vapour_pressure_method",
               "viscosity_method", "flash_point_source", "exposure_limit_unit", "exposure_limit_source"):
         assert row[c] == "" and c not in filled, c
-    for c in ("density", "antoine_a", "antoine_b", "antoine_c", "antoine_tmin_c", "antoine_tmax_c"):
+    for c in ("antoine_a", "antoine_b", "antoine_c", "antoine_tmin_c", "antoine_tmax_c"):
         assert np.isnan(row[c]) and c not in filled, c
+    # the density is not the library's: it follows from the user's molar volume (M / V)
+    assert row["density"] == pytest.approx(row["molar_mass"] / 106.3) and "density" not in filled
     assert not row["molar_volume_estimated"] and not row["viscosity_estimated"]
     # the vapour pressure at 25 C is the user's, not the library's Antoine fit
     assert selector.library.vapour_pressure_kpa(m.loc[m["name"] == "Toluene"], 25.0)[0] == 2.9
@@ -1008,3 +1010,48 @@ def test_a_flash_point_above_the_boiling_point_of_a_volatile_liquid_is_overridde
     r = selector.find_liquid("156-59-2")
     assert r["flash_point_c"] < r["boiling_point_c"]
     assert r["flash_point_c"] == pytest.approx(6.0) and "NFPA 497" in r["flash_point_source"]
+
+
+def test_a_mixture_message_names_the_isomers_the_library_lacks(lib):
+    # common practice: xylene is o-, m- and p-xylene; the library has no m-xylene row (108-38-3),
+    # so the message must not read as if the isomers offered were all there are
+    assert not (lib["cas"] == "108-38-3").any()
+    with pytest.raises(selector.GenericNameError) as e:
+        locate("xylene", lib)
+    assert e.value.missing == ["m-xylene"]
+    assert "m-xylene is not in the library" in str(e.value)
+
+
+def test_a_users_own_liquid_with_a_mixture_cas_is_found(lib):
+    # a supplier's mixed xylene under the mixture's CAS number 1330-20-7 (common practice; HSP here
+    # are o-xylene's library values, chemicals) is the user's own liquid, found by that CAS
+    mine = selector.load_library(pd.DataFrame({"name": ["xylene, mixed grade"], "cas": ["1330-20-7"],
+                                               "delta_d": [17.8], "delta_p": [1.0], "delta_h": [3.1]}))
+    assert find_liquid("1330-20-7", mine)["name"] == "xylene, mixed grade"
+    with pytest.raises(selector.GenericNameError):
+        find_liquid("1330-20-7", lib)      # the bundled library alone still refuses it
+
+
+def test_a_users_density_is_checked_and_kept_consistent_with_molar_volume(lib):
+    # toluene: M 92.14 g/mol, 0.862 g/cm3 at 25 C (chemicals/thermo, the library's own values)
+    with pytest.raises(selector.errors.InputTableError, match=r"density = 864 .*kg/m3\? give g/cm3: 0.864"):
+        selector.load_library(pd.DataFrame({"name": ["toluene"], "delta_d": [18.0], "delta_p": [1.4],
+                                            "delta_h": [2.0], "density": [864]}))
+    for bad in (0, -0.8, "heavy"):
+        with pytest.raises(selector.errors.InputTableError, match="density"):
+            selector.load_library(pd.DataFrame({"name": ["toluene"], "delta_d": [18.0], "delta_p": [1.4],
+                                                "delta_h": [2.0], "density": [bad]}))
+    tol = find_liquid("toluene", lib)
+    # own molar volume, no density: the density follows from the library's molar mass
+    mine = selector.load_library(pd.DataFrame({"name": ["toluene"], "delta_d": [18.0], "delta_p": [1.4],
+                                               "delta_h": [2.0], "molar_volume": [107.0]}))
+    row = find_liquid("toluene", mine)
+    assert row["density"] == pytest.approx(tol["molar_mass"] / 107.0, rel=1e-9)
+    # own density beside the library's molar volume: the molar volume follows from the density
+    mine = selector.load_library(pd.DataFrame({"name": ["toluene"], "delta_d": [18.0], "delta_p": [1.4],
+                                               "delta_h": [2.0], "rho": [0.87]}))
+    row = find_liquid("toluene", mine)
+    assert row["density"] == 0.87
+    assert row["molar_volume"] == pytest.approx(tol["molar_mass"] / 0.87, rel=1e-9)
+    assert row["volume_method"] == selector.library.FROM_DENSITY and not row["molar_volume_estimated"]
+    assert "molar_volume" not in row["filled_from_library"]

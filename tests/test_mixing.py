@@ -527,6 +527,9 @@ def test_cli_pair_and_grid(capsys, tmp_path):
     assert main(["mix", "methanol", "hexane"]) == 0
     text = capsys.readouterr().out
     assert "PARTIALLY MISCIBLE" in text and "safety data sheet" in text
+    # the critical temperature printed is the model's, beside the recorded one (~42.6 C, Sorensen &
+    # Arlt, from memory): it must say so
+    assert "\n  model UCST: " in text and "\n  UCST: " not in text
     target = tmp_path / "grid.csv"
     assert main(["mix-grid", "water,ethanol,hexane", "--format", "csv", "-o", str(target)]) == 0
     grid = pd.read_csv(target)

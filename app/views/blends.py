@@ -71,6 +71,7 @@ res.attrs = {}  # a Target in attrs cannot go to the browser
 res.insert(0, "blend", blend_labels(res, "volume", digits=0))
 res.insert(1, "by_mass", blend_labels(res, "mass", digits=0))
 has_r = "red" in res and res["red"].notna().any()
+from selector.blends import estimated_density_note
 from selector.library import estimated_components
 
 res["estimated"] = estimated_components(res, common.library())
@@ -87,6 +88,9 @@ if has_est:
                "blend point is as uncertain as they are; test it before you rely on it.")
 st.caption("Shares in Blend are by volume; By mass is the same blend by weight, for the balance (ideal "
            "mixing, 25 C densities; blank where a density is unknown).")
+dnote = estimated_density_note(res, common.library())
+if dnote:
+    st.caption(dnote.replace("by_mass", "By mass"))
 show_cols = [c for c in res.columns if c not in ("components", "fractions", "mass_fractions")]
 common.table(res[show_cols], hide_index=True, width="stretch", column_config=common.COLUMN_CONFIG)
 

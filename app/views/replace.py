@@ -102,6 +102,7 @@ if len(ref):
                "no flash point in the library")
     st.markdown(f"**{old}** today: hazard class {r0.get('hazard_class', 'unclassified')}, boiling point "
                 f"{r0.get('boiling_point_c', float('nan')):.0f} °C, {fp_text}.")
+from selector.blends import estimated_density_note
 from selector.library import estimated_components
 
 res["estimated"] = estimated_components(res, common.library())
@@ -126,6 +127,9 @@ common.table(res[show], hide_index=True, width="stretch", column_config=dict(
     mismatch=st.column_config.NumberColumn("Property mismatch", format="%.2f"),
     component_ra=st.column_config.TextColumn("Ra of each component", help="MPa½, in the order of the candidate")))
 st.caption("The first row is the liquid being replaced, for comparison.")
+dnote = estimated_density_note(res, common.library())
+if dnote:
+    st.caption(dnote.replace("by_mass", "By mass"))
 
 lib = common.library()
 nm = sorted({c for cs in res["components"] for c in cs})
