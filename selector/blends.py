@@ -566,6 +566,27 @@ def _target_and_candidates(target, library, temperature, filters, costs=None, co
 COST_BASES = ("cost_per_litre", "cost_per_kg")
 
 
+def read_price_list(source, what: str | None = None) -> dict[str, pd.DataFrame]:
+    """A price list CSV (path, bytes or file-like; UTF-8 or Windows-1252, comma, semicolon or tab,
+    decimal commas) with columns ``name`` and one of :data:`COST_BASES`, as the keyword
+    :func:`find_blends` takes: ``{"cost_per_kg": DataFrame(name, cost_per_kg)}``. ``what`` names
+    the file in messages. The prices themselves are checked by :func:`find_blends`, every problem
+    at once."""
+    from .io import read_user_csv
+
+    label = what or "the price list"
+    t = read_user_csv(source, what=label, strict_rows="longer")
+    cols = {str(c).strip().lower(): c for c in t.columns}
+    bases = [b for b in COST_BASES if b in cols]
+    if "name" not in cols or len(bases) != 1:
+        raise SelectorError(f"{label} needs columns name and one of cost_per_litre, cost_per_kg "
+                            f"(found {', '.join(map(str, t.columns)) or 'no columns'})")
+    if len(t) == 0:
+        raise SelectorError(f"{label} has a header but no rows: add one row per liquid (name,{bases[0]})")
+    # a table, not a dict: the same name on two rows must reach the duplicate check
+    return {bases[0]: pd.DataFrame({"name": t[cols["name"]], bases[0]: t[cols[bases[0]]]})}
+
+
 def _priced_left_out(lib: pd.DataFrame, out: np.ndarray, filters: dict) -> list[str]:
     """Notes on priced liquids that are not candidates: reagents (with their reason) and those the
     conditions leave out (filters, not liquid at the use temperature, the target itself), so that

@@ -36,25 +36,9 @@ BY_MASS_NOTE = ("\nShares in blend are by volume; by_mass is the same blend by w
 
 
 def _prices(path):
-    import pandas as pd
+    from .blends import read_price_list
 
-    from .errors import SelectorError
-    from .io import read_user_csv
-
-    from .blends import COST_BASES
-
-    # UTF-8 or Windows-1252, comma/semicolon/tab, decimal commas; "file not found: PATH"
-    t = read_user_csv(path, what=f"the price list {path}", strict_rows="longer")
-    cols = {c.strip().lower(): c for c in t.columns}
-    bases = [b for b in COST_BASES if b in cols]
-    if "name" not in cols or len(bases) != 1:
-        raise SelectorError(f"the price list {path} needs columns name and one of cost_per_litre, cost_per_kg "
-                            f"(found {', '.join(map(str, t.columns)) or 'no columns'})")
-    if len(t) == 0:
-        raise SelectorError(f"the price list {path} has a header but no rows: add one row per liquid "
-                            f"(name,{bases[0]})")
-    # a table, not a dict: the same name on two rows must reach the duplicate check
-    return {bases[0]: pd.DataFrame({"name": t[cols["name"]], bases[0]: t[cols[bases[0]]]})}
+    return read_price_list(path, what=f"the price list {path}")
 
 
 def _target(a, lib):
