@@ -325,24 +325,29 @@ def find_liquid_or_hint(query, lib):
 
 
 def cmd_list(a) -> int:
-    import numpy as np
-
+    from .errors import SelectorError
     from .filters import filter_mask
-    from .library import _key
 
     lib = library_from_args(a)
     m = filter_mask(lib, **dict(filters_from_args(a), include_reactive=True))  # browsing: everything
-    if a.search:
-        k = _key(a.search)
-        hay = (lib["name"] + "|" + lib["synonyms"].astype(str) + "|" + lib["cas"]).map(_key)
-        m &= hay.str.contains(k, regex=False).to_numpy()
     from .cautions import reactive_reasons
 
-    out = lib.loc[m].sort_values("name")
-    out = for_display(out.assign(reagent=reactive_reasons(out)))
     cols = ["name", "cas", "delta_d", "delta_p", "delta_h", "molar_volume", "boiling_point_c",
             "flash_point_c", "hsp_source", "sources_disagree", "reagent"]
-    emit(out.head(a.top) if a.top else out, a, cols, header=f"{int(np.sum(m))} liquids match")
+    if a.search:
+        from .library import search
+
+        out = search(a.search, lib.loc[m])
+        if out.empty:
+            raise SelectorError(f"no liquid's name, synonym or CAS number contains {a.search!r}"
+                                + ("" if m.all() else " among those the filters let through")
+                                + ": check the spelling or give a shorter part")
+        cols.insert(1, "matched")   # the synonym or CAS number that matched, where not the name
+    else:
+        out = lib.loc[m].sort_values("name")
+    n = len(out)
+    out = for_display(out.assign(reagent=reactive_reasons(out)))
+    emit(out.head(a.top) if a.top else out, a, cols, header=f"{n} liquids match")
     return 0
 
 

@@ -119,10 +119,12 @@ def cmd_guess(a) -> int:
         status = _save_mine(res, Path(a.save_mine))
     failed = int((res["source"] == "").sum())
     if failed and batch:
-        print(f"{failed} of {len(res)} rows could not be estimated (see the message column)", file=sys.stderr)
+        print(f"{failed} of {len(res)} rows could not be estimated (see the message column); exit status 1",
+              file=sys.stderr)
     if failed == len(res):
         raise SelectorError("no row could be estimated")
-    return status
+    # a script that runs a batch learns that some rows failed without reading the table
+    return 1 if failed else status
 
 
 def _mine_table(path):

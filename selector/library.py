@@ -232,6 +232,32 @@ def _index_for(lib: pd.DataFrame) -> _Index:
     return idx
 
 
+def search(text: str, library: pd.DataFrame | None = None) -> pd.DataFrame:
+    """Rows of ``library`` whose name, a synonym or the CAS number contains ``text`` (matched
+    like :func:`locate`: case, spaces, hyphens and commas ignored), sorted by name, with a
+    ``matched`` column: "" where the name matched, else the synonym or CAS number that did (so
+    that "MEK" finding bromoethane, by its Polish synonym "etylu bromek", is explained).
+
+    >>> search("MEK")[["name", "matched"]].values.tolist()
+    [['2-butanone', 'mek'], ['bromoethane', 'etylu bromek']]
+    """
+    lib = load_library() if library is None else library
+    k = _key(text)
+    if not k:
+        raise SelectorError("search text is empty: give part of a name, synonym or CAS number")
+    names = lib["name"].astype(str)
+    by_name = names.map(_key).str.contains(k, regex=False).to_numpy()
+    syn = lib["synonyms"].astype(str) if "synonyms" in lib.columns else pd.Series("", index=lib.index)
+    cas = lib["cas"].astype(str)
+    other = (syn + "|" + cas).map(_key).str.contains(k, regex=False).to_numpy() & ~by_name
+    matched = np.full(len(lib), "", dtype=object)
+    for i in np.flatnonzero(other):   # only the few rows that matched by another name
+        cands = [s for s in syn.iloc[i].split("|") if s] + [cas.iloc[i]]
+        matched[i] = next((s for s in cands if k in _key(s)), "")
+    out = lib.assign(matched=matched).loc[by_name | other]
+    return out.sort_values("name", kind="stable")
+
+
 def _looks_like_smiles(q: str) -> bool:
     return bool(q) and " " not in q and bool(re.search(r"[=#()\[\]]|^[CNOcnoSsPFIBrl0-9@+\-/\\]+$", q))
 

@@ -105,7 +105,8 @@ def rank(target, *, temperature: float = 25.0, library: pd.DataFrame | None = No
     :class:`~selector.targets.Target` or a fitted sphere. ``temperature`` in C. Filters: see
     :mod:`selector.filters`. Returns the library columns plus ``ra`` (MPa^0.5), ``red`` (NaN
     without R0), ``polarity_match`` (0..1), ``score`` (lower is better; see module doc) and
-    ``rank`` (1 = best), ``hazard_notes`` (:func:`selector.hazards.liquid_notes`: toxic,
+    ``rank`` (1 = best), ``hazard_class`` (CHEM21 class, "unclassified" without hazard data;
+    :func:`selector.hazards.hazard_columns`), ``hazard_notes`` (:func:`selector.hazards.liquid_notes`: toxic,
     corrosive, CMR, ..., or "no hazard data: treat as hazardous ..." for an unclassified liquid;
     the order is by score alone); ``attrs["reagents_left_out"]`` counts the reagents (reactive,
     explosive or very toxic liquids, :mod:`selector.cautions`) that the filters would have let
@@ -152,10 +153,12 @@ def rank(target, *, temperature: float = 25.0, library: pd.DataFrame | None = No
     out["red"] = red
     out["polarity_match"] = pm
     out["score"] = score
-    from .hazards import liquid_notes
+    from .hazards import hazard_columns, liquid_notes
 
     # order unchanged (by score); the notes say where a liquid has no hazard data
-    out["hazard_notes"] = liquid_notes(lib)[mask]
+    hz = hazard_columns(lib)
+    out["hazard_class"] = hz["hazard_class"].to_numpy(object)[mask]
+    out["hazard_notes"] = liquid_notes(lib, hz)[mask]
     from .cautions import heated_notes
 
     out["hazard_notes"] = heated_notes(out, t_c)

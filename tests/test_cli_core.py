@@ -81,6 +81,17 @@ def test_show_and_list(capsys):
     rc, out, _ = run(["list", "--search", "xylene", "--format", "csv"], capsys)
     df = pd.read_csv(io.StringIO(out))
     assert {"o-xylene", "p-xylene"} <= set(df["name"])
+    # a row found by a synonym or CAS number says which: MEK is the trade name of 2-butanone
+    # (common practice); 78-93-3 its CAS number (chemicals)
+    rc, out, _ = run(["list", "--search", "MEK", "--format", "csv"], capsys)
+    df = pd.read_csv(io.StringIO(out), keep_default_na=False).set_index("name")
+    assert df.loc["2-butanone", "matched"].lower() == "mek"
+    rc, out, _ = run(["list", "--search", "78-93-3", "--format", "csv"], capsys)
+    df = pd.read_csv(io.StringIO(out), keep_default_na=False)
+    assert list(df["name"]) == ["2-butanone"] and list(df["matched"]) == ["78-93-3"]
+    rc, out, _ = run(["list", "--search", "butanone", "--format", "csv"], capsys)
+    df = pd.read_csv(io.StringIO(out), keep_default_na=False).set_index("name")
+    assert df.loc["2-butanone", "matched"] == ""     # found by its own name
 
 
 def test_demo_runs(capsys):

@@ -395,7 +395,7 @@ def test_cli_guess(capsys, tmp_path):
     assert "salt or a mixture" in capsys.readouterr().err
     p = tmp_path / "in.csv"
     p.write_text("smiles\nCCO\nnot-a-smiles\n", encoding="utf-8")
-    assert main(["guess", str(p), "--format", "csv", "-o", str(tmp_path / "out.csv")]) == 0
+    assert main(["guess", str(p), "--format", "csv", "-o", str(tmp_path / "out.csv")]) == 1   # a row could not be estimated
     out = pd.read_csv(tmp_path / "out.csv")
     assert list(out["source"].fillna("")) == ["library", ""]
     # saving an estimate to the user's own liquids, then ranking with it
@@ -554,7 +554,7 @@ def test_a_refused_ion_does_not_sink_a_batch(tmp_path, capsys):
     batch = tmp_path / "batch.csv"
     batch.write_text("smiles\nC[NH3+]\nCCO\n", encoding="utf-8")
     capsys.readouterr()
-    assert main(["guess", str(batch), "--format", "csv"]) == 0
+    assert main(["guess", str(batch), "--format", "csv"]) == 1   # one row refused, the other answered
     cap = capsys.readouterr()
     out = pd.read_csv(io.StringIO(cap.out))
     assert out.loc[0, "smiles"] == "C[NH3+]" and out.loc[0, "message"].startswith("net charge +1")

@@ -333,9 +333,9 @@ def test_list_shows_all_by_default_and_empty_result_is_one_line(capsys):
     assert out.splitlines()[1].startswith("Units: dD/dP/dH")
     rc, out, _ = run(["list", "--format", "csv"], capsys)
     assert rc == 0 and len(pd.read_csv(io.StringIO(out))) == n
-    rc, out, _ = run(["list", "--search", "no-such-liquid-anywhere"], capsys)
-    assert rc == 0 and "Empty DataFrame" not in out
-    assert out.strip().splitlines()[-1].startswith("no liquids match")
+    rc, out, err = run(["list", "--search", "no-such-liquid-anywhere"], capsys)
+    assert rc == 2 and "Empty DataFrame" not in out + err
+    assert "no liquid's name, synonym or CAS number contains 'no-such-liquid-anywhere'" in err
 
 
 def test_blend_file_keeps_its_top_default(tmp_path, capsys):

@@ -323,3 +323,17 @@ def test_use_temperatures_outside_the_stretchable_range_are_refused(t):
         selector.rank((18.0, 5.0, 3.0), temperature=t)
     with pytest.raises(SelectorError, match="temperature"):
         selector.miscibility("water", "ethanol", temperature=t)
+
+
+def test_rank_carries_the_chem21_class_of_each_liquid():
+    # CHEM21 guide (Prat et al., Green Chem. 18 (2016) 288; from memory): ethyl acetate
+    # recommended, toluene problematic, benzene highly hazardous
+    res = selector.rank((18.0, 3.0, 5.0), include=["ethyl acetate", "toluene", "benzene"])
+    cls = res.set_index("name")["hazard_class"]
+    assert cls.to_dict() == {"ethyl acetate": "recommended", "toluene": "problematic",
+                             "benzene": "highly hazardous"}
+    # the library's answer is the command line's (one computation, one place)
+    from selector.hazards import attach_hazards
+
+    ref = attach_hazards(res[["name", "cas"]], selector.load_library())
+    assert list(ref["hazard_class"]) == list(res["hazard_class"])
