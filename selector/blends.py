@@ -587,6 +587,18 @@ def read_price_list(source, what: str | None = None) -> dict[str, pd.DataFrame]:
     return {bases[0]: pd.DataFrame({"name": t[cols["name"]], bases[0]: t[cols[bases[0]]]})}
 
 
+def price_error_named(err: Exception, label: str) -> Exception | None:
+    """``err`` raised by :func:`find_blends` told under the price list's own name (``label``,
+    e.g. "the price list prices.csv"), or None when it is not about the price list."""
+    from .errors import InputTableError
+
+    if isinstance(err, InputTableError) and str(err).startswith("cost list"):
+        return InputTableError(label, err.problems)
+    if isinstance(err, SelectorError) and getattr(err, "price_problem", False):
+        return SelectorError(f"{label}: {err}")
+    return None
+
+
 def _priced_left_out(lib: pd.DataFrame, out: np.ndarray, filters: dict) -> list[str]:
     """Notes on priced liquids that are not candidates: reagents (with their reason) and those the
     conditions leave out (filters, not liquid at the use temperature, the target itself), so that

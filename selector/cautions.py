@@ -465,6 +465,12 @@ PAIR_CLASSES = (
     ("isocyanate", "[NX2]=[CX2]=[OX1]"),
     # water, alcohols, glycols and phenols (not the OH of an acid)
     ("hydroxyl", "[$([OX2H2]),$([OX2H1][#6;!$([#6]=[O,S,N])])]"),
+    # acyl halides, thionyl and sulfonyl/sulfuryl halides, phosphoryl and phosphorus halides
+    ("acid halide", "[$([CX3](=O)[F,Cl,Br,I]),$([SX3](=O)([Cl,Br])),$([SX4](=O)(=O)[Cl,Br]),"
+                    "$([PX4](=O)[Cl,Br]),$([PX3][Cl,Br])]"),
+    ("anhydride", "[CX3](=O)[OX2][CX3](=O)"),
+    ("halosilane", "[Si][Cl,Br,I]"),
+    ("dialkyl sulfate", "[SX4](=O)(=O)([OX2][CX4])[OX2][CX4]"),
 )
 
 #: Pairs of classes that should not be blended: (class a, class b, why). Common practice (acid and
@@ -486,6 +492,20 @@ PAIR_CLASSES = (
 PAIR_RULES = (
     # most severe first: a pair that two rules match is named by the first
     ("base", "nitroalkane", "amine + nitroalkane: the amine sensitises the nitro compound to detonation"),
+    # acid chlorides, thionyl chloride, chlorosilanes and anhydrides with water, alcohols and amines
+    # (common practice: hydrolysis and acylation, HCl or SO2 given off; acetic anhydride with water
+    # starts slowly and can then run away); dialkyl sulfates alkylate and hydrolyse (from memory)
+    ("acid halide", "hydroxyl", "acid halide + water or alcohol: they react violently, giving off corrosive "
+                                "gas (HCl, HBr or SO2)"),
+    ("acid halide", "base", "acid halide + amine: they react violently (amide or salt, HCl)"),
+    ("halosilane", "hydroxyl", "chlorosilane + water or alcohol: they react violently, giving off HCl"),
+    ("anhydride", "hydroxyl", "anhydride + water or alcohol: they react exothermically (acid or ester), "
+                              "slowly at first and then able to run away"),
+    ("anhydride", "primary amine", "anhydride + amine: they react exothermically (amide)"),
+    ("anhydride", "secondary amine", "anhydride + amine: they react exothermically (amide)"),
+    ("dialkyl sulfate", "hydroxyl", "dialkyl sulfate + water or alcohol: hydrolysis and alkylation (sulfuric "
+                                    "acid, heat)"),
+    ("dialkyl sulfate", "base", "dialkyl sulfate + amine: they react exothermically (alkylation)"),
     ("isocyanate", "primary amine", "isocyanate + amine: they react fast and hot (urea)"),
     ("isocyanate", "secondary amine", "isocyanate + amine: they react fast and hot (urea)"),
     ("isocyanate", "hydroxyl", "isocyanate + water, alcohol or phenol: they react exothermically (urethane; "

@@ -50,7 +50,8 @@ def _target(a, lib):
 def cmd_blend(a) -> int:
     from .blends import find_blends
 
-    from .errors import InputTableError, SelectorError
+    from .blends import price_error_named
+    from .errors import SelectorError
 
     lib = library_from_args(a)
     prices = _prices(a.prices) if a.prices else {}
@@ -58,13 +59,10 @@ def cmd_blend(a) -> int:
         res = find_blends(_target(a, lib), max_components=a.parts, min_fraction=a.min_share, temperature=a.at,
                           top=a.top, library=lib, max_uses=a.max_uses, **prices,
                           require_miscible=not a.skip_mixing_check, **_filters(a))
-    except InputTableError as e:   # the price list's problems, under the file's name
-        if a.prices and str(e).startswith("cost list"):
-            raise InputTableError(f"the price list {a.prices}", e.problems) from None
-        raise
-    except SelectorError as e:
-        if a.prices and getattr(e, "price_problem", False):
-            raise SelectorError(f"the price list {a.prices}: {e}") from None
+    except SelectorError as e:   # the price list's problems, under the file's name
+        named = price_error_named(e, f"the price list {a.prices}") if a.prices else None
+        if named is not None:
+            raise named from None
         raise
     from .cli_core import describe_target, target_notes
 

@@ -111,6 +111,18 @@ def _listed(items, column: str = "") -> str:
     return ", ".join(items[:HEADER_LIST_MAX]) + f" ... and {len(items) - HEADER_LIST_MAX} more{where}"
 
 
+def _marked(grid, doubtful, reacting):
+    """The square grid of short states with "?" on the doubtful pairs and "!" on the reacting
+    ones (both cells of each pair)."""
+    g = grid.astype(object).copy()
+    for pairs, mark in ((doubtful, "?"), (reacting, "!")):
+        for x, y in pairs:
+            if x in g.index and y in g.columns:
+                g.loc[x, y] = f"{g.loc[x, y]}{mark}"
+                g.loc[y, x] = f"{g.loc[y, x]}{mark}"
+    return g
+
+
 def cmd_grid(a) -> int:
     import pandas as pd
 
@@ -177,13 +189,15 @@ def cmd_grid(a) -> int:
             out = out[(out.state != "miscible") | out.reacts | out.uncertain]
         emit(out, a, caution=True, header=f"{len(out)} pairs at {a.at:g} C" + est_note + no_unifac)
         return 0
-    shown = m if a.format != "table" else m.replace(SHORT)
-    out = shown.reset_index().rename(columns={"index": "liquid"})
-    header = (f"{len(m)} liquids at {a.at:g} C" + ("" if a.format != "table" else
-              "; mix = miscible in all proportions, part = partially miscible, no = immiscible")) + est_note
     split = m.attrs.get("disagreeing_pairs", [])
     apart = {frozenset((x, y)) for x, y, _, _ in split}
     unsure = [p for p in m.attrs.get("uncertain_pairs", []) if frozenset(p) not in apart]
+    shown = m if a.format != "table" else _marked(m.replace(SHORT), [(x, y) for x, y, _, _ in split] + unsure,
+                                                   m.attrs.get("reactive_pairs", []))
+    out = shown.reset_index().rename(columns={"index": "liquid"})
+    header = (f"{len(m)} liquids at {a.at:g} C" + ("" if a.format != "table" else
+              "; mix = miscible in all proportions, part = partially miscible, no = immiscible; "
+              "? = uncertain or the models disagree, ! = they react (both listed below)")) + est_note
     if unsure:
         header += ("\nUNCERTAIN (water with a glycol ether, amine or pyridine; the model cannot be trusted on "
                    "them, test them): " + _listed((f"{x} + {y}" for x, y in unsure), "uncertain"))

@@ -492,6 +492,13 @@ def _check_user_table(table):
                 problems.append(([i], f"row {i + 2} ({df['name'].iloc[i]}): {col} = {v:g} is outside "
                                       f"{lo:g}..{hi:g} {unit}{hint}"))
         df[col] = vals
+    from .targets import CAL_HINT_DD, cal_units_hint
+
+    low_d = (df["delta_d"] < CAL_HINT_DD).to_numpy() & np.isfinite(df["delta_d"].to_numpy(float))
+    for i in np.flatnonzero(low_d):   # below every liquid: most likely (cal/cm3)^0.5
+        vals = [df[c].iloc[i] for c in HSP] + ([df["radius"].iloc[i]] if "radius" in df.columns else [])
+        problems.append(([i], f"row {i + 2} ({df['name'].iloc[i]}): "
+                              + cal_units_hint([v for v in vals if v == v])))
     if "kind" in df.columns:
         df["kind"] = _text(df["kind"]).str.lower().replace("", "liquid")
         for i, k in enumerate(df["kind"]):

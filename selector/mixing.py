@@ -1306,6 +1306,10 @@ def miscibility(a, b, *, temperature: float = 25.0, library: pd.DataFrame | None
             notes.append(f"no UNIFAC second opinion for this pair ({second['why']})")
     ref, entry = (_reference_at(ra_.get("cas", ""), rb_.get("cas", ""), t) if reference and not same
                   else ({}, {}))
+    if ref.get("state") == NOT_MISCIBLE:
+        ref = dict(ref, state=resolve_recorded(NOT_MISCIBLE, state), recorded=NOT_MISCIBLE)
+        ref["source"] = (f"{ref['source']}; the record says only 'not miscible', so the kind of split "
+                         "shown is the model's")
     at25 = ("at 25 C" if abs(t - 25.0) < 1e-9 else
             ref.get("basis", f"at 25 C, which holds at {t:g} C too (within {REFERENCE_WINDOW_C:g} C)"))
     if ref:
@@ -1355,11 +1359,36 @@ def _reference_pairs() -> dict:
         if not path.exists():
             continue
         for r in load_pairs(path).itertuples():
-            if r.state_25c in STATES:    # entries that only say "not miscible" do not answer the question
-                crit = [(float(v), kind) for v, kind in ((r.ucst_c, "UCST"), (r.lcst_c, "LCST")) if v == v]
-                out.setdefault(frozenset((r.cas_a, r.cas_b)), {"state": r.state_25c, "source": r.source,
-                                                               "table": path.name, "critical_c": crit})
+            state = r.state_25c
+            if state not in STATES:
+                # an entry that says only "not miscible" (ethylene glycol + chloroform, DMSO + hexane)
+                # still answers whether the pair is one phase: NOT_MISCIBLE, resolved against the
+                # model's state where it is used (:func:`resolve_recorded`)
+                if str(r.miscible_25c).strip().lower() != "no":
+                    continue
+                state = NOT_MISCIBLE
+            crit = [(float(v), kind) for v, kind in ((r.ucst_c, "UCST"), (r.lcst_c, "LCST")) if v == v]
+            out.setdefault(frozenset((r.cas_a, r.cas_b)), {"state": state, "source": r.source,
+                                                           "table": path.name, "critical_c": crit})
     return out
+
+
+#: The recorded "state" of a reference entry that says only "not miscible" (two phases at 25 C,
+#: partial or near-complete immiscibility not recorded).
+NOT_MISCIBLE = "not miscible"
+
+
+def resolve_recorded(recorded: str, model_state: str) -> str:
+    """The state to show for a recorded one: the record itself, except for :data:`NOT_MISCIBLE`,
+    which keeps the model's split state (partially miscible or immiscible) and turns the model's
+    "miscible" into "partially miscible" (the mildest split state).
+
+    >>> resolve_recorded("not miscible", "miscible"), resolve_recorded("not miscible", "immiscible")
+    ('partially miscible', 'immiscible')
+    """
+    if recorded != NOT_MISCIBLE:
+        return recorded
+    return "partially miscible" if model_state == "miscible" else model_state
 
 
 def reference_state(cas_a: str, cas_b: str) -> dict:
@@ -1658,7 +1687,7 @@ def miscibility_matrix(liquids, *, temperature: float = 25.0, library: pd.DataFr
     # at 25 C a pair of the reference table takes its recorded state (Miscibility.reference)
     known = []
     for p, q, state in reference_overlay(df, float(temperature)):
-        out.iat[p, q] = out.iat[q, p] = state
+        out.iat[p, q] = out.iat[q, p] = resolve_recorded(state, out.iat[p, q])
         known.append((names[p], names[q]))
     done = set(map(frozenset, known))
     out.attrs["reference_pairs"] = known
@@ -1730,7 +1759,7 @@ def check_blend_miscible(names_or_rows, *, temperature: float = 25.0,
         raise SelectorError("no liquids in the blend")
     st = state_matrix(df, temperature, model)
     for i, j, state in reference_overlay(df, float(temperature)):   # the recorded states, as everywhere
-        st[i, j] = st[j, i] = state
+        st[i, j] = st[j, i] = resolve_recorded(state, st[i, j])
     names = df["name"].astype(str).tolist() if "name" in df.columns else [str(i) for i in range(len(df))]
     iu, ju = np.triu_indices(len(df), 1)
     failing = [(names[i], names[j], str(st[i, j])) for i, j in zip(iu, ju) if st[i, j] != "miscible"]

@@ -318,6 +318,7 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
     alpha_all = lib["expansion_coeff"].to_numpy(float) if "expansion_coeff" in lib else np.full(len(lib), np.nan)
     lib_hsp = lib[HSP].to_numpy(float)
     from .library import hsp_estimated
+    from .targets import CAL_HINT_DD, cal_units_hint
 
     lib_estimated = hsp_estimated(lib)   # a liquid of your own whose HSP are estimated from structure
     no_alpha = []
@@ -354,6 +355,9 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
             elif vals[0] > 30 or vals[1] > 40 or vals[2] > 50:
                 problems.append(f"{where}: HSP {vals[0]:g}, {vals[1]:g}, {vals[2]:g} is outside the range "
                                 "of real liquids (dD <= 30, dP <= 40, dH <= 50 MPa^0.5)")
+                ok = False
+            elif vals[0] < CAL_HINT_DD:
+                problems.append(f"{where}: {cal_units_hint(vals)}")
                 ok = False
             else:
                 hsp = np.array(vals, float)

@@ -102,6 +102,21 @@ def _check_given(t: Target) -> Target:
     return replace(t, notes=t.notes + (hint,)) if hint and hint not in t.notes else t
 
 
+def cal_units_hint(values) -> str:
+    """The message for HSP ``(dD, dP, dH[, R0])`` whose dD is below every liquid's: most likely in
+    (cal/cm^3)^0.5, with the values converted to MPa^0.5.
+
+    >>> cal_units_hint((7.6, 2.0, 3.0))[:45]
+    'dD 7.6 is lower than any liquid (the lowest i'
+    """
+    from .hansen import CAL_TO_MPA
+
+    vals = list(zip(("dD", "dP", "dH", "R0"), values))
+    conv = ", ".join(f"{k} {float(v) * CAL_TO_MPA:.1f}" for k, v in vals if v is not None)
+    return (f"dD {float(values[0]):g} is lower than any liquid (the lowest is 11.3 MPa^0.5, perfluoropentane): "
+            f"if the values are in (cal/cm3)^0.5, multiply them by {CAL_TO_MPA} ({conv} MPa^0.5)")
+
+
 def unit_hint(t: Target) -> str:
     """A warning when a typed target looks like (cal/cm^3)^0.5 rather than MPa^0.5 ("" otherwise):
     its dD is below :data:`CAL_HINT_DD`, lower than any liquid's.
@@ -109,15 +124,9 @@ def unit_hint(t: Target) -> str:
     >>> unit_hint(Target(8.7, 3.0, 2.0))[:40]
     'dD 8.7 is lower than any liquid (the low'
     """
-    d = float(t.delta_d)
-    if d >= CAL_HINT_DD:
+    if float(t.delta_d) >= CAL_HINT_DD:
         return ""
-    from .hansen import CAL_TO_MPA
-
-    vals = list(zip(("dD", "dP", "dH"), t.hsp)) + ([("R0", t.radius)] if t.radius else [])
-    conv = ", ".join(f"{k} {v * CAL_TO_MPA:.1f}" for k, v in vals)
-    return (f"dD {d:g} is lower than any liquid (the lowest is 11.3 MPa^0.5, perfluoropentane): if the "
-            f"values are in (cal/cm3)^0.5, multiply them by {CAL_TO_MPA} ({conv} MPa^0.5)")
+    return cal_units_hint(tuple(t.hsp) + ((t.radius,) if t.radius else ()))
 
 
 def _num(v, what):

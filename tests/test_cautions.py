@@ -231,7 +231,8 @@ def test_browsing_and_mixing_keep_reagents(capsys):
     out = capsys.readouterr().out
     assert "acetyl chloride" in out and "acyl halide" in out
     m = miscibility("water", "acetyl chloride")
-    assert "reagent, not a solvent" in m.notes[0]
+    # the reacting-pair note first (acid chloride + water: HCl, common practice), then the reagent's
+    assert m.notes[0].startswith("REACTIVE PAIR - acid halide + water") and "reagent, not a solvent" in m.notes[1]
     assert not any("reagent" in n for n in miscibility("water", "ethanol").notes)
     assert main(["mix-grid", "--only", "acetyl chloride,water,ethanol", "--format", "json"]) == 0
     assert "acetyl chloride" in capsys.readouterr().out
@@ -434,3 +435,39 @@ def test_flash_point_text_reads_text_booleans():
     assert flash_point_text(frame).tolist() == ["not flammable", "no data", "not flammable", "no data", "12.0"]
     frame = pd.DataFrame({"flash_point_c": [None, None, None], "not_flammable": ["TRUE", " false ", "1"]})
     assert flash_point_text(frame).tolist() == ["not flammable", "no data", "not flammable"]
+
+
+def test_water_reactive_reagents_react_with_water_alcohols_and_amines():
+    # practitioner review: water + thionyl chloride read "MISCIBLE (confidence high)". Common
+    # practice: acid chlorides, thionyl and sulfuryl chloride, phosphoryl chloride and acetic
+    # anhydride hydrolyse exothermically with water (HCl, SO2 or acid) and acylate alcohols and
+    # amines; dimethyl sulfate hydrolyses and alkylates (from memory).
+    import selector
+
+    names = ["water", "ethanol", "triethylamine", "butylamine", "thionyl chloride", "acetyl chloride",
+             "benzoyl chloride", "sulfuryl chloride", "phosphoryl chloride", "acetic anhydride",
+             "dimethyl sulfate", "toluene", "hexane", "ethyl acetate"]
+    rows, m, reacts = _pair_screen(names)
+    for r in ("thionyl chloride", "acetyl chloride", "benzoyl chloride", "sulfuryl chloride",
+              "phosphoryl chloride", "acetic anhydride", "dimethyl sulfate"):
+        assert reacts("water", r) and reacts("ethanol", r), r
+        assert not reacts("toluene", r) and not reacts("hexane", r), r
+    assert reacts("acetyl chloride", "triethylamine") and reacts("acetic anhydride", "butylamine")
+    assert not reacts("ethyl acetate", "water")           # an ordinary ester is no reagent here
+    r = selector.miscibility("water", "thionyl chloride")
+    assert r.reacts and r.headline.endswith("but they react") and r.notes[0].startswith("REACTIVE PAIR")
+
+
+def test_mix_grid_marks_doubtful_and_reacting_cells(capsys):
+    # the README promises "?" on the pairs the models disagree on; "!" marks the reacting pairs
+    from selector.cli import main
+
+    assert main(["mix-grid", "water,acetyl chloride,1-methoxy-2-propanol,hexane"]) == 0
+    out = capsys.readouterr().out
+    grid = {ln.split()[0]: ln.split()[1:] for ln in out.splitlines() if ln.split() and ln.split()[0] in
+            ("water", "hexane")}
+    # columns: water, acetyl chloride, 1-methoxy-2-propanol, hexane
+    assert grid["water"][1].endswith("!") and not grid["water"][3].endswith(("!", "?"))
+    # PGME + hexane: Dortmund UNIFAC (thermo) splits what the HSP model mixes
+    assert grid["hexane"][2].endswith("?")
+    assert "? = uncertain or the models disagree, ! = they react" in out

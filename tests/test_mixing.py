@@ -243,7 +243,8 @@ def test_lcst_pairs_get_a_note():
     # Water-triethylamine has a lower critical solution temperature near 18.7 C (Sorensen & Arlt
     # 1979, from memory), outside a UCST model.
     r = miscibility("water", "triethylamine")
-    assert r.confidence == "low" and r.headline.startswith("uncertain (model: ")
+    # at 25 C, above that LCST, the record (two phases, parameters/miscibility_pairs.csv) answers
+    assert r.reference and r.answer != "miscible" and r.confidence == "high"
     assert any("lower critical" in n for n in r.notes)
     # the model's own UCST trend ("the gap narrows on heating") is the opposite of such a pair's
     # and must not be printed beside it (a reviewer read the two as a contradiction)
@@ -649,7 +650,12 @@ def test_matrix_names_the_pairs_whose_state_is_uncertain():
     # water + triethylamine by the water rule; PGME + hexane because Dortmund UNIFAC (thermo, the
     # reference library checked here) splits it where the HSP model does not; which of the two
     # is right for PGME + hexane we do not know, which is why the pair is flagged, not answered
-    assert m.attrs["uncertain_pairs"] == [("water", "triethylamine"), ("1-methoxy-2-propanol", "hexane")]
+    assert m.attrs["uncertain_pairs"] == [("1-methoxy-2-propanol", "hexane")]
+    # water + triethylamine is answered by its record instead: two phases above its LCST of about
+    # 18.7 C (Sorensen & Arlt, from memory; parameters/miscibility_pairs.csv), one phase below it
+    assert m.loc["water", "triethylamine"] != "miscible"
+    assert selector.miscibility_matrix(["water", "triethylamine"], temperature=10).loc["water", "triethylamine"] \
+        == "miscible"
     assert m.attrs["disagreeing_pairs"] == [("1-methoxy-2-propanol", "hexane", "UNIFAC (Dortmund)",
                                              "partially miscible")]
     for a, b in m.attrs["uncertain_pairs"]:
@@ -877,3 +883,25 @@ def test_no_recorded_answer_right_at_a_critical_temperature():
     r = miscibility("methanol", "hexane", temperature=44)
     assert not r.headline.endswith("(reference data)")
     assert any(n.startswith("at 25 C the reference data say partially miscible") for n in r.notes)
+
+
+def test_a_record_that_says_only_not_miscible_answers():
+    # practitioner review: ethylene glycol is practically insoluble in chlorinated hydrocarbons
+    # (Merck Index, from memory; parameters/miscibility_pairs.csv holds it as "no" without a
+    # state), yet the model's "miscible" was the answer, and blend design let the pair through
+    import selector
+
+    r = miscibility("ethylene glycol", "chloroform")
+    assert r.state == "miscible"                 # the model's own call, one it gets wrong
+    assert r.answer == "partially miscible" and r.reference_contradicts and r.confidence == "high"
+    assert "says only 'not miscible'" in r.reference["source"]
+    chk = selector.check_blend_miscible(["ethylene glycol", "chloroform"])
+    assert not chk.ok
+    m = selector.miscibility_matrix(["ethylene glycol", "chloroform", "toluene"])
+    assert m.loc["ethylene glycol", "chloroform"] != "miscible"
+    assert m.loc["ethylene glycol", "toluene"] != "miscible"   # Merck Index, from memory
+    # a split the model already calls keeps the model's kind of split
+    from selector.mixing import resolve_recorded
+
+    assert resolve_recorded("not miscible", "immiscible") == "immiscible"
+    assert resolve_recorded("miscible", "immiscible") == "miscible"

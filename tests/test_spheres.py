@@ -584,3 +584,19 @@ def test_one_mislabelled_test_is_named_and_the_centre_stays_in_the_target_box():
     # and the sphere it names is the clean fit's
     assert f"R0 {ok.radius:.1f}" in said[0] and f"dD {ok.delta_d:.1f}" in said[0]
     assert not any("decides" in w or "hangs on" in w for w in ok.warnings)
+
+
+def test_lab_tests_in_cal_units_are_refused_with_the_converted_values():
+    # practitioner review: tests typed with dD 7-9 fitted a sphere at dD 8.3 without a word; no
+    # liquid has dD below 11.3 MPa^0.5 (perfluoropentane, chemicals), 1 (cal/cm3)^0.5 = 2.0455
+    # MPa^0.5 (Hansen's handbook)
+    import pandas as pd
+
+    from selector.errors import InputTableError
+
+    tests = pd.DataFrame({"solvent": ["a", "b", "c", "d"], "delta_d": [7.6, 8.0, 9.0, 8.5],
+                          "delta_p": [2, 3, 4, 1], "delta_h": [3, 1, 5, 2],
+                          "dissolved": ["yes", "no", "yes", "no"]})
+    with pytest.raises(InputTableError, match=r"4 problems") as e:
+        selector.fit_sphere(tests)
+    assert "row 2 (a): dD 7.6 is lower than any liquid" in str(e.value) and "dD 15.5, dP 4.1, dH 6.1" in str(e.value)

@@ -224,3 +224,17 @@ def test_saving_keeps_the_files_separator_decimal_mark_encoding_and_line_ends(tm
     q = tmp_path / "new.csv"
     save_user_liquids(table, q)
     assert q.read_text(encoding="utf-8").splitlines()[1].startswith("resin thinner X (invented),17.1,3.2,5.5,120,")
+
+
+def test_a_user_row_in_cal_units_is_refused_with_the_converted_values():
+    # practitioner review: dD 7.6 loaded silently. No liquid has dD below 11.3 MPa^0.5
+    # (perfluoropentane, the library's lowest, from chemicals); 1 (cal/cm3)^0.5 = 2.0455 MPa^0.5
+    # (Hansen's handbook)
+    import selector
+    from selector.errors import InputTableError
+
+    with pytest.raises(InputTableError, match=r"dD 7\.6 is lower than any liquid.*dD 15\.5, dP 0\.0, dH 6\.1"):
+        selector.load_library(pd.DataFrame({"name": ["old sheet"], "delta_d": [7.6], "delta_p": [0.0],
+                                            "delta_h": [3.0]}))
+    lib = selector.load_library()
+    assert lib["delta_d"].min() >= 11.0   # the bound sits below every library liquid
