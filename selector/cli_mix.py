@@ -3,6 +3,7 @@ from __future__ import annotations
 
 import argparse
 import math
+import re
 
 from .cli_common import (CAUTION, add_filter_args, add_output_args,
                           emit, filters_from_args, library_from_args, number)
@@ -82,6 +83,10 @@ def cmd_mix(a) -> int:
               f"{one_figure(ab['mol_pct'])} mol %")
         print(f"    {r.b} in the {r.a}-rich phase: {one_figure(ba['vol_pct'])} vol %, {one_figure(ba['wt_pct'])} wt %, "
               f"{one_figure(ba['mol_pct'])} mol %")
+        src = (r.reference or {}).get("source", "")
+        if not contradicted and re.search(r"\d\s*wt\s*%", src):
+            # measured solubilities beat the model's, which are often off tenfold
+            print(f"    measured instead (reference data): {src}")
         lo, hi = r.spinodal
         print(f"  spinodal (volume fraction of {r.a}): {lo:.4f} .. {hi:.4f}")
     for n in r.notes:

@@ -456,25 +456,57 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
             merged.append(grp[0])
             continue
         verdicts = {g["good"] for g in grp}
-        if len(verdicts) > 1:
-            where = ", ".join(str(g["_row"]) for g in grp)
-            problems.append(f"rows {where} ({grp[0]['label']}): the same liquid is recorded both good "
-                            "and bad; re-test it or drop one row")
-            continue
+        where = ", ".join(str(g["_row"]) for g in grp)
         first = dict(grp[0])
         first["weight"] = float(np.mean([g["weight"] for g in grp]))
         if graded:
+            # replicate grades are averaged; the mean decides against the pass mark
             first["grade"] = float(np.mean([g["grade"] for g in grp]))
+            first["good"] = bool(first["grade"] >= thr)
+            if len(verdicts) > 1:
+                notes.append(f"rows {where} ({grp[0]['label']}): grades "
+                             + ", ".join(f"{g['grade']:g}" for g in grp)
+                             + f" straddle the pass mark {thr:g}; their mean {first['grade']:.3g} is used "
+                             f"({'good' if first['good'] else 'bad'}): a borderline liquid, worth re-testing")
+                merged.append(first)
+                continue
+        elif len(verdicts) > 1:
+            n_good = sum(g["good"] for g in grp)
+            n_bad = len(grp) - n_good
+            if n_good == n_bad:
+                problems.append(f"rows {where} ({grp[0]['label']}): the same liquid is recorded good "
+                                f"{plural(n_good, 'time')} and bad {plural(n_bad, 'time')}; re-test it, or drop "
+                                "the rows you trust least")
+                continue
+            first["good"] = n_good > n_bad
+            notes.append(f"rows {where} ({grp[0]['label']}): {n_good} good and {n_bad} bad results; the "
+                         f"majority ({'good' if first['good'] else 'bad'}) is used: a borderline liquid, "
+                         "worth re-testing")
+            merged.append(first)
+            continue
         merged.append(first)
         notes.append(f"{grp[0]['label']}: {len(grp)} consistent rows merged into one test")
+    # one name for two different liquids of the user's own (HSP given): a typing slip
+    given_keys: dict[str, set] = {}
+    for r in rows:
+        if r["kind"] == "given" and r["label"] and not r["label"].startswith("("):
+            given_keys.setdefault(r["label"].lower(), set()).add(r["_key"][1])
+    for lab, keys in sorted(given_keys.items()):
+        if len(keys) > 1:
+            at = ", ".join(str(r["_row"]) for r in rows if r["kind"] == "given" and r["label"].lower() == lab)
+            problems.append(f"rows {at}: the name {lab!r} is given to {len(keys)} different sets of HSP; give "
+                            "each liquid a name of its own")
     if not problems:
         if len(merged) < MIN_TESTS:
             problems.append(f"too few tests: {plural(len(merged), 'distinct liquid')}; a sphere has four "
                             f"parameters, so at least {MIN_TESTS} (better 15-40) are needed")
         n_good = sum(1 for r in merged if r["good"])
         if n_good < 2:
-            problems.append(f"only {plural(n_good, 'good result')}: at least two liquids that dissolve the "
-                            "solute are needed to place a sphere")
+            got = "no good result" if n_good == 0 else "only one good result"
+            if graded and n_good == 0:
+                top_grade = max(r["grade"] for r in merged) if merged else float("nan")
+                got = f"no grade reaches the pass mark {thr:g} (the highest given is {top_grade:g})"
+            problems.append(f"{got}: at least two liquids that dissolve the solute are needed to place a sphere")
     if problems:
         raise InputTableError("lab tests", problems)
     if no_alpha:
@@ -719,7 +751,16 @@ def _bootstrap(fit: _Fit, P, w, good, m, n_boot, rng, keep=150):
     gi = np.flatnonzero(good)
     bi = np.flatnonzero(~good)
     B = int(n_boot)
-    idx = np.concatenate([gi[rng.integers(0, len(gi), (B, len(gi)))],
+    gidx = gi[rng.integers(0, len(gi), (B, len(gi)))]
+    if len(gi) >= 2:
+        # a resample that repeats one good liquid only has no sphere to place (R0 would be 0):
+        # draw such rows again, so that the R0 interval does not reach down to an impossible 0
+        for _ in range(50):
+            one = np.all(gidx == gidx[:, :1], axis=1)
+            if not one.any():
+                break
+            gidx[one] = gi[rng.integers(0, len(gi), (int(one.sum()), len(gi)))]
+    idx = np.concatenate([gidx,
                           bi[rng.integers(0, len(bi), (B, len(bi)))] if len(bi) else np.zeros((B, 0), int)],
                          axis=1)
     Pb, wb, gb, mb = P[idx], w[idx], good[idx], m[idx]
