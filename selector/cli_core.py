@@ -144,8 +144,16 @@ def target_from_text(text: str, radius: float | None = None, library=None):
         as_target(nums)   # range and sign checks, with their messages
         return nums
     lib = load_library() if library is None else library
+    from .errors import NotLiquidError
+
     try:
         find_liquid(text, lib)   # names such as 1,4-dioxane contain commas and digits
+    except NotLiquidError:
+        # a solid with published HSP (sulfolane, tert-butanol) is a target by its published point
+        from .targets import as_target
+
+        t = as_target(text, lib)
+        return t if radius is None else __import__("dataclasses").replace(t, radius=radius)
     except SelectorError as err:
         if len(parts) > 1 and _is_number(parts[0]):
             raise SelectorError(f"{err}; as numbers, a target is 'dD,dP,dH' or 'dD,dP,dH,R0' in "

@@ -61,6 +61,26 @@ class GenericNameError(UnknownLiquidError):
         SelectorError.__init__(self, msg)
 
 
+class NotLiquidError(UnknownLiquidError):
+    """A compound of the published HSP tables that is not in the liquid library (solid at 25 C,
+    or without liquid property data): ``entry`` holds its published values (``name, cas, smiles,
+    delta_d, delta_p, delta_h, hsp_source``) so that it can still be a target."""
+
+    def __init__(self, query: str, entry: dict, why: str):
+        self.query = query
+        self.suggestions = []
+        self.entry = dict(entry)
+        self.why = why
+        e = self.entry
+        hsp = f"{e['delta_d']:g},{e['delta_p']:g},{e['delta_h']:g}"
+        msg = (f"{e['name']!r} ({e['cas']}) has published HSP (dD {e['delta_d']:g}, dP {e['delta_p']:g}, "
+               f"dH {e['delta_h']:g} MPa^0.5; {e['hsp_source']}) but is not in the liquid library: {why}. "
+               f"As a target to dissolve, give its name where a target is asked or the numbers "
+               f"(likewise rank {hsp}); to use it as a liquid (warm, or in a mixture), add it to your own "
+               f"liquids (likewise guess '{e['smiles']}' --save-mine my_liquids.csv)")
+        SelectorError.__init__(self, msg)
+
+
 class InputTableError(SelectorError):
     """A user table (CSV or DataFrame) with one or more problems, all reported at once."""
 

@@ -22,7 +22,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from .errors import GenericNameError, InputTableError, SelectorError, UnknownLiquidError
+from .errors import GenericNameError, InputTableError, NotLiquidError, SelectorError, UnknownLiquidError
 
 PARAMETERS_DIR = Path(__file__).resolve().parent.parent / "parameters"
 LIBRARY_CSV = PARAMETERS_DIR / "liquids.csv"
@@ -232,6 +232,46 @@ def _index_for(lib: pd.DataFrame) -> _Index:
     return idx
 
 
+@functools.lru_cache(maxsize=1)
+def _published_index() -> tuple[dict, pd.DataFrame]:
+    """Look-up key (name or CAS) -> row of the published HSP table of every compound
+    (``parameters/estimator/training_hsp.csv``, solids included), and the table itself."""
+    path = PARAMETERS_DIR / "estimator" / "training_hsp.csv"
+    if not path.exists():
+        return {}, pd.DataFrame()
+    t = pd.read_csv(path, keep_default_na=False, dtype={"cas": str})
+    keys: dict[str, int] = {}
+    for i, (n, c) in enumerate(zip(t["name"].astype(str), t["cas"].astype(str))):
+        for k in (_key(n), _key(c)):
+            if k:
+                keys.setdefault(k, i)
+    return keys, t
+
+
+def _not_a_liquid(query: str) -> NotLiquidError | None:
+    """A :class:`~selector.errors.NotLiquidError` for a name or CAS number of the published HSP
+    tables that the liquid library lacks (sulfolane melts at 27 C), or None."""
+    keys, t = _published_index()
+    i = keys.get(_key(query))
+    if i is None:
+        return None
+    r = t.iloc[i]
+    entry = {k: r[k] for k in ("name", "cas", "smiles", "hsp_source")}
+    entry.update({k: float(r[k]) for k in HSP})
+    why = "it has no liquid property data in thermo at 25 C"
+    try:
+        import chemicals
+
+        tm, tb = chemicals.Tm(entry["cas"]), chemicals.Tb(entry["cas"])
+    except Exception:  # noqa: BLE001 - no melting point known: the general reason stands
+        tm = tb = None
+    if tm is not None and tm >= 298.15:
+        why = f"it melts at {tm - 273.15:.1f} C (chemicals), so it is a solid at 25 C"
+    elif tb is not None and tb <= 298.15:
+        why = f"it boils at {tb - 273.15:.1f} C (chemicals), so it is a gas at 25 C"
+    return NotLiquidError(query, entry, why)
+
+
 def search(text: str, library: pd.DataFrame | None = None) -> pd.DataFrame:
     """Rows of ``library`` whose name, a synonym or the CAS number contains ``text`` (matched
     like :func:`locate`: case, spaces, hyphens and commas ignored), sorted by name, with a
@@ -281,6 +321,9 @@ def locate(query, library: pd.DataFrame | None = None) -> int:
         raise GenericNameError(q, *idx.generic[k])
     if k in idx.keys:
         return idx.keys[k]
+    solid = _not_a_liquid(q)
+    if solid is not None:
+        raise solid
     if _CAS_RE.match(q):
         raise UnknownLiquidError(q, [], is_cas=True)
     if _looks_like_smiles(q):

@@ -17,7 +17,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 import pandas as pd
 
-from .errors import SelectorError
+from .errors import NotLiquidError, SelectorError
 from .library import locate, load_library
 
 
@@ -171,7 +171,16 @@ def as_target(target, library: pd.DataFrame | None = None, name: str | None = No
         raise SelectorError("no target given: pass (delta_d, delta_p, delta_h[, R0]) or a liquid name")
     if isinstance(target, str):
         lib = load_library() if library is None else library
-        row = lib.iloc[locate(target, lib)]
+        try:
+            row = lib.iloc[locate(target, lib)]
+        except NotLiquidError as err:
+            # a solid of the published tables (sulfolane, an active ingredient) is a fine thing
+            # to dissolve: its published point is the target, taken as given
+            e = err.entry
+            return Target(e["delta_d"], e["delta_p"], e["delta_h"], None, name=str(e["name"]),
+                          source=f"published HSP ({e['hsp_source']}); not in the liquid library",
+                          notes=(f"{e['name']} is not in the liquid library ({err.why}): its published HSP are "
+                                 "the target, taken as given",))
         r0 = row.get("radius", None)  # a user solute may carry its own R0
         r0 = float(r0) if r0 is not None and isinstance(r0, (int, float)) and math.isfinite(r0) else None
         return Target(float(row.delta_d), float(row.delta_p), float(row.delta_h), r0,

@@ -312,6 +312,18 @@ def test_unknown_liquid_is_an_error_message(at):
     assert any("did you mean 'toluene'" in e for e in errors(at))
 
 
+def test_a_solid_with_published_hsp_becomes_the_target(at):
+    # sulfolane melts at 27.3 C (chemicals), so it is no library liquid; its published point
+    # (dD 20.3, dP 18.2, dH 10.9, parameters/estimator/training_hsp.csv) is a target to dissolve
+    target_way(at, "A library liquid")
+    at.text_input(key="tg_q").set_value("sulfolane")
+    at.button(key="tg_use_liq").click().run()
+    assert not at.exception and not errors(at)
+    t = at.session_state["lw_target"]
+    assert (t["name"], t["delta_d"], t["delta_p"], t["delta_h"]) == ("sulfolane", 20.3, 18.2, 10.9)
+    assert "published HSP" in t["source"]
+
+
 @pytest.mark.skipif(not has("estimation"), reason="selector.estimation not installed")
 def test_smiles_estimate_and_invalid_smiles(at):
     target_way(at, "Estimate from a structure (SMILES)")

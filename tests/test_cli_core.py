@@ -515,3 +515,13 @@ def test_show_prints_units_and_where_the_hazard_class_comes_from(capsys):
     assert lines["delta_d"].endswith("18.0 MPa^0.5")
     assert lines["hazard_class_default"].endswith("same (not revised)")
     assert "Hazard class: CHEM21 method" in out and "quoted from memory" in out
+
+
+def test_a_solid_with_published_hsp_is_a_target_on_the_command_line(capsys):
+    # sulfolane melts at 27.3 C (chemicals): not a library liquid, but a solute to dissolve by its
+    # published point (dD 20.3, dP 18.2, dH 10.9, parameters/estimator/training_hsp.csv)
+    rc, out, _ = run(["rank", "sulfolane", "--radius", "5", "--top", "3"], capsys)
+    assert rc == 0 and "Target sulfolane: dD 20.3, dP 18.2, dH 10.9 MPa^0.5, R0 5.0" in out
+    assert "NOTE: sulfolane is not in the liquid library (it melts at 27.3 C" in out
+    rc, _, err = run(["mix", "sulfolane", "water"], capsys)
+    assert rc == 2 and "has published HSP" in err and "likewise guess 'C1CCS(=O)(=O)C1' --save-mine" in err

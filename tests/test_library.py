@@ -1055,3 +1055,28 @@ def test_a_users_density_is_checked_and_kept_consistent_with_molar_volume(lib):
     assert row["molar_volume"] == pytest.approx(tol["molar_mass"] / 0.87, rel=1e-9)
     assert row["volume_method"] == selector.library.FROM_DENSITY and not row["molar_volume_estimated"]
     assert "molar_volume" not in row["filled_from_library"]
+
+
+def test_a_solid_of_the_published_tables_is_told_and_can_be_a_target(lib):
+    # practitioner review: sulfolane and tert-butanol were "unknown liquid", as if no HSP were
+    # published. Both are in the published tables (parameters/estimator/training_hsp.csv) but melt
+    # above 25 C (chemicals: 27.3 and 25.2 C), so they are not in the liquid library.
+    import chemicals
+
+    from selector.errors import NotLiquidError
+
+    with pytest.raises(NotLiquidError) as e:
+        locate("sulfolane", lib)
+    assert chemicals.Tm("126-33-0") > 298.15
+    msg = str(e.value)
+    assert "has published HSP (dD 20.3, dP 18.2, dH 10.9 MPa^0.5" in msg and "melts at 27.3 C" in msg
+    assert isinstance(e.value, UnknownLiquidError)            # callers that catch the general error
+    with pytest.raises(NotLiquidError, match="melts at 25.2 C"):
+        locate("75-65-0", lib)
+    # as a target, its published point
+    t = selector.as_target("sulfolane", lib)
+    assert t.hsp == pytest.approx((20.3, 18.2, 10.9)) and t.radius is None and "not in the liquid library" in t.notes[0]
+    res = selector.rank("sulfolane", top=3)
+    assert res.attrs["target"].name == "sulfolane" and (res["ra"] >= 0).all()
+    with pytest.raises(UnknownLiquidError, match="unknown liquid 'no such compound'"):
+        locate("no such compound", lib)

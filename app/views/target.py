@@ -82,7 +82,21 @@ if way == WAYS[1]:
     r0l = st.number_input("R0 (MPa½), optional", value=None, step=0.5, key="tg_r0l",
                           placeholder="none (a point)", help="must be positive; empty or 0 for a point")
     if st.button("Use this liquid", key="tg_use_liq", type="primary"):
-        row = common.call(selector.find_liquid, q2.strip() or q, common.library())
+        from selector.errors import NotLiquidError
+
+        try:
+            row = selector.find_liquid(q2.strip() or q, common.library())
+        except NotLiquidError:
+            # a solid of the published tables (sulfolane, tert-butanol): its published point, as given
+            row = None
+            t = selector.as_target(q2.strip() or q, common.library())
+            spec = {"kind": "typed", "name": t.name, "delta_d": t.delta_d, "delta_p": t.delta_p,
+                    "delta_h": t.delta_h, "radius": r0l or None, "source": t.source}
+            if _checked(spec):
+                common.set_target_and_rerun(spec, f"{t.name} is now the target. {common.ui_units(t.notes[0])}")
+        except common.ERRORS as e:
+            row = None
+            common.show_error(e)
         if row is not None:
             from selector.library import estimate_note
 
