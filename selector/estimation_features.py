@@ -176,16 +176,20 @@ def check_molecule(smiles) -> tuple[object | None, str]:
     mol = Chem.MolFromSmiles(s)
     if mol is None:
         return None, "not a valid SMILES (RDKit could not read it)"
-    if "." in s or len(Chem.GetMolFrags(mol)) > 1:
-        return None, ("several disconnected parts (a salt or a mixture); estimate each neutral "
-                      "component on its own")
     if mol.GetNumAtoms() == 0:
         return None, "empty molecule"
     symbols = {a.GetSymbol() for a in mol.GetAtoms()}
     others = sorted(symbols - ORGANIC_ELEMENTS)
+    outside = (f"contains {', '.join(others)}: metals and most inorganic elements are outside what the "
+               "training tables cover (only C H N O S P F Cl Br I Si B)")
+    if "." in s or len(Chem.GetMolFrags(mol)) > 1:
+        # ferrocene written as ions is a metal compound, not a salt to split: say both
+        if others:
+            return None, f"several disconnected parts (a salt or a mixture) and {outside}"
+        return None, ("several disconnected parts (a salt or a mixture); estimate each neutral "
+                      "component on its own")
     if others:
-        return None, (f"contains {', '.join(others)}: metals and most inorganic elements are outside "
-                      "what the training tables cover (only C H N O S P F Cl Br I Si B)")
+        return None, outside
     if "C" not in symbols:
         return None, "no carbon atom: inorganic compounds are outside what the model covers"
     charge = sum(a.GetFormalCharge() for a in mol.GetAtoms())

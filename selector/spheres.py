@@ -323,6 +323,7 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
     lib_estimated = hsp_estimated(lib)   # a liquid of your own whose HSP are estimated from structure
     no_alpha = []
     boiling = []
+    grades_without_mark: list = []
     for i, r in enumerate(df.to_dict(orient="records")):
         where = f"row {i + 2}"
         label = "" if "solvent" not in df.columns or _blank(r.get("solvent")) else str(r["solvent"]).strip()
@@ -426,11 +427,11 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
         else:
             good = _parse_binary(v)
             if good is None:
-                g = _to_float(v)
-                hint = (" (numeric grades need a pass mark: threshold= in Python, --pass-mark on the "
-                        "command line, Grades in the score column in the app)"
-                        if g is not None else " (use good/bad, yes/no, true/false or 1/0)")
-                problems.append(f"{where}: cannot read the outcome {v!r}{hint}")
+                if _to_float(v) is not None:
+                    grades_without_mark.append((i + 2, v))   # told once, below
+                else:
+                    problems.append(f"{where}: cannot read the outcome {v!r} (use good/bad, yes/no, "
+                                    "true/false or 1/0)")
                 ok = False
         # --- weight
         w = 1.0
@@ -446,6 +447,12 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
                              delta_h=float(hsp[2]), good=bool(good), grade=grade, weight=w,
                              temperature=t, kind=kind, liquid_index=lib_index, _key=key,
                              _row=i + 2))
+    if grades_without_mark:
+        shown = ", ".join(f"{n} ({v!r})" for n, v in grades_without_mark[:6])
+        more = f" and {len(grades_without_mark) - 6} more" if len(grades_without_mark) > 6 else ""
+        problems.append(f"rows {shown}{more}: numeric grades in the outcome column ({col}) need a pass mark "
+                        "(threshold= in Python, --pass-mark on the command line, Grades in the score column "
+                        "in the app): the lowest grade that counts as dissolved")
     # --- duplicates
     merged = []
     groups: dict = {}

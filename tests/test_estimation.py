@@ -50,6 +50,8 @@ def training():
     ("CCO.O", "salt or a mixture"),                 # ethanol-water mixture
     ("CC[Sn](CC)(CC)CC", "Sn"),                     # tetraethyltin: a metal
     ("[Fe]", "Fe"),
+    # ferrocene written as ions: a metal compound, so the metal is named (practitioner review)
+    ("[CH-]1C=CC=C1.[CH-]1C=CC=C1.[Fe+2]", "contains Fe"),
     ("O=S=O", "no carbon"),                         # sulfur dioxide: inorganic
     ("C[N+](C)(C)C", "net charge +1"),              # tetramethylammonium cation
     ("CC(=O)[O-]", "net charge -1"),                # acetate anion

@@ -1080,3 +1080,17 @@ def test_a_solid_of_the_published_tables_is_told_and_can_be_a_target(lib):
     assert res.attrs["target"].name == "sulfolane" and (res["ra"] >= 0).all()
     with pytest.raises(UnknownLiquidError, match="unknown liquid 'no such compound'"):
         locate("no such compound", lib)
+
+
+def test_ambiguous_abbreviations_are_answered_with_both_meanings(lib):
+    # practitioner review: "TEA" got "did you mean 'tetranitromethane'". Common practice: TEA is
+    # written for triethylamine and for triethanolamine, DEA for diethylamine and diethanolamine
+    with pytest.raises(selector.GenericNameError) as e:
+        locate("TEA", lib)
+    assert set(e.value.suggestions) == {"triethylamine", "triethanolamine"}
+    with pytest.raises(selector.GenericNameError) as e:
+        locate("DEA", lib)
+    assert e.value.suggestions == ["diethylamine"] and e.value.missing == ["diethanolamine"]
+    # commercial dipropylene glycol (25265-71-8, chemicals) is an isomer mixture
+    with pytest.raises(selector.GenericNameError, match="mixture of three isomers"):
+        locate("25265-71-8", lib)

@@ -631,3 +631,13 @@ def test_one_name_for_two_sets_of_given_hsp_is_refused():
                        "outcome": [1, 0, 0, 0, 1, 1]})
     with pytest.raises(InputTableError, match="the name 'mine' is given to 2 different sets of HSP"):
         read_tests(df)
+
+
+def test_grades_without_a_pass_mark_are_told_once():
+    # practitioner review: `--outcome score` without `--pass-mark` repeated one message per row
+    grades = pd.DataFrame({"solvent": ["water", "hexane", "acetone", "ethanol", "chloroform", "toluene"],
+                           "score": [2, 3, 5, 4, 6, 5]})
+    with pytest.raises(InputTableError) as e:
+        read_tests(grades, outcome="score")
+    msg = str(e.value)
+    assert "1 problem" in msg and msg.count("need a pass mark") == 1 and "rows 2 (2), 3 (3)" in msg
