@@ -17,13 +17,9 @@ import pytest
 import selector
 from selector.report import build_report, caution_table, flammability_category
 
-ROOT = Path(__file__).resolve().parent.parent
-ENTRY = str(ROOT / "app" / "likewise_app.py")
-# Polystyrene sphere (dD 21.3, dP 5.8, dH 4.3, R0 12.7 MPa^0.5), from memory of Hansen's
-# handbook (2nd ed., 2007), as in tests/test_ranking.py.
-PS = (21.3, 5.8, 4.3, 12.7)
-
 AppTest = pytest.importorskip("streamlit.testing.v1").AppTest
+
+from app_support import ENTRY, PS, ROOT, go, start_app  # noqa: E402
 
 
 def has(module: str) -> bool:
@@ -38,16 +34,7 @@ def home(tmp_path, monkeypatch):
 
 @pytest.fixture
 def at(home):
-    a = AppTest.from_file(ENTRY, default_timeout=60)
-    a.run()
-    assert not a.exception, [e.value for e in a.exception]
-    return a
-
-
-def go(at, page: str):
-    at.switch_page(f"views/{page}.py").run()
-    assert not at.exception, [e.value for e in at.exception]
-    return at
+    return start_app(home)
 
 
 def errors(at):

@@ -7,8 +7,6 @@ to differ from liquid to liquid so that a cost-versus-Ra front exists.
 """
 from __future__ import annotations
 
-import re
-from pathlib import Path
 
 import numpy as np
 import pandas as pd
@@ -17,13 +15,9 @@ import pytest
 import selector
 from selector.blends import blend_labels
 
-ROOT = Path(__file__).resolve().parent.parent
-ENTRY = str(ROOT / "app" / "likewise_app.py")
-# Polystyrene sphere (dD 21.3, dP 5.8, dH 4.3, R0 12.7 MPa^0.5), from memory of Hansen's
-# handbook (2nd ed., 2007), as in tests/test_app.py and tests/test_ranking.py.
-PS = (21.3, 5.8, 4.3, 12.7)
+pytest.importorskip("streamlit.testing.v1")
 
-AppTest = pytest.importorskip("streamlit.testing.v1").AppTest
+from app_support import PS, go, plain_errors as errors, start_app  # noqa: E402
 pytestmark = pytest.mark.skipif(not __import__("importlib").util.find_spec("selector.blends"),
                                 reason="selector.blends not installed")
 
@@ -39,26 +33,11 @@ def csv_bytes(prices: dict, basis: str = "cost_per_litre") -> bytes:
     return ("name," + basis + "\n" + "".join(f"{n},{'' if v is None else v}\n" for n, v in prices.items())).encode()
 
 
-# ---------------------------------------------------------------- fixtures and helpers (from test_app.py)
+# ---------------------------------------------------------------- fixtures
 
 @pytest.fixture
 def at(tmp_path, monkeypatch):
-    monkeypatch.setenv("LIKEWISE_HOME", str(tmp_path))
-    a = AppTest.from_file(ENTRY, default_timeout=60)
-    a.run()
-    assert not a.exception, [e.value for e in a.exception]
-    return a
-
-
-def go(at, page: str):
-    at.switch_page(f"views/{page}.py").run()
-    assert not at.exception, [e.value for e in at.exception]
-    return at
-
-
-def errors(at):
-    """Error messages as plain text (the page backslash-escapes Markdown characters)."""
-    return [re.sub(r"\\(.)", r"\1", e.value) for e in at.error]
+    return start_app(tmp_path, monkeypatch)
 
 
 def blends_page_for_polystyrene(at):
