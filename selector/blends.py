@@ -212,6 +212,17 @@ def _miscibility(cand, temperature):
     return np.asarray(miscible_pairs(cand, temperature=temperature), dtype=bool)
 
 
+def _reacting_pairs(cand) -> list[tuple[str, str]]:
+    """The pairs of candidates that the pair screen keeps out of every blend
+    (:func:`selector.cautions.reactive_pair_matrix`), as name pairs."""
+    from .cautions import reactive_pair_matrix
+
+    m = reactive_pair_matrix(cand)
+    i, j = np.nonzero(np.triu(m, 1))
+    names = cand["name"].astype(str).to_numpy()
+    return [(names[a], names[b]) for a, b in zip(i, j)]
+
+
 def _allowed_pairs(cand, temperature, k, require_miscible, include_reactive):
     """(n, n) bool of the pairs that may be blended, or None for "all": miscible (when asked) and,
     unless ``include_reactive``, not a pair that reacts (:func:`selector.cautions.reactive_pair_matrix`:
@@ -517,12 +528,14 @@ def _display_order(res):
 
 
 def _diverse(order_keys, idx, max_uses, top):
-    """Greedy pick in the given order, each liquid used at most ``max_uses`` times."""
+    """Greedy pick in the given order, each liquid used at most ``max_uses`` times in blends; a
+    liquid on its own is never held back by its blends (the drop-in replacement a formulator
+    looks for first: gamma-butyrolactone for NMP was hidden behind three of its blends)."""
     uses: dict[int, int] = {}
     picked = []
     for p in order_keys:
         comps = [c for c in idx[p] if c >= 0]
-        if any(uses.get(c, 0) >= max_uses for c in comps):
+        if len(comps) > 1 and any(uses.get(c, 0) >= max_uses for c in comps):
             continue
         for c in comps:
             uses[c] = uses.get(c, 0) + 1
@@ -530,6 +543,29 @@ def _diverse(order_keys, idx, max_uses, top):
         if top is not None and len(picked) >= top:
             break
     return np.array(picked, dtype=int)
+
+
+#: Single liquids a substitute table always shows (the best by score), when blends would crowd
+#: them out: the drop-in replacement is what a formulator tries first.
+MIN_SINGLES = 3
+
+
+def _with_best_singles(pick, order, idx, top, n=MIN_SINGLES):
+    """``pick`` with the best ``n`` single liquids (in ``order``) in it: missing ones take the
+    places of the last-picked blends, and the table keeps its score order."""
+    single = (np.asarray(idx) >= 0).sum(1) == 1
+    best = [int(p) for p in order if single[p]][:n]
+    missing = [p for p in best if p not in set(pick.tolist())]
+    if not missing:
+        return pick
+    keep = list(pick)
+    for p in missing:
+        blends = [k for k, q in enumerate(keep) if not single[q]]
+        if top is not None and len(keep) >= top and blends:
+            keep.pop(blends[-1])
+        keep.append(p)
+    rank_of = {int(p): r for r, p in enumerate(order)}
+    return np.array(sorted(keep, key=rank_of.get), dtype=int)
 
 
 def _target_and_candidates(target, library, temperature, filters, costs=None, cost_basis="cost_per_litre"):
@@ -546,7 +582,7 @@ def _target_and_candidates(target, library, temperature, filters, costs=None, co
     if costs is not None:
         cost_full, notes = _costs(costs, lib, cost_basis)
         priced = np.isfinite(cost_full)
-        notes = notes + _priced_left_out(lib, priced & ~mask, filters)
+        notes = notes + _priced_left_out(lib, priced & ~mask, filters, t_c)
         mask &= priced
         cost = cost_full[mask]
     cand = lib.loc[mask].reset_index(drop=True)
@@ -578,6 +614,9 @@ def read_price_list(source, what: str | None = None) -> dict[str, pd.DataFrame]:
     t = read_user_csv(source, what=label, strict_rows="longer")
     cols = {str(c).strip().lower(): c for c in t.columns}
     bases = [b for b in COST_BASES if b in cols]
+    if len(bases) == 2:
+        raise SelectorError(f"{label} gives both cost_per_litre and cost_per_kg: keep one column (prices per "
+                            "kg are turned into prices per litre with each liquid's density)")
     if "name" not in cols or len(bases) != 1:
         raise SelectorError(f"{label} needs columns name and one of cost_per_litre, cost_per_kg "
                             f"(found {', '.join(map(str, t.columns)) or 'no columns'})")
@@ -599,7 +638,8 @@ def price_error_named(err: Exception, label: str) -> Exception | None:
     return None
 
 
-def _priced_left_out(lib: pd.DataFrame, out: np.ndarray, filters: dict) -> list[str]:
+def _priced_left_out(lib: pd.DataFrame, out: np.ndarray, filters: dict,
+                     temperature: float | None = None) -> list[str]:
     """Notes on priced liquids that are not candidates: reagents (with their reason) and those the
     conditions leave out (filters, not liquid at the use temperature, the target itself), so that
     a price list never loses a liquid without a word."""
@@ -614,6 +654,16 @@ def _priced_left_out(lib: pd.DataFrame, out: np.ndarray, filters: dict) -> list[
         reag[:] = False
     notes = [f"{names[i]} left out as a reagent, {why[i]} (include_reactive, --include-reactive or the app's Include reagents brings it back)" for i in np.flatnonzero(reag)]
     rest = np.flatnonzero(out & ~reag)
+    if len(rest) and temperature is not None:
+        bp = pd.to_numeric(lib["boiling_point_c"], errors="coerce").to_numpy(float)
+        mp = pd.to_numeric(lib.get("melting_point_c", pd.Series(np.nan, index=lib.index)), errors="coerce").to_numpy(float)
+        with np.errstate(invalid="ignore"):
+            boils, solid = rest[bp[rest] < temperature], rest[mp[rest] > temperature]
+        notes += [f"{names[i]} left out: it boils at {bp[i]:.0f} C, below the use temperature {temperature:g} C"
+                  for i in boils]
+        notes += [f"{names[i]} left out: it melts at {mp[i]:.0f} C, above the use temperature {temperature:g} C"
+                  for i in solid]
+        rest = np.setdiff1d(rest, np.concatenate([boils, solid]))
     if len(rest):
         shown = ", ".join(names[rest[:8]]) + (f" and {len(rest) - 8} more" if len(rest) > 8 else "")
         notes.append(f"priced but left out by the conditions (filters, liquid range at the use temperature, "
@@ -843,8 +893,10 @@ def estimated_density_note(table: pd.DataFrame, library: pd.DataFrame) -> str:
     if not names:
         return ""
     shown = ", ".join(names[:6]) + (f" and {len(names) - 6} more" if len(names) > 6 else "")
-    return (f"Densities of {shown} are estimated, not measured (typically 2-4 % off, up to about 10 %): "
-            "by_mass shares and prices per kg carry that error; weigh with the supplier's density.")
+    one = len(names) == 1
+    return (f"{'Density' if one else 'Densities'} of {shown} {'is' if one else 'are'} estimated, not measured "
+            "(typically 2-4 % off, up to about 10 %): by_mass shares and prices per kg carry that error; "
+            "weigh with the supplier's density.")
 
 
 def _pareto(ra, cost):
@@ -967,6 +1019,7 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
 
     require_miscible = as_flag(require_miscible, "require_miscible")
     mis = _allowed_pairs(cand, t_c, kmax, require_miscible, bool(filters.get("include_reactive")))
+    reacting = _reacting_pairs(cand) if kmax >= 2 and not filters.get("include_reactive") else []
     pool = max(2000, 50 * (top or 20))
     from .hazards import hazard_columns
 
@@ -985,7 +1038,15 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     full = _table(tgt, cand, h, res["idx"], res["f"], res["ra"], t_c, cost)
     out = full.iloc[pick].reset_index(drop=True)
     if cost is not None:
-        par = _pareto(full["ra"].to_numpy(), full[basis].to_numpy())
+        # with a sphere, the front is over the blends inside it (RED <= 1): a cheap liquid that does
+        # not dissolve the solute (water at RED 9.6) is no end of a cost-versus-Ra trade-off
+        inside = (full["red"].to_numpy(float) <= 1.0) if tgt.radius is not None else np.ones(len(full), bool)
+        if not inside.any():
+            inside[:] = True
+            price_notes = price_notes + ["no priced blend lies inside the sphere (RED <= 1): the cost front is "
+                                         "over all of them"]
+        par = np.zeros(len(full), bool)
+        par[np.flatnonzero(inside)] = _pareto(full["ra"].to_numpy()[inside], full[basis].to_numpy()[inside])
         out["pareto"] = par[pick]
         out.attrs["pareto"] = full.loc[par].sort_values("ra", kind="stable").reset_index(drop=True)
     from .cautions import heated_notes
@@ -999,7 +1060,7 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     out.attrs.update(target=tgt, temperature=t_c, caution=CAUTION, min_fraction=m,
                      miscibility=("single liquids: no pairs" if kmax < 2 else
                                   "selector.mixing.miscible_pairs" if require_miscible else "not checked"),
-                     candidates=len(cand), mixing_warning=mixing_warning(out))
+                     candidates=len(cand), mixing_warning=mixing_warning(out), reacting_pairs=reacting)
     if prices is not None:
         out.attrs["price_notes"] = price_notes
         out.attrs["cost_basis"] = basis
@@ -1014,7 +1075,8 @@ def mixing_warning(table: pd.DataFrame) -> str:
     n = int(table["mixing_note"].fillna("").astype(str).ne("").sum())
     if not n:
         return ""
-    return (f"{n} of these rows {'holds' if n == 1 else 'hold'} a pair that the HSP model calls miscible and UNIFAC does not "
+    return (f"{n} of these rows {'holds' if n == 1 else 'hold'} a pair that the HSP model calls miscible and UNIFAC "
+            "does not, or that the model is unsure of with no UNIFAC opinion "
             "(mixing_note): test a small mix of those first")
 
 
@@ -1029,6 +1091,7 @@ def second_opinion_notes(components, table: pd.DataFrame, temperature: float = 2
     notes = []
     for comps in components:
         found = []
+        unsure = []
         for i in range(len(comps)):
             for j in range(i + 1, len(comps)):
                 a, b = by_name.loc[comps[i]], by_name.loc[comps[j]]
@@ -1037,9 +1100,34 @@ def second_opinion_notes(components, table: pd.DataFrame, temperature: float = 2
                 so = second_opinion_of(a, b, temperature)
                 if so.get("state") and so["state"] != "miscible":
                     found.append(f"{comps[i]} + {comps[j]} {so['state']}")
-        notes.append(f"UNIFAC, pair by pair: {'; '.join(found)} (the HSP model: miscible); test a small mix"
-                     if found else "")
+                elif not so.get("state"):
+                    # no second opinion: say so where the model itself is unsure
+                    p = _model_p_miscible(comps[i], comps[j], table, temperature)
+                    if p < UNSURE_P_MISCIBLE:
+                        unsure.append(f"{comps[i]} + {comps[j]} ({p:.0%} chance of one phase, no UNIFAC opinion)")
+        parts = []
+        if found:
+            parts.append(f"UNIFAC, pair by pair: {'; '.join(found)} (the HSP model: miscible)")
+        if unsure:
+            parts.append(f"the HSP model is unsure of {'; '.join(unsure)}")
+        notes.append("; ".join(parts) + "; test a small mix" if parts else "")
     return notes
+
+
+#: Below this model probability of one phase, a blend pair that UNIFAC cannot judge is noted.
+UNSURE_P_MISCIBLE = 0.7
+
+
+def _model_p_miscible(a: str, b: str, table: pd.DataFrame, temperature: float) -> float:
+    """The HSP model's probability that liquids ``a`` and ``b`` of ``table`` mix in all
+    proportions at ``temperature`` (:func:`selector.mixing.miscibility`, its own answer)."""
+    from .mixing import miscibility
+
+    try:
+        return float(miscibility(a, b, temperature=temperature, library=table, unifac=False,
+                                 reference=False).p_miscible)
+    except SelectorError:
+        return 1.0
 
 
 # ---------------------------------------------------------------- substitutes
@@ -1238,6 +1326,7 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     en_shown = bool(has_en[pick].any()) if len(pick) else False
     if len(en):
         pick = _diverse(order[~has_en[order]], res["idx"], max_uses, top)
+    pick = _with_best_singles(pick, order if not len(en) else order[~has_en[order]], res["idx"], top)
     out = tab.iloc[pick].copy()
     out["role"] = "substitute"
     xtab["mismatch"] = 0.0

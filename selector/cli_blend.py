@@ -76,6 +76,7 @@ def cmd_blend(a) -> int:
               + target_notes(tgt))
     if res.attrs.get("mixing_warning"):
         header += "\n" + res.attrs["mixing_warning"]
+    header += reacting_line(res.attrs.get("reacting_pairs", []))
     if res.attrs.get("price_notes"):
         header += "\nPrices: " + "; ".join(res.attrs["price_notes"])
     header += BY_MASS_NOTE
@@ -96,6 +97,18 @@ def cmd_blend(a) -> int:
     return 0
 
 
+def reacting_line(pairs) -> str:
+    """Header line naming the pairs of candidates that are never blended because they react
+    (up to eight; a count beyond), "" when none."""
+    if not pairs:
+        return ""
+    if len(pairs) > 8:
+        return (f"\n{len(pairs)} pairs of these candidates react (acid + amine, amine + ester or ketone, ...) "
+                "and are never blended (pair screen; likewise mix A B says why)")
+    shown = ", ".join(f"{a} + {b}" for a, b in pairs)
+    return f"\nNever blended, as they react (pair screen; likewise mix A B says why): {shown}"
+
+
 def _front_line(res, listing: bool = False) -> str:
     """Header line on the cost-versus-Ra front: its size, its cheapest and best rows, and how many
     of its rows the table leaves out (``--max-uses``, ``--top``); ``listing``: the table is the
@@ -107,13 +120,15 @@ def _front_line(res, listing: bool = False) -> str:
     lab = blend_labels(front, "volume")
     cheap = int(front[basis].to_numpy(float).argmin())
     shown = int(res["pareto"].sum())
-    line = (f"\nCost-versus-Ra front (pareto): {len(front)} blends, from {lab[0]} (Ra {front['ra'].iloc[0]:.3f}, "
+    where = " inside the sphere (RED <= 1)" if getattr(res.attrs.get("target"), "radius", None) else ""
+    line = (f"\nCost-versus-Ra front (pareto){where}: {len(front)} blends, from {lab[0]} (Ra {front['ra'].iloc[0]:.3f}, "
             f"{front[basis].iloc[0]:.3f} {unit}) to the cheapest, {lab[cheap]} (Ra {front['ra'].iloc[cheap]:.3f}, "
             f"{front[basis].iloc[cheap]:.3f} {unit})")
     if listing:
         line += "; the table lists all of them, best Ra first (--top does not apply)"
     elif shown < len(front):
-        line += f"; {len(front) - shown} of them are not in this table (--front lists them all)"
+        gone = len(front) - shown
+        line += f"; {gone} of them {'is' if gone == 1 else 'are'} not in this table (--front lists them all)"
     return line
 
 

@@ -61,6 +61,18 @@ class GenericNameError(UnknownLiquidError):
         SelectorError.__init__(self, msg)
 
 
+class PolymerNameError(UnknownLiquidError):
+    """The name of a polymer ("polystyrene"): no liquid, and not its monomer either."""
+
+    def __init__(self, query: str):
+        self.query = query
+        self.suggestions = []
+        SelectorError.__init__(self, (
+            f"{query!r} names a polymer, not a liquid (the library does not read it as its monomer): "
+            "a polymer is a target to dissolve - give its sphere as numbers, dD,dP,dH,R0 in MPa^0.5 from "
+            "a data sheet or the literature, or fit it from your own lab tests (likewise sphere)"))
+
+
 class NotLiquidError(UnknownLiquidError):
     """A compound of the published HSP tables that is not in the liquid library (solid at 25 C,
     or without liquid property data): ``entry`` holds its published values (``name, cas, smiles,

@@ -22,7 +22,8 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from .errors import GenericNameError, InputTableError, NotLiquidError, SelectorError, UnknownLiquidError
+from .errors import (GenericNameError, InputTableError, NotLiquidError, PolymerNameError, SelectorError,
+                     UnknownLiquidError)
 
 PARAMETERS_DIR = Path(__file__).resolve().parent.parent / "parameters"
 LIBRARY_CSV = PARAMETERS_DIR / "liquids.csv"
@@ -169,6 +170,18 @@ def _key(text: str) -> str:
     return re.sub(r"[\s\-_,'’′″\u2010-\u2015\u2212]+", "", t)
 
 
+#: Trade names that start with "poly" but name the liquid itself (glycol ether and plasticiser brands).
+_POLY_TRADE_NAMES = ("poly-solv", "polysolv", "polycizer")
+
+
+def _polymer_synonym(synonym: str, name: str) -> bool:
+    """True for a synonym that names a polymer of the liquid ("polystyrene" among styrene's, from
+    chemicals): looking it up must not find the monomer, whose HSP are far from the polymer's."""
+    s = synonym.strip().lower()
+    return (s.startswith("poly") and not name.strip().lower().startswith("poly")
+            and not s.startswith(_POLY_TRADE_NAMES))
+
+
 class _Index:
     def __init__(self, lib: pd.DataFrame):
         self.keys: dict[str, int] = {}
@@ -184,7 +197,7 @@ class _Index:
         if "synonyms" in lib.columns:
             for i, syn in zip(pos, lib["synonyms"].astype(str).tolist()):
                 for s in syn.split("|"):
-                    if s:
+                    if s and not _polymer_synonym(s, names[i]):
                         self.keys.setdefault(_key(s), int(i))
         cas_pos = {c: int(i) for i, c in zip(pos, cas) if c}
         for k, c in _aliases().items():
@@ -263,9 +276,16 @@ def _not_a_liquid(query: str) -> NotLiquidError | None:
         import chemicals
 
         tm, tb = chemicals.Tm(entry["cas"]), chemicals.Tb(entry["cas"])
+        tm_methods = chemicals.Tm_methods(entry["cas"]) or []
     except Exception:  # noqa: BLE001 - no melting point known: the general reason stands
         tm = tb = None
-    if tm is not None and tm >= 298.15:
+        tm_methods = []
+    if tm is not None and tm >= 298.15 and tm_methods[:1] == ["JOBACK"]:
+        # an estimate only (N-butylpyrrolidinone: 26 C by Joback, a liquid by its data sheets)
+        why = (f"chemicals has only an estimated melting point for it, {tm - 273.15:.1f} C (Joback's "
+               "group contributions), which puts it above 25 C; if the data sheet says it is a liquid, "
+               "the estimate is wrong")
+    elif tm is not None and tm >= 298.15:
         why = f"it melts at {tm - 273.15:.1f} C (chemicals), so it is a solid at 25 C"
     elif tb is not None and tb <= 298.15:
         why = f"it boils at {tb - 273.15:.1f} C (chemicals), so it is a gas at 25 C"
@@ -324,6 +344,8 @@ def locate(query, library: pd.DataFrame | None = None) -> int:
     solid = _not_a_liquid(q)
     if solid is not None:
         raise solid
+    if k.startswith("poly") and not k.startswith(tuple(_key(t) for t in _POLY_TRADE_NAMES)):
+        raise PolymerNameError(q)
     if _CAS_RE.match(q):
         raise UnknownLiquidError(q, [], is_cas=True)
     if _looks_like_smiles(q):

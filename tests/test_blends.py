@@ -448,9 +448,12 @@ def test_prices_per_kg_are_turned_into_prices_per_litre_with_the_density():
     for r in res.itertuples():   # a blend's cost per kg is the mass-weighted price per kg
         assert r.cost_per_kg == pytest.approx(sum(w * per_kg[c] for c, w in zip(r.components, r.mass_fractions)))
     # the front is on the basis the prices came in, best Ra first, and holds the cheapest blend
+    # that dissolves (RED <= 1: ethanol alone, the cheapest, lies outside the polystyrene sphere)
     front = res.attrs["pareto"]
-    assert front["ra"].is_monotonic_increasing
-    assert front["cost_per_kg"].min() == pytest.approx(res["cost_per_kg"].min())
+    assert front["ra"].is_monotonic_increasing and (front["red"] <= 1).all()
+    inside = res.loc[res["red"] <= 1]
+    assert front["cost_per_kg"].min() == pytest.approx(inside["cost_per_kg"].min())
+    assert res["cost_per_kg"].min() < inside["cost_per_kg"].min()
     with pytest.raises(SelectorError, match="not both"):
         find_blends(PS, cost_per_kg=per_kg, cost_per_litre=per_kg)
 
@@ -887,3 +890,58 @@ def test_a_priced_liquid_that_cannot_be_a_candidate_is_named():
     assert not any("toluene" in n or "anisole" in n for n in notes)
     used = {c for cs in res["components"] for c in cs}
     assert used <= {"toluene", "acetone", "anisole"}
+
+
+def test_substitutes_always_show_the_best_single_liquids():
+    # practitioner review: `replace NMP` showed 20 blends and no single liquid, though
+    # gamma-butyrolactone alone scored better than the last blend shown; a drop-in replacement
+    # is what a formulator tries first (common practice)
+    from selector.blends import MIN_SINGLES, substitutes
+
+    mixed = substitutes("NMP", top=20)
+    alone = substitutes("NMP", max_components=1, top=MIN_SINGLES)
+    best = [c[0] for c in alone.loc[alone["role"] == "substitute", "components"]]
+    shown = [c[0] for c in mixed.loc[mixed["role"] == "substitute", "components"] if len(c) == 1]
+    assert len(best) == MIN_SINGLES and set(best) <= set(shown)
+    sub = mixed.loc[mixed["role"] == "substitute"]
+    assert len(sub) == 20 and sub["score"].is_monotonic_increasing
+
+
+def test_the_blend_header_names_the_reacting_pairs_left_out(capsys):
+    # practitioner review: morpholine + cyclohexanone (a secondary amine and a ketone condense,
+    # enamine chemistry: common practice) was left out without a word
+    assert main(["blend", "18.5,8,8,5", "--only", "morpholine,cyclohexanone,ethanol", "--parts", "2"]) == 0
+    out = capsys.readouterr().out
+    assert "Never blended, as they react (pair screen; likewise mix A B says why): cyclohexanone + morpholine" in out
+    res = selector.find_blends((18.5, 8, 8, 5), include=["morpholine", "cyclohexanone", "ethanol"], max_components=2)
+    assert res.attrs["reacting_pairs"] == [("cyclohexanone", "morpholine")]
+    assert not any(set(c) == {"morpholine", "cyclohexanone"} for c in res["components"])
+
+
+def test_a_blend_pair_the_model_is_unsure_of_says_so():
+    # practitioner review: 82 % benzonitrile + 18 % ethylene glycol, the one "recommended" NMP blend,
+    # rested on a pair the model gives about even odds (mix: MISCIBLE, confidence low) with no
+    # UNIFAC parameters, and its mixing_note was blank
+    from selector.blends import UNSURE_P_MISCIBLE, second_opinion_notes
+
+    lib = selector.load_library()
+    m = selector.miscibility("benzonitrile", "ethylene glycol", unifac=False, reference=False)
+    assert m.state == "miscible" and m.p_miscible < UNSURE_P_MISCIBLE
+    note = second_opinion_notes([("benzonitrile", "ethylene glycol")], lib)[0]
+    assert "the HSP model is unsure of benzonitrile + ethylene glycol" in note
+    assert f"{m.p_miscible:.0%} chance of one phase" in note
+    # a pair the model is sure of, and UNIFAC agrees: no note (toluene + ethyl acetate mix,
+    # common practice)
+    assert second_opinion_notes([("toluene", "ethyl acetate")], lib) == [""]
+
+
+def test_priced_liquids_left_out_by_the_use_temperature_say_why(tmp_path, capsys):
+    # acetone boils at 56 C (chemicals, via the library): at 60 C it is no candidate, and the
+    # price notes say why; a list with both price columns is refused with the reason
+    res = selector.find_blends((18.0, 6.0, 6.0, 7.0), temperature=60, max_components=2,
+                               cost_per_litre={"toluene": 2.0, "acetone": 1.5, "anisole": 3.0})
+    assert "acetone left out: it boils at 56 C, below the use temperature 60 C" in res.attrs["price_notes"]
+    both = tmp_path / "both.csv"
+    both.write_text("name,cost_per_litre,cost_per_kg\ntoluene,2,3\n")
+    assert main(["blend", "18,6,6,7", "--prices", str(both)]) == 2
+    assert "gives both cost_per_litre and cost_per_kg: keep one column" in capsys.readouterr().err

@@ -1094,3 +1094,20 @@ def test_ambiguous_abbreviations_are_answered_with_both_meanings(lib):
     # commercial dipropylene glycol (25265-71-8, chemicals) is an isomer mixture
     with pytest.raises(selector.GenericNameError, match="mixture of three isomers"):
         locate("25265-71-8", lib)
+
+
+def test_a_polymer_name_does_not_find_its_monomer(lib):
+    # practitioner review: "polystyrene" found styrene (chemicals lists it among styrene's
+    # synonyms), so `replace NMP --solute polystyrene` used the monomer's point (18.6, 1.0, 4.1)
+    # where the polymer's sphere is about 21.3, 5.8, 4.3, R0 12.7 (Hansen's handbook, from memory)
+    from selector.errors import PolymerNameError
+
+    for q in ("polystyrene", "polyacrylonitrile", "poly(butyl methacrylate)"):
+        with pytest.raises(PolymerNameError, match="names a polymer"):
+            locate(q, lib)
+    assert find_liquid("styrene", lib)["name"] == "styrene"
+    assert find_liquid("poly-solv em", lib)["name"] == "2-methoxyethanol"    # a trade name, kept
+    # the user's own solute of that name is found as usual
+    mine = selector.load_library(pd.DataFrame({"name": ["polystyrene"], "delta_d": [21.3], "delta_p": [5.8],
+                                               "delta_h": [4.3], "radius": [12.7], "kind": ["solute"]}))
+    assert find_liquid("polystyrene", mine)["delta_d"] == 21.3
