@@ -66,6 +66,9 @@ def add_filter_args(p: argparse.ArgumentParser) -> None:
                    help="only liquids whose published HSP sources agree within 1 MPa^0.5")
     g.add_argument("--halogen-free", action="store_true",
                    help="no liquids containing fluorine, chlorine, bromine or iodine (halogenated waste)")
+    g.add_argument("--no-cmr", action="store_true",
+                   help="no carcinogens, mutagens or reprotoxics, proven or suspected (H340/341/350/351/"
+                        "360/361), and no liquids without hazard data")
     g.add_argument("--include-reactive", action="store_true",
                    help="also propose reagents that are not solvents: reactive, explosive or very toxic "
                    "liquids (acid chlorides, isocyanates, epoxides, benzene, ...); left out by default")
@@ -110,6 +113,8 @@ def filters_from_args(a) -> dict:
         f["consistent_sources_only"] = True
     if getattr(a, "halogen_free", False):
         f["halogen_free"] = True
+    if getattr(a, "no_cmr", False):
+        f["cmr_free"] = True
     if getattr(a, "include_reactive", False):
         f["include_reactive"] = True
     return f

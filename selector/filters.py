@@ -19,6 +19,9 @@ Keyword arguments (all optional):
   (no hazard data) do not pass;
 * ``halogen_free``: drop liquids containing fluorine, chlorine, bromine or iodine
   (:func:`halogenated`);
+* ``cmr_free``: drop carcinogens, mutagens and reprotoxics, proven or suspected (GHS H340,
+  H341, H350, H351, H360, H361 in ``parameters/hazards.csv``; :func:`cmr`), and liquids without
+  hazard data, which nothing shows to be free of them;
 * ``include_reactive``: also offer reagents that are not solvents - reactive, explosive or very
   toxic at low exposure (:mod:`selector.cautions`). Default False: they are never candidates,
   except the liquids named in ``include`` (named on purpose).
@@ -39,7 +42,7 @@ from .library import locate_many
 
 FILTER_KEYS = ("include", "exclude", "boiling_point_c", "min_flash_point_c", "max_molar_volume",
                "consistent_sources_only", "flash_point_c", "max_hazard_class", "include_reactive",
-               "halogen_free")
+               "halogen_free", "cmr_free")
 
 
 def as_flag(v, what: str) -> bool:
@@ -104,6 +107,25 @@ _HALOGEN_FORMULA = r"(?:F|Cl|Br|I)(?![a-z])"
 _HALOGEN_SMILES = r"Cl|Br|F(?![erml])|I(?![nr])"
 
 
+#: GHS statements of carcinogens, mutagens and reprotoxics: category 1 and suspected (category 2).
+CMR_STATEMENTS = ("H340", "H341", "H350", "H351", "H360", "H361")
+
+
+def cmr(library: pd.DataFrame, unknown: bool = True) -> np.ndarray:
+    """True for liquids classified carcinogenic, mutagenic or toxic to reproduction, proven or
+    suspected (:data:`CMR_STATEMENTS`, suffixes such as H360FD or H361d included), and, with
+    ``unknown``, for liquids without hazard data (nothing shows they are not). Many sites and
+    customers rule these out first when replacing a solvent (common practice)."""
+    from .hazards import UNCLASSIFIED, hazard_columns
+
+    hz = hazard_columns(library)
+    st = hz["h_statements"].astype(str).str.upper()
+    out = st.str.contains("|".join(CMR_STATEMENTS), regex=True).to_numpy(bool)
+    if unknown:
+        out = out | (hz["hazard_class"].astype(str).to_numpy() == UNCLASSIFIED)
+    return out
+
+
 def halogenated(library: pd.DataFrame, unknown: bool = True) -> np.ndarray:
     """True for liquids with fluorine, chlorine, bromine or iodine in their formula (or, without
     one, their SMILES). A liquid with neither gets ``unknown``: True for the filter, since nothing
@@ -164,6 +186,8 @@ def filter_phrases(filters: dict, *, fixes: bool = False, deg: str = "C", vol: s
         parts.append(f"agreed HSP sources only{fix('drop it')}")
     if filters.get("halogen_free"):
         parts.append(f"no halogenated liquids{fix('drop it')}")
+    if filters.get("cmr_free"):
+        parts.append(f"no carcinogens, mutagens or reprotoxics (and no liquids without hazard data){fix('drop it')}")
     inc = filters.get("include")
     if inc:
         inc = [inc] if isinstance(inc, str) else list(inc)
@@ -209,7 +233,7 @@ def masks_and_reagents(library: pd.DataFrame, **filters) -> tuple[np.ndarray, in
 def _mask(library: pd.DataFrame, *, temperature: float = 25.0, include=None, exclude=None,
                 boiling_point_c=None, min_flash_point_c=None, max_molar_volume=None,
                 consistent_sources_only=False, flash_point_c=None, max_hazard_class=None,
-                halogen_free=False) -> np.ndarray:
+                halogen_free=False, cmr_free=False) -> np.ndarray:
     """Mask of every filter except the reagent screen."""
     n = len(library)
     mask = np.ones(n, dtype=bool)
@@ -252,6 +276,8 @@ def _mask(library: pd.DataFrame, *, temperature: float = 25.0, include=None, exc
         mask &= ~library["sources_disagree"].to_numpy(bool)
     if as_flag(halogen_free, "halogen_free"):
         mask &= ~halogenated(library)
+    if as_flag(cmr_free, "cmr_free"):
+        mask &= ~cmr(library)
     if flash_point_c is not None:
         flo, fhi = _window(flash_point_c, "flash-point window")
         fp = library["flash_point_c"].to_numpy(float)

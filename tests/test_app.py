@@ -907,3 +907,18 @@ def test_hansen_sphere_is_drawn_round_in_3d():
     assert lo < 18.0 - 3.0 and hi > 18.0 + 3.0 and (hi - lo) < 7.0
     centre = [t for t in fig.data if t.name == "centre of resin R"][0]
     assert centre.marker.symbol == "diamond-open"
+
+
+@pytest.mark.skipif(not has("blends"), reason="selector.blends not installed")
+def test_replace_page_no_cmr_box(at):
+    # GHS: benzene H340 H350, trichloroethylene H341 H350, toluene H361d (harmonised EU
+    # classification, from memory; parameters/hazards.csv): the box leaves them out
+    go(at, "replace")
+    at.selectbox(key="rp_old").set_value("benzene").run()
+    at.checkbox(key="rp_nocmr").check().run()
+    assert not at.exception and not errors(at)
+    shown = at.dataframe[0].value
+    subs = [str(c) for c in (shown.loc[shown["role"] == "substitute", "candidate"] if "role" in shown
+                             else shown["candidate"].iloc[1:])]
+    assert subs and not [c for c in subs if "toluene" in c or "trichloroethylene" in c]
+    assert any("no carcinogens, mutagens or reprotoxics" in c.value for c in at.caption)

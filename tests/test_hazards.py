@@ -420,3 +420,35 @@ def test_a_liquid_without_hazard_data_is_not_told_as_no_peroxide_former(capsys):
 
     df = pd.read_csv(io.StringIO(capsys.readouterr().out))
     assert df["safety_score"].isna().iloc[0] and df["safety_score"].iloc[1] == 1   # water: CHEM21 1
+
+
+def test_cmr_free_drops_carcinogens_mutagens_and_reprotoxics():
+    # practitioner review: replacing benzene proposed trichloroethylene (H350, H341) and toluene
+    # (H361d). GHS classifications (harmonised EU, from memory; parameters/hazards.csv): benzene
+    # H340 H350, NMP H360D, DMF H360D, toluene H361d; ethyl acetate, acetone and ethanol carry none
+    import selector
+    from selector.filters import cmr, filter_mask
+
+    lib = selector.load_library()
+    rows = lib.set_index("name")
+    flagged = dict(zip(lib["name"], cmr(lib)))
+    for n in ("benzene", "trichloroethylene", "toluene", "1-methyl-2-pyrrolidinone", "N,N-dimethylformamide"):
+        assert flagged[selector.find_liquid(n, lib)["name"]], n
+    for n in ("ethyl acetate", "acetone", "ethanol"):
+        assert not flagged[n], n
+    unc = lib.loc[~lib["cas"].isin(hazard_statements()["cas"]), "name"].iloc[0]
+    assert flagged[unc]                               # no hazard data: nothing shows it is free of CMR
+    assert not cmr(rows.loc[[unc]].reset_index(), unknown=False)[0]
+    kept = selector.substitutes("benzene", cmr_free=True, max_components=1, top=30)
+    names = set(kept.loc[kept["role"] == "substitute", "name"] if "name" in kept else
+                [c[0] for c in kept.loc[kept["role"] == "substitute", "components"]])
+    assert not names & {"toluene", "trichloroethylene"} and names
+    assert filter_mask(lib, cmr_free=True).sum() < filter_mask(lib).sum()
+
+
+def test_cli_no_cmr(capsys):
+    from selector.cli import main
+
+    assert main(["rank", "18,1.4,2", "--no-cmr", "--format", "json", "--top", "200"]) == 0
+    names = {r["name"] for r in __import__("json").loads(capsys.readouterr().out)}
+    assert "toluene" not in names and "benzene" not in names and "ethylbenzene" in names

@@ -438,6 +438,9 @@ def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool
                              key=f"{prefix}_nohal",
                              help="drop liquids containing fluorine, chlorine, bromine or iodine "
                                   "(they go to a separate waste stream; many sites restrict them)")
+        nocmr = c10.checkbox("No CMR liquids", value=bool(d.get("cmr_free", False)), key=f"{prefix}_nocmr",
+                             help="drop carcinogens, mutagens and reprotoxics, proven or suspected "
+                                  "(H340, H341, H350, H351, H360, H361), and liquids without hazard data")
         reactive = c8.checkbox("Include reagents", value=False, key=f"{prefix}_reactive",
                                help="also propose reactive, explosive or very toxic liquids that are "
                                     "reagents rather than solvents (acid chlorides, isocyanates, "
@@ -457,6 +460,8 @@ def filter_panel(prefix: str, *, defaults: dict | None = None, temperature: bool
         f["consistent_sources_only"] = True
     if nohal:
         f["halogen_free"] = True
+    if nocmr:
+        f["cmr_free"] = True
     if reactive:
         f["include_reactive"] = True
     if not expanded:
@@ -603,7 +608,8 @@ def filters_as_inputs(filters: dict, temperature: float) -> dict:
              "max_molar_volume": "maximum molar volume (cm3/mol)", "exclude": "never propose",
              "include": "only these", "consistent_sources_only": "agreed HSP sources only",
              "include_reactive": "reagents (reactive, very toxic) included",
-             "max_hazard_class": "worst CHEM21 hazard class", "halogen_free": "no halogenated liquids"}
+             "max_hazard_class": "worst CHEM21 hazard class", "halogen_free": "no halogenated liquids",
+             "cmr_free": "no carcinogens, mutagens or reprotoxics"}
     for k, v in filters.items():
         if k == "boiling_point_c":
             v = f"{'-' if v[0] is None else f'{v[0]:g}'} to {'-' if v[1] is None else f'{v[1]:g}'}"
