@@ -142,6 +142,8 @@ def cmd_sphere(a) -> int:
         if len(nxt):
             lines.append("")
             lines.append("Worth testing next (p_inside: share of plausible spheres that contain it):")
+            lines.append("Units: dD/dP/dH in MPa^0.5; temperatures in C; RED = Ra/R0 of the fitted sphere; "
+                         "- or no data = not known")
             from .cautions import with_flash_texts
 
             with pd.option_context("display.width", 200, "display.float_format", "{:.2f}".format):
