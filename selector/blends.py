@@ -223,12 +223,21 @@ def _reacting_pairs(cand) -> list[tuple[str, str]]:
     return [(names[a], names[b]) for a, b in zip(i, j)]
 
 
+#: Most candidate liquids a blend search takes: the pair screens are n x n arrays (2,000
+#: candidates took about 1 GB and 5 s; 50,000 user rows asked for 57 GB).
+MAX_BLEND_CANDIDATES = 3000
+
+
 def _allowed_pairs(cand, temperature, k, require_miscible, include_reactive):
     """(n, n) bool of the pairs that may be blended, or None for "all": miscible (when asked) and,
     unless ``include_reactive``, not a pair that reacts (:func:`selector.cautions.reactive_pair_matrix`:
     acid + amine, amine + nitroalkane, primary amine + aldehyde or ketone)."""
     if k < 2 or len(cand) < 2:
         return None
+    if len(cand) > MAX_BLEND_CANDIDATES:
+        raise SelectorError(f"{len(cand)} candidate liquids are too many for a blend search (at most "
+                            f"{MAX_BLEND_CANDIDATES}: every pair is checked for miscibility and reactions); "
+                            "narrow them with filters (--only, --bp, --max-class, ...) or single liquids (--parts 1)")
     ok = _miscibility(cand, temperature) if require_miscible else None
     if not include_reactive:
         from .cautions import reactive_pair_matrix
@@ -1209,8 +1218,10 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
     ('replaced', True)
     """
     from .hazards import hazard_columns
+    from .ranking import check_top
     from .targets import as_target
 
+    check_top(top, "substitutes")
     lib = load_library() if library is None else library
     pos = locate(liquid, lib)
     x = lib.iloc[[pos]].reset_index(drop=True)

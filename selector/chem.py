@@ -24,6 +24,20 @@ def canonical_smiles(smiles: str) -> str | None:
     return Chem.MolToSmiles(mol)
 
 
+def flat_smiles(smiles: str) -> str | None:
+    """Canonical SMILES without stereo and isotope labels (``C[C@@H](O)CC`` -> ``CCC(C)O``,
+    ``[2H]C(Cl)(Cl)Cl`` -> ``ClC(Cl)Cl``), or None when the string does not parse."""
+    if not isinstance(smiles, str) or not smiles.strip():
+        return None
+    Chem = _rdkit()
+    mol = Chem.MolFromSmiles(smiles.strip())
+    if mol is None:
+        return None
+    for a in mol.GetAtoms():
+        a.SetIsotope(0)
+    return Chem.MolToSmiles(Chem.RemoveHs(mol), isomericSmiles=False)
+
+
 @functools.lru_cache(maxsize=4096)
 def molar_mass(smiles: str) -> float:
     """Molar mass (g/mol, RDKit's average atomic masses) of a SMILES, NaN when it does not parse."""

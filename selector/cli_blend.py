@@ -121,7 +121,7 @@ def _front_line(res, listing: bool = False) -> str:
     cheap = int(front[basis].to_numpy(float).argmin())
     shown = int(res["pareto"].sum())
     where = " inside the sphere (RED <= 1)" if getattr(res.attrs.get("target"), "radius", None) else ""
-    line = (f"\nCost-versus-Ra front (pareto){where}: {len(front)} blends, from {lab[0]} (Ra {front['ra'].iloc[0]:.3f}, "
+    line = (f"\nCost-versus-Ra front (pareto){where}: {len(front)} {'blend' if len(front) == 1 else 'blends'}, from {lab[0]} (Ra {front['ra'].iloc[0]:.3f}, "
             f"{front[basis].iloc[0]:.3f} {unit}) to the cheapest, {lab[cheap]} (Ra {front['ra'].iloc[cheap]:.3f}, "
             f"{front[basis].iloc[cheap]:.3f} {unit})")
     if listing:

@@ -193,7 +193,14 @@ def cmd_rank(a) -> int:
     shown = for_display(_with_hazard_class(res, lib))
     if (shown["reagent"] != "").any():
         cols = cols + ["reagent"]
-    emit(shown.head(a.top), a, cols, caution=True, header=header + data_note_line(shown.head(a.top)))
+    top = shown.head(a.top)
+    reag = top.loc[top["reagent"] != "", "name"].astype(str).tolist()
+    if reag:
+        # --include-reactive: a reagent may head the table; say so where it is read first
+        header += ("\nWARNING: reagents among these rows (reactive, explosive or very toxic; not solvents): "
+                   + ", ".join(reag[:10]) + (f" and {len(reag) - 10} more" if len(reag) > 10 else "")
+                   + "; read their safety data sheets before any contact")
+    emit(top, a, cols, caution=True, header=header + data_note_line(top))
     return 0
 
 
@@ -355,7 +362,7 @@ def cmd_list(a) -> int:
         out = lib.loc[m].sort_values("name")
     n = len(out)
     out = for_display(out.assign(reagent=reactive_reasons(out)))
-    emit(out.head(a.top) if a.top else out, a, cols, header=f"{n} liquids match")
+    emit(out.head(a.top) if a.top else out, a, cols, header=f"{n} {'liquid matches' if n == 1 else 'liquids match'}")
     return 0
 
 

@@ -143,6 +143,8 @@ def cmd_grid(a) -> int:
     if a.not_miscible and not a.long:
         raise ValueError("--not-miscible picks pairs from the one-row-per-pair list: give --long too")
     dropped = []
+    if a.liquids and a.all:
+        raise ValueError("name the liquids or give --all, not both")
     if a.liquids:
         try:
             df = lib.iloc[locate_many(_names(a.liquids), lib)]
@@ -192,6 +194,11 @@ def cmd_grid(a) -> int:
         if a.not_miscible:
             # a pair that may split (uncertain, or UNIFAC says so) is kept with the ones that do
             out = out[(out.state != "miscible") | out.reacts | out.uncertain]
+            if out.empty:
+                print(f"Every pair of the {len(m)} liquids mixes in all proportions at {a.at:g} C (none is "
+                      "partially miscible, immiscible, uncertain or reacting)." + est_note + no_unifac)
+                print("\n" + CAUTION)
+                return 0
         emit(out, a, caution=True, header=f"{len(out)} pairs at {a.at:g} C" + est_note + no_unifac)
         return 0
     split = m.attrs.get("disagreeing_pairs", [])

@@ -117,6 +117,10 @@ def drying_path(components, fractions, *, temperature: float = 25.0, target=None
     lib = load_library() if library is None else library
     if isinstance(components, str):
         components = [components]
+    if components is None or not hasattr(components, "__iter__"):
+        raise SelectorError(f"components must be a list of liquid names, got {components!r}")
+    if fractions is None or isinstance(fractions, str) or not hasattr(fractions, "__iter__"):
+        raise SelectorError(f"fractions must be a list of volume fractions, one per component, got {fractions!r}")
     comps = list(components)
     if not comps:
         raise SelectorError("no components given")

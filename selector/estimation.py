@@ -1181,6 +1181,20 @@ def saveable_rows(res: pd.DataFrame):
     num = [c for c in SAVED_COLUMNS if c.startswith(("delta_", "molar_volume")) and c != "molar_volume_estimated"]
     new[num] = new[num].astype(float).round(3)
     _, problems = user_row_problems(new)
+    # a name that is a library liquid of another structure would merge the estimate with that
+    # liquid's CAS, boiling point and hazard data (nonyl acetate saved as "toluene")
+    from .chem import canonical_smiles
+    from .library import load_library
+
+    lib = load_library()
+    lib_smiles = dict(zip(lib["name"].astype(str).str.strip().str.lower(), lib["smiles"].astype(str)))
+    for k, (nm, smi) in enumerate(zip(new["name"].astype(str), new["smiles"].astype(str))):
+        other = lib_smiles.get(nm.strip().lower())
+        if other and canonical_smiles(other) != canonical_smiles(smi):
+            problems.setdefault(k, []).append(
+                f"the name {nm.strip()!r} is a library liquid of another structure ({other}): saved under it, the "
+                "estimate would take that liquid's CAS number, boiling point and hazard data; give it a name "
+                "of its own")
     skipped = []
     for k in sorted(problems):
         i = int(cand[k])

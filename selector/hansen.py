@@ -71,6 +71,9 @@ def blend_hsp(hsp, fractions):
     """
     h = _arr(hsp)
     f = _arr(fractions)
+    if h.ndim < 2 or f.ndim < 1 or h.shape[-2] != f.shape[-1]:
+        raise ValueError(f"one volume fraction per component: {h.shape[-2] if h.ndim >= 2 else 1} components "
+                         f"(rows of dD, dP, dH) but {f.shape[-1] if f.ndim else 1} fractions")
     if np.any(f < 0) or np.any(~np.isfinite(f)):
         raise ValueError("volume fractions must be finite and non-negative")
     s = f.sum(axis=-1, keepdims=True)

@@ -178,8 +178,10 @@ def _polymer_synonym(synonym: str, name: str) -> bool:
     """True for a synonym that names a polymer of the liquid ("polystyrene" among styrene's, from
     chemicals): looking it up must not find the monomer, whose HSP are far from the polymer's."""
     s = synonym.strip().lower()
-    return (s.startswith("poly") and not name.strip().lower().startswith("poly")
-            and not s.startswith(_POLY_TRADE_NAMES))
+    if s.startswith(_POLY_TRADE_NAMES) or "poly" in name.strip().lower():
+        return False
+    # "polystyrene", "4-bromopolystyrene", "butyl methacrylate homopolymer", "acrylic polymer"
+    return "poly" in s
 
 
 class _Index:
@@ -216,18 +218,20 @@ class _Index:
                             [n for c, n in m if c not in cas_pos])
                         for k, (m, note) in _generic_names().items() if k not in self.primary and k not in own}
         self.smiles: dict[str, int] | None = None
+        self.flat: dict[str, int] = {}
         self._lib_smiles = lib["smiles"].astype(str).tolist() if "smiles" in lib.columns else []
         self.names = names
 
     def smiles_index(self) -> dict[str, int]:
         if self.smiles is None:
-            from .chem import canonical_smiles
+            from .chem import canonical_smiles, flat_smiles
 
-            self.smiles = {}
+            self.smiles, self.flat = {}, {}
             for i, s in enumerate(self._lib_smiles):
                 can = canonical_smiles(s) if s else None
                 if can:
                     self.smiles.setdefault(can, i)
+                    self.flat.setdefault(flat_smiles(s), i)
         return self.smiles
 
 
@@ -308,6 +312,9 @@ def search(text: str, library: pd.DataFrame | None = None) -> pd.DataFrame:
     names = lib["name"].astype(str)
     by_name = names.map(_key).str.contains(k, regex=False).to_numpy()
     syn = lib["synonyms"].astype(str) if "synonyms" in lib.columns else pd.Series("", index=lib.index)
+    # polymer synonyms (styrene's "polystyrene") are not the liquid's names here either
+    syn = pd.Series(["|".join(x for x in s_.split("|") if not _polymer_synonym(x, n))
+                     for s_, n in zip(syn, names)], index=lib.index)
     cas = lib["cas"].astype(str)
     other = (syn + "|" + cas).map(_key).str.contains(k, regex=False).to_numpy() & ~by_name
     matched = np.full(len(lib), "", dtype=object)
@@ -344,7 +351,7 @@ def locate(query, library: pd.DataFrame | None = None) -> int:
     solid = _not_a_liquid(q)
     if solid is not None:
         raise solid
-    if k.startswith("poly") and not k.startswith(tuple(_key(t) for t in _POLY_TRADE_NAMES)):
+    if "poly" in k and not k.startswith(tuple(_key(t) for t in _POLY_TRADE_NAMES)):
         raise PolymerNameError(q)
     if _CAS_RE.match(q):
         raise UnknownLiquidError(q, [], is_cas=True)
@@ -354,6 +361,12 @@ def locate(query, library: pd.DataFrame | None = None) -> int:
         can = canonical_smiles(q)
         if can and can in idx.smiles_index():
             return idx.smiles_index()[can]
+        # as `likewise guess` does: without stereo and isotope labels (a stereoisomer, CDCl3)
+        from .chem import flat_smiles
+
+        flat = flat_smiles(q)
+        if flat and flat in idx.flat:
+            return idx.flat[flat]
     raise UnknownLiquidError(q, suggest(q, lib))
 
 

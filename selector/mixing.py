@@ -1605,12 +1605,23 @@ def miscible_pairs(liquids: pd.DataFrame, temperature: float = 25.0, model=None,
     return out
 
 
+#: Most liquids a matrix of pair states takes (n x n x 3 arrays; 50,000 user rows asked for 57 GB).
+MAX_MATRIX_LIQUIDS = 3000
+
+
 def _rows(liquids, library):
     if isinstance(liquids, pd.DataFrame):
+        if len(liquids) > MAX_MATRIX_LIQUIDS:
+            raise SelectorError(f"{len(liquids)} liquids are too many for a table of every pair (at most "
+                                f"{MAX_MATRIX_LIQUIDS}): pick fewer, with a filter or a list of names")
         return liquids.reset_index(drop=True)
-    if isinstance(liquids, (str, dict, pd.Series)):
-        raise SelectorError("give a list of liquids (at least two)")
+    if liquids is None or isinstance(liquids, (str, dict, pd.Series, int, float)):
+        raise SelectorError("give a list of liquids (at least two), e.g. ['water', 'ethanol']")
     items = list(liquids)
+    bad = [x for x in items if not isinstance(x, (str, dict, pd.Series))]
+    if bad:
+        raise SelectorError(f"each liquid must be a name, CAS number or SMILES (text) or a dict of values, "
+                            f"got {bad[0]!r}")
     if not items:
         raise SelectorError("no liquids selected")
     lib = library
@@ -1748,6 +1759,8 @@ def check_blend_miscible(names_or_rows, *, temperature: float = 25.0,
     >>> check_blend_miscible(["water", "toluene", "acetone"]).failing
     [('water', 'toluene', 'immiscible')]
     """
+    if isinstance(names_or_rows, str):
+        raise SelectorError("give the blend's liquids as a list of at least two names")
     if isinstance(names_or_rows, (list, tuple)) and names_or_rows and all(isinstance(x, str) for x in names_or_rows):
         lib = _shared_library() if library is None else library
         from .library import locate_many
@@ -1785,8 +1798,8 @@ def phase_sweep(a, b, *, n: int = 41, library: pd.DataFrame | None = None,
     from .library import find_liquid
 
     lib = load_library() if library is None else library
-    if not isinstance(n, (int, np.integer)) or n < 2:
-        raise SelectorError(f"n must be a whole number >= 2, got {n!r}")
+    if isinstance(n, bool) or not isinstance(n, (int, np.integer)) or not 2 <= n <= 1001:
+        raise SelectorError(f"n must be a whole number from 2 to 1001 (temperatures on the diagram), got {n!r}")
     ra_, rb_ = find_liquid(a, lib), find_liquid(b, lib)
     lo = float(np.nanmax([t_min_c, ra_["melting_point_c"], rb_["melting_point_c"]])) + 0.5
     hi = float(np.nanmin([t_max_c, ra_["boiling_point_c"], rb_["boiling_point_c"]])) - 0.5

@@ -86,6 +86,16 @@ def resolve_target(target, library: pd.DataFrame, temperature: float = 25.0) -> 
 
 
 #: Note on a typed point or a fitted sphere used away from 25 C (``{t}``: the temperature in C).
+def check_top(top, what: str = "liquids") -> None:
+    """Refuse a ``top`` that is not None or a whole number of at least 1 (-1 would drop the last
+    row, 0 show nothing)."""
+    if top is None:
+        return
+    if isinstance(top, bool) or not isinstance(top, (int, np.integer)) or top < 1:
+        raise SelectorError(f"the number of {what} to show (top) must be a whole number of at least 1, "
+                            f"got {top!r}")
+
+
 TYPED_AT_TEMPERATURE = ("the target's HSP are used as given, as its values at {t:g} C (not corrected "
                         "from 25 C); the candidates' HSP are corrected to {t:g} C")
 
@@ -116,6 +126,7 @@ def rank(target, *, temperature: float = 25.0, library: pd.DataFrame | None = No
     >>> bool((top["red"] < 1).all())
     True
     """
+    check_top(top)
     check_filter_keys(filters)
     t_c = check_temperature(temperature)
     try:
@@ -170,5 +181,5 @@ def rank(target, *, temperature: float = 25.0, library: pd.DataFrame | None = No
     out.attrs["temperature"] = t_c
     out.attrs["reagents_left_out"] = left_out
     if top is not None:
-        out = out.head(int(top))
+        out = out.head(top)
     return out

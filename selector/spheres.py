@@ -290,7 +290,8 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
             want = f"the column {col!r}"
         extra = ""
         if not graded and any(c in df.columns for c in GRADE_COLUMNS):
-            extra = "; for numeric grades give threshold= (the lowest grade that counts as good)"
+            extra = ("; for numeric grades give a pass mark, the lowest grade that counts as good (threshold= in "
+                     "Python, --pass-mark and --outcome on the command line, Grades in the score column in the app)")
         raise InputTableError("lab tests", [f"no outcome: the table needs {want} "
                                             f"(columns found: {', '.join(df.columns)}){extra}"])
     lo_hi = None
@@ -395,6 +396,11 @@ def read_tests(source, *, library: pd.DataFrame | None = None, outcome: str | No
                     bp_p = float(lib["boiling_point_c"].iat[p]) if "boiling_point_c" in lib else math.nan
                     if math.isfinite(bp_p) and t >= bp_p:
                         boiling.append(f"{label} (boils at {bp_p:.0f} C, tested at {t:g} C)")
+                    mp_p = float(lib["melting_point_c"].iat[p]) if "melting_point_c" in lib else math.nan
+                    if math.isfinite(mp_p) and t < mp_p:
+                        problems.append(f"{where}: {lib['name'].iat[p]} melts at {mp_p:.0f} C, so it is no liquid "
+                                        f"at {t:g} C: check the temperature")
+                        ok = False
                 if not np.all(np.isfinite(hsp)):
                     problems.append(f"{where}: the library has no HSP for this liquid")
                     ok = False

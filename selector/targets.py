@@ -163,12 +163,26 @@ def liquid_point(query, radius: float | None = None, library: pd.DataFrame | Non
     return _check_given(replace(t, radius=radius, source=f"library point with given R0 ({t.source})"))
 
 
+def _numbers_text(text: str):
+    """``(dD, dP, dH[, R0])`` when ``text`` is three or four comma-separated numbers, else None."""
+    parts = [p.strip() for p in text.split(",")]
+    if len(parts) not in (3, 4):
+        return None
+    try:
+        return tuple(float(p) for p in parts)
+    except ValueError:
+        return None
+
+
 def as_target(target, library: pd.DataFrame | None = None, name: str | None = None) -> Target:
     """Turn any accepted target form (see module doc) into a validated :class:`Target`."""
     if isinstance(target, Target):
         return target
     if target is None:
         raise SelectorError("no target given: pass (delta_d, delta_p, delta_h[, R0]) or a liquid name")
+    if isinstance(target, str) and _numbers_text(target) is not None:
+        # "18,3,5,8": the numbers a command line would read (no liquid's name is only numbers)
+        return as_target(_numbers_text(target), library, name)
     if isinstance(target, str):
         lib = load_library() if library is None else library
         try:

@@ -471,3 +471,16 @@ def test_mix_grid_marks_doubtful_and_reacting_cells(capsys):
     # PGME + hexane: Dortmund UNIFAC (thermo) splits what the HSP model mixes
     assert grid["hexane"][2].endswith("?")
     assert "? = uncertain or the models disagree, ! = they react" in out
+
+
+def test_reagents_shown_on_request_are_named_in_the_header(capsys):
+    # crash hunt: with --include-reactive a reagent could head the table with its warning only in
+    # the far-right column; benzene is a carcinogen held back as a reagent (common practice)
+    from selector.cli import main
+
+    assert main(["rank", "18,1.4,2", "--include-reactive", "--top", "20"]) == 0
+    out = capsys.readouterr().out
+    line = next(ln for ln in out.splitlines() if ln.startswith("WARNING: reagents among these rows"))
+    assert "benzene" in line
+    assert main(["rank", "18,1.4,2", "--top", "20"]) == 0
+    assert "WARNING: reagents among these rows" not in capsys.readouterr().out

@@ -563,3 +563,14 @@ def test_a_refused_ion_does_not_sink_a_batch(tmp_path, capsys):
     # ethanol's library values (parameters/liquids.csv, from chemicals: ALSHERI_HANSEN 15.8, 8.8, 19.4)
     assert out.loc[1, "source"] == "library" and out.loc[1, ["delta_d", "delta_p", "delta_h"]].tolist() == [15.8, 8.8, 19.4]
     assert "1 of 2 rows could not be estimated" in cap.err
+
+
+def test_an_estimate_is_not_saved_under_a_library_liquid_of_another_structure(tmp_path, capsys):
+    # crash hunt: nonyl acetate saved as "toluene" took toluene's CAS, boiling point and hazard
+    # data (the merge fills what the row leaves empty) under nonyl acetate's HSP
+    from selector.cli import main
+
+    mine = tmp_path / "mine.csv"
+    assert main(["guess", "CCCCCCCCCOC(=O)C", "--name", "toluene", "--save-mine", str(mine)]) == 1
+    err = capsys.readouterr().err
+    assert "the name 'toluene' is a library liquid of another structure" in err and not mine.exists()

@@ -1111,3 +1111,28 @@ def test_a_polymer_name_does_not_find_its_monomer(lib):
     mine = selector.load_library(pd.DataFrame({"name": ["polystyrene"], "delta_d": [21.3], "delta_p": [5.8],
                                                "delta_h": [4.3], "radius": [12.7], "kind": ["solute"]}))
     assert find_liquid("polystyrene", mine)["delta_d"] == 21.3
+
+
+def test_a_smiles_with_stereo_or_isotope_labels_finds_the_liquid(lib):
+    # crash hunt: `guess` answered these from the library while every other command called them
+    # unknown; (R)-2-butanol is 2-butanol's stereoisomer and CDCl3 deuterated chloroform (RDKit
+    # parses both; common practice: their HSP are taken as the parent's)
+    assert find_liquid("C[C@@H](O)CC", lib)["name"] == "2-butanol"
+    assert find_liquid("[2H]C(Cl)(Cl)Cl", lib)["name"] == "chloroform"
+    with pytest.raises(UnknownLiquidError):
+        find_liquid("C1CC", lib)                      # not a SMILES RDKit reads
+
+
+def test_wrong_types_and_counts_get_messages(lib):
+    # crash hunt: these raised TypeError or AttributeError, or silently dropped a row
+    from selector.hansen import blend_hsp
+
+    for call in (lambda: selector.rank("toluene", top=-1), lambda: selector.rank("toluene", top=pd.NA),
+                 lambda: selector.substitutes("toluene", top="2"), lambda: selector.miscibility_matrix(None),
+                 lambda: selector.miscibility_matrix(["water", None]), lambda: selector.drying_path(None, [0.5, 0.5]),
+                 lambda: selector.check_blend_miscible(None), lambda: selector.phase_sweep("water", "hexane", n=10**6)):
+        with pytest.raises(SelectorError):
+            call()
+    with pytest.raises(ValueError, match="one volume fraction per component"):
+        blend_hsp([[18, 1, 2], [15, 16, 42]], [1])
+    assert len(selector.rank("toluene", top=3)) == 3

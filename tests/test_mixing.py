@@ -905,3 +905,13 @@ def test_a_record_that_says_only_not_miscible_answers():
 
     assert resolve_recorded("not miscible", "immiscible") == "immiscible"
     assert resolve_recorded("miscible", "immiscible") == "miscible"
+
+
+def test_mix_grid_not_miscible_says_when_every_pair_mixes(capsys):
+    # crash hunt: water + ethanol (miscible, common practice) gave "no liquids match the conditions"
+    from selector.cli import main
+
+    assert main(["mix-grid", "water,ethanol", "--long", "--not-miscible"]) == 0
+    assert "Every pair of the 2 liquids mixes in all proportions at 25 C" in capsys.readouterr().out
+    assert main(["mix-grid", "water,ethanol", "--all"]) == 2
+    assert "name the liquids or give --all, not both" in capsys.readouterr().err

@@ -337,3 +337,13 @@ def test_rank_carries_the_chem21_class_of_each_liquid():
 
     ref = attach_hazards(res[["name", "cas"]], selector.load_library())
     assert list(ref["hazard_class"]) == list(res["hazard_class"])
+
+
+def test_a_target_written_as_text_numbers_is_read_as_numbers():
+    # crash hunt: selector.find_blends("18,3,5,8") answered "unknown liquid"; the command line reads
+    # the same text as dD, dP, dH, R0. A name with digits (1,4-dioxane) stays a name.
+    t = selector.as_target("18,3,5,8")
+    assert t.hsp == pytest.approx((18.0, 3.0, 5.0)) and t.radius == 8.0
+    assert selector.as_target("1,4-dioxane").name == "1,4-dioxane"
+    res = selector.rank("18,1.4,2", top=1)
+    assert res["name"].iloc[0] == selector.rank((18.0, 1.4, 2.0), top=1)["name"].iloc[0]

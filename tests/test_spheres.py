@@ -641,3 +641,16 @@ def test_grades_without_a_pass_mark_are_told_once():
         read_tests(grades, outcome="score")
     msg = str(e.value)
     assert "1 problem" in msg and msg.count("need a pass mark") == 1 and "rows 2 (2), 3 (3)" in msg
+
+
+def test_lab_tests_below_a_liquids_melting_point_are_refused():
+    # crash hunt: tests "at -90 C" fitted a sphere though water melts at 0 C and cyclohexane at
+    # 6.5 C (chemicals, via the library)
+    df = pd.DataFrame({"solvent": ["water", "cyclohexane", "acetone", "ethanol", "toluene"],
+                       "outcome": [0, 0, 1, 0, 1]})
+    with pytest.raises(InputTableError) as e:
+        read_tests(df, temperature=-90)
+    msg = str(e.value)
+    assert "water melts at 0 C, so it is no liquid at -90 C" in msg and "cyclohexane melts at 7 C" in msg
+    assert "acetone melts" not in msg            # acetone melts at -95 C
+    assert len(read_tests(df)) == 5              # at 25 C the same tests are fine
