@@ -12,25 +12,25 @@ def _rdkit():
     return Chem
 
 
+def _parse(smiles):
+    """The RDKit molecule of a SMILES string, or None (not text, empty, or unreadable)."""
+    if not isinstance(smiles, str) or not smiles.strip():
+        return None
+    return _rdkit().MolFromSmiles(smiles.strip())
+
+
 @functools.lru_cache(maxsize=4096)
 def canonical_smiles(smiles: str) -> str | None:
     """RDKit canonical SMILES, or None when the string does not parse."""
-    if not isinstance(smiles, str) or not smiles.strip():
-        return None
-    Chem = _rdkit()
-    mol = Chem.MolFromSmiles(smiles.strip())
-    if mol is None:
-        return None
-    return Chem.MolToSmiles(mol)
+    mol = _parse(smiles)
+    return None if mol is None else _rdkit().MolToSmiles(mol)
 
 
 def flat_smiles(smiles: str) -> str | None:
     """Canonical SMILES without stereo and isotope labels (``C[C@@H](O)CC`` -> ``CCC(C)O``,
     ``[2H]C(Cl)(Cl)Cl`` -> ``ClC(Cl)Cl``), or None when the string does not parse."""
-    if not isinstance(smiles, str) or not smiles.strip():
-        return None
     Chem = _rdkit()
-    mol = Chem.MolFromSmiles(smiles.strip())
+    mol = _parse(smiles)
     if mol is None:
         return None
     for a in mol.GetAtoms():
