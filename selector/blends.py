@@ -212,13 +212,10 @@ def _miscibility(cand, temperature):
     return np.asarray(miscible_pairs(cand, temperature=temperature), dtype=bool)
 
 
-def _reacting_pairs(cand) -> list[tuple[str, str]]:
-    """The pairs of candidates that the pair screen keeps out of every blend
-    (:func:`selector.cautions.reactive_pair_matrix`), as name pairs."""
-    from .cautions import reactive_pair_matrix
-
-    m = reactive_pair_matrix(cand)
-    i, j = np.nonzero(np.triu(m, 1))
+def _reacting_pairs(cand, reacts: np.ndarray) -> list[tuple[str, str]]:
+    """The pairs of candidates that the pair screen keeps out of every blend (``reacts``:
+    :func:`selector.cautions.reactive_pair_matrix` of ``cand``), as name pairs."""
+    i, j = np.nonzero(np.triu(reacts, 1))
     names = cand["name"].astype(str).to_numpy()
     return [(names[a], names[b]) for a, b in zip(i, j)]
 
@@ -229,22 +226,24 @@ MAX_BLEND_CANDIDATES = 3000
 
 
 def _allowed_pairs(cand, temperature, k, require_miscible, include_reactive):
-    """(n, n) bool of the pairs that may be blended, or None for "all": miscible (when asked) and,
-    unless ``include_reactive``, not a pair that reacts (:func:`selector.cautions.reactive_pair_matrix`:
-    acid + amine, amine + nitroalkane, primary amine + aldehyde or ketone)."""
+    """``(allowed, reacts)``: (n, n) bool of the pairs that may be blended, or None for "all":
+    miscible (when asked) and, unless ``include_reactive``, not a pair that reacts
+    (:func:`selector.cautions.reactive_pair_matrix`: acid + amine, amine + nitroalkane, primary
+    amine + aldehyde or ketone); ``reacts`` is that matrix (None when not screened)."""
     if k < 2 or len(cand) < 2:
-        return None
+        return None, None
     if len(cand) > MAX_BLEND_CANDIDATES:
         raise SelectorError(f"{len(cand)} candidate liquids are too many for a blend search (at most "
                             f"{MAX_BLEND_CANDIDATES}: every pair is checked for miscibility and reactions); "
                             "narrow them with filters (--only, --bp, --max-class, ...) or single liquids (--parts 1)")
     ok = _miscibility(cand, temperature) if require_miscible else None
+    reacts = None
     if not include_reactive:
         from .cautions import reactive_pair_matrix
 
-        safe = ~reactive_pair_matrix(cand)
-        ok = safe if ok is None else (ok & safe)
-    return ok
+        reacts = reactive_pair_matrix(cand)
+        ok = ~reacts if ok is None else (ok & ~reacts)
+    return ok, reacts
 
 
 def search_arrays(X, t, *, max_components=3, min_fraction=0.05, miscible=None, pool=2000,
@@ -564,7 +563,8 @@ def _with_best_singles(pick, order, idx, top, n=MIN_SINGLES):
     places of the last-picked blends, and the table keeps its score order."""
     single = (np.asarray(idx) >= 0).sum(1) == 1
     best = [int(p) for p in order if single[p]][:n]
-    missing = [p for p in best if p not in set(pick.tolist())]
+    have = set(pick.tolist())
+    missing = [p for p in best if p not in have]
     if not missing:
         return pick
     keep = list(pick)
@@ -638,13 +638,9 @@ def read_price_list(source, what: str | None = None) -> dict[str, pd.DataFrame]:
 def price_error_named(err: Exception, label: str) -> Exception | None:
     """``err`` raised by :func:`find_blends` told under the price list's own name (``label``,
     e.g. "the price list prices.csv"), or None when it is not about the price list."""
-    from .errors import InputTableError
+    from .errors import PriceListError
 
-    if isinstance(err, InputTableError) and str(err).startswith("cost list"):
-        return InputTableError(label, err.problems)
-    if isinstance(err, SelectorError) and getattr(err, "price_problem", False):
-        return SelectorError(f"{label}: {err}")
-    return None
+    return PriceListError(err.problems, label) if isinstance(err, PriceListError) else None
 
 
 def _priced_left_out(lib: pd.DataFrame, out: np.ndarray, filters: dict,
@@ -703,7 +699,7 @@ def _costs(costs, lib, basis: str = "cost_per_litre"):
     per litre with the 25 C density; a liquid without one is left out with a note. A liquid priced
     twice (the same name on two rows, or a name and its synonym) is refused. Every problem of the
     list is reported in one error."""
-    from .errors import InputTableError
+    from .errors import PriceListError
     from .library import _key
 
     pairs = _cost_pairs(costs, basis)
@@ -745,11 +741,7 @@ def _costs(costs, lib, basis: str = "cost_per_litre"):
         elif p >= 0:
             out[p] = v
     if problems:
-        if len(problems) == 1:
-            err = SelectorError(problems[0])
-            err.price_problem = True   # the command line puts the file's name in front
-            raise err
-        raise InputTableError("cost list", problems)
+        raise PriceListError(problems)   # the command line and the app put the list's name in front
     notes = [f"price of {nm!r} used for {lib_names[p]}" for nm, p in zip(names, pos)
              if _key(nm) != _key(lib_names[p])]
     if basis == "cost_per_kg":
@@ -1000,9 +992,9 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     if isinstance(max_components, bool) or kmax not in (1, 2, 3) or kmax != max_components:
         raise SelectorError(f"max_components must be 1, 2 or 3, got {max_components!r}")
     m = _check_min_fraction(min_fraction, kmax if kmax > 1 else 2)
-    if top is not None and (not isinstance(top, (int, np.integer)) or top < 1):
-        raise SelectorError(f"the number of blends to show (top) must be a whole number of at least 1, "
-                            f"got {top!r}")
+    from .ranking import check_top
+
+    check_top(top, "blends")
     if not isinstance(max_uses, (int, np.integer)) or max_uses < 1:
         raise SelectorError(f"max_uses must be a positive whole number, got {max_uses!r}")
     try:
@@ -1027,8 +1019,8 @@ def find_blends(target, *, max_components: int = 3, min_fraction: float = 0.05,
     from .filters import as_flag
 
     require_miscible = as_flag(require_miscible, "require_miscible")
-    mis = _allowed_pairs(cand, t_c, kmax, require_miscible, bool(filters.get("include_reactive")))
-    reacting = _reacting_pairs(cand) if kmax >= 2 and not filters.get("include_reactive") else []
+    mis, reacts = _allowed_pairs(cand, t_c, kmax, require_miscible, bool(filters.get("include_reactive")))
+    reacting = _reacting_pairs(cand, reacts) if reacts is not None else []
     pool = max(2000, 50 * (top or 20))
     from .hazards import hazard_columns
 
@@ -1288,7 +1280,7 @@ def substitutes(liquid, *, solute=None, max_components: int = 2, min_fraction: f
         hd = set(lib["name"].to_numpy(str)[hz_all["high_decomposition_energy"].to_numpy(bool)])
         energetic = [n for n in cand["name"].astype(str) if n in hd]
     require_miscible = as_flag(require_miscible, "require_miscible")
-    mis = _allowed_pairs(cand, t_c, k, require_miscible, bool(filt.get("include_reactive")))
+    mis, _ = _allowed_pairs(cand, t_c, k, require_miscible, bool(filt.get("include_reactive")))
     res = search_arrays(h * SCALE, tg.hsp * SCALE, max_components=k,
                         min_fraction=_check_min_fraction(min_fraction, max(k, 2)), miscible=mis,
                         pool=max(2000, pool_top))

@@ -48,9 +48,7 @@ def _target(a, lib):
 
 
 def cmd_blend(a) -> int:
-    from .blends import find_blends
-
-    from .blends import price_error_named
+    from .blends import find_blends, price_error_named
     from .errors import SelectorError
 
     lib = library_from_args(a)

@@ -152,8 +152,10 @@ def target_from_text(text: str, radius: float | None = None, library=None):
         # a solid with published HSP (sulfolane, tert-butanol) is a target by its published point
         from .targets import as_target
 
+        from dataclasses import replace
+
         t = as_target(text, lib)
-        return t if radius is None else __import__("dataclasses").replace(t, radius=radius)
+        return t if radius is None else replace(t, radius=radius)
     except SelectorError as err:
         if len(parts) > 1 and _is_number(parts[0]):
             raise SelectorError(f"{err}; as numbers, a target is 'dD,dP,dH' or 'dD,dP,dH,R0' in "

@@ -100,3 +100,17 @@ class InputTableError(SelectorError):
         self.problems = list(problems)
         lines = "\n".join(f"  - {p}" for p in self.problems)
         super().__init__(f"{what}: {plural(len(self.problems), 'problem')}\n{lines}")
+
+
+class PriceListError(InputTableError):
+    """Every problem of a price list at once; a single problem reads as one line. ``label`` names
+    the list in the message ("the price list prices.csv"); without it one problem stands alone
+    and several go under "cost list"."""
+
+    def __init__(self, problems: list[str], label: str | None = None):
+        self.label = label
+        if len(problems) == 1:
+            self.problems = list(problems)
+            SelectorError.__init__(self, problems[0] if label is None else f"{label}: {problems[0]}")
+        else:
+            super().__init__(label or "cost list", problems)

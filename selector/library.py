@@ -253,7 +253,8 @@ def _index_for(lib: pd.DataFrame) -> _Index:
 def _published_index() -> tuple[dict, pd.DataFrame]:
     """Look-up key (name or CAS) -> row of the published HSP table of every compound
     (``parameters/estimator/training_hsp.csv``, solids included), and the table itself."""
-    path = PARAMETERS_DIR / "estimator" / "training_hsp.csv"
+    from .estimation import TRAINING_CSV as path   # the table the estimator trains on
+
     if not path.exists():
         return {}, pd.DataFrame()
     t = pd.read_csv(path, keep_default_na=False, dtype={"cas": str})

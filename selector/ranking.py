@@ -85,7 +85,6 @@ def resolve_target(target, library: pd.DataFrame, temperature: float = 25.0) -> 
     return _with_note(t, f"{t.name} has no expansion coefficient: its 25 C HSP are used at {temperature:g} C")
 
 
-#: Note on a typed point or a fitted sphere used away from 25 C (``{t}``: the temperature in C).
 def check_top(top, what: str = "liquids") -> None:
     """Refuse a ``top`` that is not None or a whole number of at least 1 (-1 would drop the last
     row, 0 show nothing)."""
@@ -96,6 +95,7 @@ def check_top(top, what: str = "liquids") -> None:
                             f"got {top!r}")
 
 
+#: Note on a typed point or a fitted sphere used away from 25 C (``{t}``: the temperature in C).
 TYPED_AT_TEMPERATURE = ("the target's HSP are used as given, as its values at {t:g} C (not corrected "
                         "from 25 C); the candidates' HSP are corrected to {t:g} C")
 
